@@ -1,0 +1,133 @@
+"""The catalogue of materials: CoolProp fluids, aqueous solutions, and tabulated solids.
+
+Names are the generic chemical names engineers use. Each material reports the
+source of its property data (``Material.source``).
+"""
+from __future__ import annotations
+
+import csv
+from dataclasses import dataclass
+from functools import lru_cache
+from importlib import resources
+
+from .errors import InputError
+from .properties import CoolPropFluid, IncompressibleSolution, Material, Phase, TabulatedMaterial
+
+__all__ = ["PURE_FLUIDS", "SOLUTIONS", "get_material", "solid_table", "catalogue", "MaterialInfo",
+           "SOLIDS_FILE"]
+
+#: generic name -> (CoolProp fluid, backend)
+PURE_FLUIDS: dict[str, tuple[str, str]] = {
+    "water": ("Water", "IF97"),
+    "air": ("Air", "HEOS"),
+    "nitrogen": ("Nitrogen", "HEOS"),
+    "oxygen": ("Oxygen", "HEOS"),
+    "argon": ("Argon", "HEOS"),
+    "hydrogen": ("Hydrogen", "HEOS"),
+    "helium": ("Helium", "HEOS"),
+    "carbon dioxide": ("CarbonDioxide", "HEOS"),
+    "ammonia": ("Ammonia", "HEOS"),
+    "methane": ("Methane", "HEOS"),
+    "ethane": ("Ethane", "HEOS"),
+    "propane": ("n-Propane", "HEOS"),
+    "n-butane": ("n-Butane", "HEOS"),
+    "n-hexane": ("n-Hexane", "HEOS"),
+    "n-heptane": ("n-Heptane", "HEOS"),
+    "cyclohexane": ("CycloHexane", "HEOS"),
+    "benzene": ("Benzene", "HEOS"),
+    "toluene": ("Toluene", "HEOS"),
+    "methanol": ("Methanol", "HEOS"),
+    "ethanol": ("Ethanol", "HEOS"),
+    "acetone": ("Acetone", "HEOS"),
+    "R-134a": ("R134a", "HEOS"),
+    "R-32": ("R32", "HEOS"),
+    "R-1234yf": ("R1234yf", "HEOS"),
+    "R-410A": ("R410A", "HEOS"),
+}
+
+#: generic name -> (CoolProp incompressible code, largest mass fraction of its fit)
+SOLUTIONS: dict[str, tuple[str, float]] = {
+    "ethylene glycol (aq)": ("MEG", 0.60),
+    "propylene glycol (aq)": ("MPG", 0.60),
+    "calcium chloride brine": ("MCA", 0.30),
+    "sodium chloride brine": ("MNA", 0.23),
+}
+
+SOLIDS_FILE = "solids_and_simple_liquids.csv"
+KJ = 1000.0
+
+
+def _celsius(text: str) -> float:
+    return float(text) + 273.15
+
+
+@lru_cache(maxsize=1)
+def solid_table() -> tuple[dict[str, str], ...]:
+    """Rows of the shipped table of solids and simple liquids (read once)."""
+    with resources.files(__package__).joinpath("data").joinpath(SOLIDS_FILE).open(encoding="utf-8") as handle:
+        return tuple(csv.DictReader(handle))
+
+
+def _tabulated(row: dict[str, str]) -> TabulatedMaterial:
+    low = Phase("solid", (float(row["cp_low_kJ_kgK"]) * KJ,))
+    phases: tuple[Phase, ...] = (low,)
+    if row["melting_point_C"]:
+        low = Phase("solid", low.cp, _celsius(row["melting_point_C"]), float(row["latent_fusion_kJ_kg"]) * KJ)
+        phases = (low, Phase("liquid", (float(row["cp_high_kJ_kgK"]) * KJ,)))
+    material = TabulatedMaterial(row["name"], phases, _celsius(row["limit_min_C"]),
+                                 _celsius(row["limit_max_C"]), row["source"])
+    material.valid_min, material.valid_max = _celsius(row["valid_min_C"]), _celsius(row["valid_max_C"])
+    return material
+
+
+@lru_cache(maxsize=256)
+def _library_material(name: str, mass_fraction: float | None) -> Material:
+    if name in PURE_FLUIDS:
+        fluid, backend = PURE_FLUIDS[name]
+        return CoolPropFluid(name, fluid, backend)
+    if name in SOLUTIONS:
+        code, fraction_max = SOLUTIONS[name]
+        if mass_fraction is None:
+            raise InputError(f"{name} needs a mass fraction (0 to {fraction_max:g})")
+        return IncompressibleSolution(name, code, mass_fraction, fraction_max)
+    for row in solid_table():
+        if row["name"] == name:
+            return _tabulated(row)
+    raise InputError(f"unknown material '{name}'; choose one of: {', '.join(library_names())}"
+                     " or define it in the worksheet's materials")
+
+
+def library_names() -> list[str]:
+    """Every material name the library knows."""
+    return [*PURE_FLUIDS, *SOLUTIONS, *(row["name"] for row in solid_table())]
+
+
+def get_material(name: str, mass_fraction: float | None = None,
+                 user_materials: dict[str, Material] | None = None, where: str = "") -> Material:
+    """The material called ``name``: a user-defined one first, then the library (instances cached)."""
+    if user_materials and name in user_materials:
+        return user_materials[name]
+    try:
+        return _library_material(name, mass_fraction if name in SOLUTIONS else None)
+    except InputError as exc:
+        raise InputError(exc.message, where) from None
+
+
+@dataclass(frozen=True)
+class MaterialInfo:
+    """One catalogue entry, for listings."""
+
+    name: str
+    group: str
+    data: str
+
+
+def catalogue() -> list[MaterialInfo]:
+    """What can be used, grouped, with the data behind each."""
+    fluids = [MaterialInfo(name, "pure fluid", f"CoolProp {backend} ({fluid})")
+              for name, (fluid, backend) in PURE_FLUIDS.items()]
+    solutions = [MaterialInfo(name, "aqueous solution", f"CoolProp incompressible {code}, mass fraction 0-{x:g}")
+                 for name, (code, x) in SOLUTIONS.items()]
+    tabulated = [MaterialInfo(row["name"], "tabulated solid or simple liquid", row["source"])
+                 for row in solid_table()]
+    return fluids + solutions + tabulated

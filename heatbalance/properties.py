@@ -1,0 +1,256 @@
+"""Specific enthalpy of materials: the only module that imports CoolProp.
+
+Every material answers the same questions, in SI floats (K, Pa, J/kg):
+
+* ``transitions(P)``: the phase changes on its temperature scale at pressure P,
+  each with its temperature and the enthalpy of the lower and upper phase there;
+* ``enthalpy(T, P)``: specific enthalpy of the single phase present at T, P;
+* ``t_min``/``t_max``: the range of its property data (refused outside).
+
+A state on a plateau (a phase change at constant T and P) has the enthalpy
+``h_lower + f * (h_upper - h_lower)`` with ``f`` the fraction of the upper phase.
+Enthalpy references differ between materials; only differences are used.
+"""
+from __future__ import annotations
+
+import threading
+from dataclasses import dataclass
+from functools import lru_cache
+
+import CoolProp
+import CoolProp.CoolProp as CP
+
+from .errors import InputError, PropertyRangeError
+
+__all__ = ["Transition", "Material", "CoolPropFluid", "IncompressibleSolution", "TabulatedMaterial",
+           "Phase", "EVALUATIONS", "property_library_versions"]
+
+
+class _Counter:
+    """Counts enthalpy evaluations (for the benchmarks)."""
+
+    def __init__(self) -> None:
+        self.count = 0
+
+    def reset(self) -> None:
+        self.count = 0
+
+
+EVALUATIONS = _Counter()
+
+
+@dataclass(frozen=True)
+class Transition:
+    """A phase change at temperature ``T`` [K]: ``kind`` is ``"boiling"`` or ``"melting"``."""
+
+    T: float
+    kind: str
+    h_lower: float
+    h_upper: float
+
+    @property
+    def latent(self) -> float:
+        """Latent heat [J/kg]."""
+        return self.h_upper - self.h_lower
+
+
+class Material:
+    """Interface shared by every material."""
+
+    name: str = ""
+    source: str = ""
+    t_min: float = 0.0
+    t_max: float = 0.0
+
+    def transitions(self, P: float) -> list[Transition]:
+        return []
+
+    def enthalpy(self, T: float, P: float) -> float:
+        raise NotImplementedError
+
+    def phase_name(self, T: float, P: float) -> str:
+        """Name of the phase present at a temperature off any plateau."""
+        below = [t for t in self.transitions(P) if t.T < T]
+        return _UPPER_PHASE[below[-1].kind] if below else self.lowest_phase
+
+    lowest_phase = "liquid"
+
+    #: Inside [valid_min, valid_max] the data are used as published; between these and
+    #: [t_min, t_max] they are extrapolated (a warning); outside t_min..t_max they are refused.
+    valid_min: float | None = None
+    valid_max: float | None = None
+
+    def check_range(self, T: float, where: str = "") -> None:
+        """Refuse a temperature outside the property data's range."""
+        if not self.t_min - 1e-9 <= T <= self.t_max + 1e-9:
+            raise PropertyRangeError(self.name, "temperature", T - 273.15, self.t_min - 273.15,
+                                     self.t_max - 273.15, "°C", where)
+
+    def extrapolated(self, T: float) -> bool:
+        """True when T lies in the extrapolation band of the data."""
+        low = self.t_min if self.valid_min is None else self.valid_min
+        high = self.t_max if self.valid_max is None else self.valid_max
+        return not low <= T <= high
+
+
+_UPPER_PHASE = {"boiling": "vapour", "melting": "liquid"}
+
+
+def property_library_versions() -> dict[str, str]:
+    """Versions of the property libraries behind the results."""
+    return {"CoolProp": CoolProp.__version__}
+
+
+class _ThreadLocalState(threading.local):
+    def __init__(self, backend: str, fluid: str, fraction: float | None):
+        self.state = CP.AbstractState(backend, fluid)
+        if fraction is not None:
+            self.state.set_mass_fractions([fraction])
+
+
+class CoolPropFluid(Material):
+    """A pure fluid from CoolProp's low-level ``AbstractState`` (one instance per thread, reused).
+
+    Water and steam use the IAPWS-IF97 backend (``IF97``); other fluids the
+    Helmholtz-energy equations of state (``HEOS``).
+    """
+
+    def __init__(self, name: str, fluid: str, backend: str = "HEOS"):
+        self.name, self.fluid, self.backend = name, fluid, backend
+        self._local = _ThreadLocalState(backend, fluid, None)
+        probe = CP.AbstractState("HEOS", fluid)
+        self.t_min = max(probe.Ttriple(), probe.Tmin()) if backend == "HEOS" else 273.15
+        self.t_max = probe.Tmax() if backend == "HEOS" else 1073.15
+        self.p_critical = probe.p_critical()
+        self.p_triple = probe.trivial_keyed_output(CP.iP_triple)
+        self.p_max = probe.pmax() if backend == "HEOS" else 100e6
+        label = "IAPWS-IF97" if backend == "IF97" else "Helmholtz equation of state"
+        self.source = f"CoolProp {CoolProp.__version__}, {backend} backend ({label})"
+
+    def _state(self) -> CP.AbstractState:
+        return self._local.state
+
+    def check_pressure(self, P: float, where: str = "") -> None:
+        if P > self.p_max:
+            raise PropertyRangeError(self.name, "pressure", P / 1e5, 0.0, self.p_max / 1e5, "bar(a)", where)
+
+    def phase_name(self, T: float, P: float) -> str:
+        return "supercritical fluid" if P >= self.p_critical else super().phase_name(T, P)
+
+    def transitions(self, P: float) -> list[Transition]:
+        if not self.p_triple < P < self.p_critical:
+            return []  # supercritical, or below the triple point (sublimation is not modelled)
+        return [_saturation(self, P)]
+
+    def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
+        state = self._state()
+        try:
+            state.update(CP.PT_INPUTS, P, T)
+        except ValueError:
+            # Within CoolProp's tolerance of saturation: take the side T lies on.
+            sat = _saturation(self, P)
+            return sat.h_lower if T <= sat.T else sat.h_upper
+        return state.hmass()
+
+
+@lru_cache(maxsize=4096)
+def _saturation_cached(fluid: str, backend: str, P: float) -> tuple[float, float, float]:
+    state = CP.AbstractState(backend, fluid)
+    state.update(CP.PQ_INPUTS, P, 0.0)
+    T, h_liquid = state.T(), state.hmass()
+    state.update(CP.PQ_INPUTS, P, 1.0)
+    return T, h_liquid, state.hmass()
+
+
+def _saturation(fluid: CoolPropFluid, P: float) -> Transition:
+    T, h_liquid, h_vapour = _saturation_cached(fluid.fluid, fluid.backend, P)
+    return Transition(T, "boiling", h_liquid, h_vapour)
+
+
+class IncompressibleSolution(Material):
+    """An aqueous solution at a mass fraction, from CoolProp's incompressible-fluid library.
+
+    Liquid only: no boiling or freezing is modelled, so states are refused
+    below the solution's freezing point and above the fit's upper limit.
+    """
+
+    def __init__(self, name: str, code: str, fraction: float, fraction_max: float):
+        if not 0.0 <= fraction <= fraction_max:
+            raise InputError(f"mass fraction {fraction:g} of {name} must be between 0 and {fraction_max:g}")
+        self.name, self.code, self.fraction = name, code, fraction
+        self._local = _ThreadLocalState("INCOMP", code, fraction)
+        state = self._local.state
+        try:
+            t_freeze = CP.PropsSI("T_freeze", "T", 293.15, "P", 101325.0, f"INCOMP::{code}[{fraction}]")
+        except ValueError:
+            t_freeze = state.Tmin()
+        self.t_min = max(state.Tmin(), t_freeze)
+        self.t_max = state.Tmax()
+        self.source = f"CoolProp {CoolProp.__version__}, incompressible solution {code} (mass-fraction fit)"
+
+    def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
+        state = self._local.state
+        state.update(CP.PT_INPUTS, P, T)
+        return state.hmass()
+
+
+@dataclass(frozen=True)
+class Phase:
+    """A condensed or gas phase with cp(T) = a + b·T + c·T² [J/(kg·K), T in K], up to ``T_upper``."""
+
+    name: str
+    cp: tuple[float, ...]
+    T_upper: float = float("inf")
+    latent_to_next: float = 0.0
+
+    def enthalpy_rise(self, T1: float, T2: float) -> float:
+        """∫cp dT from T1 to T2 [J/kg]."""
+        return sum(c / (k + 1) * (T2 ** (k + 1) - T1 ** (k + 1)) for k, c in enumerate(self.cp))
+
+
+class TabulatedMaterial(Material):
+    """A material described by cp per phase, transition temperatures and latent heats.
+
+    Enthalpy is zero for the lowest phase at 298.15 K and integrates cp
+    through each phase, adding the latent heat at each transition.
+    The ``phases`` are ordered from cold to hot; each but the last ends at ``T_upper``
+    with ``latent_to_next`` [J/kg] to reach the next.
+    """
+
+    _REFERENCE_T = 298.15
+
+    def __init__(self, name: str, phases: tuple[Phase, ...], t_min: float, t_max: float, source: str):
+        self.name, self.phases, self.source = name, phases, source
+        self.t_min, self.t_max = t_min, t_max
+
+    @property
+    def lowest_phase(self) -> str:  # type: ignore[override]
+        return self.phases[0].name
+
+    def _h_start(self, index: int) -> tuple[float, float]:
+        """Enthalpy of phase ``index`` at its lower bound."""
+        h, T = 0.0, self._REFERENCE_T
+        for phase in self.phases[:index]:
+            h += phase.enthalpy_rise(T, phase.T_upper) + phase.latent_to_next
+            T = phase.T_upper
+        return h, T
+
+    def transitions(self, P: float) -> list[Transition]:
+        out = []
+        for i, phase in enumerate(self.phases[:-1]):
+            h0, T0 = self._h_start(i)
+            h_lower = h0 + phase.enthalpy_rise(T0, phase.T_upper)
+            kind = "boiling" if self.phases[i + 1].name == "vapour" else "melting"
+            out.append(Transition(phase.T_upper, kind, h_lower, h_lower + phase.latent_to_next))
+        return out
+
+    def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
+        index = next((i for i, p in enumerate(self.phases) if T <= p.T_upper), len(self.phases) - 1)
+        h0, T0 = self._h_start(index)
+        return h0 + self.phases[index].enthalpy_rise(T0, T)
+
+    def phase_name(self, T: float, P: float) -> str:
+        return next((p.name for p in self.phases if T <= p.T_upper), self.phases[-1].name)

@@ -1,0 +1,194 @@
+"""The one unit registry, and conversion of typed quantities to plain SI floats.
+
+The engine works in SI floats (K, Pa, kg, kg/s, J, W, s, mol). Units live only
+at the edge: :func:`to_si` reads what the user typed, :func:`from_si` writes a
+result back in a unit the user chose.
+
+Gauge pressures (``barg``, ``psig``, ``kPag``, ``MPag``) are taken relative to
+the standard atmosphere, 1.01325 bar (ISO 2533), whatever the local weather.
+"""
+from __future__ import annotations
+
+import math
+import re
+from functools import lru_cache
+
+import pint
+
+from .errors import InputError, UnitError
+
+__all__ = [
+    "ureg", "Q_", "ATMOSPHERE", "KINDS", "to_si", "from_si", "kind_of", "check_unit",
+    "DISPLAY_UNITS", "display_unit",
+]
+
+ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=True)
+ureg.define("MMBtu = 1e6 * Btu")
+ureg.define("MBtu = 1e3 * Btu")
+ureg.define("TR = ton_of_refrigeration")
+ureg.define("tonne_per_hour = tonne / hour = tph")
+Q_ = ureg.Quantity
+
+ATMOSPHERE = 101325.0  # Pa, standard atmosphere (ISO 2533): the reference of every gauge pressure
+
+#: kind -> (SI unit, words used in messages)
+KINDS: dict[str, tuple[str, str]] = {
+    "temperature": ("K", "a temperature"),
+    "temperature_difference": ("delta_degC", "a temperature difference"),
+    "pressure": ("Pa", "a pressure"),
+    "mass": ("kg", "a mass"),
+    "mass_flow": ("kg/s", "a mass flow"),
+    "energy": ("J", "an energy"),
+    "power": ("W", "a power"),
+    "duration": ("s", "a duration"),
+    "amount": ("mol", "an amount of substance"),
+    "molar_flow": ("mol/s", "a molar flow"),
+    "molar_energy": ("J/mol", "an energy per mole"),
+    "heat_capacity": ("J/K", "a heat capacity"),
+    "specific_heat": ("J/(kg*K)", "a specific heat capacity"),
+    "specific_energy": ("J/kg", "an energy per unit mass"),
+    "molar_mass": ("kg/mol", "a molar mass"),
+}
+
+_GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}
+_ABSOLUTE_ALIASES = {"bara": "bar", "psia": "psi", "kPaa": "kPa", "MPaa": "MPa"}
+_TEMPERATURE_ALIASES = {"C": "degC", "°C": "degC", "degC": "degC", "F": "degF", "°F": "degF",
+                        "degF": "degF", "K": "K", "R": "degR", "°R": "degR", "degR": "degR"}
+_DIFFERENCE_ALIASES = {"K": "K", "degC": "delta_degC", "°C": "delta_degC", "C": "delta_degC",
+                       "degF": "delta_degF", "°F": "delta_degF", "F": "delta_degF",
+                       "R": "delta_degF", "°R": "delta_degF", "degR": "delta_degF"}
+
+
+def _normalise(unit: str) -> str:
+    """Write typographic forms the way pint reads them: ``kJ/(kg·K)`` -> ``kJ/(kg*K)``."""
+    text = unit.strip().replace("·", "*").replace("⋅", "*").replace("°", "deg")
+    text = text.replace("deg C", "degC").replace("deg F", "degF").replace("deg R", "degR")
+    return re.sub(r"\s+", " ", text)
+
+
+@lru_cache(maxsize=512)
+def _unit(text: str) -> pint.Unit:
+    return ureg.parse_units(text)
+
+
+def _parse(unit: str, kind: str, where: str) -> tuple[pint.Unit, float]:
+    """Return (pint unit, offset in Pa for gauge pressures) for a unit typed for ``kind``."""
+    text = unit.strip()
+    offset = 0.0
+    if kind == "temperature":
+        text = _TEMPERATURE_ALIASES.get(text, _TEMPERATURE_ALIASES.get(_normalise(text), text))
+    elif kind == "temperature_difference":
+        text = _DIFFERENCE_ALIASES.get(text, _DIFFERENCE_ALIASES.get(_normalise(text), text))
+    elif kind == "pressure":
+        if text in _GAUGE:
+            text, offset = _GAUGE[text], ATMOSPHERE
+        text = _ABSOLUTE_ALIASES.get(text, text)
+    try:
+        parsed = _unit(_normalise(text))
+    except (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError, KeyError) as exc:
+        raise UnitError(unit, KINDS[kind][1], where, detail="not a unit this tool knows") from exc
+    return parsed, offset
+
+
+def check_unit(unit: str, kind: str, where: str = "") -> None:
+    """Raise :class:`UnitError` unless ``unit`` measures ``kind``."""
+    parsed, _ = _parse(unit, kind, where)
+    if parsed.dimensionality != _unit(KINDS[kind][0]).dimensionality:
+        raise UnitError(unit, KINDS[kind][1], where, detail=f"it measures {_describe(parsed)}")
+
+
+def kind_of(unit: str, candidates: tuple[str, ...], where: str = "") -> str:
+    """The first kind in ``candidates`` that ``unit`` measures, or a :class:`UnitError`."""
+    for kind in candidates:
+        try:
+            check_unit(unit, kind, where)
+            return kind
+        except UnitError:
+            continue
+    expected = " or ".join(KINDS[k][1] for k in candidates)
+    raise UnitError(unit, expected, where)
+
+
+def _describe(unit: pint.Unit) -> str:
+    dims = unit.dimensionality
+    for kind, (si, words) in KINDS.items():
+        if _unit(si).dimensionality == dims:
+            return words[words.index(" ") + 1:] if " " in words else words
+    return str(dims) if dims else "a pure number"
+
+
+def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
+    """Convert ``value unit`` of the given kind to a plain SI float.
+
+    Parameters
+    ----------
+    value : float
+        The number as typed.
+    unit : str
+        The unit as typed (``"t/h"``, ``"barg"``, ``"°F"``, ``"Btu/(lb*degF)"``).
+    kind : str
+        One of :data:`KINDS`.
+    where : str
+        The field, for messages.
+
+    Returns
+    -------
+    float
+        The value in the SI unit of ``kind`` (absolute pressure in Pa, temperature in K).
+
+    Raises
+    ------
+    UnitError
+        The unit is unknown or of another dimension.
+    InputError
+        The number is not finite, a temperature is below absolute zero, or a
+        pressure is below vacuum.
+
+    Examples
+    --------
+    >>> to_si(4, "barg", "pressure")  # 4 bar above the standard atmosphere
+    501325.0
+    >>> round(to_si(212, "degF", "temperature"), 2)
+    373.15
+    """
+    if not isinstance(value, (int, float)) or not math.isfinite(value):
+        raise InputError(f"{value!r} is not a finite number", where)
+    check_unit(unit, kind, where)
+    parsed, offset = _parse(unit, kind, where)
+    si = Q_(value, parsed).to(KINDS[kind][0]).magnitude + offset
+    if kind == "temperature" and si < 0:
+        raise InputError(f"{value:g} {unit} is below absolute zero (0 K = -273.15 °C = -459.67 °F)", where)
+    if kind == "pressure" and si <= 0:
+        raise InputError(f"{value:g} {unit} is at or below a perfect vacuum (absolute pressure must be > 0;"
+                         f" gauge units are relative to 1.01325 bar)", where)
+    return float(si)
+
+
+def from_si(value: float, unit: str, kind: str) -> float:
+    """Convert an SI float of the given kind to ``unit`` (the inverse of :func:`to_si`)."""
+    parsed, offset = _parse(unit, kind, "")
+    return float(Q_(value - offset, KINDS[kind][0]).to(parsed).magnitude)
+
+
+#: Display units of each unit system, per kind.
+DISPLAY_UNITS: dict[str, dict[str, str]] = {
+    "SI": {"temperature": "degC", "temperature_difference": "K", "pressure": "bar", "mass": "kg",
+           "mass_flow": "kg/h", "energy": "kJ", "power": "kW", "duration": "min",
+           "specific_heat": "kJ/(kg*K)", "heat_capacity": "kJ/K", "amount": "kmol",
+           "molar_flow": "kmol/h", "molar_energy": "kJ/mol", "specific_energy": "kJ/kg",
+           "molar_mass": "g/mol"},
+    "US": {"temperature": "degF", "temperature_difference": "delta_degF", "pressure": "psi",
+           "mass": "lb", "mass_flow": "lb/h", "energy": "Btu", "power": "Btu/h", "duration": "min",
+           "specific_heat": "Btu/(lb*delta_degF)", "heat_capacity": "Btu/delta_degF",
+           "amount": "lbmol", "molar_flow": "lbmol/h", "molar_energy": "Btu/lbmol",
+           "specific_energy": "Btu/lb", "molar_mass": "lb/lbmol"},
+}
+
+_PRETTY = {"degC": "°C", "degF": "°F", "degR": "°R", "delta_degF": "°F", "delta_degC": "K",
+           "kJ/(kg*K)": "kJ/(kg·K)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "Btu/delta_degF": "Btu/°F",
+           "bar": "bar(a)", "psi": "psia"}
+
+
+def display_unit(unit: str) -> str:
+    """How a unit is written on screen: ``degC`` -> ``°C``, ``bar`` -> ``bar(a)``."""
+    return _PRETTY.get(unit, unit)

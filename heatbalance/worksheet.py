@@ -1,0 +1,275 @@
+"""The worksheet: typed models of the versioned JSON document, and its loader.
+
+Every quantity is stored as the user typed it: a number and a unit string.
+A worksheet is one control volume over one basis (continuous or batch), a list
+of streams and vessels, heat terms, and exactly one unknown.
+"""
+from __future__ import annotations
+
+import json
+import re
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
+
+from .errors import WorksheetFormatError
+
+__all__ = [
+    "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Worksheet",
+    "load_worksheet", "parse_worksheet", "dump_worksheet",
+]
+
+SCHEMA_VERSION = 1
+MAX_DOCUMENT_BYTES = 1_000_000  # a worksheet larger than 1 MB is refused
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", validate_assignment=True)
+
+
+_QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+
+
+class Quantity(_Model):
+    """A number with the unit the user typed: ``{"value": 12, "unit": "t/h"}`` (or ``"12 t/h"``)."""
+
+    value: float
+    unit: str
+
+    @model_validator(mode="before")
+    @classmethod
+    def _from_text(cls, data):
+        if isinstance(data, str):
+            match = _QUANTITY_TEXT.match(data)
+            if not match:
+                raise ValueError(f"'{data}' is not a number followed by a unit")
+            return {"value": float(match.group(1)), "unit": match.group(2)}
+        return data
+
+    def __str__(self) -> str:
+        return f"{self.value:g} {self.unit}"
+
+
+class State(_Model):
+    """A line's state: a temperature, a phase fraction on a plateau, or a shared temperature.
+
+    ``vapour_fraction`` places the state on the boiling plateau at the state's
+    pressure (0 = saturated liquid, 1 = saturated vapour); ``solid_fraction`` on
+    the melting plateau (1 = all solid). ``common`` names a shared temperature.
+    ``pressure`` overrides the line's pressure for this state (a flash, a let-down).
+    """
+
+    temperature: Quantity | None = None
+    vapour_fraction: float | None = Field(default=None, ge=0.0, le=1.0)
+    solid_fraction: float | None = Field(default=None, ge=0.0, le=1.0)
+    common: str | None = None
+    pressure: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _one_way(self):
+        given = [k for k in ("vapour_fraction", "solid_fraction", "common") if getattr(self, k) is not None]
+        if len(given) > 1:
+            raise ValueError(f"a state is given one way only, not by {' and '.join(given)}")
+        return self
+
+
+class PhaseSpec(_Model):
+    """One phase of a user-defined material: cp = a + b·T + c·T² (T in K) up to a transition."""
+
+    name: Literal["solid", "liquid", "vapour"]
+    cp: Quantity = Field(description="constant specific heat, or the constant term a")
+    cp_per_kelvin: float = 0.0  # b, in the cp unit per K
+    cp_per_kelvin2: float = 0.0  # c, in the cp unit per K²
+    up_to: Quantity | None = None  # transition temperature to the next phase
+    latent_heat: Quantity | None = None  # to the next phase
+
+
+class UserMaterial(_Model):
+    """A material defined in the worksheet by its cp per phase and transitions."""
+
+    name: str = Field(min_length=1, max_length=80)
+    phases: list[PhaseSpec] = Field(min_length=1, max_length=3)
+    min_temperature: Quantity
+    max_temperature: Quantity
+    source: str = Field(min_length=1, max_length=300)
+
+
+class Stream(_Model):
+    """A flowing line from an inlet state to an outlet state."""
+
+    name: str = Field(min_length=1, max_length=80)
+    material: str
+    mass_fraction: float | None = Field(default=None, ge=0.0, le=1.0)
+    flow: Quantity | None = None
+    pressure: Quantity = Quantity(value=0, unit="barg")
+    inlet: State
+    outlet: State
+
+
+class Charge(_Model):
+    """A charge of a vessel: a mass at an initial state; all charges end at the vessel's final state."""
+
+    name: str = Field(min_length=1, max_length=80)
+    material: str
+    mass_fraction: float | None = Field(default=None, ge=0.0, le=1.0)
+    mass: Quantity | None = None
+    initial: State
+
+
+class Equipment(_Model):
+    """What warms with the contents: a mass of a solid material, or a calibrated heat capacity."""
+
+    material: str | None = None
+    mass: Quantity | None = None
+    heat_capacity: Quantity | None = None
+    initial_temperature: Quantity | None = None  # default: the first charge's initial temperature
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        by_mass = self.mass is not None or self.material is not None
+        if by_mass == (self.heat_capacity is not None):
+            raise ValueError("equipment is given either as a mass and a material, or as a heat capacity")
+        if by_mass and (self.mass is None or self.material is None):
+            raise ValueError("equipment given by mass needs both the mass and the material")
+        return self
+
+
+class Vessel(_Model):
+    """A batch vessel: charges mixed in it end at one final state."""
+
+    name: str = Field(min_length=1, max_length=80)
+    pressure: Quantity = Quantity(value=0, unit="barg")
+    charges: list[Charge] = Field(min_length=1)
+    final: State
+    equipment: Equipment | None = None
+
+
+class Duty(_Model):
+    """Heat put into the process (+) or taken out of it (−): a power, or an energy in batch."""
+
+    name: str = Field(min_length=1, max_length=80)
+    value: Quantity | None = None
+
+
+class Loss(_Model):
+    """Heat lost to the surroundings, entered as a positive amount."""
+
+    name: str = Field(min_length=1, max_length=80)
+    value: Quantity
+
+
+class Reaction(_Model):
+    """Heat of reaction: ΔH per mole of key reactant × moles reacted (= amount × conversion).
+
+    ``amount`` is moles (or a molar flow) of the key reactant fed, or a mass
+    (or mass flow) with ``molar_mass``. ΔH is negative for an exothermic reaction.
+    """
+
+    name: str = Field(min_length=1, max_length=80)
+    enthalpy: Quantity
+    amount: Quantity
+    conversion: float = Field(default=1.0, ge=0.0, le=1.0)
+    molar_mass: Quantity | None = None
+    vessel: str | None = None
+
+
+class CommonTemperature(_Model):
+    """A temperature shared by several states (lines that end mixed in one outlet)."""
+
+    name: str = Field(min_length=1, max_length=80)
+    temperature: Quantity | None = None
+
+
+class Basis(_Model):
+    """Continuous (rates, powers) or batch (masses, energies; a duration for powers)."""
+
+    kind: Literal["continuous", "batch"] = "continuous"
+    duration: Quantity | None = None
+
+
+class Unknown(_Model):
+    """The one quantity to solve for.
+
+    * ``{"kind": "amount", "line": "Steam"}``: a stream's flow;
+      ``{"kind": "amount", "line": "Reactor", "charge": "Water"}``: a charge's mass;
+    * ``{"kind": "temperature", "line": "Glycol", "end": "outlet"}`` (inlet/outlet of a stream,
+      ``final`` of a vessel, ``initial`` of a charge), or ``{"kind": "temperature", "common": "Mix"}``;
+    * ``{"kind": "duty", "term": "Heater"}``.
+    """
+
+    kind: Literal["amount", "temperature", "duty"]
+    line: str | None = None
+    charge: str | None = None
+    end: Literal["inlet", "outlet", "initial", "final"] | None = None
+    term: str | None = None
+    common: str | None = None
+
+
+class Worksheet(_Model):
+    """A whole worksheet, version :data:`SCHEMA_VERSION`."""
+
+    schema_version: int = SCHEMA_VERSION
+    title: str = Field(default="Untitled worksheet", max_length=200)
+    notes: str = Field(default="", max_length=20_000)
+    basis: Basis = Basis()
+    materials: list[UserMaterial] = Field(default_factory=list, max_length=50)
+    common_temperatures: list[CommonTemperature] = Field(default_factory=list, max_length=50)
+    streams: list[Stream] = Field(default_factory=list, max_length=500)
+    vessels: list[Vessel] = Field(default_factory=list, max_length=50)
+    duties: list[Duty] = Field(default_factory=list, max_length=100)
+    losses: list[Loss] = Field(default_factory=list, max_length=100)
+    reactions: list[Reaction] = Field(default_factory=list, max_length=50)
+    unknowns: list[Unknown] = Field(default_factory=list, max_length=10)
+
+    @field_validator("schema_version")
+    @classmethod
+    def _known_version(cls, version: int) -> int:
+        if version != SCHEMA_VERSION:
+            raise ValueError(f"schema_version {version} is not supported; this version reads {SCHEMA_VERSION}")
+        return version
+
+    @model_validator(mode="after")
+    def _unique_names(self):
+        names = [s.name for s in self.streams] + [v.name for v in self.vessels]
+        terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
+        for label, group in (("line", names), ("heat term", terms)):
+            repeated = sorted({n for n in group if group.count(n) > 1})
+            if repeated:
+                raise ValueError(f"{label} names must be unique; repeated: {', '.join(repeated)}")
+        return self
+
+
+def _describe(error: ValidationError) -> str:
+    first = error.errors()[0]
+    place = ".".join(str(p) for p in first["loc"])
+    message = first["msg"].removeprefix("Value error, ")
+    more = len(error.errors()) - 1
+    suffix = f" (and {more} more problem{'s' if more > 1 else ''})" if more else ""
+    return f"{place}: {message}{suffix}" if place else message + suffix
+
+
+def parse_worksheet(data: dict) -> Worksheet:
+    """Validate a decoded JSON document as a worksheet, or raise :class:`WorksheetFormatError`."""
+    if not isinstance(data, dict):
+        raise WorksheetFormatError("a worksheet is a JSON object")
+    try:
+        return Worksheet.model_validate(data)
+    except ValidationError as exc:
+        raise WorksheetFormatError(_describe(exc), "worksheet") from None
+
+
+def load_worksheet(text: str | bytes) -> Worksheet:
+    """Read a worksheet from JSON text (size-limited)."""
+    if len(text) > MAX_DOCUMENT_BYTES:
+        raise WorksheetFormatError(f"the document is {len(text):,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}")
+    try:
+        data = json.loads(text)
+    except (json.JSONDecodeError, UnicodeDecodeError, RecursionError) as exc:
+        raise WorksheetFormatError(f"not valid JSON ({exc.__class__.__name__}: {str(exc)[:120]})") from None
+    return parse_worksheet(data)
+
+
+def dump_worksheet(worksheet: Worksheet) -> str:
+    """The worksheet as indented JSON, without empty optional fields."""
+    return json.dumps(worksheet.model_dump(mode="json", exclude_none=True), indent=2, ensure_ascii=False)
