@@ -19,7 +19,7 @@ from .errors import InputError, NoSolutionError, UnitError
 from .materials import get_material
 from .properties import Material, Phase, TabulatedMaterial, Transition, property_library_versions
 from .results import Answer, LineResult, Result, TermResult, heat_kind
-from .units import ATMOSPHERE, DISPLAY_UNITS, check_unit, from_si, kind_of, to_si
+from .units import ATMOSPHERE, DISPLAY_UNITS, check_unit, from_si, is_us_customary, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
 __all__ = ["solve", "unknown_choices", "build_problem", "Problem"]
@@ -92,6 +92,7 @@ class Problem:
     unknown_target: object  # a Line, a HeatTerm, or a temperature variable key
     unknown_label: str
     unknown_unit: str
+    system: str = "SI"
     warnings: list[str] = field(default_factory=list)
     assumptions: list[str] = field(default_factory=list)
 
@@ -220,7 +221,8 @@ class _Builder:
         terms = self._terms()
         target, label, unit = self._target(lines, terms, unknown_var)
         return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_labels,
-                       self.var_units, self.unknown, target, label, unit, assumptions=self.assumptions)
+                       self.var_units, self.unknown, target, label, unit, self.system,
+                       assumptions=self.assumptions)
 
     def _stream(self, s) -> Line:
         where = f"stream {s.name}"
@@ -500,31 +502,31 @@ def _solve_temperature(p: Problem) -> float | None:
         raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
                               f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_label)
     breaks = sorted({tr.T for ln in dependent for st in (ln.initial, ln.final) if st.var == var
-                     for tr in ln.material.transitions(st.P) if low < tr.T < high})
-    # (T, residual on the cold side, residual on the hot side) at each bound and phase change
-    points = [(low, None, residual(low))]
-    points += [(T, residual(T, 0.0), residual(T, 1.0)) for T in breaks]
-    points.append((high, residual(high), None))
-    for (T0, _, r0), (T1, r1, r1_hot) in zip(points, points[1:]):
-        if r0 == 0:
-            p.temperatures[var] = T0
+                     for tr in ln.material.transitions(st.P) if low - T_TOL <= tr.T <= high + T_TOL})
+    # (T, residual on its cold side, residual on its hot side) at each bound and phase change
+    points = [(T, residual(T, 0.0), residual(T, 1.0)) for T in breaks]
+    for bound in (low, high):
+        if not any(abs(bound - T) < T_TOL for T in breaks):
+            r = residual(bound)
+            points.append((bound, r, r))
+    points.sort()
+    for i, (T, r_cold, r_hot) in enumerate(points):
+        if r_cold == 0 or r_hot == 0:
+            p.temperatures[var] = T
+            return (0.0 if r_cold == 0 else 1.0) if r_cold != r_hot else None
+        if r_cold * r_hot < 0:
+            p.temperatures[var] = T
+            return -r_cold / (r_hot - r_cold)
+        if i + 1 < len(points) and r_hot * points[i + 1][1] < 0:
+            p.temperatures[var] = brentq(residual, T, points[i + 1][0], xtol=1e-7, rtol=1e-12, maxiter=100)
             return None
-        if r0 * r1 < 0:
-            p.temperatures[var] = brentq(residual, T0, T1, xtol=1e-7, rtol=1e-12, maxiter=100)
-            return None
-        if r1_hot is not None and r1 * r1_hot <= 0 and r1 != r1_hot:
-            p.temperatures[var] = T1
-            return -r1 / (r1_hot - r1)
-    if points[-1][1] == 0:
-        p.temperatures[var] = high
-        return None
-    raise NoSolutionError(_unreachable_message(p, points, low, high), p.unknown_label)
+    raise NoSolutionError(_unreachable_message(p, points), p.unknown_label)
 
 
-def _unreachable_message(p: Problem, points, low: float, high: float) -> str:
+def _unreachable_message(p: Problem, points) -> str:
     kind = heat_kind(p.basis)
     unit = DISPLAY_UNITS["SI"][kind]
-    r_low, r_high = points[0][2], points[-1][1]
+    (low, _, r_low), (high, r_high, _) = points[0], points[-1]
     side = "too much heat" if r_low < 0 and r_high < 0 else "too little heat"
     gap = from_si(min(abs(r_low), abs(r_high)), unit, kind)
     return (f"no temperature between {low - 273.15:.2f} and {high - 273.15:.2f} °C (the range of the property "
@@ -612,7 +614,9 @@ def _answer(p: Problem, fraction: float | None) -> Answer:
     try:
         check_unit(unit, si_kind)
     except UnitError:  # e.g. a rate typed for a batch amount: show the answer in the display unit
-        unit = DISPLAY_UNITS["SI"][si_kind]
+        unit = DISPLAY_UNITS[p.system][si_kind]
+    if (p.system == "US") != is_us_customary(unit):
+        unit = DISPLAY_UNITS[p.system][si_kind]
     value = from_si(value_si, unit, si_kind)
     plateau = None
     if fraction is not None:

@@ -19,7 +19,7 @@ from .errors import InputError, UnitError
 
 __all__ = [
     "ureg", "Q_", "ATMOSPHERE", "KINDS", "to_si", "from_si", "kind_of", "check_unit",
-    "DISPLAY_UNITS", "display_unit",
+    "DISPLAY_UNITS", "display_unit", "is_us_customary",
 ]
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=True)
@@ -183,6 +183,14 @@ DISPLAY_UNITS: dict[str, dict[str, str]] = {
            "amount": "lbmol", "molar_flow": "lbmol/h", "molar_energy": "Btu/lbmol",
            "specific_energy": "Btu/lb", "molar_mass": "lb/lbmol"},
 }
+
+_US_WORDS = ("degF", "°F", "degR", "°R", "lb", "Btu", "psi", "gal", "ton_of_refrigeration", "TR")
+
+
+def is_us_customary(unit: str) -> bool:
+    """True for a unit of the US customary system (°F, lb, Btu, psi, ...)."""
+    return unit.strip() in ("F", "R") or any(word in unit for word in _US_WORDS)
+
 
 _PRETTY = {"degC": "°C", "degF": "°F", "degR": "°R", "delta_degF": "°F", "delta_degC": "K",
            "kJ/(kg*K)": "kJ/(kg·K)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "Btu/delta_degF": "Btu/°F",
