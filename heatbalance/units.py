@@ -23,6 +23,9 @@ __all__ = [
 ]
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=True)
+# kcal as plant heat duties use it: the International Table calorie (1 kcal/h = 1.163 W), not pint's
+# thermochemical default.
+ureg.define("kcal = 1000 * international_calorie")
 ureg.define("MMBtu = 1e6 * Btu")
 ureg.define("MBtu = 1e3 * Btu")
 ureg.define("TR = ton_of_refrigeration")

@@ -1,0 +1,78 @@
+"""Units engineers type, against exact conversion factors."""
+import pytest
+
+from heatbalance.errors import InputError, UnitError
+from heatbalance.units import from_si, kind_of, to_si
+
+CASES = [
+    # value, unit, kind, SI value, source of the factor
+    pytest.param(12, "t/h", "mass_flow", 12000 / 3600, id="t/h"),  # definition of the tonne
+    pytest.param(1, "lb/h", "mass_flow", 0.45359237 / 3600, id="lb/h"),  # international pound (exact)
+    pytest.param(1, "kg/s", "mass_flow", 1.0, id="kg/s"),
+    pytest.param(1, "lb", "mass", 0.45359237, id="lb"),  # exact
+    pytest.param(100, "degC", "temperature", 373.15, id="degC"),  # definition of the Celsius scale
+    pytest.param(100, "°C", "temperature", 373.15, id="°C"),
+    pytest.param(212, "°F", "temperature", 373.15, id="°F"),  # exact
+    pytest.param(671.67, "°R", "temperature", 373.15, id="°R"),  # exact
+    pytest.param(4, "barg", "pressure", 501325.0, id="barg"),  # ISO 2533 standard atmosphere 101325 Pa
+    pytest.param(0, "psig", "pressure", 101325.0, id="psig"),
+    pytest.param(14.695948775, "psia", "pressure", 101325.0, id="psia"),  # 1 atm = 14.6959 psi
+    pytest.param(1, "MPa", "pressure", 1e6, id="MPa"),
+    pytest.param(1, "atm", "pressure", 101325.0, id="atm"),
+    pytest.param(1, "kW", "power", 1000.0, id="kW"),
+    pytest.param(1, "Btu/h", "power", 1055.05585262 / 3600, id="Btu/h"),  # International Table Btu
+    pytest.param(1, "MMBtu/h", "power", 1055.05585262e6 / 3600, id="MMBtu/h"),
+    pytest.param(1, "kcal/h", "power", 4186.8 / 3600, id="kcal/h"),  # International Table calorie
+    pytest.param(1, "TR", "power", 12000 * 1055.05585262 / 3600, id="TR"),  # refrigeration ton = 12000 Btu/h
+    pytest.param(1, "kWh", "energy", 3.6e6, id="kWh"),
+    pytest.param(1, "Btu", "energy", 1055.05585262, id="Btu"),
+    pytest.param(1, "Btu/(lb·°F)", "specific_heat", 4186.8, id="Btu/(lb·°F)"),  # = 1 kcal_IT/(kg·K)
+    pytest.param(1, "kcal/(kg·°C)", "specific_heat", 4186.8, id="kcal/(kg·°C)"),
+    pytest.param(10, "°C", "temperature_difference", 10.0, id="delta-°C"),
+    pytest.param(18, "°F", "temperature_difference", 10.0, id="delta-°F"),
+]
+
+
+@pytest.mark.parametrize("value, unit, kind, expected", CASES)
+def test_units_engineers_type(value, unit, kind, expected):
+    assert to_si(value, unit, kind) == pytest.approx(expected, rel=2e-6)
+
+
+@pytest.mark.parametrize("value, unit, kind", [(55, "degC", "temperature"), (3, "barg", "pressure"),
+                                               (7, "t/h", "mass_flow"), (2.5, "MMBtu/h", "power")])
+def test_round_trip(value, unit, kind):
+    assert from_si(to_si(value, unit, kind), unit, kind) == pytest.approx(value)
+
+
+def test_wrong_dimension_names_the_field_and_what_it_measures():
+    with pytest.raises(UnitError, match=r"^stream Glycol flow: unit 'kW' is not a mass flow \(it measures power\)$"):
+        to_si(5, "kW", "mass_flow", "stream Glycol flow")
+
+
+def test_unknown_unit():
+    with pytest.raises(UnitError, match=r"unit 'blorps' is not a temperature \(not a unit this tool knows\)"):
+        to_si(5, "blorps", "temperature", "x")
+
+
+def test_below_absolute_zero():
+    with pytest.raises(InputError, match=r"^stream A inlet: -300 degC is below absolute zero"):
+        to_si(-300, "degC", "temperature", "stream A inlet")
+    with pytest.raises(InputError, match="below absolute zero"):
+        to_si(-500, "°F", "temperature")
+
+
+def test_gauge_pressure_below_vacuum():
+    with pytest.raises(InputError, match=r"at or below a perfect vacuum"):
+        to_si(-1.5, "barg", "pressure", "vessel pressure")
+
+
+def test_not_a_number():
+    with pytest.raises(InputError, match="is not a finite number"):
+        to_si(float("nan"), "kg", "mass", "charge mass")
+
+
+def test_kind_of_picks_mass_or_flow():
+    assert kind_of("kg/h", ("mass", "mass_flow")) == "mass_flow"
+    assert kind_of("t", ("mass", "mass_flow")) == "mass"
+    with pytest.raises(UnitError, match=r"is not a mass or a mass flow"):
+        kind_of("kW", ("mass", "mass_flow"), "x")
