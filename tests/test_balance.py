@@ -1,0 +1,198 @@
+"""Hand-calculated scenarios of our own, one per unknown kind and per feature.
+
+Each test writes its hand calculation out. Constant-cp test materials make the
+hand calculation exact; water and steam use IAPWS-IF97 via the `iapws` package.
+"""
+import pytest
+from iapws import IAPWS97
+
+from heatbalance.balance import solve
+from sheet_factory import build, constant_cp_material, melting_material, q, stream, temp
+
+A = constant_cp_material("liquid A", cp=2.0)
+B = constant_cp_material("liquid B", cp=4.0)
+
+
+def heater_sheet(duty, unknown, inlet=temp(20), outlet=temp(80)):
+    return build(materials=[A], streams=[stream("Feed", "liquid A", q(3600, "kg/h"), inlet, outlet)],
+                 duties=[{"name": "Heater", "value": duty}], unknowns=[unknown])
+
+
+def test_duty_of_a_heater():
+    # hand calculation: Q = m·cp·ΔT = 1 kg/s × 2.0 kJ/(kg·K) × 60 K = 120 kW
+    result = solve(heater_sheet(q(0, "kW"), {"kind": "duty", "term": "Heater"}))
+    assert result.answer.value == pytest.approx(120.0, rel=1e-9)
+    assert result.answer.unit == "kW"
+    assert result.residual == pytest.approx(0.0, abs=1e-6)
+
+
+def test_outlet_temperature_from_a_duty():
+    # hand calculation: T_out = 20 °C + 90 kW / (1 kg/s × 2.0 kJ/(kg·K)) = 65 °C
+    result = solve(heater_sheet(q(90, "kW"), {"kind": "temperature", "line": "Feed", "end": "outlet"}))
+    assert result.answer.value == pytest.approx(65.0, abs=1e-6)
+    assert result.answer.unit == "degC"
+
+
+def test_inlet_temperature_from_a_duty():
+    # hand calculation: T_in = 80 °C − 120 kW / (1 kg/s × 2.0 kJ/(kg·K)) = 20 °C
+    result = solve(heater_sheet(q(120, "kW"), {"kind": "temperature", "line": "Feed", "end": "inlet"}))
+    assert result.answer.value == pytest.approx(20.0, abs=1e-6)
+
+
+def test_common_outlet_temperature_of_two_streams_mixing():
+    # hand calculation: T = Σ m·cp·T / Σ m·cp = (2·2·80 + 1·4·20) / (2·2 + 1·4) = 50 °C
+    ws = build(materials=[A, B], common_temperatures=[{"name": "Mixed"}],
+               streams=[stream("Hot", "liquid A", q(2, "kg/s"), temp(80), {"common": "Mixed"}),
+                        stream("Cold", "liquid B", q(1, "kg/s"), temp(20), {"common": "Mixed"})],
+               unknowns=[{"kind": "temperature", "common": "Mixed"}])
+    result = solve(ws)
+    assert result.answer.value == pytest.approx(50.0, abs=1e-6)
+    assert [ln.final_T - 273.15 for ln in result.lines] == pytest.approx([50.0, 50.0], abs=1e-6)
+
+
+def test_cooling_flow_for_a_cooler():
+    # hand calculation: hot side 5000 kg/h × 2.0 × (120 − 60) = 600 000 kJ/h;
+    # cold flow = 600 000 kJ/h / (4.0 kJ/(kg·K) × 20 K) = 7500 kg/h
+    ws = build(materials=[A, B],
+               streams=[stream("Product", "liquid A", q(5000, "kg/h"), temp(120), temp(60)),
+                        stream("Coolant", "liquid B", q(1, "kg/h"), temp(25), temp(45))],
+               unknowns=[{"kind": "amount", "line": "Coolant"}])
+    result = solve(ws)
+    assert result.answer.value == pytest.approx(7500.0, rel=1e-9)
+    assert result.answer.unit == "kg/h"
+
+
+def test_melting_ends_on_the_plateau_with_the_fraction_still_solid():
+    # hand calculation: 1000 kg wax from 20 °C: 1000·2.0·30 = 60 MJ to reach 50 °C; the remaining
+    # 40 MJ melts 40 000 / 200 = 200 kg -> 50 °C with 80 % still solid
+    ws = build(basis={"kind": "batch"}, materials=[melting_material()],
+               vessels=[{"name": "Melter", "charges": [{"name": "Wax", "material": "wax", "mass": q(1000, "kg"),
+                                                        "initial": temp(20)}], "final": temp(60)}],
+               duties=[{"name": "Heating", "value": q(100, "MJ")}],
+               unknowns=[{"kind": "temperature", "line": "Melter", "end": "final"}])
+    result = solve(ws)
+    assert result.answer.value == pytest.approx(50.0, abs=1e-6)
+    assert result.answer.plateau == "melting"
+    assert result.answer.phase_fraction == pytest.approx(0.2, abs=1e-9)
+    assert result.answer.text == "50 °C, 80.0% still solid"
+    (wax,) = result.lines
+    assert wax.latent == pytest.approx(40e6, rel=1e-9) and wax.sensible == pytest.approx(60e6, rel=1e-9)
+
+
+def test_batch_vessel_with_reaction_losses_and_calibrated_equipment():
+    # hand calculation: reaction heat = 100 kJ/mol × 2000 mol × 0.9 = 180 MJ; loss 5 kW × 1 h = 18 MJ;
+    # heat capacity = 2000 kg × 2.0 kJ/(kg·K) + 1000 kJ/K = 5000 kJ/K; ΔT = 162 000 / 5000 = 32.4 K -> 62.4 °C
+    ws = build(basis={"kind": "batch", "duration": q(1, "h")}, materials=[A],
+               vessels=[{"name": "R1", "charges": [{"name": "Batch", "material": "liquid A", "mass": q(2, "t"),
+                                                    "initial": temp(30)}],
+                         "final": temp(30), "equipment": {"heat_capacity": q(1000, "kJ/K")}}],
+               reactions=[{"name": "Rxn", "enthalpy": q(-100, "kJ/mol"), "amount": q(2, "kmol"),
+                           "conversion": 0.9}],
+               losses=[{"name": "Ambient", "value": q(5, "kW")}],
+               unknowns=[{"kind": "temperature", "line": "R1", "end": "final"}])
+    result = solve(ws)
+    assert result.answer.value == pytest.approx(62.4, abs=1e-6)
+    terms = {t.name: t.heat for t in result.terms}
+    assert terms["Rxn"] == pytest.approx(180e6) and terms["Ambient"] == pytest.approx(-18e6)
+    assert terms["R1 equipment"] == pytest.approx(-1000e3 * 32.4, rel=1e-6)
+
+
+def test_batch_power_duty_over_a_duration_with_steel_equipment():
+    # hand calculation: 10 kW × 30 min = 18 MJ; heat capacity = 500·4.0 + 200·0.434 = 2086.8 kJ/K
+    # (carbon steel cp 0.434 kJ/(kg·K), Incropera Table A.1, from memory); ΔT = 18 000 / 2086.8 K
+    ws = build(basis={"kind": "batch", "duration": q(30, "min")}, materials=[B],
+               vessels=[{"name": "Tank", "charges": [{"name": "Water-like", "material": "liquid B",
+                                                      "mass": q(500, "kg"), "initial": temp(20)}],
+                         "final": temp(20), "equipment": {"material": "carbon steel", "mass": q(200, "kg")}}],
+               duties=[{"name": "Coil", "value": q(10, "kW")}],
+               unknowns=[{"kind": "temperature", "line": "Tank", "end": "final"}])
+    assert solve(ws).answer.value == pytest.approx(20 + 18000 / 2086.8, abs=1e-6)
+
+
+def test_us_customary_worksheet():
+    # hand calculation: Q = 10 000 lb/h × 0.5 Btu/(lb·°F) × (250 − 70) °F = 900 000 Btu/h
+    oil = constant_cp_material("oil", cp=0.5, unit="Btu/(lb*degF)")
+    ws = build(materials=[oil],
+               streams=[stream("Oil", "oil", q(10000, "lb/h"), temp(70, "degF"), temp(250, "degF"),
+                               pressure=q(30, "psig"))],
+               duties=[{"name": "Heater", "value": q(1, "Btu/h")}], unknowns=[{"kind": "duty", "term": "Heater"}])
+    result = solve(ws, "US")
+    assert result.answer.value == pytest.approx(900_000, rel=1e-6)
+    assert result.answer.unit == "Btu/h"
+
+
+def test_steam_flow_for_a_heater():
+    # hand calculation: Q = 10 000 kg/h × 2.0 kJ/(kg·K) × 80 K = 1 600 000 kJ/h;
+    # saturated steam at 3 barg (0.401325 MPa) condensing: h_fg from IAPWS-IF97 via iapws
+    h_fg = IAPWS97(P=0.401325, x=1).h - IAPWS97(P=0.401325, x=0).h
+    ws = build(materials=[A],
+               streams=[stream("Feed", "liquid A", q(10000, "kg/h"), temp(20), temp(100)),
+                        stream("Steam", "water", q(1, "kg/h"), {"vapour_fraction": 1}, {"vapour_fraction": 0},
+                               pressure=q(3, "barg"))],
+               unknowns=[{"kind": "amount", "line": "Steam"}])
+    result = solve(ws)
+    assert result.answer.value == pytest.approx(1_600_000 / h_fg, rel=1e-6)
+    steam = result.lines[1]
+    assert steam.sensible == pytest.approx(0.0, abs=1e-6) and steam.latent == pytest.approx(-1_600_000 / 3.6, rel=1e-6)
+
+
+def test_flash_of_hot_condensate_ends_on_the_boiling_plateau():
+    # hand calculation with IAPWS-IF97 via iapws: isenthalpic let-down from 11.01325 bar(a), 175 °C
+    # to 1.51325 bar(a): x = (h_in − h_f) / (h_g − h_f)
+    h_in = IAPWS97(P=1.101325, T=448.15).h
+    liquid, vapour = IAPWS97(P=0.151325, x=0), IAPWS97(P=0.151325, x=1)
+    ws = build(streams=[stream("Condensate", "water", q(1.8, "t/h"), temp(175),
+                               {"temperature": q(110, "degC"), "pressure": q(0.5, "barg")}, pressure=q(10, "barg"))],
+               unknowns=[{"kind": "temperature", "line": "Condensate", "end": "outlet"}])
+    result = solve(ws)
+    assert result.answer.value_si == pytest.approx(liquid.T, abs=1e-6)
+    assert result.answer.phase_fraction == pytest.approx((h_in - liquid.h) / (vapour.h - liquid.h), rel=1e-6)
+    assert result.answer.text.endswith("% vapour")
+
+
+def test_quench_water_mass():
+    # hand calculation with IAPWS-IF97 via iapws at 1.01325 bar:
+    # m_cold = 3000 kg × (h(95 °C) − h(40 °C)) / (h(40 °C) − h(12 °C))
+    h = {t: IAPWS97(P=0.101325, T=273.15 + t).h for t in (95, 40, 12)}
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "Pit", "charges": [
+                   {"name": "Hot", "material": "water", "mass": q(3, "t"), "initial": temp(95)},
+                   {"name": "Cold", "material": "water", "mass": q(1, "t"), "initial": temp(12)}],
+                   "final": temp(40)}],
+               unknowns=[{"kind": "amount", "line": "Pit", "charge": "Cold"}])
+    result = solve(ws)
+    assert result.answer.value == pytest.approx(3.0 * (h[95] - h[40]) / (h[40] - h[12]), rel=1e-6)
+    assert result.answer.unit == "t"
+
+
+def test_reaction_amount_from_a_mass_and_molar_mass():
+    # hand calculation: 180 kg / 60 g/mol = 3 kmol; 3000 mol × 80 kJ/mol = 240 MJ released;
+    # 4000 kg × 2.0 kJ/(kg·K) -> ΔT = 240 000 / 8000 = 30 K
+    ws = build(basis={"kind": "batch"}, materials=[A],
+               vessels=[{"name": "R", "charges": [{"name": "Mass", "material": "liquid A", "mass": q(4000, "kg"),
+                                                   "initial": temp(25)}], "final": temp(25)}],
+               reactions=[{"name": "Rxn", "enthalpy": q(-80, "kJ/mol"), "amount": q(180, "kg"),
+                           "molar_mass": q(60, "g/mol")}],
+               unknowns=[{"kind": "temperature", "line": "R", "end": "final"}])
+    assert solve(ws).answer.value == pytest.approx(55.0, abs=1e-6)
+
+
+def test_ice_melting_sample_against_iapws():
+    # hand calculation: 1000 kg water 20 -> 0 °C releases 1000·(h(20 °C) − h(0 °C)) [IAPWS-IF97 via iapws];
+    # 400 kg ice takes 400·2.05·10 kJ to reach 0 °C; the rest melts m = rest / 333.55 kJ/kg
+    # (ice data: CRC Handbook, from memory)
+    released = 1000 * (IAPWS97(P=0.101325, T=293.15).h - IAPWS97(P=0.101325, T=273.15).h)
+    melted = (released - 400 * 2.05 * 10) / 333.55
+    from heatbalance.worksheet import load_worksheet
+    with open("sample_data/ice_melting_tank.json", encoding="utf-8") as handle:
+        result = solve(load_worksheet(handle.read()))
+    assert result.answer.value == pytest.approx(0.0, abs=1e-6)
+    assert 1 - result.answer.phase_fraction == pytest.approx((400 - melted) / 400, rel=1e-6)
+
+
+def test_contributions_close_the_balance():
+    result = solve(heater_sheet(q(90, "kW"), {"kind": "temperature", "line": "Feed", "end": "outlet"}))
+    absorbed = sum(ln.total for ln in result.lines)
+    supplied = sum(t.heat for t in result.terms)
+    assert absorbed == pytest.approx(90e3, rel=1e-9) and supplied == pytest.approx(90e3)
+    assert result.residual == pytest.approx(0.0, abs=1e-3)
