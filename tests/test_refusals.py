@@ -1,0 +1,160 @@
+"""Every refusal says what is wrong and where."""
+import json
+
+import pytest
+
+from heatbalance.balance import solve
+from heatbalance.errors import InputError, NoSolutionError, PropertyRangeError, UnitError, WorksheetFormatError
+from heatbalance.worksheet import load_worksheet, parse_worksheet
+from sheet_factory import build, constant_cp_material, q, sheet, stream, temp
+
+A = constant_cp_material("liquid A", cp=2.0, t_max=300)
+HEATER = dict(materials=[A], streams=[stream("Feed", "liquid A", q(3600, "kg/h"), temp(20), temp(80))],
+              duties=[{"name": "Heater", "value": q(120, "kW")}])
+
+
+def solve_with(**changes):
+    return solve(build(**{**HEATER, **changes}))
+
+
+def test_no_unknown():
+    with pytest.raises(InputError, match=r"^unknown: no unknown: mark one quantity"):
+        solve_with(unknowns=[])
+
+
+def test_two_unknowns():
+    with pytest.raises(InputError, match=r"2 unknowns \(kind=duty, term=Heater; kind=amount, line=Feed\): "
+                                         r"a balance solves for exactly one"):
+        solve_with(unknowns=[{"kind": "duty", "term": "Heater"}, {"kind": "amount", "line": "Feed"}])
+
+
+def test_missing_value_that_is_not_the_unknown():
+    streams = [stream("Feed", "liquid A", q(3600, "kg/h"), temp(20), {})]
+    with pytest.raises(InputError, match=r"^stream Feed outlet temperature: no temperature given, and it is not "
+                                         r"the unknown"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_negative_mass_as_input():
+    streams = [stream("Feed", "liquid A", q(-5, "kg/h"), temp(20), temp(80))]
+    with pytest.raises(InputError, match=r"^stream Feed flow: a mass or flow cannot be negative \(-5 kg/h\)"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_negative_flow_as_answer():
+    # heating the feed needs 120 kW, but a cooler of −50 kW would need the feed to run backwards
+    with pytest.raises(NoSolutionError, match=r"^Feed flow: the balance would need a negative amount: Feed absorbs "
+                                              r"heat \(120\.0 kJ/kg\), but the rest of the worksheet already has a "
+                                              r"heat deficit of 50 kW"):
+        solve_with(duties=[{"name": "Heater", "value": q(-50, "kW")}], unknowns=[{"kind": "amount", "line": "Feed"}])
+
+
+def test_below_absolute_zero():
+    streams = [stream("Feed", "liquid A", q(3600, "kg/h"), temp(-300), temp(80))]
+    with pytest.raises(InputError, match=r"^stream Feed inlet temperature: -300 degC is below absolute zero"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_wrong_dimension():
+    streams = [stream("Feed", "liquid A", q(3600, "kW"), temp(20), temp(80))]
+    with pytest.raises(UnitError, match=r"^stream Feed flow: unit 'kW' is not a mass flow \(it measures power\)"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_state_outside_the_property_data():
+    streams = [stream("Steam", "water", q(1, "t/h"), temp(200), temp(950))]
+    with pytest.raises(PropertyRangeError, match=r"^stream Steam outlet: temperature 950 °C is outside "
+                                                 r"the property data of water \(0 to 800 °C\)"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_unreachable_target_steam_too_cold():
+    # steam at 1 barg condenses at about 120 °C: it cannot heat the feed to 150 °C
+    streams = [stream("Feed", "liquid A", q(3600, "kg/h"), temp(20), temp(150)),
+               stream("Steam", "water", q(1, "kg/h"), {"vapour_fraction": 1}, {"vapour_fraction": 0},
+                      pressure=q(1, "barg"))]
+    with pytest.raises(NoSolutionError, match=r"^Steam flow: Steam enters at 120\.\d\d °C, so it cannot heat Feed to "
+                                              r"150\.00 °C: heat does not flow from cold to hot\. Use a hotter heating "
+                                              r"medium"):
+        solve_with(streams=streams, duties=[], unknowns=[{"kind": "amount", "line": "Steam"}])
+
+
+def test_unreachable_temperature_too_much_heat():
+    # 1 kg/s × 2 kJ/(kg·K) × (300 − 20) K = 560 kW is the most liquid A can take within its data
+    with pytest.raises(NoSolutionError, match=r"^stream Feed outlet temperature: no temperature between -50\.00 and "
+                                              r"300\.00 °C \(the range of the property data\) closes the balance: "
+                                              r"there is too much heat by at least 440 kW"):
+        solve_with(duties=[{"name": "Heater", "value": q(1000, "kW")}],
+                   unknowns=[{"kind": "temperature", "line": "Feed", "end": "outlet"}])
+
+
+def test_line_that_does_not_change_state_cannot_carry_the_unknown_flow():
+    streams = [stream("Feed", "liquid A", q(1, "kg/h"), temp(20), temp(20))]
+    with pytest.raises(NoSolutionError, match=r"^Feed flow: Feed does not change state"):
+        solve_with(streams=streams, unknowns=[{"kind": "amount", "line": "Feed"}])
+
+
+def test_vessel_needs_batch_basis():
+    vessels = [{"name": "V", "charges": [{"name": "C", "material": "water", "mass": q(1, "t"), "initial": temp(20)}],
+                "final": temp(30)}]
+    with pytest.raises(InputError, match=r"^vessel V: vessels hold batch charges: switch the basis to batch"):
+        solve_with(streams=[], vessels=vessels, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_batch_rate_needs_a_duration():
+    with pytest.raises(InputError, match=r"^duty Heater: 120 kW is a rate; a batch worksheet needs a duration"):
+        solve_with(basis={"kind": "batch"}, streams=[stream("Feed", "liquid A", q(1, "t"), temp(20), temp(80))],
+                   unknowns=[{"kind": "amount", "line": "Feed"}])
+
+
+def test_phase_fraction_of_a_liquid_only_material():
+    streams = [stream("Feed", "liquid A", q(3600, "kg/h"), temp(20), {"vapour_fraction": 0.5})]
+    with pytest.raises(InputError, match=r"^stream Feed outlet: liquid A has no boiling plateau at 1\.013 bar\(a\)"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_unknown_that_names_nothing():
+    with pytest.raises(InputError, match=r"^unknown: the unknown amount names no line of this worksheet "
+                                         r"\(kind=amount, line=Nope\)"):
+        solve_with(unknowns=[{"kind": "amount", "line": "Nope"}])
+
+
+def test_unknown_material_names_the_line():
+    streams = [stream("Feed", "kryptonite", q(1, "kg/h"), temp(20), temp(80))]
+    with pytest.raises(InputError, match=r"^stream Feed: unknown material 'kryptonite'; choose one of"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_repeated_line_names():
+    streams = [stream("Feed", "liquid A", q(1, "kg/h"), temp(20), temp(80))] * 2
+    with pytest.raises(WorksheetFormatError, match=r"line names must be unique; repeated: Feed"):
+        parse_worksheet(sheet(**{**HEATER, "streams": streams}))
+
+
+def test_other_schema_version():
+    with pytest.raises(WorksheetFormatError, match=r"schema_version: schema_version 7 is not supported"):
+        parse_worksheet(sheet(schema_version=7))
+
+
+def test_not_json():
+    with pytest.raises(WorksheetFormatError, match=r"not valid JSON \(JSONDecodeError"):
+        load_worksheet("{not json")
+
+
+def test_oversized_document():
+    with pytest.raises(WorksheetFormatError, match=r"the limit is 1,000,000"):
+        load_worksheet(json.dumps({"notes": "x" * 1_000_001}))
+
+
+def test_quantity_text_that_is_not_a_number():
+    doc = sheet(**{**HEATER, "streams": [stream("Feed", "liquid A", "lots kg/h", temp(20), temp(80))],
+                   "unknowns": [{"kind": "duty", "term": "Heater"}]})
+    with pytest.raises(WorksheetFormatError, match=r"streams\.0\.flow: 'lots kg/h' is not a number followed by a unit"):
+        parse_worksheet(doc)
+
+
+def test_quantity_as_text_is_read():
+    doc = sheet(**{**HEATER, "streams": [stream("Feed", "liquid A", "3.6 t/h", temp(20), temp(80))],
+                   "unknowns": [{"kind": "duty", "term": "Heater"}]})
+    # hand calculation: 1 kg/s × 2.0 kJ/(kg·K) × 60 K = 120 kW
+    assert solve(parse_worksheet(doc)).answer.value == pytest.approx(120.0)
