@@ -518,20 +518,34 @@ def _solve_temperature(p: Problem) -> float | None:
             p.temperatures[var] = T
             return -r_cold / (r_hot - r_cold)
         if i + 1 < len(points) and r_hot * points[i + 1][1] < 0:
-            p.temperatures[var] = brentq(residual, T, points[i + 1][0], xtol=1e-7, rtol=1e-12, maxiter=100)
+            p.temperatures[var] = _root_in_segment(residual, (T, r_hot), points[i + 1][:2])
             return None
-    raise NoSolutionError(_unreachable_message(p, points), p.unknown_label)
+    limits = {low: next(m.name for m in materials if m.t_min == low),
+              high: next(m.name for m in materials if m.t_max == high)}
+    raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_label)
 
 
-def _unreachable_message(p: Problem, points) -> str:
+def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, float]) -> float:
+    """Brent's method on one single-phase segment; its ends take the residual of the segment's side."""
+    ends = dict((left, right))
+
+    def on_segment(T: float) -> float:
+        return ends[T] if T in ends else residual(T)
+
+    return brentq(on_segment, left[0], right[0], xtol=1e-7, rtol=1e-12, maxiter=100)
+
+
+def _unreachable_message(p: Problem, points, limits: dict[float, str]) -> str:
     kind = heat_kind(p.basis)
     unit = DISPLAY_UNITS["SI"][kind]
     (low, _, r_low), (high, r_high, _) = points[0], points[-1]
-    side = "too much heat" if r_low < 0 and r_high < 0 else "too little heat"
+    too_much = r_low < 0 and r_high < 0
     gap = from_si(min(abs(r_low), abs(r_high)), unit, kind)
+    bound = high if too_much else low
     return (f"no temperature between {low - 273.15:.2f} and {high - 273.15:.2f} °C (the range of the property "
-            f"data) closes the balance: there is {side} by at least {gap:,.4g} {unit}. "
-            "Check the duties, the amounts and the other states.")
+            f"data) closes the balance: even at {bound - 273.15:.2f} °C (the {'upper' if too_much else 'lower'} "
+            f"limit of the data for {limits[bound]}) there is {'too much' if too_much else 'too little'} heat by "
+            f"{gap:,.4g} {unit}. Check the duties, the amounts and the other states.")
 
 
 def solve(ws: Worksheet, system: str = "SI") -> Result:

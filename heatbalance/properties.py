@@ -147,11 +147,10 @@ class CoolPropFluid(Material):
         state = self._state()
         try:
             state.update(CP.PT_INPUTS, P, T)
-        except ValueError:
-            # Within CoolProp's tolerance of saturation: take the side T lies on.
+            return state.hmass()
+        except (ValueError, IndexError):  # on the saturation line (IF97: "Region 4 with T and p")
             sat = _saturation(self, P)
             return sat.h_lower if T <= sat.T else sat.h_upper
-        return state.hmass()
 
 
 @lru_cache(maxsize=4096)
