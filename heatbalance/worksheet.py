@@ -7,21 +7,24 @@ of streams and vessels, heat terms, and exactly one unknown.
 from __future__ import annotations
 
 import json
+import math
 import re
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
 from .errors import WorksheetFormatError
+from .migrations import migrate
 
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Worksheet",
-    "load_worksheet", "parse_worksheet", "dump_worksheet",
+    "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH",
 ]
 
 SCHEMA_VERSION = 1
 MAX_DOCUMENT_BYTES = 1_000_000  # a worksheet larger than 1 MB is refused
+MAX_NESTING_DEPTH = 20  # objects/lists nested deeper are refused (a real worksheet is about 7 deep)
 
 
 class _Model(BaseModel):
@@ -249,10 +252,39 @@ def _describe(error: ValidationError) -> str:
     return f"{place}: {message}{suffix}" if place else message + suffix
 
 
+def _check_shape(data) -> None:
+    """Refuse nesting deeper than :data:`MAX_NESTING_DEPTH`, numbers that are not finite, text that is not Unicode."""
+    pending = [(data, 1)]
+    while pending:
+        item, depth = pending.pop()
+        if isinstance(item, (dict, list)):
+            if depth > MAX_NESTING_DEPTH:
+                raise WorksheetFormatError(f"the document is nested more than {MAX_NESTING_DEPTH} levels deep")
+            children = item.values() if isinstance(item, dict) else item
+            pending.extend((child, depth + 1) for child in children)
+            if isinstance(item, dict):
+                pending.extend((key, depth) for key in item)
+        elif isinstance(item, str):
+            try:
+                item.encode("utf-8")
+            except UnicodeEncodeError:
+                raise WorksheetFormatError(f"text {item[:40]!r} is not valid Unicode (a lone surrogate)") from None
+        elif isinstance(item, float) and not math.isfinite(item):
+            raise WorksheetFormatError(f"{item} is not a finite number")
+
+
+def _refuse_constant(name: str):
+    raise WorksheetFormatError(f"{name} is not a number a worksheet can hold")
+
+
 def parse_worksheet(data: dict) -> Worksheet:
-    """Validate a decoded JSON document as a worksheet, or raise :class:`WorksheetFormatError`."""
+    """Validate a decoded JSON document as a worksheet, or raise :class:`WorksheetFormatError`.
+
+    Older ``schema_version``s are first brought up to date by :func:`heatbalance.migrations.migrate`.
+    """
     if not isinstance(data, dict):
         raise WorksheetFormatError("a worksheet is a JSON object")
+    data = migrate(data)
     try:
         return Worksheet.model_validate(data)
     except ValidationError as exc:
@@ -260,13 +292,18 @@ def parse_worksheet(data: dict) -> Worksheet:
 
 
 def load_worksheet(text: str | bytes) -> Worksheet:
-    """Read a worksheet from JSON text (size-limited)."""
+    """Read a worksheet from JSON text (size- and depth-limited), migrating older versions."""
     if len(text) > MAX_DOCUMENT_BYTES:
         raise WorksheetFormatError(f"the document is {len(text):,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}")
     try:
-        data = json.loads(text)
-    except (json.JSONDecodeError, UnicodeDecodeError, RecursionError) as exc:
+        data = json.loads(text, parse_constant=_refuse_constant)
+    except (ValueError, RecursionError) as exc:  # JSONDecodeError, UnicodeDecodeError, too many digits
+        if isinstance(exc, WorksheetFormatError):
+            raise
+        if isinstance(exc, RecursionError):
+            raise WorksheetFormatError(f"the document is nested more than {MAX_NESTING_DEPTH} levels deep") from None
         raise WorksheetFormatError(f"not valid JSON ({exc.__class__.__name__}: {str(exc)[:120]})") from None
+    _check_shape(data)
     return parse_worksheet(data)
 
 

@@ -1,0 +1,346 @@
+"""Saved worksheets: immutable revisions in SQLite (default) or PostgreSQL (a team server).
+
+Every save is a revision whose id is :func:`heatbalance.links.revision_id` of the
+worksheet: the same worksheet saved twice gives the same id and the same row.
+A revision records its parent (the revision it was edited from), its title and
+the time it was first saved. Rows are only ever inserted (``INSERT ... ON CONFLICT
+DO NOTHING``): no revision is changed or deleted, so concurrent saves of the same
+worksheet cannot clash, and a link opens exactly what was shared, for good.
+Reading a revision re-checks its content against its id.
+
+Where the store lives:
+
+* ``HEATBALANCE_DATABASE_URL``: a PostgreSQL URL (``postgresql://user@host/db``)
+  for a store shared by several app processes;
+* else ``HEATBALANCE_DB``: the path of an SQLite file;
+* else :func:`default_database_path` (``~/.local/share/heatbalance/worksheets.sqlite3``
+  on Linux, or under ``$XDG_DATA_HOME``).
+
+All SQL is built by SQLAlchemy Core with bound parameters. Every database
+failure is raised as :class:`StoreError` with a message a user can act on.
+"""
+from __future__ import annotations
+
+import hashlib
+import os
+import sys
+import time
+from dataclasses import dataclass
+from datetime import datetime, timezone
+from pathlib import Path
+
+import sqlalchemy as sa
+from sqlalchemy import exc as sa_exc
+
+from .errors import HeatBalanceError
+from .links import ID_LENGTH, LinkError, canonical_json, check_id
+from .worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
+
+__all__ = ["StoreError", "RevisionNotFoundError", "RevisionInfo", "Revision", "WorksheetStore", "open_store",
+           "default_database_path", "database_url", "MAX_HISTORY", "ENV_DB", "ENV_DATABASE_URL",
+           "LinkError"]  # LinkError: a malformed id, refused by the store's methods too
+
+ENV_DB = "HEATBALANCE_DB"
+ENV_DATABASE_URL = "HEATBALANCE_DATABASE_URL"
+MAX_HISTORY = 200  # revisions listed at most when following parent links
+BUSY_TIMEOUT_S = 15  # how long a save waits for another writer before giving up
+STORE_FORMAT = "1"
+
+_metadata = sa.MetaData()
+revisions = sa.Table(
+    "heatbalance_revisions", _metadata,
+    sa.Column("id", sa.String(32), primary_key=True),
+    sa.Column("parent_id", sa.String(32), nullable=True),
+    sa.Column("title", sa.String(200), nullable=False),
+    sa.Column("saved_at", sa.String(40), nullable=False),  # ISO 8601, UTC, microseconds: sorts as text
+    sa.Column("schema_version", sa.Integer, nullable=False),
+    sa.Column("content_sha256", sa.String(64), nullable=False),
+    sa.Column("content", sa.Text, nullable=False),
+)
+store_info = sa.Table(
+    "heatbalance_store_info", _metadata,
+    sa.Column("key", sa.String(40), primary_key=True),
+    sa.Column("value", sa.String(200), nullable=False),
+)
+_parent_index = sa.Index("heatbalance_revisions_parent", revisions.c.parent_id)
+
+
+class StoreError(HeatBalanceError, RuntimeError):
+    """The worksheet store cannot be used: locked, unreadable, unreachable, or its content is damaged."""
+
+
+class RevisionNotFoundError(StoreError, LookupError):
+    """No revision has this id in this store."""
+
+
+@dataclass(frozen=True)
+class RevisionInfo:
+    """What the revision list shows: id, parent, title and time saved (UTC)."""
+
+    id: str
+    parent: str | None
+    title: str
+    saved_at: datetime
+
+
+@dataclass(frozen=True)
+class Revision(RevisionInfo):
+    """A saved revision with its worksheet."""
+
+    worksheet: Worksheet
+
+
+def default_database_path() -> Path:
+    """Where the SQLite store lives unless ``HEATBALANCE_DB`` says otherwise: the user's data folder."""
+    if sys.platform == "win32":
+        base = Path(os.environ.get("LOCALAPPDATA") or Path.home() / "AppData" / "Local")
+    elif sys.platform == "darwin":
+        base = Path.home() / "Library" / "Application Support"
+    else:
+        base = Path(os.environ.get("XDG_DATA_HOME") or Path.home() / ".local" / "share")
+    return base / "heatbalance" / "worksheets.sqlite3"
+
+
+def database_url(environ: dict | None = None) -> str:
+    """The store's SQLAlchemy URL from the environment (see the module docstring)."""
+    env = os.environ if environ is None else environ
+    url = (env.get(ENV_DATABASE_URL) or "").strip()
+    if url:
+        for prefix in ("postgresql://", "postgres://"):
+            if url.startswith(prefix):
+                return "postgresql+psycopg://" + url[len(prefix):]
+        return url
+    path = (env.get(ENV_DB) or "").strip()
+    return "sqlite:///" + str(Path(path).expanduser() if path else default_database_path())
+
+
+def _now() -> str:
+    return datetime.now(timezone.utc).isoformat(timespec="microseconds")
+
+
+def _describe_db_error(exc: Exception, where: str) -> str:
+    text = str(getattr(exc, "orig", None) or exc).strip().splitlines()[0][:200]
+    low = text.lower()
+    if "locked" in low or "busy" in low:
+        return (f"the worksheet database is busy (locked by another program for more than {BUSY_TIMEOUT_S} s); "
+                "try again in a moment")
+    if "not a database" in low or "malformed" in low or "corrupt" in low:
+        return f"{where} is not a readable worksheet database ({text}); nothing was changed"
+    if "unable to open" in low or "readonly" in low or "read-only" in low or "permission" in low:
+        return f"cannot open or write {where} ({text}); check the path and its permissions"
+    if "connection" in low or "could not connect" in low or "timeout" in low:
+        return f"cannot reach the worksheet database at {where} ({text})"
+    return f"the worksheet database at {where} failed: {text}"
+
+
+class WorksheetStore:
+    """Immutable worksheet revisions in one SQL database (SQLite or PostgreSQL).
+
+    >>> import tempfile, os
+    >>> store = WorksheetStore("sqlite:///" + os.path.join(tempfile.mkdtemp(), "doc.sqlite3"))
+    >>> first = store.save(Worksheet(title="Heater"))
+    >>> store.open(first.id).worksheet.title
+    'Heater'
+    >>> store.save(Worksheet(title="Heater")).id == first.id     # same worksheet, same id
+    True
+    >>> second = store.save(Worksheet(title="Heater, edited"), parent=first.id)
+    >>> [r.title for r in store.history(second.id)]
+    ['Heater, edited', 'Heater']
+    >>> store.close()
+    """
+
+    def __init__(self, url: str):
+        try:
+            self.url = sa.engine.make_url(url)
+        except (sa_exc.ArgumentError, ValueError) as exc:
+            raise StoreError(f"not a database URL ({exc})", "store") from None
+        self.dialect = self.url.get_backend_name()
+        if self.dialect not in ("sqlite", "postgresql"):
+            raise StoreError(f"database '{self.dialect}' is not supported; use sqlite or postgresql", "store")
+        self.where = self.url.database if self.dialect == "sqlite" else self.url.render_as_string(hide_password=True)
+        try:
+            if self.dialect == "sqlite":
+                self._prepare_sqlite_file()
+                self.engine = sa.create_engine(self.url, connect_args={"timeout": BUSY_TIMEOUT_S})
+                sa.event.listen(self.engine, "connect", _sqlite_pragmas)
+            else:
+                self.engine = sa.create_engine(self.url, pool_pre_ping=True,
+                                               connect_args={"connect_timeout": 10})
+        except (sa_exc.ArgumentError, ImportError) as exc:
+            raise StoreError(f"cannot use database URL {self.where} ({exc})", "store") from None
+        self._insert = (sa.dialects.sqlite.insert if self.dialect == "sqlite" else sa.dialects.postgresql.insert)
+        self._create_schema()
+
+    # -- set-up ---------------------------------------------------------------------------------------------
+    def _prepare_sqlite_file(self) -> None:
+        database = self.url.database or ""
+        if database in ("", ":memory:"):
+            raise StoreError("an in-memory SQLite store would lose every save; give a file path", "store")
+        path = Path(database)
+        try:
+            path.parent.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise StoreError(f"cannot create the folder {path.parent} ({exc.strerror or exc})", "store") from None
+        if path.exists() and not path.is_file():
+            raise StoreError(f"{path} is not a file", "store")
+
+    def _create_schema(self) -> None:
+        statements = [sa.schema.CreateTable(table, if_not_exists=True) for table in (revisions, store_info)]
+        statements.append(sa.schema.CreateIndex(_parent_index, if_not_exists=True))
+        for attempt in range(5):
+            try:
+                with self.engine.begin() as conn:
+                    if self.dialect == "sqlite":
+                        self._refuse_foreign_sqlite(conn)
+                    for statement in statements:
+                        conn.execute(statement)
+                    conn.execute(self._insert(store_info).values(key="format", value=STORE_FORMAT)
+                                 .on_conflict_do_nothing(index_elements=["key"]))
+                    found = conn.execute(sa.select(store_info.c.value).where(store_info.c.key == "format")).scalar()
+                if found != STORE_FORMAT:
+                    raise StoreError(f"{self.where} holds worksheet store format {found!r}; this program reads "
+                                     f"format {STORE_FORMAT}", "store")
+                return
+            except (sa_exc.IntegrityError, sa_exc.ProgrammingError) as exc:
+                # Two processes creating the same table at once (PostgreSQL's catalogue race): try again.
+                if attempt == 4:
+                    raise StoreError(_describe_db_error(exc, self.where), "store") from None
+                time.sleep(0.05 * (attempt + 1))
+            except sa_exc.SQLAlchemyError as exc:
+                raise StoreError(_describe_db_error(exc, self.where), "store") from None
+
+    def _refuse_foreign_sqlite(self, conn) -> None:
+        tables = set(conn.execute(sa.text("SELECT name FROM sqlite_master WHERE type = 'table'")).scalars())
+        if tables and revisions.name not in tables:
+            raise StoreError(f"{self.where} is an SQLite database of another program (it has no worksheet "
+                             f"revisions); set {ENV_DB} to another file. Nothing was changed", "store")
+
+    def close(self) -> None:
+        """Release the database connections."""
+        self.engine.dispose()
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc_info):
+        self.close()
+
+    # -- the interface --------------------------------------------------------------------------------------
+    def save(self, worksheet: Worksheet, parent: str | None = None) -> RevisionInfo:
+        """Save a worksheet as a revision (or find it already saved); return the stored revision's record.
+
+        ``parent`` is the id of the revision this worksheet was edited from; it is
+        recorded only when the revision is new (the first save of a content wins)
+        and ignored when it is the worksheet's own id (saved unchanged).
+        """
+        content = canonical_json(worksheet)
+        if len(content.encode("utf-8")) > MAX_DOCUMENT_BYTES:
+            raise StoreError(f"the worksheet is larger than {MAX_DOCUMENT_BYTES:,} bytes and cannot be saved", "save")
+        digest = hashlib.sha256(content.encode("utf-8")).hexdigest()
+        rev_id = digest[:ID_LENGTH]
+        parent = check_id(parent, "parent") if parent else None
+        if parent == rev_id:
+            parent = None
+        row = dict(id=rev_id, parent_id=parent, title=worksheet.title[:200], saved_at=_now(),
+                   schema_version=worksheet.schema_version, content_sha256=digest, content=content)
+        statement = self._insert(revisions).values(**row).on_conflict_do_nothing(index_elements=["id"])
+        try:
+            with self.engine.begin() as conn:
+                conn.execute(statement)
+                stored = conn.execute(sa.select(revisions).where(revisions.c.id == rev_id)).one_or_none()
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where), "save") from None
+        if stored is None or stored.content != content:
+            raise StoreError(f"revision {rev_id} is stored with other content than this worksheet; the stored "
+                             "one was kept. Report this: it should never happen", "save")
+        return _info(stored)
+
+    def open(self, rev_id: str) -> Revision:
+        """The revision with this id, its content checked against the id; :class:`RevisionNotFoundError` if none."""
+        rev_id = check_id(rev_id)
+        try:
+            with self.engine.connect() as conn:
+                row = conn.execute(sa.select(revisions).where(revisions.c.id == rev_id)).one_or_none()
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where), "ws") from None
+        if row is None:
+            raise RevisionNotFoundError(f"no saved worksheet has the id {rev_id} in this store "
+                                        "(check the link, or that it was saved on this server)", "ws")
+        if hashlib.sha256(row.content.encode("utf-8")).hexdigest() != row.content_sha256 \
+                or not row.content_sha256.startswith(rev_id):
+            raise StoreError(f"saved worksheet {rev_id} has been altered in the database (its content no longer "
+                             "matches its id); it is not opened", "ws")
+        try:
+            worksheet = load_worksheet(row.content)
+        except HeatBalanceError as exc:
+            raise StoreError(f"saved worksheet {rev_id} cannot be read ({exc})", "ws") from None
+        return Revision(**vars(_info(row)), worksheet=worksheet)
+
+    def info(self, rev_id: str) -> RevisionInfo | None:
+        """The record of one revision without its worksheet, or None when it is not stored."""
+        rev_id = check_id(rev_id)
+        columns = [revisions.c.id, revisions.c.parent_id, revisions.c.title, revisions.c.saved_at]
+        try:
+            with self.engine.connect() as conn:
+                row = conn.execute(sa.select(*columns).where(revisions.c.id == rev_id)).one_or_none()
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where), "ws") from None
+        return None if row is None else _info(row)
+
+    def history(self, rev_id: str, limit: int = MAX_HISTORY) -> list[RevisionInfo]:
+        """The revision and its ancestors, newest first, following parent links (at most ``limit``).
+
+        A parent saved elsewhere (not in this store) ends the list.
+        """
+        first = self.info(rev_id)
+        if first is None:
+            raise RevisionNotFoundError(f"no saved worksheet has the id {check_id(rev_id)} in this store", "ws")
+        chain, seen = [first], {first.id}
+        while chain[-1].parent and chain[-1].parent not in seen and len(chain) < limit:
+            parent = self.info(chain[-1].parent)
+            if parent is None:
+                break
+            chain.append(parent)
+            seen.add(parent.id)
+        return chain
+
+    def children(self, rev_id: str, limit: int = MAX_HISTORY) -> list[RevisionInfo]:
+        """Revisions saved as edits of this one, oldest first (at most ``limit``)."""
+        rev_id = check_id(rev_id)
+        columns = [revisions.c.id, revisions.c.parent_id, revisions.c.title, revisions.c.saved_at]
+        query = (sa.select(*columns).where(revisions.c.parent_id == rev_id)
+                 .order_by(revisions.c.saved_at, revisions.c.id).limit(limit))
+        try:
+            with self.engine.connect() as conn:
+                return [_info(row) for row in conn.execute(query)]
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where), "ws") from None
+
+    def count(self) -> int:
+        """How many revisions the store holds."""
+        try:
+            with self.engine.connect() as conn:
+                return conn.execute(sa.select(sa.func.count()).select_from(revisions)).scalar_one()
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where), "store") from None
+
+
+def _sqlite_pragmas(dbapi_connection, _record) -> None:
+    cursor = dbapi_connection.cursor()
+    try:
+        cursor.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_S * 1000}")
+        cursor.execute("PRAGMA journal_mode = WAL")  # readers never wait for a writer
+        cursor.execute("PRAGMA synchronous = FULL")  # a save that returned survives a power cut
+    finally:
+        cursor.close()
+
+
+def _info(row) -> RevisionInfo:
+    return RevisionInfo(id=row.id, parent=row.parent_id, title=row.title,
+                        saved_at=datetime.fromisoformat(row.saved_at))
+
+
+def open_store(url: str | None = None) -> WorksheetStore:
+    """The store named by ``url``, else by the environment (``HEATBALANCE_DATABASE_URL``, ``HEATBALANCE_DB``)."""
+    return WorksheetStore(url or database_url())
+
