@@ -1,0 +1,68 @@
+"""The command line: readable table, JSON, unit systems, one-line errors."""
+import json
+import subprocess
+import sys
+
+import pytest
+from iapws import IAPWS97
+
+from heatbalance.cli import main
+
+FLASH = "sample_data/condensate_flash.json"
+HEATER = "sample_data/us_water_heater_duty.json"
+
+
+def test_solve_prints_the_answer_and_every_contribution(capsys):
+    assert main(["solve", FLASH]) == 0
+    out = capsys.readouterr().out
+    assert "ANSWER  stream Condensate return outlet temperature = 111.6 °C, 12.3% vapour" in out
+    assert "+ = heat into the process" in out and "closure residual: 0.00 kW" in out
+    assert "IAPWS-IF97" in out
+
+
+def test_json_output_carries_the_full_result(capsys):
+    assert main(["solve", FLASH, "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    # isenthalpic flash from 11.01325 bar(a), 175 °C to 1.51325 bar(a): IAPWS-IF97 via iapws
+    h_in = IAPWS97(P=1.101325, T=448.15).h
+    liquid, vapour = IAPWS97(P=0.151325, x=0), IAPWS97(P=0.151325, x=1)
+    assert data["answer"]["phase_fraction"] == pytest.approx((h_in - liquid.h) / (vapour.h - liquid.h), rel=1e-6)
+    assert data["heat_unit"] == "W" and data["lines"][0]["name"] == "Condensate return"
+    assert set(data) >= {"warnings", "assumptions", "sources", "versions", "sign_convention", "residual"}
+
+
+def test_us_units(capsys):
+    assert main(["solve", HEATER, "--units", "US"]) == 0
+    out = capsys.readouterr().out
+    # hand calculation with IAPWS-IF97 via iapws: 20 000 lb/h × Δh(60 -> 220 °F at 64.7 psia)
+    P = (50 + 14.6959488) * 0.00689475729  # MPa
+    dh = IAPWS97(P=P, T=(220 - 32) / 1.8 + 273.15).h - IAPWS97(P=P, T=(60 - 32) / 1.8 + 273.15).h  # kJ/kg
+    expected = 20000 * 0.45359237 * dh / 1.05505585262 / 1e6  # MMBtu/h
+    assert f"duty Preheater = {expected:.4g} MMBtu/h" in out
+    assert "[Btu/h]" in out
+
+
+def test_materials_lists_the_catalogue(capsys):
+    assert main(["materials"]) == 0
+    out = capsys.readouterr().out
+    assert "water" in out and "ethylene glycol (aq)" in out and "stainless steel 316" in out
+
+
+def test_bad_input_is_one_line_and_exit_1(tmp_path, capsys):
+    sheet = json.loads(open(FLASH, encoding="utf-8").read())
+    sheet["streams"][0]["flow"] = {"value": 1.8, "unit": "kW"}
+    path = tmp_path / "bad.json"
+    path.write_text(json.dumps(sheet))
+    assert main(["solve", str(path)]) == 1
+    err = capsys.readouterr().err
+    assert err == "error: stream Condensate return flow: unit 'kW' is not a mass flow (it measures power)\n"
+
+
+def test_missing_file(capsys):
+    assert main(["solve", "no/such/file.json"]) == 1
+    assert capsys.readouterr().err.startswith("error: cannot read no/such/file.json")
+
+
+def test_module_entry_point_exit_status():
+    done = subprocess.run([sys.executable, "-m", "heatbalance", "solve", "missing.json"], capture_output=True, text=True)
+    assert done.returncode == 1 and done.stderr.count("\n") == 1

@@ -1,0 +1,42 @@
+"""Every bundled sample loads, solves, closes its balance and survives a JSON round trip.
+
+The pinned answers are this engine's own output, kept as regression values (not references);
+the references for the same physics are in test_balance.py and test_properties.py.
+"""
+import glob
+
+import pytest
+
+from heatbalance.balance import solve
+from heatbalance.worksheet import dump_worksheet, load_worksheet
+
+SAMPLES = sorted(glob.glob("sample_data/*.json"))
+
+REGRESSION = {  # own output, regression only
+    "batch_reactor_exotherm.json": "54.98 °C",
+    "condensate_flash.json": "111.6 °C, 12.3% vapour",
+    "hot_condensate_quench.json": "5.902 t",
+    "ice_melting_tank.json": "0 °C, 43.2% still solid",
+    "solvent_condenser_cooling_water.json": "28.31 t/h",
+    "steam_heater_glycol.json": "745.6 kg/h",
+    "us_water_heater_duty.json": "938.4 kW",  # typed in MMBtu/h, shown in the SI display units
+}
+
+
+def test_at_least_five_samples():
+    assert len(SAMPLES) >= 5
+
+
+@pytest.mark.parametrize("path", SAMPLES, ids=lambda p: p.split("/")[-1])
+def test_sample_solves_and_closes(path):
+    with open(path, encoding="utf-8") as handle:
+        ws = load_worksheet(handle.read())
+    result = solve(ws)
+    scale = max(abs(ln.total) for ln in result.lines)
+    assert abs(result.residual) <= 1e-6 * scale
+    name = path.split("/")[-1]
+    if name in REGRESSION:
+        assert result.answer.text == REGRESSION[name]
+    again = load_worksheet(dump_worksheet(ws))
+    assert again == ws
+    assert solve(again).answer.value == result.answer.value
