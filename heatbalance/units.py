@@ -156,9 +156,12 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
     """
     if not isinstance(value, (int, float)) or not math.isfinite(value):
         raise InputError(f"{value!r} is not a finite number", where)
-    check_unit(unit, kind, where)
-    parsed, offset = _parse(unit, kind, where)
-    si = Q_(value, parsed).to(KINDS[kind][0]).magnitude + offset
+    try:
+        scale, offset = _affine(unit, kind)
+    except UnitError:
+        check_unit(unit, kind, where)  # the same refusal, naming the field
+        raise
+    si = value * scale + offset
     if kind == "temperature" and si < 0:
         raise InputError(f"{value:g} {unit} is below absolute zero (0 K = -273.15 °C = -459.67 °F)", where)
     if kind == "pressure" and si <= 0:
@@ -167,10 +170,21 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
     return float(si)
 
 
+@lru_cache(maxsize=1024)
+def _affine(unit: str, kind: str) -> tuple[float, float]:
+    """(scale, offset) with SI = value·scale + offset; every kind here is affine in its unit (cached)."""
+    check_unit(unit, kind)
+    parsed, gauge = _parse(unit, kind, "")
+    si_unit = KINDS[kind][0]
+    offset = Q_(0.0, parsed).to(si_unit).magnitude
+    scale = Q_(1.0, parsed).to(si_unit).magnitude - offset
+    return float(scale), float(offset + gauge)
+
+
 def from_si(value: float, unit: str, kind: str) -> float:
     """Convert an SI float of the given kind to ``unit`` (the inverse of :func:`to_si`)."""
-    parsed, offset = _parse(unit, kind, "")
-    return float(Q_(value - offset, KINDS[kind][0]).to(parsed).magnitude)
+    scale, offset = _affine(unit, kind)
+    return (value - offset) / scale
 
 
 #: Display units of each unit system, per kind.
