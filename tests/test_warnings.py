@@ -1,0 +1,111 @@
+"""Warnings a checker needs to see, and user-defined materials (polynomial cp, transitions)."""
+import pytest
+
+from heatbalance.balance import solve
+from heatbalance.errors import InputError, PropertyRangeError
+from sheet_factory import build, constant_cp_material, q, stream, temp
+
+A = constant_cp_material("liquid A", cp=2.0)
+
+
+def test_phase_change_is_reported_with_its_latent_heat():
+    ws = build(streams=[stream("Boiler feed", "water", q(1, "t/h"), temp(20), temp(150))],
+               duties=[{"name": "Boiler"}], unknowns=[{"kind": "duty", "term": "Boiler"}])
+    result = solve(ws)
+    (warning,) = result.warnings
+    # IAPWS-IF97: h_fg at 1 atm ≈ 2257 kJ/kg (DOMAIN.md)
+    assert warning.startswith("Boiler feed changes phase (liquid → vapour): latent heat 2,256.5 kJ/kg included")
+    assert result.lines[0].latent == pytest.approx(1000 / 3600 * 2256.54e3, rel=1e-5)
+
+
+def test_temperature_cross_with_a_heater_duty_is_a_warning_not_a_refusal():
+    ws = build(materials=[A],
+               streams=[stream("Feed", "liquid A", q(3600, "kg/h"), temp(20), temp(150)),
+                        stream("Hot water", "water", q(1, "kg/s"), temp(90), temp(60), pressure=q(3, "barg"))],
+               duties=[{"name": "Trim heater"}], unknowns=[{"kind": "duty", "term": "Trim heater"}])
+    result = solve(ws)
+    assert any(w.startswith("Temperature cross: Hot water enters at 90.00 °C, so it cannot heat Feed to 150.00 °C")
+               for w in result.warnings)
+
+
+def test_cooling_below_the_coolant_inlet_is_refused_without_a_cooler():
+    ws = build(materials=[A],
+               streams=[stream("Product", "liquid A", q(3600, "kg/h"), temp(80), temp(20)),
+                        stream("Cooling water", "water", q(1, "kg/s"), temp(28), temp(35), pressure=q(3, "barg"))],
+               unknowns=[{"kind": "amount", "line": "Cooling water"}])
+    from heatbalance.errors import NoSolutionError
+    with pytest.raises(NoSolutionError, match=r"Cooling water enters at 28\.00 °C, so it cannot cool Product to "
+                                              r"20\.00 °C"):
+        solve(ws)
+
+
+def test_extrapolated_table_data_is_a_warning():
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "Oven", "charges": [{"name": "Parts", "material": "carbon steel", "mass": q(100, "kg"),
+                                                      "initial": temp(20)}], "final": temp(300)}],
+               duties=[{"name": "Heat"}], unknowns=[{"kind": "duty", "term": "Heat"}])
+    result = solve(ws)
+    # hand calculation: 100 kg × 0.434 kJ/(kg·K) × 280 K (Incropera Table A.1, from memory)
+    assert result.answer.value_si == pytest.approx(100 * 434 * 280)
+    assert any("300.0 °C is outside the validated range of the data for carbon steel (-50 to 150 °C)" in w
+               for w in result.warnings)
+
+
+def test_solution_above_the_boiling_point_of_water_is_flagged():
+    ws = build(streams=[stream("Glycol", "ethylene glycol (aq)", q(1, "t/h"), temp(20), temp(99.99),
+                               mass_fraction=0.3)],
+               duties=[{"name": "Heat"}], unknowns=[{"kind": "duty", "term": "Heat"}])
+    result = solve(ws)
+    assert any("above the boiling point of water at 1.013 bar(a); boiling of the solution is not modelled" in w
+               for w in result.warnings)
+
+
+def test_polynomial_cp_material():
+    # cp = 1.5 + 0.002·T kJ/(kg·K), T in K; hand calculation: ∫ from 300 to 400 K =
+    # 1.5·100 + 0.001·(400² − 300²) = 150 + 70 = 220 kJ/kg
+    poly = {"name": "poly", "source": "test", "phases": [{"name": "liquid", "cp": q(1.5, "kJ/(kg*K)"),
+                                                          "cp_per_kelvin": 0.002}],
+            "min_temperature": q(0, "K"), "max_temperature": q(1000, "K")}
+    ws = build(materials=[poly], streams=[stream("P", "poly", q(1, "kg/s"), temp(300, "K"), temp(400, "K"))],
+               duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
+    assert solve(ws).answer.value_si == pytest.approx(220e3, rel=1e-12)
+
+
+def test_user_material_transitions_must_rise():
+    bad = {"name": "bad", "source": "test",
+           "phases": [{"name": "solid", "cp": q(2, "kJ/(kg*K)"), "up_to": q(500, "degC"), "latent_heat": q(100, "kJ/kg")},
+                      {"name": "liquid", "cp": q(3, "kJ/(kg*K)")}],
+           "min_temperature": q(0, "degC"), "max_temperature": q(100, "degC")}
+    ws = build(materials=[bad], streams=[stream("X", "bad", q(1, "kg/s"), temp(20), temp(30))],
+               duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
+    with pytest.raises(InputError, match=r"^material bad: temperatures must rise: min temperature < each transition"):
+        solve(ws)
+
+
+def test_user_material_phase_needs_its_transition():
+    bad = {"name": "bad", "source": "test",
+           "phases": [{"name": "solid", "cp": q(2, "kJ/(kg*K)")}, {"name": "liquid", "cp": q(3, "kJ/(kg*K)")}],
+           "min_temperature": q(0, "degC"), "max_temperature": q(100, "degC")}
+    ws = build(materials=[bad], streams=[stream("X", "bad", q(1, "kg/s"), temp(20), temp(30))],
+               duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
+    with pytest.raises(InputError, match=r"^material bad solid: every phase but the last needs 'up_to'"):
+        solve(ws)
+
+
+def test_pressure_above_the_property_data():
+    ws = build(streams=[stream("HP water", "water", q(1, "t/h"), temp(20), temp(40), pressure=q(2000, "bar"))],
+               duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
+    with pytest.raises(PropertyRangeError, match=r"^stream HP water inlet: pressure 2000 bar\(a\) is outside the "
+                                                 r"property data of water \(0 to 1000 bar\(a\)\)"):
+        solve(ws)
+
+
+def test_mixed_vessel_cannot_end_on_a_fraction():
+    ws = build(basis={"kind": "batch"}, materials=[A],
+               vessels=[{"name": "V", "charges": [
+                   {"name": "W", "material": "water", "mass": q(1, "t"), "initial": temp(20)},
+                   {"name": "L", "material": "liquid A", "mass": q(1, "t"), "initial": temp(20)}],
+                   "final": {"vapour_fraction": 0.5}}],
+               duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
+    with pytest.raises(InputError, match=r"^vessel V final: a final phase fraction needs all charges of one material"):
+        solve(ws)
