@@ -18,6 +18,7 @@ from scipy.optimize import brentq
 from .errors import InputError, NoSolutionError, UnitError
 from .materials import get_material
 from .properties import Material, Phase, TabulatedMaterial, Transition, property_library_versions
+from .reactions import reaction_enthalpy
 from .results import Answer, LineResult, Result, TermResult, heat_kind
 from .units import ATMOSPHERE, DISPLAY_UNITS, check_unit, from_si, is_us_customary, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
@@ -296,8 +297,22 @@ class _Builder:
 
     def _reaction(self, r) -> HeatTerm:
         where = f"reaction {r.name}"
-        dH = to_si(r.enthalpy.value, r.enthalpy.unit, "molar_energy", f"{where} heat of reaction")
-        if r.molar_mass is None:
+        hess = None if r.equation is None else reaction_enthalpy(r.equation, r.key_reactant,
+                                                                 where=f"{where} equation")
+        if r.enthalpy is not None:
+            dH = to_si(r.enthalpy.value, r.enthalpy.unit, "molar_energy", f"{where} heat of reaction")
+        else:
+            dH = hess.dH_per_key
+        if hess is not None:
+            used = "the entered ΔH is used; the equation gives " if r.enthalpy is not None else ""
+            tables = "; ".join(f"{name} = {source}" for name, source in hess.sources.items())
+            self.assumptions.append(f"{where}: {used}{hess.text}. Tables: {tables}.")
+        if r.molar_mass is None and hess is not None and \
+                kind_of(r.amount.unit, ("amount", "molar_flow", "mass", "mass_flow"), f"{where} amount") \
+                in ("mass", "mass_flow"):
+            mass = self.basis_value(r.amount, "mass", "mass_flow", f"{where} amount")
+            moles = mass / hess.key_molar_mass
+        elif r.molar_mass is None:
             moles = self.basis_value(r.amount, "amount", "molar_flow", f"{where} amount")
         else:
             mass = self.basis_value(r.amount, "mass", "mass_flow", f"{where} amount")
@@ -308,7 +323,9 @@ class _Builder:
         if moles < 0:
             raise InputError(f"the amount reacted cannot be negative ({r.amount})", f"{where} amount")
         reacted = moles * r.conversion
-        detail = f"ΔH = {r.enthalpy} × {reacted / 1000:.4g} kmol reacted (conversion {r.conversion:.0%})"
+        entered = str(r.enthalpy) if r.enthalpy is not None else \
+            f"{dH / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
+        detail = f"ΔH = {entered} × {reacted / 1000:.4g} kmol reacted (conversion {r.conversion:.0%})"
         return HeatTerm(r.name, "reaction", -dH * reacted, detail)
 
     def _target(self, lines: list[Line], terms: list[HeatTerm], var: str | None):

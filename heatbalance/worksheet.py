@@ -167,14 +167,28 @@ class Reaction(_Model):
 
     ``amount`` is moles (or a molar flow) of the key reactant fed, or a mass
     (or mass flow) with ``molar_mass``. ΔH is negative for an exothermic reaction.
+
+    ΔH is entered (``enthalpy``), or computed at 25 °C by Hess's law from a balanced
+    ``equation`` with phases (``"propene(g) + H2(g) -> propane(g)"``, see
+    :mod:`heatbalance.reactions`) per mole of ``key_reactant``. With both, the entered
+    ΔH is used and the equation's value is reported beside it. With an equation,
+    a mass ``amount`` needs no ``molar_mass`` (the key reactant's is used).
     """
 
     name: str = Field(min_length=1, max_length=80)
-    enthalpy: Quantity
+    enthalpy: Quantity | None = None
     amount: Quantity
     conversion: float = Field(default=1.0, ge=0.0, le=1.0)
     molar_mass: Quantity | None = None
     vessel: str | None = None
+    equation: str | None = Field(default=None, max_length=500)
+    key_reactant: str | None = Field(default=None, max_length=120)
+
+    @model_validator(mode="after")
+    def _heat_given(self):
+        if self.enthalpy is None and self.equation is None:
+            raise ValueError("give the heat of reaction ('enthalpy') or a balanced 'equation' to compute it from")
+        return self
 
 
 class CommonTemperature(_Model):
