@@ -118,11 +118,11 @@ def _now() -> str:
     return datetime.now(timezone.utc).isoformat(timespec="microseconds")
 
 
-def _describe_db_error(exc: Exception, where: str) -> str:
+def _describe_db_error(exc: Exception, where: str, busy_timeout: float = BUSY_TIMEOUT_S) -> str:
     text = str(getattr(exc, "orig", None) or exc).strip().splitlines()[0][:200]
     low = text.lower()
     if "locked" in low or "busy" in low:
-        return (f"the worksheet database is busy (locked by another program for more than {BUSY_TIMEOUT_S} s); "
+        return (f"the worksheet database is busy (locked by another program for more than {busy_timeout:g} s); "
                 "try again in a moment")
     if "not a database" in low or "malformed" in low or "corrupt" in low:
         return f"{where} is not a readable worksheet database ({text}); nothing was changed"
@@ -149,7 +149,7 @@ class WorksheetStore:
     >>> store.close()
     """
 
-    def __init__(self, url: str):
+    def __init__(self, url: str, busy_timeout: float = BUSY_TIMEOUT_S):
         try:
             self.url = sa.engine.make_url(url)
         except (sa_exc.ArgumentError, ValueError) as exc:
@@ -157,11 +157,12 @@ class WorksheetStore:
         self.dialect = self.url.get_backend_name()
         if self.dialect not in ("sqlite", "postgresql"):
             raise StoreError(f"database '{self.dialect}' is not supported; use sqlite or postgresql", "store")
+        self.busy_timeout = busy_timeout
         self.where = self.url.database if self.dialect == "sqlite" else self.url.render_as_string(hide_password=True)
         try:
             if self.dialect == "sqlite":
                 self._prepare_sqlite_file()
-                self.engine = sa.create_engine(self.url, connect_args={"timeout": BUSY_TIMEOUT_S})
+                self.engine = sa.create_engine(self.url, connect_args={"timeout": busy_timeout})
                 sa.event.listen(self.engine, "connect", _sqlite_pragmas)
             else:
                 self.engine = sa.create_engine(self.url, pool_pre_ping=True,
@@ -185,29 +186,47 @@ class WorksheetStore:
             raise StoreError(f"{path} is not a file", "store")
 
     def _create_schema(self) -> None:
+        """Check an existing store (reading only), or create the tables of a new one."""
         statements = [sa.schema.CreateTable(table, if_not_exists=True) for table in (revisions, store_info)]
         statements.append(sa.schema.CreateIndex(_parent_index, if_not_exists=True))
         for attempt in range(5):
             try:
-                with self.engine.begin() as conn:
+                with self.engine.connect() as conn:
                     if self.dialect == "sqlite":
                         self._refuse_foreign_sqlite(conn)
-                    for statement in statements:
-                        conn.execute(statement)
-                    conn.execute(self._insert(store_info).values(key="format", value=STORE_FORMAT)
-                                 .on_conflict_do_nothing(index_elements=["key"]))
-                    found = conn.execute(sa.select(store_info.c.value).where(store_info.c.key == "format")).scalar()
+                    found = self._format(conn)
+                if found is None:
+                    with self.engine.begin() as conn:
+                        for statement in statements:
+                            conn.execute(statement)
+                        conn.execute(self._insert(store_info).values(key="format", value=STORE_FORMAT)
+                                     .on_conflict_do_nothing(index_elements=["key"]))
+                        found = self._format(conn)
                 if found != STORE_FORMAT:
                     raise StoreError(f"{self.where} holds worksheet store format {found!r}; this program reads "
                                      f"format {STORE_FORMAT}", "store")
+                if self.dialect == "sqlite":
+                    self._use_wal()
                 return
             except (sa_exc.IntegrityError, sa_exc.ProgrammingError) as exc:
                 # Two processes creating the same table at once (PostgreSQL's catalogue race): try again.
                 if attempt == 4:
-                    raise StoreError(_describe_db_error(exc, self.where), "store") from None
+                    raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
                 time.sleep(0.05 * (attempt + 1))
             except sa_exc.SQLAlchemyError as exc:
-                raise StoreError(_describe_db_error(exc, self.where), "store") from None
+                raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
+
+    def _use_wal(self) -> None:
+        """Write-ahead logging (kept in the file): readers never wait for a writer. Set once, on our store only."""
+        with self.engine.connect() as conn:
+            if conn.exec_driver_sql("PRAGMA journal_mode").scalar() != "wal":
+                conn.exec_driver_sql("PRAGMA journal_mode = WAL")
+
+    @staticmethod
+    def _format(conn) -> str | None:
+        if not (sa.inspect(conn).has_table(store_info.name) and sa.inspect(conn).has_table(revisions.name)):
+            return None
+        return conn.execute(sa.select(store_info.c.value).where(store_info.c.key == "format")).scalar()
 
     def _refuse_foreign_sqlite(self, conn) -> None:
         tables = set(conn.execute(sa.text("SELECT name FROM sqlite_master WHERE type = 'table'")).scalars())
@@ -249,7 +268,7 @@ class WorksheetStore:
                 conn.execute(statement)
                 stored = conn.execute(sa.select(revisions).where(revisions.c.id == rev_id)).one_or_none()
         except sa_exc.SQLAlchemyError as exc:
-            raise StoreError(_describe_db_error(exc, self.where), "save") from None
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "save") from None
         if stored is None or stored.content != content:
             raise StoreError(f"revision {rev_id} is stored with other content than this worksheet; the stored "
                              "one was kept. Report this: it should never happen", "save")
@@ -262,7 +281,7 @@ class WorksheetStore:
             with self.engine.connect() as conn:
                 row = conn.execute(sa.select(revisions).where(revisions.c.id == rev_id)).one_or_none()
         except sa_exc.SQLAlchemyError as exc:
-            raise StoreError(_describe_db_error(exc, self.where), "ws") from None
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
         if row is None:
             raise RevisionNotFoundError(f"no saved worksheet has the id {rev_id} in this store "
                                         "(check the link, or that it was saved on this server)", "ws")
@@ -284,7 +303,7 @@ class WorksheetStore:
             with self.engine.connect() as conn:
                 row = conn.execute(sa.select(*columns).where(revisions.c.id == rev_id)).one_or_none()
         except sa_exc.SQLAlchemyError as exc:
-            raise StoreError(_describe_db_error(exc, self.where), "ws") from None
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
         return None if row is None else _info(row)
 
     def history(self, rev_id: str, limit: int = MAX_HISTORY) -> list[RevisionInfo]:
@@ -314,7 +333,7 @@ class WorksheetStore:
             with self.engine.connect() as conn:
                 return [_info(row) for row in conn.execute(query)]
         except sa_exc.SQLAlchemyError as exc:
-            raise StoreError(_describe_db_error(exc, self.where), "ws") from None
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
 
     def count(self) -> int:
         """How many revisions the store holds."""
@@ -322,14 +341,12 @@ class WorksheetStore:
             with self.engine.connect() as conn:
                 return conn.execute(sa.select(sa.func.count()).select_from(revisions)).scalar_one()
         except sa_exc.SQLAlchemyError as exc:
-            raise StoreError(_describe_db_error(exc, self.where), "store") from None
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
 
 
 def _sqlite_pragmas(dbapi_connection, _record) -> None:
     cursor = dbapi_connection.cursor()
     try:
-        cursor.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_S * 1000}")
-        cursor.execute("PRAGMA journal_mode = WAL")  # readers never wait for a writer
         cursor.execute("PRAGMA synchronous = FULL")  # a save that returned survives a power cut
     finally:
         cursor.close()

@@ -1,0 +1,52 @@
+"""Files a user downloads: the worksheet as JSON and the results table as CSV (pure functions returning bytes)."""
+from __future__ import annotations
+
+import csv
+import io
+
+from .results import Result, contribution_rows, format_heat
+from .worksheet import Worksheet, dump_worksheet
+
+__all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename"]
+
+
+def worksheet_json_bytes(worksheet: Worksheet) -> bytes:
+    """The worksheet as the JSON file the loader reads back (UTF-8, indented, newline-terminated)."""
+    return (dump_worksheet(worksheet) + "\n").encode("utf-8")
+
+
+def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
+    """The contribution table as CSV, after ``#`` lines with the title, answer, residual and sign convention.
+
+    UTF-8 with a byte-order mark so spreadsheet programs show ``°C`` and ``−`` correctly;
+    read it back with ``pandas.read_csv(..., comment="#", encoding="utf-8-sig")``.
+    """
+    rows = contribution_rows(result, system)
+    out = io.StringIO()
+    header = [f"# {result.title}",
+              f"# answer: {result.answer.label} = {result.answer.text}",
+              f"# closure residual: {format_heat(result.residual, result.basis, system)}",
+              f"# sign convention: {result.sign_convention}"]
+    header += [f"# warning: {w}" for w in result.warnings]
+    out.write("\n".join(line.replace("\n", " ") for line in header) + "\n")
+    columns = list(rows[0]) if rows else ["item"]
+    writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")
+    writer.writeheader()
+    for row in rows:
+        writer.writerow({k: ("" if v is None else repr(v) if isinstance(v, float) else v) for k, v in row.items()})
+    return out.getvalue().encode("utf-8-sig")
+
+
+def _slug(title: str) -> str:
+    keep = "".join(c if c.isalnum() else "_" for c in title.strip().lower())
+    return "_".join(part for part in keep.split("_") if part)[:60] or "worksheet"
+
+
+def worksheet_filename(worksheet: Worksheet) -> str:
+    """``glycol_loop_heater_on_4_barg_steam.json``"""
+    return _slug(worksheet.title) + ".json"
+
+
+def results_filename(worksheet: Worksheet) -> str:
+    """``glycol_loop_heater_on_4_barg_steam_results.csv``"""
+    return _slug(worksheet.title) + "_results.csv"

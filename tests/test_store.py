@@ -1,0 +1,385 @@
+"""The worksheet store: round trips of every sample, immutability, history, concurrency, refusals, the CLI.
+
+Runs against SQLite always and against a throwaway PostgreSQL server (``pg_server.py``)
+when one can be started (in CI it must be).
+"""
+from __future__ import annotations
+
+import hashlib
+import json
+import multiprocessing
+import sqlite3
+from pathlib import Path
+
+import pytest
+
+from heatbalance.balance import solve
+from heatbalance.cli import main
+from heatbalance.links import LinkError, canonical_json, revision_id
+from heatbalance.store import (ENV_DATABASE_URL, ENV_DB, RevisionNotFoundError, StoreError, WorksheetStore,
+                               database_url, default_database_path, open_store)
+from heatbalance.worksheet import load_worksheet
+from pg_server import postgres_url  # noqa: F401  (a fixture)
+
+SAMPLES = sorted(Path(__file__).parent.parent.joinpath("sample_data").glob("*.json"))
+WORKERS, SAVES_PER_WORKER = 8, 50
+
+
+def _sample(path: Path):
+    return load_worksheet(path.read_bytes())
+
+
+def _file_digest(path: Path) -> str:
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+@pytest.fixture
+def sqlite_url(tmp_path):
+    return f"sqlite:///{tmp_path / 'store' / 'worksheets.sqlite3'}"
+
+
+@pytest.fixture(params=["sqlite", "postgresql"])
+def store(request, tmp_path):
+    if request.param == "sqlite":
+        url = f"sqlite:///{tmp_path / 'worksheets.sqlite3'}"
+    else:
+        url = request.getfixturevalue("postgres_url")
+        _empty_postgres(url)
+    with WorksheetStore(url) as s:
+        yield s
+
+
+def _empty_postgres(url: str) -> None:
+    """Each PostgreSQL test starts from an empty store (the server lives for the whole session)."""
+    import sqlalchemy as sa
+
+    engine = sa.create_engine(url)
+    with engine.begin() as conn:
+        conn.execute(sa.text("DROP TABLE IF EXISTS heatbalance_revisions, heatbalance_store_info"))
+    engine.dispose()
+
+
+# -- round trips --------------------------------------------------------------------------------------------
+@pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
+def test_every_sample_reopens_identical_with_identical_result(store, path):
+    worksheet = _sample(path)
+    saved = store.save(worksheet)
+    assert saved.id == revision_id(worksheet)
+    reopened = store.open(saved.id)
+    assert reopened.worksheet == worksheet
+    assert canonical_json(reopened.worksheet) == canonical_json(worksheet)
+    assert solve(reopened.worksheet).to_dict() == solve(worksheet).to_dict()
+    assert (reopened.title, reopened.parent) == (worksheet.title, None)
+
+
+def test_same_worksheet_saved_twice_is_one_revision_and_keeps_its_first_record(store):
+    worksheet = _sample(SAMPLES[0])
+    first = store.save(worksheet)
+    other = store.save(_sample(SAMPLES[1]))
+    again = store.save(worksheet, parent=other.id)  # a different parent cannot rewrite the stored record
+    assert again == first
+    assert store.count() == 2
+
+
+def test_same_content_written_differently_has_the_same_id(store):
+    text = SAMPLES[0].read_text()
+    reordered = json.dumps(dict(reversed(list(json.loads(text).items()))), indent=4)
+    assert store.save(load_worksheet(text)).id == store.save(load_worksheet(reordered)).id
+
+
+def test_an_edit_is_a_new_revision_and_the_original_is_untouched(store):
+    original = _sample(SAMPLES[0])
+    first = store.save(original)
+    edited = original.model_copy(update={"title": original.title + " (checked)"})
+    second = store.save(edited, parent=first.id)
+    assert second.id != first.id and second.parent == first.id
+    assert store.open(first.id).worksheet == original
+    assert store.open(second.id).worksheet == edited
+    assert [r.id for r in store.history(second.id)] == [second.id, first.id]
+    assert [r.id for r in store.children(first.id)] == [second.id]
+
+
+def test_saving_unchanged_with_itself_as_parent_records_no_parent(store):
+    worksheet = _sample(SAMPLES[0])
+    assert store.save(worksheet, parent=revision_id(worksheet)).parent is None
+
+
+def test_history_follows_a_long_chain_and_stops_at_a_parent_saved_elsewhere(store):
+    worksheet = _sample(SAMPLES[0])
+    parent = "f" * 24  # saved on another server
+    ids = []
+    for i in range(5):
+        worksheet = worksheet.model_copy(update={"notes": f"edit {i}"})
+        parent = store.save(worksheet, parent=parent).id
+        ids.append(parent)
+    assert [r.id for r in store.history(ids[-1])] == ids[::-1]
+    assert [r.id for r in store.history(ids[-1], limit=2)] == ids[:-3:-1]
+
+
+def test_saved_at_is_utc_and_increases(store):
+    a = store.save(_sample(SAMPLES[0]))
+    b = store.save(_sample(SAMPLES[1]), parent=a.id)
+    assert a.saved_at.utcoffset().total_seconds() == 0
+    assert b.saved_at >= a.saved_at
+
+
+# -- concurrency --------------------------------------------------------------------------------------------
+def _concurrent_worker(url: str, worker: int, barrier, out) -> None:
+    """Save SAVES_PER_WORKER worksheets: half of them this worker's own, half shared by every worker."""
+    base = _sample(SAMPLES[worker % len(SAMPLES)])
+    shared = _sample(SAMPLES[0])
+    store = WorksheetStore(url, busy_timeout=60)
+    barrier.wait(timeout=60)
+    results = []
+    for i in range(SAVES_PER_WORKER):
+        if i % 2:
+            ws = shared.model_copy(update={"notes": f"shared {i}"})
+        else:
+            ws = base.model_copy(update={"notes": f"worker {worker} save {i}"})
+        rev = store.save(ws)
+        results.append((rev.id, canonical_json(ws)))
+    store.close()
+    out.put((worker, results))
+
+
+def _save_from_many_processes(url: str):
+    context = multiprocessing.get_context("fork")
+    barrier, out = context.Barrier(WORKERS), context.Queue()
+    workers = [context.Process(target=_concurrent_worker, args=(url, w, barrier, out)) for w in range(WORKERS)]
+    for p in workers:
+        p.start()
+    collected = dict(out.get(timeout=300) for _ in workers)
+    for p in workers:
+        p.join(timeout=60)
+        assert p.exitcode == 0
+    return collected
+
+
+def _check_nothing_lost(url: str, collected: dict) -> None:
+    assert sorted(collected) == list(range(WORKERS))
+    expected = {}
+    for results in collected.values():
+        assert len(results) == SAVES_PER_WORKER
+        for rev_id, content in results:
+            assert expected.setdefault(rev_id, content) == content
+    own = WORKERS * (SAVES_PER_WORKER // 2)
+    shared = SAVES_PER_WORKER // 2
+    assert len(expected) == own + shared
+    with WorksheetStore(url) as store:
+        assert store.count() == len(expected)
+        for rev_id, content in expected.items():
+            assert canonical_json(store.open(rev_id).worksheet) == content
+            assert revision_id(store.open(rev_id).worksheet) == rev_id
+
+
+def test_many_processes_saving_at_once_on_sqlite_lose_and_corrupt_nothing(tmp_path):
+    url = f"sqlite:///{tmp_path / 'busy.sqlite3'}"  # a fresh file: the workers also race to create it
+    _check_nothing_lost(url, _save_from_many_processes(url))
+    with sqlite3.connect(tmp_path / "busy.sqlite3") as conn:
+        assert conn.execute("PRAGMA integrity_check").fetchone() == ("ok",)
+
+
+def test_many_processes_saving_at_once_on_postgresql_lose_and_corrupt_nothing(postgres_url):  # noqa: F811
+    _empty_postgres(postgres_url)
+    _check_nothing_lost(postgres_url, _save_from_many_processes(postgres_url))
+
+
+# -- refusals -----------------------------------------------------------------------------------------------
+def test_unknown_id_is_refused_clearly(store):
+    with pytest.raises(RevisionNotFoundError, match=r"no saved worksheet has the id 0123456789abcdef01234567"):
+        store.open("0123456789abcdef01234567")
+    with pytest.raises(RevisionNotFoundError, match=r"no saved worksheet has the id"):
+        store.history("0123456789abcdef01234567")
+
+
+@pytest.mark.parametrize("bad", ["", "123", "0123456789abcdef0123456g", "0123456789abcdef01234567x",
+                                 "'; DROP TABLE heatbalance_revisions; --", "../../etc/passwd"])
+def test_malformed_id_is_refused_before_any_query(store, bad):
+    store.save(_sample(SAMPLES[0]))
+    with pytest.raises(LinkError, match=r"is not a worksheet id \(an id is 24 characters 0-9 and a-f\)"):
+        store.open(bad)
+    assert store.count() == 1
+
+
+def test_malformed_parent_is_refused_and_nothing_saved(store):
+    with pytest.raises(LinkError, match=r"parent: 'nope' is not a worksheet id"):
+        store.save(_sample(SAMPLES[0]), parent="nope")
+    assert store.count() == 0
+
+
+def test_locked_sqlite_database_gives_a_clear_message_and_keeps_what_is_stored(tmp_path):
+    path = tmp_path / "locked.sqlite3"
+    with WorksheetStore(f"sqlite:///{path}") as store:
+        kept = store.save(_sample(SAMPLES[0]))
+    blocker = sqlite3.connect(path, isolation_level=None)
+    blocker.execute("BEGIN EXCLUSIVE")
+    try:
+        with WorksheetStore(f"sqlite:///{path}", busy_timeout=0.2) as store:
+            with pytest.raises(StoreError, match=r"the worksheet database is busy \(locked by another program"):
+                store.save(_sample(SAMPLES[1]))
+            assert store.open(kept.id).worksheet == _sample(SAMPLES[0])  # readers are never blocked (WAL)
+    finally:
+        blocker.execute("ROLLBACK")
+        blocker.close()
+    with WorksheetStore(f"sqlite:///{path}") as store:
+        assert store.count() == 1
+
+
+def test_a_file_that_is_not_a_database_is_refused_and_left_alone(tmp_path):
+    path = tmp_path / "notes.sqlite3"
+    path.write_text("these are my notes, not a database\n" * 50)
+    before = _file_digest(path)
+    with pytest.raises(StoreError, match=r"is not a readable worksheet database \(file is not a database\); "
+                                         r"nothing was changed"):
+        WorksheetStore(f"sqlite:///{path}")
+    assert _file_digest(path) == before
+
+
+def test_a_database_of_another_program_is_refused_and_left_alone(tmp_path):
+    path = tmp_path / "other.sqlite3"
+    with sqlite3.connect(path) as conn:
+        conn.execute("CREATE TABLE invoices (n INTEGER)")
+        conn.execute("INSERT INTO invoices VALUES (1)")
+    conn.close()
+    before = _file_digest(path)
+    with pytest.raises(StoreError, match=r"is an SQLite database of another program .* Nothing was changed"):
+        WorksheetStore(f"sqlite:///{path}")
+    assert _file_digest(path) == before
+
+
+def test_a_revision_altered_in_the_database_is_not_opened(tmp_path):
+    path = tmp_path / "altered.sqlite3"
+    with WorksheetStore(f"sqlite:///{path}") as store:
+        rev = store.save(_sample(SAMPLES[0]))
+    with sqlite3.connect(path) as conn:
+        conn.execute("UPDATE heatbalance_revisions SET content = replace(content, '\"title\":\"', '\"title\":\"Not checked: ')")
+    conn.close()
+    with WorksheetStore(f"sqlite:///{path}") as store:
+        with pytest.raises(StoreError, match=rf"saved worksheet {rev.id} has been altered in the database"):
+            store.open(rev.id)
+
+
+def test_a_folder_in_place_of_the_database_file_is_refused(tmp_path):
+    (tmp_path / "dir.sqlite3").mkdir()
+    with pytest.raises(StoreError, match=r"dir\.sqlite3 is not a file"):
+        WorksheetStore(f"sqlite:///{tmp_path / 'dir.sqlite3'}")
+
+
+def test_unreachable_postgresql_server_gives_a_clear_message():
+    import socket
+
+    with socket.socket() as s:  # a loopback port with nobody listening
+        s.bind(("127.0.0.1", 0))
+        port = s.getsockname()[1]
+    with pytest.raises(StoreError, match=rf"cannot reach the worksheet database at "
+                                         rf"postgresql\+psycopg://nobody@127\.0\.0\.1:{port}/x"):
+        WorksheetStore(f"postgresql+psycopg://nobody@127.0.0.1:{port}/x")
+
+
+@pytest.mark.parametrize("url, message", [
+    ("mysql://u@localhost/db", r"database 'mysql' is not supported; use sqlite or postgresql"),
+    ("sqlite://", r"an in-memory SQLite store would lose every save; give a file path"),
+    ("not a url at all", r"not a database URL"),
+])
+def test_unusable_database_urls_are_refused(url, message):
+    with pytest.raises(StoreError, match=message):
+        WorksheetStore(url)
+
+
+# -- where the store lives ----------------------------------------------------------------------------------
+def test_database_url_prefers_the_server_url_then_the_file_then_the_user_data_folder(tmp_path):
+    assert database_url({ENV_DATABASE_URL: "postgresql://team@db.internal/sheets", ENV_DB: "/x.sqlite3"}) \
+        == "postgresql+psycopg://team@db.internal/sheets"
+    assert database_url({ENV_DB: str(tmp_path / "a.sqlite3")}) == f"sqlite:///{tmp_path / 'a.sqlite3'}"
+    assert database_url({}) == f"sqlite:///{default_database_path()}"
+
+
+def test_default_path_is_under_the_user_data_folder(monkeypatch, tmp_path):
+    monkeypatch.setenv("XDG_DATA_HOME", str(tmp_path))
+    assert default_database_path() == tmp_path / "heatbalance" / "worksheets.sqlite3"
+
+
+def test_open_store_reads_the_environment(monkeypatch, tmp_path):
+    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
+    monkeypatch.setenv(ENV_DB, str(tmp_path / "env.sqlite3"))
+    with open_store() as store:
+        store.save(_sample(SAMPLES[0]))
+    assert (tmp_path / "env.sqlite3").exists()
+
+
+# -- command line -------------------------------------------------------------------------------------------
+@pytest.fixture
+def cli_store(monkeypatch, tmp_path):
+    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
+    monkeypatch.setenv(ENV_DB, str(tmp_path / "cli.sqlite3"))
+    return tmp_path / "cli.sqlite3"
+
+
+def test_cli_save_prints_the_id_and_open_prints_the_same_worksheet(cli_store, capsys):
+    path = SAMPLES[0]
+    assert main(["save", str(path)]) == 0
+    rev_id = capsys.readouterr().out.strip()
+    assert rev_id == revision_id(_sample(path))
+    assert main(["open", rev_id]) == 0
+    assert load_worksheet(capsys.readouterr().out) == _sample(path)
+
+
+def test_cli_open_solves_and_opens_share_links(cli_store, capsys):
+    from heatbalance.links import sheet_link
+
+    worksheet = _sample(SAMPLES[0])
+    main(["save", str(SAMPLES[0])])
+    rev_id = capsys.readouterr().out.strip()
+    assert main(["open", rev_id, "--solve", "--json"]) == 0
+    assert json.loads(capsys.readouterr().out) == json.loads(json.dumps(solve(worksheet).to_dict()))
+    assert main(["open", f"https://sheets.example.invalid/?ws={rev_id}"]) == 0
+    assert load_worksheet(capsys.readouterr().out) == worksheet
+    assert main(["open", sheet_link(worksheet, "https://sheets.example.invalid/")]) == 0
+    assert load_worksheet(capsys.readouterr().out) == worksheet
+
+
+def test_cli_history_lists_newest_first(cli_store, capsys, tmp_path):
+    main(["save", str(SAMPLES[0])])
+    first = capsys.readouterr().out.strip()
+    edited = tmp_path / "edited.json"
+    edited.write_text(SAMPLES[0].read_text().replace('"title": "', '"title": "Edited: ', 1))
+    main(["save", str(edited), "--parent", first])
+    second = capsys.readouterr().out.strip()
+    assert main(["history", second]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert [line.split()[0] for line in lines] == [second, first]
+    assert "Edited: " in lines[0]
+
+
+@pytest.mark.parametrize("argv, message", [
+    (["open", "123"], r"^error: ws: '123' is not a worksheet id \(an id is 24 characters 0-9 and a-f\)\n$"),
+    (["open", "0123456789abcdef01234567"], r"^error: ws: no saved worksheet has the id 0123456789abcdef01234567"),
+    (["open", "?sheet=z1.AAAA"], r"^error: sheet: the sheet link is damaged or has been altered"),
+    (["save", "/no/such/file.json"], r"^error: cannot read /no/such/file.json: No such file or directory\n$"),
+    (["history", "0123456789abcdef01234567"], r"^error: ws: no saved worksheet has the id"),
+])
+def test_cli_refuses_bad_input_in_one_line(cli_store, capsys, argv, message):
+    assert main(argv) == 1
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert __import__("re").search(message, err), err
+
+
+def test_cli_refuses_a_file_of_another_schema_and_saves_nothing(cli_store, capsys, tmp_path):
+    other = tmp_path / "result.json"
+    other.write_text(json.dumps({"answer": {}, "lines": [], "terms": [], "residual": 0}))
+    assert main(["save", str(other)]) == 1
+    assert "this is a solved result (the output of 'solve --json'), not a worksheet" in capsys.readouterr().err
+    assert not cli_store.exists() or WorksheetStore(f"sqlite:///{cli_store}").count() == 0
+
+
+def test_cli_unreadable_database_is_one_line_and_untouched(monkeypatch, tmp_path, capsys):
+    bad = tmp_path / "garbage.sqlite3"
+    bad.write_bytes(b"\x00garbage" * 100)
+    before = _file_digest(bad)
+    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
+    monkeypatch.setenv(ENV_DB, str(bad))
+    assert main(["save", str(SAMPLES[0])]) == 1
+    err = capsys.readouterr().err
+    assert err.startswith("error: store: ") and "is not a readable worksheet database" in err
+    assert _file_digest(bad) == before
