@@ -19,6 +19,7 @@ from .errors import InputError, NoSolutionError, UnitError
 from .materials import get_material
 from .properties import Material, Phase, TabulatedMaterial, Transition, property_library_versions
 from .reactions import reaction_enthalpy
+from .reactor import screen_worksheet
 from .results import Answer, LineResult, Result, TermResult, heat_kind
 from .units import ATMOSPHERE, DISPLAY_UNITS, check_unit, from_si, is_us_customary, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
@@ -593,7 +594,9 @@ def solve(ws: Worksheet, system: str = "SI") -> Result:
         raise InputError(f"unit system must be one of {sorted(DISPLAY_UNITS)}", "units")
     p = build_problem(ws, system)
     fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
-    return _result(p, fraction)
+    result = _result(p, fraction)
+    result.screening = screen_worksheet(ws, p, result)
+    return result
 
 
 # --------------------------------------------------------------------------- the result

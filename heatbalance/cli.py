@@ -10,6 +10,7 @@ from pathlib import Path
 from .balance import solve
 from .errors import HeatBalanceError
 from .materials import catalogue
+from .reactor import screening_report
 from .results import SIGN_CONVENTION, contribution_rows, format_heat
 from .worksheet import dump_worksheet, load_worksheet
 
@@ -41,6 +42,8 @@ def format_result(result, system: str) -> str:
     out += [f"  - {a}" for a in result.assumptions]
     out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
     out += ["warnings:"] + ([f"  ! {w}" for w in result.warnings] or ["  (none)"])
+    if result.screening:
+        out += [""] + screening_report(result.screening, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
     return "\n".join(out)
 

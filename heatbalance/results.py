@@ -90,6 +90,7 @@ class Result:
     sources: dict[str, str] = field(default_factory=dict)
     versions: dict[str, str] = field(default_factory=dict)
     sign_convention: str = SIGN_CONVENTION
+    screening: list = field(default_factory=list)  # reactor.Screening, one per vessel with a reaction
 
     @property
     def heat_si_unit(self) -> str:

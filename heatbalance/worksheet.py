@@ -18,6 +18,7 @@ from .migrations import migrate
 
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
+    "Jacket", "ScreeningInputs",
     "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH",
 ]
@@ -138,6 +139,48 @@ class Equipment(_Model):
         return self
 
 
+class Jacket(_Model):
+    """Heating or cooling the batch through a jacket with a utility at constant temperature.
+
+    The heat-transfer coefficient times area is given as ``UA`` (e.g. ``"2.5 kW/K"``) or as
+    ``U`` (``"400 W/(m^2*K)"``) and ``area`` (``"8 m^2"``). The batch starts at
+    ``start_temperature`` (default: the process temperature) and must reach ``target_temperature``.
+    """
+
+    utility_temperature: Quantity
+    target_temperature: Quantity
+    start_temperature: Quantity | None = None
+    UA: Quantity | None = None
+    U: Quantity | None = None
+    area: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if (self.UA is not None) == (self.U is not None or self.area is not None):
+            raise ValueError("give the jacket's 'UA', or its 'U' and 'area'")
+        if self.UA is None and (self.U is None or self.area is None):
+            raise ValueError("a jacket given by U also needs its heat-transfer 'area' (and the reverse)")
+        return self
+
+
+class ScreeningInputs(_Model):
+    """Optional inputs of the thermal screening of a vessel with a reaction (see :mod:`heatbalance.reactor`).
+
+    ``accumulation``: fraction of the reaction heat still to come when cooling fails (1 = all of it).
+    ``T_D24``: temperature at which the decomposition's time to maximum rate is 24 h (from calorimetry).
+    ``MTT``: maximum technical temperature, overriding the boiling point from the property data.
+    ``process_temperature``: overrides the vessel's final temperature as the temperature of the process.
+    ``thermal_inertia``: divide ΔT_ad by φ for the MTSR (less conservative; off by default).
+    """
+
+    accumulation: float = Field(default=1.0, ge=0.0, le=1.0)
+    T_D24: Quantity | None = None
+    MTT: Quantity | None = None
+    process_temperature: Quantity | None = None
+    thermal_inertia: bool = False
+    jacket: Jacket | None = None
+
+
 class Vessel(_Model):
     """A batch vessel: charges mixed in it end at one final state."""
 
@@ -146,6 +189,7 @@ class Vessel(_Model):
     charges: list[Charge] = Field(min_length=1)
     final: State
     equipment: Equipment | None = None
+    screening: ScreeningInputs | None = None
 
 
 class Duty(_Model):
