@@ -32,7 +32,7 @@ __all__ = ["CURRENT_VERSION", "MIGRATIONS", "migrate", "migrate_0_to_1"]
 
 CURRENT_VERSION = 1
 
-#: Keys a worksheet of any version may have; a document with none of them is not a worksheet.
+#: Keys a worksheet of version 0 or 1 may have (with the model's fields): a document with none is not a worksheet.
 _WORKSHEET_KEYS = {"schema_version", "title", "notes", "basis", "materials", "common_temperatures",
                    "streams", "vessels", "duties", "losses", "reactions", "unknowns", "unknown"}
 #: Keys of a solved result (``solve --json``): a common mix-up with a worksheet file.
@@ -83,7 +83,9 @@ def migrate(doc: dict) -> dict:
     """
     if not isinstance(doc, dict):
         raise WorksheetFormatError("a worksheet is a JSON object")
-    if doc and not (doc.keys() & _WORKSHEET_KEYS):
+    from .worksheet import Worksheet  # the model's own fields, whatever has been added since version 1
+
+    if doc and not (doc.keys() & (_WORKSHEET_KEYS | set(Worksheet.model_fields))):
         if doc.keys() >= _RESULT_KEYS:
             raise WorksheetFormatError("this is a solved result (the output of 'solve --json'), not a worksheet")
         shown = ", ".join(sorted(map(str, doc))[:5])

@@ -1,0 +1,221 @@
+"""The page's save-and-share part: saved revisions, share links, files in and out.
+
+Hooked into ``app.py`` with two calls:
+
+* ``initial_worksheet()`` returns :func:`worksheet_from_link` when the page was opened
+  with ``?ws=<id>`` or ``?sheet=<payload>`` (else the default sample);
+* :func:`panel` ``(replace_worksheet)`` is one of the page's extra panels, called as
+  ``panel(worksheet, result, system)``.
+
+Everything that can go wrong (a bad link, a locked database, a bad upload) is shown
+as a message on the page; nothing stored is changed by a refusal. The engine work is
+in :mod:`heatbalance.store`, :mod:`heatbalance.links` and :mod:`heatbalance.exports`.
+"""
+from __future__ import annotations
+
+from typing import Callable
+from urllib.parse import urlsplit, urlunsplit
+
+import streamlit as st
+
+from heatbalance.errors import HeatBalanceError
+from heatbalance.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
+from heatbalance.links import LinkError, decode_sheet, parse_link, revision_id, revision_link, sheet_link
+from heatbalance.results import Result
+from heatbalance.store import WorksheetStore, database_url
+from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
+
+__all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "PROBLEM", "BASE", "SAVED", "OPENED_FROM"]
+
+# Session-state keys of this part (apart from widget keys).
+BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
+SAVED = "hb_share_saved"  # RevisionInfo of the last save in this session
+PROBLEM = "hb_share_problem"  # message of the last refusal, shown in the panel
+NOTICE = "hb_share_notice"  # message of the last success, shown in the panel
+OPENED_FROM = "hb_share_opened_from"  # the query parameter the page was opened from
+
+
+@st.cache_resource(show_spinner=False)
+def _store(url: str) -> WorksheetStore:
+    return WorksheetStore(url)
+
+
+def get_store() -> WorksheetStore:
+    """The worksheet store named by the environment, one per process (SQLAlchemy engines are thread-safe)."""
+    return _store(database_url())
+
+
+def base_url() -> str:
+    """This page's address without its query ("" when unknown: links are then relative)."""
+    try:
+        url = st.context.url or ""
+    except Exception:  # noqa: BLE001 - no request context (tests, scripts)
+        url = ""
+    if not url:
+        return ""
+    parts = urlsplit(url)
+    return urlunsplit((parts.scheme, parts.netloc, parts.path, "", ""))
+
+
+def open_link(kind: str, value: str) -> tuple[Worksheet, str | None]:
+    """The worksheet a link names, and the revision id it came from (None for a ``?sheet=`` link)."""
+    if kind == "sheet":
+        return decode_sheet(value), None
+    revision = get_store().open(value)
+    return revision.worksheet, revision.id
+
+
+def worksheet_from_link() -> Worksheet | None:
+    """The worksheet the page's address names (``?ws=`` or ``?sheet=``), or None.
+
+    A bad link leaves a message (shown at once and in the panel) and returns None,
+    so the page opens on its default worksheet instead.
+    """
+    params = st.query_params
+    for kind in ("ws", "sheet"):
+        value = params.get(kind)
+        if value is None:
+            continue
+        st.session_state[OPENED_FROM] = (kind, value)
+        try:
+            worksheet, rev_id = open_link(kind, value)
+        except HeatBalanceError as exc:
+            message = f"The link could not be opened: {exc.message}"
+            st.session_state[PROBLEM] = message
+            st.error(message, icon="🔗")
+            return None
+        st.session_state[BASE] = rev_id
+        st.session_state[NOTICE] = (f"Opened saved revision {rev_id}." if rev_id
+                                    else "Opened the worksheet carried by the link.")
+        return worksheet
+    return None
+
+
+def worksheet_from_upload(upload) -> Worksheet:
+    """The worksheet in an uploaded file (anything with ``name``, ``size`` and ``getvalue()``), size-checked first."""
+    if upload.size > MAX_DOCUMENT_BYTES:
+        raise LinkError(f"the file is {upload.size:,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}", upload.name)
+    return load_worksheet(upload.getvalue())
+
+
+# --------------------------------------------------------------------------- callbacks
+def _on_save(worksheet: Worksheet) -> None:
+    state = st.session_state
+    state[PROBLEM] = state[NOTICE] = ""
+    try:
+        saved = get_store().save(worksheet, parent=state.get(BASE))
+    except HeatBalanceError as exc:
+        state[PROBLEM] = f"Not saved: {exc.message}"
+        return
+    state[SAVED], state[BASE] = saved, saved.id
+    state[NOTICE] = f"Saved as revision {saved.id}."
+    st.query_params.clear()
+    st.query_params["ws"] = saved.id  # the address bar now reopens this revision
+
+
+def _on_upload(replace: Callable[[Worksheet], None]) -> None:
+    state = st.session_state
+    state[PROBLEM] = state[NOTICE] = ""
+    upload = state.get("share_upload")
+    if upload is None:
+        return
+    try:
+        worksheet = worksheet_from_upload(upload)
+    except HeatBalanceError as exc:
+        state[PROBLEM] = f"{upload.name} was not opened: {exc}"
+        return
+    replace(worksheet)
+    state[BASE] = None
+    state[NOTICE] = f"Opened {upload.name}."
+
+
+def _on_open_link(replace: Callable[[Worksheet], None]) -> None:
+    state = st.session_state
+    state[PROBLEM] = state[NOTICE] = ""
+    text = (state.get("share_link_input") or "").strip()
+    if not text:
+        return
+    try:
+        worksheet, rev_id = open_link(*parse_link(text))
+    except HeatBalanceError as exc:
+        state[PROBLEM] = f"The link could not be opened: {exc.message}"
+        return
+    replace(worksheet)
+    state[BASE] = rev_id
+    state[NOTICE] = f"Opened saved revision {rev_id}." if rev_id else "Opened the worksheet carried by the link."
+
+
+# --------------------------------------------------------------------------- drawing
+def panel(replace: Callable[[Worksheet], None]) -> Callable[[Worksheet, Result | None, str], None]:
+    """The save-and-share panel, as an extra panel of the page; ``replace`` puts a worksheet on the page."""
+
+    def draw(worksheet: Worksheet, result: Result | None, system: str) -> None:
+        render_panel(worksheet, result, system, replace)
+
+    return draw
+
+
+def render_panel(worksheet: Worksheet, result: Result | None, system: str,
+                 replace: Callable[[Worksheet], None]) -> None:
+    state = st.session_state
+    st.header("Save and share")
+    if state.get(PROBLEM):
+        st.error(state[PROBLEM], icon="🚫")
+    elif state.get(NOTICE):
+        st.success(state[NOTICE])
+    base = base_url()
+    try:
+        current_id = revision_id(worksheet)
+    except HeatBalanceError as exc:
+        st.error(f"This worksheet cannot be saved or shared: {exc.message}", icon="🚫")
+        return
+    left, right = st.columns(2)
+    with left:
+        st.button("Save and share", key="share_save", on_click=_on_save, args=(worksheet,), type="primary",
+                  help="Saves this worksheet as a revision that is never changed, and gives a link to it. "
+                       "Saving an edited worksheet makes a new revision; the old one stays.")
+        saved = state.get(SAVED)
+        if saved is not None and saved.id == current_id:
+            st.markdown("**Link to this saved revision** (opens exactly these inputs and this result):")
+            st.code(revision_link(saved.id, base), language=None)
+        elif saved is not None:
+            st.caption(f"Changed since revision {saved.id} was saved: save again to share these changes.")
+        if state.get(BASE):
+            render_history(state[BASE], base)
+    with right:
+        with st.expander("Link that carries the whole worksheet (no database needed)"):
+            try:
+                st.code(sheet_link(worksheet, base), language=None)
+                st.caption("Anyone with the link opens these inputs, on any server running this program.")
+            except HeatBalanceError as exc:
+                st.warning(exc.message)
+        st.download_button("Download worksheet (JSON)", data=worksheet_json_bytes(worksheet),
+                           file_name=worksheet_filename(worksheet), mime="application/json",
+                           key="share_download_json")
+        if result is not None:
+            st.download_button("Download results table (CSV)", data=results_csv_bytes(result, system),
+                               file_name=results_filename(worksheet), mime="text/csv", key="share_download_csv")
+        else:
+            st.caption("The results table can be downloaded once the balance solves.")
+        st.file_uploader(f"Open a worksheet file (JSON, at most {MAX_DOCUMENT_BYTES // 1000:,} kB)", type=["json"],
+                         key="share_upload", on_change=_on_upload, args=(replace,))
+        st.text_input("Open a link or revision id", key="share_link_input", on_change=_on_open_link,
+                      args=(replace,), placeholder="…?ws=… or …?sheet=…, or a revision id")
+
+
+def render_history(rev_id: str, base: str) -> None:
+    """The revision and its ancestors, newest first, each with its link."""
+    try:
+        chain = get_store().history(rev_id)
+    except HeatBalanceError as exc:
+        st.caption(f"Revision list unavailable: {exc.message}")
+        return
+    st.markdown("**Revisions** (newest first)")
+    st.markdown("\n".join(
+        f"- [`{r.id}`]({revision_link(r.id, base)}) {r.saved_at:%Y-%m-%d %H:%M} UTC — {_plain(r.title)}"
+        for r in chain))
+
+
+def _plain(text: str) -> str:
+    """A title shown as text, not as Markdown."""
+    return "".join("\\" + c if c in "\\`*_{}[]()#+-.!<>|~$" else c for c in text)
