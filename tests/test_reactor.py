@@ -381,3 +381,51 @@ def test_screening_figure():
     assert list(calm.data[0].y)[:2] == pytest.approx([140, 161.515625], abs=1e-6)
     assert calm.layout.yaxis.title.text == "temperature [°F]"
     assert not math.isnan(calm.layout.yaxis.range[0])
+
+
+# --------------------------------------------------------------------------- the page's panel
+def _panel_page():
+    """A page with only the screening panel, on the reactor sample (AppTest runs this function's body)."""
+    import streamlit as st
+
+    from heatbalance import load_worksheet, solve
+    from webapp.screening_panel import render_screening_panel
+
+    with open("sample_data/batch_reactor_exotherm.json", encoding="utf-8") as handle:
+        ws = load_worksheet(handle.read())
+    system = st.session_state.get("test_system", "SI")
+    render_screening_panel(ws, solve(ws, system), system)
+
+
+def _alarms(at):
+    return [e.value for e in at.error if "ALARM" in e.value]
+
+
+def test_panel_alone_alarm_follows_T_D24():
+    from streamlit.testing.v1 import AppTest
+
+    at = AppTest.from_function(_panel_page, default_timeout=60).run()
+    assert not at.exception
+    assert any(CAUTION in w.value for w in at.warning)
+    assert _alarms(at) == []
+    # the sample: MTSR = 55.0 + 11.1 = 66.1 °C (see test_the_reactor_sample_gets_a_screening)
+    at.number_input(key="screening_0_T_D24").set_value(60.0).run()
+    assert _alarms(at) == ["**ALARM:** MTSR 66.1 °C reaches T_D24 60.0 °C: if cooling fails a decomposition can "
+                           "be triggered (time to maximum rate under 24 h)."]
+    at.number_input(key="screening_0_T_D24").set_value(150.0).run()
+    assert _alarms(at) == []
+    assert any("Criticality class 1" in m.value for m in at.markdown)
+    # MTT set below MTSR: the boiling alarm
+    at.number_input(key="screening_0_MTT").set_value(65.0).run()
+    assert any("reaches MTT 65.0 °C" in a for a in _alarms(at))
+
+
+def test_what_if_worksheet_changes_only_the_screening_inputs():
+    from webapp.screening_panel import what_if_worksheet
+
+    ws = scenario({"jacket": {"utility_temperature": "15 degC", "target_temperature": "40 degC", "UA": "10 kW/K"}})
+    copy = what_if_worksheet(ws, "R", 0.5, None, None)
+    assert copy.vessels[0].screening.accumulation == 0.5
+    assert copy.vessels[0].screening.jacket == ws.vessels[0].screening.jacket
+    assert ws.vessels[0].screening.accumulation == 1.0  # the original is untouched
+    assert copy.model_copy(update={"vessels": ws.vessels}) == ws

@@ -1,0 +1,164 @@
+"""The page's thermal-screening panel: one per vessel with a reaction.
+
+Hooked into ``app.py`` as one of its extra panels, called as
+``render_screening_panel(worksheet, result, system)``. It shows the screening the engine
+put in the result (:mod:`heatbalance.reactor`): the cautions, a loud alarm when MTSR reaches
+MTT or T_D24, one chart of the temperatures, the numbers and the criticality class.
+
+Three what-if inputs (accumulation, T_D24, MTT) start from the worksheet's own screening
+inputs; changing them re-solves a copy of the worksheet with the new inputs. They are not
+written into the worksheet itself: to keep them, put them in the vessel's ``screening``
+inputs of the worksheet file.
+"""
+from __future__ import annotations
+
+import streamlit as st
+
+from heatbalance.balance import solve
+from heatbalance.reactor import CAUTION, Screening, screening_figure
+from heatbalance.results import Result
+from heatbalance.units import DISPLAY_UNITS, display_unit, from_si, to_si
+from heatbalance.worksheet import Quantity, ScreeningInputs, Worksheet
+
+__all__ = ["render_screening_panel", "what_if_worksheet", "widget_key"]
+
+_CLASS_HELP = ("Stoessel's classes order T_process, MTSR, MTT and T_D24: 1-2 the batch neither boils nor "
+               "decomposes on loss of cooling; 3-4 it boils, and evaporative cooling is the barrier; 5 a "
+               "decomposition can start before boiling stops the rise.")
+_SOURCE = "hb_screening_source"  # session key: which worksheet the what-if widgets were filled from
+
+
+def widget_key(index: int, field: str) -> str:
+    """Key of a what-if widget of the panel: ``screening_0_T_D24``."""
+    return f"screening_{index}_{field}"
+
+
+def _temperature_unit(system: str) -> str:
+    return DISPLAY_UNITS[system]["temperature"]
+
+
+def _shown(T: float | None, system: str) -> float | None:
+    return None if T is None else round(from_si(T, _temperature_unit(system), "temperature"), 2)
+
+
+def _typed(value: float | None, system: str) -> Quantity | None:
+    return None if value is None else Quantity(value=float(value), unit=_temperature_unit(system))
+
+
+def what_if_worksheet(worksheet: Worksheet, vessel: str, accumulation: float, T_D24: Quantity | None,
+                      MTT: Quantity | None) -> Worksheet:
+    """A copy of the worksheet with the vessel's screening inputs replaced (the rest kept)."""
+    copy = worksheet.model_copy(deep=True)
+    for v in copy.vessels:
+        if v.name == vessel:
+            old = v.screening or ScreeningInputs()
+            v.screening = old.model_copy(update={"accumulation": accumulation, "T_D24": T_D24, "MTT": MTT})
+    return Worksheet.model_validate(copy.model_dump())
+
+
+def _defaults(worksheet: Worksheet, screening: Screening, system: str) -> dict[str, object]:
+    vessel = next(v for v in worksheet.vessels if v.name == screening.vessel)
+    inputs = vessel.screening or ScreeningInputs()
+    mtt = None
+    if inputs.MTT is not None:
+        mtt = _shown(to_si(inputs.MTT.value, inputs.MTT.unit, "temperature"), system)
+    td24 = None
+    if inputs.T_D24 is not None:
+        td24 = _shown(to_si(inputs.T_D24.value, inputs.T_D24.unit, "temperature"), system)
+    return {"accumulation": round(inputs.accumulation * 100, 3), "T_D24": td24, "MTT": mtt}
+
+
+def _fill_widgets(worksheet: Worksheet, result: Result, system: str) -> None:
+    """Set the what-if widgets from the worksheet when another worksheet (or unit system) is shown."""
+    source = (worksheet.model_dump_json(), system)
+    if st.session_state.get(_SOURCE) == source:
+        return
+    st.session_state[_SOURCE] = source
+    for index, screening in enumerate(result.screening):
+        for field, value in _defaults(worksheet, screening, system).items():
+            st.session_state[widget_key(index, field)] = value
+
+
+def render_screening_panel(worksheet: Worksheet, result: Result | None, system: str = "SI") -> None:
+    """Draw the screening of every vessel with a reaction (nothing when there is none or no result)."""
+    if result is None or not getattr(result, "screening", None):
+        return
+    _fill_widgets(worksheet, result, system)
+    with st.container(key="screening_panel"):
+        st.header("Thermal screening (loss of cooling)")
+        st.warning(f"**Screening only.** {CAUTION}", icon="🛡️")
+        for index, screening in enumerate(result.screening):
+            _vessel_panel(index, worksheet, screening, system)
+
+
+def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system: str) -> None:
+    unit = display_unit(_temperature_unit(system))
+    with st.container(key=f"screening_vessel_{index}", border=True):
+        st.subheader(f"Vessel {screening.vessel}")
+        c1, c2, c3 = st.columns(3)
+        c1.number_input("Accumulation at cooling failure [%]", min_value=0.0, max_value=100.0, step=5.0,
+                        key=widget_key(index, "accumulation"),
+                        help="Share of the reaction heat not yet released when cooling fails (100 % = batch "
+                             "with everything charged).")
+        c2.number_input(f"T_D24 [{unit}]", value=None, step=5.0, key=widget_key(index, "T_D24"),
+                        placeholder="from calorimetry",
+                        help="Temperature at which the decomposition's time to maximum rate is 24 h "
+                             "(from DSC/ARC data). Needed for the criticality class.")
+        c3.number_input(f"MTT [{unit}]", value=None, step=5.0, key=widget_key(index, "MTT"),
+                        placeholder="boiling point from the data",
+                        help="Maximum technical temperature. Empty: the boiling point at the vessel's pressure "
+                             "from the property data.")
+        screening = _current(index, worksheet, screening, system)
+        if screening is None:
+            return
+        for alarm in screening.alarms:
+            st.error(f"**ALARM:** {alarm}", icon="🚨")
+        st.plotly_chart(screening_figure(screening, system), key=f"screening_chart_{index}", width="stretch")
+        _numbers(screening, system)
+        if screening.criticality_class is not None:
+            meaning = screening.class_meaning.split(": ", 1)[1]
+            st.markdown(f"**Criticality class {screening.criticality_class}** (Stoessel). "
+                        f"{meaning[:1].upper()}{meaning[1:]}", help=_CLASS_HELP)
+        else:
+            st.info(screening.class_meaning)
+        if screening.jacket is not None:
+            j = screening.jacket
+            st.markdown(f"**Jacket {j.direction} time:** {j.time / 60:,.1f} min from "
+                        f"{_shown(j.start_T, system)} to {_shown(j.target_T, system)} {unit} with the utility at "
+                        f"{_shown(j.utility_T, system)} {unit} (UA {j.UA / 1000:,.3g} kW/K).")
+        with st.expander("How these numbers were made"):
+            st.markdown("\n".join(f"- {n}" for n in screening.notes) + f"\n- MTT: {screening.MTT_source}.")
+        st.caption(CAUTION)
+
+
+def _current(index: int, worksheet: Worksheet, screening: Screening, system: str) -> Screening | None:
+    """The screening for the what-if inputs: the result's own when they match the worksheet."""
+    state = st.session_state
+    chosen = {field: state.get(widget_key(index, field)) for field in ("accumulation", "T_D24", "MTT")}
+    if chosen == _defaults(worksheet, screening, system):
+        return screening
+    accumulation = (chosen["accumulation"] if chosen["accumulation"] is not None else 100.0) / 100.0
+    try:
+        copy = what_if_worksheet(worksheet, screening.vessel, accumulation, _typed(chosen["T_D24"], system),
+                                 _typed(chosen["MTT"], system))
+        redone = solve(copy, system)
+    except Exception as exc:  # noqa: BLE001 - a refusal is shown, never a traceback
+        st.error(f"These screening inputs cannot be used: {exc}", icon="🚫")
+        return None
+    return next((s for s in redone.screening if s.vessel == screening.vessel), None)
+
+
+def _numbers(s: Screening, system: str) -> None:
+    unit = display_unit(_temperature_unit(system))
+    dt_unit = DISPLAY_UNITS[system]["temperature_difference"]
+
+    def dt(value: float) -> str:
+        return f"{from_si(value, dt_unit, 'temperature_difference'):.1f} {display_unit(dt_unit)}"
+
+    cols = st.columns(6)
+    cols[0].metric("T_process", f"{_shown(s.T_process, system):.1f} {unit}")
+    cols[1].metric(f"MTSR ({s.accumulation:.0%})", f"{_shown(s.MTSR, system):.1f} {unit}")
+    cols[2].metric("MTT", f"{_shown(s.MTT, system):.1f} {unit}" if s.MTT is not None else "—")
+    cols[3].metric("T_D24", f"{_shown(s.T_D24, system):.1f} {unit}" if s.T_D24 is not None else "—")
+    cols[4].metric("ΔT_ad (φ = 1)", dt(s.dT_ad))
+    cols[5].metric(f"ΔT_ad / φ (φ = {s.phi:.3f})", dt(s.dT_ad_phi))
