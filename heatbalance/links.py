@@ -40,15 +40,18 @@ class LinkError(InputError):
 
 
 def canonical_json(worksheet: Worksheet) -> str:
-    """The one JSON text of a worksheet: every field (absent optionals left out), keys sorted, compact.
+    """The one JSON text of a worksheet: fields that differ from their defaults, keys sorted, compact.
 
     Two worksheets with the same content give the same text, whatever order or
-    shorthand (``"12 t/h"``) the user's file had.
+    shorthand (``"12 t/h"``) the user's file had. Leaving defaults out keeps the
+    text (and so the id) of a worksheet the same when a later version of the
+    model adds an optional field; ``schema_version`` is always written.
 
-    >>> canonical_json(Worksheet(title="T"))[:60]
-    '{"basis":{"kind":"continuous"},"common_temperatures":[],"dut'
+    >>> canonical_json(Worksheet(title="T"))
+    '{"schema_version":1,"title":"T"}'
     """
-    data = worksheet.model_dump(mode="json", exclude_none=True)
+    data = worksheet.model_dump(mode="json", exclude_defaults=True)
+    data["schema_version"] = worksheet.schema_version
     try:
         text = json.dumps(data, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
         text.encode("utf-8")

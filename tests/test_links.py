@@ -45,6 +45,16 @@ def test_shorthand_and_key_order_do_not_change_the_id():
     assert revision_id(load_worksheet(json.dumps(written_out))) == revision_id(load_worksheet(json.dumps(shorthand)))
 
 
+def test_fields_written_out_at_their_defaults_do_not_change_the_id():
+    # defaults are left out of the canonical JSON, so a later model adding an optional field keeps every id
+    explicit = {"schema_version": 1, "title": "T", "notes": "", "basis": {"kind": "continuous"}, "streams": [],
+                "losses": [{"name": "L", "value": "2 kW"}], "unknowns": []}
+    assert revision_id(load_worksheet(json.dumps(explicit))) == revision_id(
+        load_worksheet('{"title": "T", "losses": [{"name": "L", "value": "2 kW"}]}'))
+    assert canonical_json(load_worksheet(json.dumps(explicit))) == \
+        '{"losses":[{"name":"L","value":{"unit":"kW","value":2.0}}],"schema_version":1,"title":"T"}'
+
+
 def test_any_edit_changes_the_id():
     ws = _sample(SAMPLES[0])
     assert revision_id(ws) != revision_id(ws.model_copy(update={"notes": ws.notes + " "}))
