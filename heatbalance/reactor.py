@@ -561,6 +561,11 @@ def screen_worksheet(ws, problem, result) -> list[Screening]:
         return []
     system = getattr(problem, "system", "SI")
     by_vessel = _vessel_reactions(ws, [v.name for v in ws.vessels])
+    if len(ws.vessels) > 1:
+        for r in ws.reactions:
+            if r.vessel is None:
+                result.warnings.append(f"Reaction {r.name} names no vessel and the worksheet has "
+                                       f"{len(ws.vessels)}: it gets no thermal screening. Set its vessel.")
     out = []
     for vessel in ws.vessels:
         if by_vessel[vessel.name]:
@@ -747,5 +752,8 @@ def screening_figure(screening: Screening, system: str = "SI"):
     figure.update_layout(title=f"Thermal screening: {s.vessel}" + ("  (ALARM)" if reaches else ""),
                          yaxis_title=f"temperature [{display_unit(unit)}]", showlegend=False,
                          yaxis_range=[low - 0.15 * (high - low + 10), high + 0.15 * (high - low + 10)],
-                         margin={"t": 60, "b": 40, "l": 60, "r": 20}, height=380)
+                         margin={"t": 60, "b": 80, "l": 60, "r": 20}, height=400)
+    figure.add_annotation(text=CAUTION.replace("; defer", ";<br>defer"), xref="paper", yref="paper", x=0,
+                          y=-0.12, xanchor="left", yanchor="top", showarrow=False, font={"size": 10},
+                          align="left")
     return figure
