@@ -185,12 +185,29 @@ def _term(text: str, where: str) -> Term:
 
 
 def parse_equation(text: str, where: str = "equation") -> Equation:
-    """Read an equation written as ``C3H6(g) + H2(g) -> C3H8(g)`` (see the module notes).
+    """Read an equation written as ``propene(g) + H2(g) -> propane(g)`` (the syntax is in the module notes).
+
+    Parameters
+    ----------
+    text : str
+        The equation, one line
+    where : str
+        The field it came from, for messages
+
+    Returns
+    -------
+    Equation
+        Reactants and products as written (coefficient, species, phase code)
 
     Raises
     ------
     InputError
-        No arrow or more than one, an empty side, a term without a phase, a bad coefficient.
+        No arrow or more than one, an empty side, a term without a phase, ``(aq)``, a bad coefficient.
+
+    Notes
+    -----
+    Only the text is read here: species are looked up, and the balance checked, by
+    :func:`reaction_enthalpy`.
 
     Examples
     --------
@@ -215,10 +232,23 @@ def parse_equation(text: str, where: str = "equation") -> Equation:
 def lookup_species(species: str, where: str = "equation") -> tuple[str, str, str, float]:
     """(name, CAS, formula, molar mass [kg/mol]) of a formula, name or CAS number (offline).
 
+    Parameters
+    ----------
+    species : str
+        A formula (``H2O``), a name (``water``) or a CAS number (``7732-18-5``)
+    where : str
+        The field it came from, for messages
+
+    Returns
+    -------
+    tuple
+        (common name, CAS number, Hill formula, molar mass [kg/mol])
+
     Raises
     ------
     InputError
-        The species is not in the ``chemicals`` databases.
+        The species is not in the ``chemicals`` databases, or it is a formula that several
+        compounds of the databases share (the message lists them).
 
     Examples
     --------
@@ -272,7 +302,25 @@ def heat_of_formation(CAS: str, phase: str, prefer: str | None = None, species: 
 
     The ``chemicals`` package ranks its tables for each species; its first
     measured (non-estimated) table is taken, or ``prefer`` when that table has
-    the species.
+    the species. An element in its reference state with no row is 0 (table ``"REFERENCE"``).
+
+    Parameters
+    ----------
+    CAS : str
+        CAS number of the species
+    phase : str
+        ``"g"``, ``"l"`` or ``"s"``
+    prefer : str, optional
+        A table of :data:`TABLES` to use when it has the species
+    species, formula : str
+        The species as written and its formula, for messages and the reference-state check
+    where : str
+        The field, for messages
+
+    Returns
+    -------
+    tuple
+        (ΔHf° [J/mol], table name)
 
     Raises
     ------
@@ -307,6 +355,23 @@ def heat_of_formation(CAS: str, phase: str, prefer: str | None = None, species: 
 
 def element_balance(equation: Equation, where: str = "equation") -> dict[str, float]:
     """Atoms of each element on the product side minus the reactant side (0 when balanced).
+
+    Parameters
+    ----------
+    equation : Equation
+        A parsed equation
+    where : str
+        The field, for messages
+
+    Returns
+    -------
+    dict
+        element symbol -> net atoms (products − reactants) [-]
+
+    Raises
+    ------
+    InputError
+        A species that cannot be looked up.
 
     Examples
     --------

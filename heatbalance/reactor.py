@@ -686,7 +686,20 @@ def _jacket(j, T_process: float, heat_capacity: float, where: str) -> JacketTime
 
 # --------------------------------------------------------------------------- report and figure
 def screening_report(screenings: list[Screening], system: str = "SI") -> list[str]:
-    """Lines of text for the command line: the numbers, the class, the alarms and the caution."""
+    """Lines of text for the command line: the numbers, the class, the alarms and the caution.
+
+    Parameters
+    ----------
+    screenings : list[Screening]
+        From ``Result.screening``
+    system : str
+        ``"SI"`` or ``"US"``: the display units
+
+    Returns
+    -------
+    list[str]
+        The report, one line each; an alarm line starts with ``!!! ALARM:``
+    """
     out: list[str] = []
     for s in screenings:
         title = f"THERMAL SCREENING  vessel {s.vessel} ({', '.join(s.reactions)})"
@@ -724,7 +737,18 @@ def screening_report(screenings: list[Screening], system: str = "SI") -> list[st
 def screening_figure(screening: Screening, system: str = "SI"):
     """One bar chart of T_process, MTSR, MTT and T_D24, with MTT and T_D24 as dashed limits.
 
-    MTSR is drawn red when it reaches MTT or T_D24. Returns a ``plotly.graph_objects.Figure``.
+    Parameters
+    ----------
+    screening : Screening
+        One vessel's screening
+    system : str
+        ``"SI"`` (°C) or ``"US"`` (°F)
+
+    Returns
+    -------
+    plotly.graph_objects.Figure
+        Bars in the order T_process, MTSR, MTT, T_D24 (those known); MTSR red and "ALARM" in
+        the title when it reaches MTT or T_D24; the caution written under the plot.
     """
     import plotly.graph_objects as go
 
