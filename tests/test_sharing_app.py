@@ -68,6 +68,7 @@ def test_a_saved_sample_opens_from_its_link_identical_with_the_identical_answer(
     assert at.session_state[WORKSHEET] == worksheet
     assert answer(at) == solve(worksheet).answer.text
     assert f"Opened saved revision {rev_id}." in [s.value for s in at.success]
+    assert any(c.value.endswith(f"?ws={rev_id}") for c in at.code)  # its link, to pass on
 
 
 def test_a_sheet_link_opens_the_identical_worksheet(db):

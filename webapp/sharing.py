@@ -174,14 +174,17 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
         st.button("Save and share", key="share_save", on_click=_on_save, args=(worksheet,), type="primary",
                   help="Saves this worksheet as a revision that is never changed, and gives a link to it. "
                        "Saving an edited worksheet makes a new revision; the old one stays.")
-        saved = state.get(SAVED)
-        if saved is not None and saved.id == current_id:
+        based_on = state.get(BASE)
+        if based_on and based_on == current_id:
             st.markdown("**Link to this saved revision** (opens exactly these inputs and this result):")
-            st.code(revision_link(saved.id, base), language=None)
-        elif saved is not None:
-            st.caption(f"Changed since revision {saved.id} was saved: save again to share these changes.")
-        if state.get(BASE):
-            render_history(state[BASE], base)
+            st.code(revision_link(based_on, base), language=None)
+        elif based_on:
+            st.caption(f"Changed since revision {based_on}: save to share these changes as a new revision "
+                       "(the old one stays as it is).")
+        else:
+            st.caption("Not saved yet.")
+        if based_on:
+            render_history(based_on, base)
     with right:
         with st.expander("Link that carries the whole worksheet (no database needed)"):
             try:
