@@ -54,7 +54,7 @@ def base_url() -> str:
     if not url:
         return ""
     parts = urlsplit(url)
-    return urlunsplit((parts.scheme, parts.netloc, parts.path, "", ""))
+    return urlunsplit((parts.scheme, parts.netloc, parts.path or "/", "", ""))
 
 
 def open_link(kind: str, value: str) -> tuple[Worksheet, str | None]:
