@@ -109,7 +109,8 @@ def _on_save(worksheet: Worksheet) -> None:
         return
     state[SAVED], state[BASE] = saved, saved.id
     state[NOTICE] = f"Saved as revision {saved.id}."
-    st.query_params.clear()
+    if "sheet" in st.query_params:
+        del st.query_params["sheet"]
     st.query_params["ws"] = saved.id  # the address bar now reopens this revision
 
 
