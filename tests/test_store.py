@@ -116,6 +116,16 @@ def test_history_follows_a_long_chain_and_stops_at_a_parent_saved_elsewhere(stor
     assert [r.id for r in store.history(ids[-1], limit=2)] == ids[:-3:-1]
 
 
+def test_text_that_looks_like_sql_is_stored_as_text(store):
+    # every statement binds its values: a title or note made of SQL is just text
+    hostile = "x'); DROP TABLE heatbalance_revisions; -- \" ; DELETE FROM heatbalance_revisions"
+    worksheet = _sample(SAMPLES[0]).model_copy(update={"title": hostile[:200], "notes": hostile * 3})
+    saved = store.save(worksheet)
+    store.save(_sample(SAMPLES[1]), parent=saved.id)
+    assert store.open(saved.id).worksheet == worksheet
+    assert store.count() == 2
+
+
 def test_saved_at_is_utc_and_increases(store):
     a = store.save(_sample(SAMPLES[0]))
     b = store.save(_sample(SAMPLES[1]), parent=a.id)
