@@ -81,7 +81,12 @@ def _fill_widgets(worksheet: Worksheet, result: Result, system: str) -> None:
 
 def render_screening_panel(worksheet: Worksheet, result: Result | None, system: str = "SI") -> None:
     """Draw the screening of every vessel with a reaction (nothing when there is none or no result)."""
-    if result is None or not getattr(result, "screening", None):
+    if result is None:
+        if worksheet.vessels and worksheet.reactions:
+            st.header("Thermal screening (loss of cooling)")
+            st.info("The thermal screening of the vessels with a reaction appears here once the balance solves.")
+        return
+    if not getattr(result, "screening", None):
         return
     _fill_widgets(worksheet, result, system)
     with st.container(key="screening_panel"):
