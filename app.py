@@ -19,6 +19,7 @@ from heatbalance import HeatBalanceError, Worksheet, load_worksheet, solve, unkn
 from heatbalance import tables as tb
 from heatbalance.figures import energy_waterfall
 from heatbalance.results import SIGN_CONVENTION, Result, contribution_rows, format_heat
+from webapp import sharing
 
 SAMPLES_DIR = Path(__file__).resolve().parent / "sample_data"
 DEFAULT_SAMPLE = "steam_heater_glycol.json"
@@ -54,8 +55,8 @@ def load_sample(path: Path) -> Worksheet:
 
 
 def initial_worksheet() -> Worksheet:
-    """The worksheet the page opens on (a share link could hook in here)."""
-    return load_sample(SAMPLES_DIR / DEFAULT_SAMPLE)
+    """The worksheet the page opens on: the one a share link (?ws= or ?sheet=) names, else the default sample."""
+    return sharing.worksheet_from_link() or load_sample(SAMPLES_DIR / DEFAULT_SAMPLE)
 
 
 def replace_worksheet(worksheet: Worksheet) -> None:
@@ -411,6 +412,7 @@ def render_results(result: Result | None, system: str) -> None:
 # Panels other features add below the results; each is called as panel(worksheet, result, system),
 # with result None when the balance is not solved. Add one call each (screening, save/share).
 EXTRA_PANELS: list = []
+EXTRA_PANELS.append(sharing.panel(replace_worksheet))  # save and share (webapp/sharing.py)
 
 
 def render_extra_panels(worksheet: Worksheet, result: Result | None, system: str) -> None:
