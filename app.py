@@ -309,24 +309,32 @@ def _column_config(worksheet: Worksheet) -> dict:
     }
 
 
+NUMBER_COLUMNS = ("mass fraction", "conversion", "cp per K", "cp per K²")
+
+
+def _check_marks(table: str, count: int, problems: list[tb.CellProblem]) -> list[str]:
+    """The 'check' column: ⚠ and the bad column(s) on each row with a problem."""
+    marks = [""] * count
+    for p in problems:
+        if p.table == table and p.row is not None and p.row < count:
+            place = p.column or "row"
+            marks[p.row] = f"{marks[p.row]}, {place}" if marks[p.row] else f"⚠ {place}"
+    return marks
+
+
 def table_frame(table: str, rows: list[dict], problems: list[tb.CellProblem]) -> pd.DataFrame:
     """The rows of one table as a frame, with a 'check' column marking bad cells."""
-    columns = tb.COLUMNS[table]
-    frame = pd.DataFrame([{c: row.get(c) for c in columns} for row in rows], columns=columns)
-    for column in columns:
-        if column in ("mass fraction", "conversion", "cp per K", "cp per K²"):
-            frame[column] = pd.to_numeric(frame[column], errors="coerce").astype("float64")
+    data = {"check": pd.Series(_check_marks(table, len(rows), problems), dtype="object")}
+    for column in tb.COLUMNS[table]:
+        values = [row.get(column) for row in rows]
+        if column in NUMBER_COLUMNS:
+            data[column] = pd.Series([v if isinstance(v, (int, float)) else None for v in values], dtype="float64")
         else:
-            frame[column] = frame[column].astype("object").where(frame[column].notna(), None)
-    marks = [""] * len(rows)
-    for p in problems:
-        if p.table == table and p.row is not None and p.row < len(rows):
-            marks[p.row] = ("⚠ " + (p.column or "row")) if not marks[p.row] else marks[p.row] + ", " + (p.column or "row")
-    frame.insert(0, "check", marks)
-    return frame
+            data[column] = pd.Series([None if v in (None, "") else str(v) for v in values], dtype="object")
+    return pd.DataFrame(data)
 
 
-def render_table(table: str, worksheet: Worksheet, problems: list[tb.CellProblem], caption: str,
+def render_table(table: str, config: dict, problems: list[tb.CellProblem], caption: str,
                  title: bool = True) -> None:
     rows = st.session_state[ROWS][table]
     if title:
@@ -335,7 +343,6 @@ def render_table(table: str, worksheet: Worksheet, problems: list[tb.CellProblem
         st.caption(caption)
     for problem in (p for p in problems if p.table == table):
         st.error(problem.text, icon="🚫")
-    config = _column_config(worksheet)
     st.data_editor(table_frame(table, rows, problems), key=editor_key(table), on_change=on_table_edit,
                    args=(table,), num_rows="dynamic", width="stretch", hide_index=True, placeholder="",
                    column_config={c: config[c] for c in ["check", *tb.COLUMNS[table]] if c in config},
@@ -356,27 +363,30 @@ def render_inputs(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
         if problem.table in ("worksheet", "basis", "unknown"):
             st.error(problem.text, icon="🚫")
     render_basis()
+    config = _column_config(worksheet)
     st.subheader("Streams", help="continuous lines: each flows from its inlet state to its outlet state")
-    render_table("streams", worksheet, problems, "one row per flowing line, from its inlet state to its "
+    render_table("streams", config, problems, "one row per flowing line, from its inlet state to its "
                  "outlet state", title=False)
-    batch = worksheet.basis.kind == "batch" or bool(worksheet.vessels)
-    with st.expander("Vessels, charges and equipment (batch basis)", expanded=batch):
-        render_table("vessels", worksheet, problems, "every charge of a vessel ends at the vessel's final state")
-        render_table("charges", worksheet, problems, "what is put in each vessel, at its initial state")
-        render_table("equipment", worksheet, problems,
-                     "vessel wall, agitator and internals that warm with the contents")
+    if worksheet.basis.kind == "batch" or worksheet.vessels:
+        st.subheader("Vessels", help="batch basis: the charges of a vessel are mixed and end at its final state")
+        render_table("vessels", config, problems, "every charge of a vessel ends at the vessel's final state")
+        render_table("charges", config, problems, "what is put in each vessel, at its initial state")
+        render_table("equipment", config, problems, "vessel wall, agitator and internals that warm with the contents")
+    else:
+        st.caption("Vessels and batch charges: switch the basis to batch.")
     st.subheader("Heat terms", help="+ = heat into the process")
     left, right = st.columns(2)
     with left:
-        render_table("duties", worksheet, problems, "heater +, cooler −")
+        render_table("duties", config, problems, "heater +, cooler −")
     with right:
-        render_table("losses", worksheet, problems, "heat lost to the surroundings, entered as positive")
-    render_table("reactions", worksheet, problems, "heat released = −ΔH × amount fed × conversion")
-    with st.expander("Shared temperatures and materials of your own",
-                     expanded=bool(worksheet.materials or worksheet.common_temperatures)):
-        render_table("shared", worksheet, problems, "one temperature for lines that end mixed; "
+        render_table("losses", config, problems, "heat lost to the surroundings, entered as positive")
+    render_table("reactions", config, problems, "heat released = −ΔH × amount fed × conversion")
+    own = bool(worksheet.materials or worksheet.common_temperatures
+               or any(p.table in ("shared", "materials") for p in problems))
+    if st.toggle("Shared temperatures and materials of your own", value=own, key="show_own_tables"):
+        render_table("shared", config, problems, "one temperature for lines that end mixed; "
                      "refer to it in a state cell as 'shared: <name>'")
-        render_table("materials", worksheet, problems, "one row per phase; cp = a + b·T + c·T² with T in K")
+        render_table("materials", config, problems, "one row per phase; cp = a + b·T + c·T² with T in K")
 
 
 # --------------------------------------------------------------------------- drawing: results
