@@ -236,10 +236,10 @@ def render_answer(worksheet: Worksheet, result: Result | None, error: HeatBalanc
                 render_not_solved(worksheet, error)
     if result is not None and result.warnings:
         st.warning(f"{len(result.warnings)} warning(s) below the results: read them before using this answer.",
-                   icon="⚠️")
+                   icon=":material/warning:")
     if worksheet.vessels or worksheet.reactions:
         st.warning(f"**Safety:** this batch end temperature and any reaction heat bear on safety. {SAFETY_CAUTION}",
-                   icon="🛡️")
+                   icon=":material/health_and_safety:")
 
 
 def render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
@@ -247,7 +247,7 @@ def render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None) -> N
         st.info("Nothing to solve yet: add a stream or a vessel below, then pick what to solve for.")
         return
     where = f"{error.where}: " if error.where else ""
-    st.error(f"**Not solved.** {where}{error.message}", icon="🚫")
+    st.error(f"**Not solved.** {where}{error.message}", icon=":material/error:")
     st.caption("The place is marked in the tables below; everything else is kept as you left it.")
 
 
@@ -262,7 +262,7 @@ def render_basis() -> None:
                   placeholder="e.g. 40 min",
                   help="batch only: a duty given as a power (kW) applies over this time")
     if st.session_state.get(BASIS_PROBLEM):
-        st.error(f"Batch duration: {st.session_state[BASIS_PROBLEM]}", icon="🚫")
+        st.error(f"Batch duration: {st.session_state[BASIS_PROBLEM]}", icon=":material/error:")
 
 
 def _column_config(worksheet: Worksheet) -> dict:
@@ -342,11 +342,12 @@ def render_table(table: str, config: dict, problems: list[tb.CellProblem], capti
     else:
         st.caption(caption)
     for problem in (p for p in problems if p.table == table):
-        st.error(problem.text, icon="🚫")
-    st.data_editor(table_frame(table, rows, problems), key=editor_key(table), on_change=on_table_edit,
-                   args=(table,), num_rows="dynamic", width="stretch", hide_index=True, placeholder="",
-                   column_config={c: config[c] for c in ["check", *tb.COLUMNS[table]] if c in config},
-                   disabled=["check", *tb.DERIVED])
+        st.error(problem.text, icon=":material/error:")
+    frame = table_frame(table, rows, problems)
+    shown = (["check"] if frame["check"].any() else []) + tb.COLUMNS[table]  # 'check' only when needed
+    st.data_editor(frame, key=editor_key(table), on_change=on_table_edit, args=(table,), num_rows="dynamic",
+                   width="stretch", hide_index=True, placeholder="", column_order=shown,
+                   column_config={c: config[c] for c in shown if c in config}, disabled=["check", *tb.DERIVED])
 
 
 def solve_problems(worksheet: Worksheet, error: HeatBalanceError | None) -> list[tb.CellProblem]:
@@ -357,22 +358,31 @@ def solve_problems(worksheet: Worksheet, error: HeatBalanceError | None) -> list
     return [tb.CellProblem(place.table, place.row, place.column, error.message)]
 
 
+def render_stream_table(config: dict, problems: list[tb.CellProblem]) -> None:
+    st.subheader("Streams", help="continuous lines: each flows from its inlet state to its outlet state")
+    render_table("streams", config, problems, "one row per flowing line, from its inlet state to its outlet state",
+                 title=False)
+
+
+def render_vessel_tables(config: dict, problems: list[tb.CellProblem]) -> None:
+    st.subheader("Vessels", help="batch basis: the charges of a vessel are mixed and end at its final state")
+    render_table("vessels", config, problems, "every charge of a vessel ends at the vessel's final state")
+    render_table("charges", config, problems, "what is put in each vessel, at its initial state")
+    render_table("equipment", config, problems, "vessel wall, agitator and internals that warm with the contents")
+
+
 def render_inputs(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
     problems = list(st.session_state.get(PROBLEMS) or []) or solve_problems(worksheet, error)
     for problem in problems:
         if problem.table in ("worksheet", "basis", "unknown"):
-            st.error(problem.text, icon="🚫")
+            st.error(problem.text, icon=":material/error:")
     render_basis()
     config = _column_config(worksheet)
-    st.subheader("Streams", help="continuous lines: each flows from its inlet state to its outlet state")
-    render_table("streams", config, problems, "one row per flowing line, from its inlet state to its "
-                 "outlet state", title=False)
     if worksheet.basis.kind == "batch" or worksheet.vessels:
-        st.subheader("Vessels", help="batch basis: the charges of a vessel are mixed and end at its final state")
-        render_table("vessels", config, problems, "every charge of a vessel ends at the vessel's final state")
-        render_table("charges", config, problems, "what is put in each vessel, at its initial state")
-        render_table("equipment", config, problems, "vessel wall, agitator and internals that warm with the contents")
+        render_vessel_tables(config, problems)
+        render_stream_table(config, problems)
     else:
+        render_stream_table(config, problems)
         st.caption("Vessels and batch charges: switch the basis to batch.")
     st.subheader("Heat terms", help="+ = heat into the process")
     left, right = st.columns(2)
@@ -396,10 +406,18 @@ def render_results(result: Result | None, system: str) -> None:
         st.info("The results appear here once the balance solves.")
         return
     st.plotly_chart(energy_waterfall(result, system), key="waterfall", width="stretch")
+    st.caption("Each bar is one contribution, as heat into the process. Red: heat put in (heaters, reaction "
+               "heat, lines that cool down or condense). Blue: heat taken out or taken up (coolers, losses, "
+               "lines that warm up or boil, the equipment). Grey: the sum, which is zero when the balance closes.")
     rows = contribution_rows(result, system)
+    heats = [c for c in rows[0] if "[" in c]
+    order = ["item", "type", heats[-1], *heats[:-1], "material", "amount", "from", "to"]  # the heat first
     st.markdown("**Every contribution** (heat into the process; a line that absorbs heat shows as −)")
-    st.dataframe(pd.DataFrame(rows), key="contributions", hide_index=True, width="stretch",
-                 column_config={c: st.column_config.NumberColumn(c, format="%,.2f") for c in rows[0] if "[" in c})
+    config = {c: st.column_config.NumberColumn(c, format="%,.2f") for c in heats}
+    config.update({"from": st.column_config.TextColumn("from / detail", width="large"),
+                   "to": st.column_config.TextColumn("to", width="medium")})
+    st.dataframe(pd.DataFrame(rows), key="contributions", hide_index=True, width="stretch", column_order=order,
+                 column_config=config)
     st.markdown(f"**Closure residual:** {format_heat(result.residual, result.basis, system)}")
     left, right = st.columns(2)
     with left:
@@ -414,7 +432,7 @@ def render_results(result: Result | None, system: str) -> None:
     st.markdown("**Warnings**")
     if result.warnings:
         for warning in result.warnings:
-            st.warning(warning, icon="⚠️")
+            st.warning(warning, icon=":material/warning:")
     else:
         st.markdown("None.")
 
@@ -436,14 +454,14 @@ def guarded(draw, *args) -> None:
     try:
         draw(*args)
     except HeatBalanceError as exc:
-        st.error(str(exc), icon="🚫")
+        st.error(str(exc), icon=":material/error:")
     except Exception as exc:  # noqa: BLE001 - the page must never show a traceback
         st.error(f"Something went wrong while drawing this part of the page ({exc.__class__.__name__}). "
-                 "Your inputs are kept; try undoing the last change.", icon="🚫")
+                 "Your inputs are kept; try undoing the last change.", icon=":material/error:")
 
 
 def main() -> None:
-    st.set_page_config(page_title="Heat balance worksheet", page_icon="🌡️", layout="wide")
+    st.set_page_config(page_title="Heat balance worksheet", page_icon=":material/thermostat:", layout="wide")
     guarded(sync_tables_with_model)
     guarded(apply_pending_edits)
     guarded(sync_tables_with_model)

@@ -76,6 +76,7 @@ def energy_waterfall(result: Result, system: str = "SI") -> go.Figure:
         measure=["relative"] * (len(steps) - 1) + ["total"],
         text=[_label(s["heat"], number) for s in steps],
         textposition="outside",
+        cliponaxis=False,
         customdata=[[s["kind"], s["detail"]] for s in steps],
         hovertemplate=("<b>%{x}</b> (%{customdata[0]})<br>%{customdata[1]}<br>"
                        f"heat into the process: %{{y:{number}}} {unit}<extra></extra>"),

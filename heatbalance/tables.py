@@ -27,8 +27,8 @@ UNKNOWN_MARK = "?"
 
 #: table -> its columns, in order
 COLUMNS: dict[str, list[str]] = {
-    "streams": ["name", "material", "mass fraction", "flow", "pressure", "pressure is", "inlet",
-                "inlet pressure", "outlet", "outlet pressure"],
+    "streams": ["name", "material", "mass fraction", "flow", "pressure", "pressure is", "inlet", "outlet",
+                "inlet pressure", "outlet pressure"],
     "vessels": ["name", "pressure", "pressure is", "final"],
     "charges": ["vessel", "name", "material", "mass fraction", "mass", "initial"],
     "duties": ["name", "heat"],

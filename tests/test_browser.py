@@ -72,12 +72,12 @@ def _pick_sample(page, title: str) -> None:
 
 
 def _type_into_cell(page, editor: str, row: int, column: int, text: str) -> None:
-    """Select a table cell by keyboard from the first cell (the 'check' column), open it, replace its text."""
+    """Select a table cell by keyboard from the first cell of the table, open it, replace its text."""
     grid = page.locator(f"[class*='st-key-editor_{editor}_'] [data-testid='stDataFrameResizable']")
     _wait_until_drawn(page)
     page.wait_for_timeout(1000)  # the table script loads lazily; a click before it is ready is lost
     box = grid.bounding_box()
-    page.mouse.click(box["x"] + 60, box["y"] + 52)  # first row, 'check' column (past the row markers)
+    page.mouse.click(box["x"] + 60, box["y"] + 52)  # first row, first column (past the row markers)
     for _ in range(column):
         page.keyboard.press("ArrowRight")
     for _ in range(row):
@@ -105,8 +105,8 @@ def test_load_a_sample_change_a_mass_and_read_the_engines_answer(page, output_di
                            arg=[ANSWER, solve(sheet).answer.text])
     before = _answer(page)
     assert before == solve(sheet).answer.text == "5.902 t"  # the engine's answer for our sample
-    # the hot condensate charge: 3 t -> 4 t (charges columns: check, vessel, name, material, mass fraction, mass)
-    _type_into_cell(page, "charges", row=0, column=5, text="4 t")
+    # the hot condensate charge: 3 t -> 4 t (charges columns: vessel, name, material, mass fraction, mass)
+    _type_into_cell(page, "charges", row=0, column=4, text="4 t")
     after = _wait_for_new_answer(page, before)
     changed = sheet.model_copy(deep=True)
     changed.vessels[0].charges[0].mass.value = 4.0
@@ -120,8 +120,8 @@ def test_load_a_sample_change_a_mass_and_read_the_engines_answer(page, output_di
 
 def test_a_wrong_unit_typed_in_the_browser_is_marked(page, output_dir):
     before = _answer(page)  # the default sample, solved
-    # the glycol flow (streams columns: check, name, material, mass fraction, flow)
-    _type_into_cell(page, "streams", row=0, column=4, text="12 kW")
+    # the glycol flow (streams columns: name, material, mass fraction, flow)
+    _type_into_cell(page, "streams", row=0, column=3, text="12 kW")
     page.get_by_text(re.compile(r"unit 'kW' is not a mass flow")).first.wait_for()
     body = page.inner_text("body")
     assert "Streams, row 1, flow: unit 'kW' is not a mass flow (it measures power)" in body
