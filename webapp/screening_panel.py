@@ -154,16 +154,18 @@ def _current(index: int, worksheet: Worksheet, screening: Screening, system: str
 
 
 def _numbers(s: Screening, system: str) -> None:
+    """The numbers as one small table (markdown: the page keeps ``st.metric`` for its one answer)."""
     unit = display_unit(_temperature_unit(system))
     dt_unit = DISPLAY_UNITS[system]["temperature_difference"]
 
     def dt(value: float) -> str:
         return f"{from_si(value, dt_unit, 'temperature_difference'):.1f} {display_unit(dt_unit)}"
 
-    cols = st.columns(6)
-    cols[0].metric("T_process", f"{_shown(s.T_process, system):.1f} {unit}")
-    cols[1].metric(f"MTSR ({s.accumulation:.0%})", f"{_shown(s.MTSR, system):.1f} {unit}")
-    cols[2].metric("MTT", f"{_shown(s.MTT, system):.1f} {unit}" if s.MTT is not None else "—")
-    cols[3].metric("T_D24", f"{_shown(s.T_D24, system):.1f} {unit}" if s.T_D24 is not None else "—")
-    cols[4].metric("ΔT_ad (φ = 1)", dt(s.dT_ad))
-    cols[5].metric(f"ΔT_ad / φ (φ = {s.phi:.3f})", dt(s.dT_ad_phi))
+    def t(value: float | None) -> str:
+        return f"{_shown(value, system):.1f} {unit}" if value is not None else "—"
+
+    st.markdown(
+        "| T_process | MTSR | MTT | T_D24 | ΔT_ad (φ = 1) | ΔT_ad / φ | φ |\n"
+        "| --- | --- | --- | --- | --- | --- | --- |\n"
+        f"| {t(s.T_process)} | **{t(s.MTSR)}** ({s.accumulation:.0%} accumulated) | {t(s.MTT)} | {t(s.T_D24)} "
+        f"| {dt(s.dT_ad)} | {dt(s.dT_ad_phi)} | {s.phi:.3f} |")
