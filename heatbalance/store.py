@@ -137,7 +137,8 @@ class WorksheetStore:
     """Immutable worksheet revisions in one SQL database (SQLite or PostgreSQL).
 
     >>> import tempfile, os
-    >>> store = WorksheetStore("sqlite:///" + os.path.join(tempfile.mkdtemp(), "doc.sqlite3"))
+    >>> folder = tempfile.TemporaryDirectory()
+    >>> store = WorksheetStore("sqlite:///" + os.path.join(folder.name, "doc.sqlite3"))
     >>> first = store.save(Worksheet(title="Heater"))
     >>> store.open(first.id).worksheet.title
     'Heater'
@@ -146,7 +147,7 @@ class WorksheetStore:
     >>> second = store.save(Worksheet(title="Heater, edited"), parent=first.id)
     >>> [r.title for r in store.history(second.id)]
     ['Heater, edited', 'Heater']
-    >>> store.close()
+    >>> store.close(); folder.cleanup()
     """
 
     def __init__(self, url: str, busy_timeout: float = BUSY_TIMEOUT_S):
