@@ -11,7 +11,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from heatbalance.errors import HeatBalanceError
+from heatbalance.errors import HeatBalanceError, WorksheetFormatError
 from heatbalance.links import canonical_json, decode_sheet, encode_sheet, parse_link
 from heatbalance.worksheet import MAX_NESTING_DEPTH, Worksheet, load_worksheet
 
@@ -124,12 +124,12 @@ def test_any_pasted_link_is_refused_clearly_or_parsed(text):
 
 @pytest.mark.parametrize("depth", [MAX_NESTING_DEPTH + 1, 1_000, 100_000])
 def test_deep_nesting_is_refused_with_the_limit(depth):
-    with pytest.raises(HeatBalanceError, match=rf"nested more than {MAX_NESTING_DEPTH} levels deep"):
+    with pytest.raises(WorksheetFormatError, match=rf"nested more than {MAX_NESTING_DEPTH} levels deep"):
         load_worksheet('{"notes": ' + "[" * depth + "]" * depth + "}")
 
 
 def test_an_oversized_document_is_refused_with_the_limit():
-    with pytest.raises(HeatBalanceError, match=r"the document is 1,000,001 bytes; the limit is 1,000,000"):
+    with pytest.raises(WorksheetFormatError, match=r"the document is 1,000,001 bytes; the limit is 1,000,000"):
         load_worksheet(b" " * 1_000_001)
 
 
@@ -140,5 +140,5 @@ def test_an_oversized_document_is_refused_with_the_limit():
     ('{"title": ' + "9" * 5000 + "}", r"not valid JSON \(ValueError: Exceeds the limit"),
 ])
 def test_numbers_and_text_json_allows_but_a_worksheet_cannot_hold_are_refused(text, message):
-    with pytest.raises(HeatBalanceError, match=message):
+    with pytest.raises(WorksheetFormatError, match=message):
         load_worksheet(text)

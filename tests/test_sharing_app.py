@@ -12,7 +12,8 @@ import pytest
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
-from heatbalance.links import encode_sheet, revision_id
+from heatbalance.errors import WorksheetFormatError
+from heatbalance.links import LinkError, encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -183,20 +184,17 @@ def test_an_uploaded_file_opens_through_the_validating_loader():
 
 
 @pytest.mark.parametrize("upload, error, message", [
-    (_Upload("huge.json", b"{}", size=5_000_000), "LinkError", r"huge\.json: the file is 5,000,000 bytes; "
-                                                               r"the limit is 1,000,000"),
-    (_Upload("deep.json", b'{"notes": ' + b"[" * 500 + b"]" * 500 + b"}"), "WorksheetFormatError",
+    (_Upload("huge.json", b"{}", size=5_000_000), LinkError, r"huge\.json: the file is 5,000,000 bytes; "
+                                                             r"the limit is 1,000,000"),
+    (_Upload("deep.json", b'{"notes": ' + b"[" * 500 + b"]" * 500 + b"}"), WorksheetFormatError,
      r"nested more than 20 levels deep"),
-    (_Upload("other.json", b'{"invoice": 1}'), "WorksheetFormatError", r"this JSON is not a heat-balance worksheet"),
-    (_Upload("future.json", b'{"schema_version": 5}'), "WorksheetFormatError",
+    (_Upload("other.json", b'{"invoice": 1}'), WorksheetFormatError, r"this JSON is not a heat-balance worksheet"),
+    (_Upload("future.json", b'{"schema_version": 5}'), WorksheetFormatError,
      r"schema_version 5 is newer than this program reads"),
-    (_Upload("photo.json", b"\x89PNG\r\n"), "WorksheetFormatError", r"not valid JSON"),
+    (_Upload("photo.json", b"\x89PNG\r\n"), WorksheetFormatError, r"not valid JSON"),
 ])
 def test_a_bad_upload_is_refused_clearly(upload, error, message):
-    import heatbalance.errors
-    import heatbalance.links
     from webapp.sharing import worksheet_from_upload
 
-    cls = getattr(heatbalance.links, error, None) or getattr(heatbalance.errors, error)
-    with pytest.raises(cls, match=message):
+    with pytest.raises(error, match=message):
         worksheet_from_upload(upload)
