@@ -414,12 +414,14 @@ def render_results(result: Result | None, system: str) -> None:
     heats = [c for c in rows[0] if "[" in c]
     order = ["item", "type", heats[-1], *heats[:-1], "material", "amount", "from", "to"]  # the heat first
     st.markdown("**Every contribution** (heat into the process; a line that absorbs heat shows as −)")
-    config = {c: st.column_config.NumberColumn(c, format="%,.2f") for c in heats}
+    config = {c: st.column_config.TextColumn(c, alignment="right") for c in heats}
     config.update({"from": st.column_config.TextColumn("from / detail", width="large"),
                    "to": st.column_config.TextColumn("to", width="medium")})
-    st.dataframe(pd.DataFrame(rows), key="contributions", hide_index=True, width="stretch", column_order=order,
+    shown = [{k: (_number(v) if k in heats else v) for k, v in row.items()} for row in rows]
+    st.dataframe(pd.DataFrame(shown), key="contributions", hide_index=True, width="stretch", column_order=order,
                  column_config=config)
-    st.markdown(f"**Closure residual:** {format_heat(result.residual, result.basis, system)}")
+    st.markdown(f"**Closure residual:** {_no_negative_zero(format_heat(result.residual, result.basis, system))} "
+                "(what is left when every contribution is added; zero when the balance closes)")
     left, right = st.columns(2)
     with left:
         st.markdown("**Sign convention**")
@@ -436,6 +438,15 @@ def render_results(result: Result | None, system: str) -> None:
             st.warning(warning, icon=":material/warning:")
     else:
         st.markdown("None.")
+
+
+def _number(value: float | None) -> str:
+    """A heat in the contribution table: 1,234.57; blank where it does not apply."""
+    return "" if value is None else _no_negative_zero(f"{value:,.2f}")
+
+
+def _no_negative_zero(text: str) -> str:
+    return text[1:] if text.startswith("-") and not text.strip("-0.,").split(" ")[0] else text
 
 
 # Panels other features add below the results; each is called as panel(worksheet, result, system),
