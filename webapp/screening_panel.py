@@ -91,7 +91,7 @@ def render_screening_panel(worksheet: Worksheet, result: Result | None, system: 
     _fill_widgets(worksheet, result, system)
     with st.container(key="screening_panel"):
         st.header("Thermal screening (loss of cooling)")
-        st.warning(f"**Screening only.** {CAUTION}", icon="🛡️")
+        st.warning(f"**Screening only.** {CAUTION}", icon=":material/health_and_safety:")
         for index, screening in enumerate(result.screening):
             _vessel_panel(index, worksheet, screening, system)
 
@@ -117,7 +117,7 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
         if screening is None:
             return
         for alarm in screening.alarms:
-            st.error(f"**ALARM:** {alarm}", icon="🚨")
+            st.error(f"**ALARM:** {alarm}", icon=":material/emergency_home:")
         st.plotly_chart(screening_figure(screening, system), key=f"screening_chart_{index}", width="stretch")
         _numbers(screening, system)
         if screening.criticality_class is not None:
@@ -129,8 +129,9 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
         if screening.jacket is not None:
             j = screening.jacket
             st.markdown(f"**Jacket {j.direction} time:** {j.time / 60:,.1f} min from "
-                        f"{_shown(j.start_T, system)} to {_shown(j.target_T, system)} {unit} with the utility at "
-                        f"{_shown(j.utility_T, system)} {unit} (UA {j.UA / 1000:,.3g} kW/K).")
+                        f"{_shown(j.start_T, system):.1f} to {_shown(j.target_T, system):.1f} {unit} with the "
+                        f"utility at {_shown(j.utility_T, system):.1f} {unit} (UA {j.UA / 1000:,.3g} kW/K; "
+                        "contents and vessel heat capacity, no reaction heat during it).")
         with st.expander("How these numbers were made"):
             st.markdown("\n".join(f"- {n}" for n in screening.notes) + f"\n- MTT: {screening.MTT_source}.")
         st.caption(CAUTION)
@@ -148,7 +149,7 @@ def _current(index: int, worksheet: Worksheet, screening: Screening, system: str
                                  _typed(chosen["MTT"], system))
         redone = solve(copy, system)
     except Exception as exc:  # noqa: BLE001 - a refusal is shown, never a traceback
-        st.error(f"These screening inputs cannot be used: {exc}", icon="🚫")
+        st.error(f"These screening inputs cannot be used: {exc}", icon=":material/error:")
         return None
     return next((s for s in redone.screening if s.vessel == screening.vessel), None)
 
