@@ -13,7 +13,7 @@ from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
 from heatbalance.errors import WorksheetFormatError
-from heatbalance.links import LinkError, encode_sheet, revision_id
+from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -184,8 +184,8 @@ def test_an_uploaded_file_opens_through_the_validating_loader():
 
 
 @pytest.mark.parametrize("upload, error, message", [
-    (_Upload("huge.json", b"{}", size=5_000_000), LinkError, r"huge\.json: the file is 5,000,000 bytes; "
-                                                             r"the limit is 1,000,000"),
+    (_Upload("huge.json", b"{}", size=5_000_000), WorksheetFormatError,
+     r"huge\.json: the file is 5,000,000 bytes; the limit is 1,000,000"),
     (_Upload("deep.json", b'{"notes": ' + b"[" * 500 + b"]" * 500 + b"}"), WorksheetFormatError,
      r"nested more than 20 levels deep"),
     (_Upload("other.json", b'{"invoice": 1}'), WorksheetFormatError, r"this JSON is not a heat-balance worksheet"),

@@ -18,9 +18,9 @@ from urllib.parse import urlsplit, urlunsplit
 
 import streamlit as st
 
-from heatbalance.errors import HeatBalanceError
+from heatbalance.errors import HeatBalanceError, WorksheetFormatError
 from heatbalance.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
-from heatbalance.links import LinkError, decode_sheet, parse_link, revision_id, revision_link, sheet_link
+from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link
 from heatbalance.results import Result
 from heatbalance.store import WorksheetStore, database_url
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
@@ -94,7 +94,8 @@ def worksheet_from_link() -> Worksheet | None:
 def worksheet_from_upload(upload) -> Worksheet:
     """The worksheet in an uploaded file (anything with ``name``, ``size`` and ``getvalue()``), size-checked first."""
     if upload.size > MAX_DOCUMENT_BYTES:
-        raise LinkError(f"the file is {upload.size:,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}", upload.name)
+        raise WorksheetFormatError(f"the file is {upload.size:,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}",
+                                   upload.name)
     return load_worksheet(upload.getvalue())
 
 
