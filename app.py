@@ -123,6 +123,7 @@ def on_sample_pick() -> None:
 
 
 def on_new_worksheet() -> None:
+    st.session_state["sample_picker"] = None
     replace_worksheet(tb.empty_worksheet())
 
 

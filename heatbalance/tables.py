@@ -3,7 +3,8 @@
 Each table is a list of row dicts. Quantity cells hold text as an engineer writes it
 (``"12 t/h"``, ``"4 barg"``, ``"55 °C"``); a state cell holds a temperature, ``"saturated vapour"``,
 ``"vapour fraction 0.3"``, ``"solid fraction 0.5"`` or ``"shared: Mix"``. The unknown's cell shows
-``"?"``. Reading the tables back checks every cell and reports each bad one where it is
+``"?"``. A flow, mass, duty or state may be left empty: the table reads, and the engine then asks for
+that value unless it is picked as the unknown (so a new line's unknown can be picked). Reading the tables back checks every cell and reports each bad one where it is
 (:class:`CellProblem`: table, row, column, message) so the page can mark it and keep the rest.
 """
 from __future__ import annotations
@@ -350,7 +351,7 @@ class _Reader:
                     number = keep.temperature.value if keep is not None and keep.temperature else 25.0
                     kept = {"temperature": parse_quantity(f"{number!r} {unit}", ("temperature",), column)}
                 return kept
-            if not value and unknown:
+            if not value:  # left open: the engine asks for it unless it becomes the unknown
                 return {}
             return parse_state(value, column)
         except _CellError as exc:
@@ -401,7 +402,7 @@ def _streams(tables, ws: Worksheet, problems) -> list[dict]:
         out.append({
             "name": name, "material": r.text("material", required=True),
             "mass_fraction": r.number("mass fraction"),
-            "flow": r.quantity("flow", _amount_kinds(ws.basis.kind), old.flow if old else None,
+            "flow": r.quantity("flow", _amount_kinds(ws.basis.kind), old.flow if old else None, required=False,
                                unknown=_is_unknown_amount(ws, name)),
             "pressure": r.quantity("pressure", ("pressure",), required=False) or Quantity(value=0, unit="barg"),
             "inlet": _with_pressure(r.state("inlet", _is_unknown_temperature(ws, name, "inlet"),
@@ -446,7 +447,7 @@ def _charges(tables, ws: Worksheet, vessels: dict, problems) -> None:
         charge = {
             "name": name, "material": r.text("material", required=True),
             "mass_fraction": r.number("mass fraction"),
-            "mass": r.quantity("mass", _amount_kinds(ws.basis.kind), old.mass if old else None,
+            "mass": r.quantity("mass", _amount_kinds(ws.basis.kind), old.mass if old else None, required=False,
                                unknown=_is_unknown_amount(ws, vessel, name)),
             "initial": r.state("initial", _is_unknown_temperature(ws, vessel, "initial", name),
                                old.initial if old else None)}
@@ -483,7 +484,8 @@ def _duties(tables, ws: Worksheet, problems) -> list[dict]:
         unknown = any(u.kind == "duty" and u.term == name for u in ws.unknowns)
         old = kept.get(name)
         out.append({"name": name, "value": r.quantity("heat", _heat_kinds(ws.basis.kind),
-                                                      old.value if old else None, unknown=unknown)})
+                                                      old.value if old else None, required=False,
+                                                      unknown=unknown)})
     return out
 
 
@@ -521,7 +523,8 @@ def _shared(tables, ws: Worksheet, problems) -> list[dict]:
         old = kept.get(name)
         unknown = _is_unknown_temperature(ws, None, None, common=name)
         out.append({"name": name, "temperature": r.quantity("temperature", ("temperature",),
-                                                            old.temperature if old else None, unknown=unknown)})
+                                                            old.temperature if old else None, required=False,
+                                                            unknown=unknown)})
     return out
 
 

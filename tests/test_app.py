@@ -2,11 +2,13 @@
 
 AppTest cannot type into a table, so table edits are queued in the session (``hb_pending_edits``)
 and go through the same function as an edit in the browser. Every expected answer is the
-engine's own (heatbalance.solve) for the worksheet the page holds; the samples are our own scenarios.
+engine's own (heatbalance.solve) for the worksheet the page holds; the samples are our own scenarios;
+water from scratch is checked against IAPWS-IF97 through the `iapws` package.
 """
 from pathlib import Path
 
 import pytest
+from iapws import IAPWS97
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
@@ -197,6 +199,25 @@ def test_a_new_worksheet_starts_empty_without_an_error():
     no_traceback(at)
     assert at.session_state[WORKSHEET].streams == [] and errors(at) == ""
     assert "Nothing to solve yet" in "\n".join(i.value for i in at.info)
+
+
+def test_a_worksheet_built_from_scratch_solves_for_the_picked_unknown():
+    at = page()
+    at.button(key="new_worksheet").click().run()
+    at.session_state[PENDING] = [
+        ("streams", {"added_rows": [{"name": "Water", "material": "water", "flow": "", "pressure": "0 barg",
+                                     "inlet": "20 °C", "outlet": "80 °C"}]}),
+        ("duties", {"added_rows": [{"name": "Heater", "heat": "50 kW"}]})]
+    at.run()
+    no_traceback(at)
+    assert "no unknown: mark one quantity" in errors(at)
+    at.selectbox(key="unknown_picker").select("Water: flow").run()
+    assert errors(at) == ""
+    # IAPWS-IF97 (iapws package): h(80 °C) − h(20 °C) at 1.01325 bar = 250.98 kJ/kg; 50 kW / Δh in kg/h
+    dh = IAPWS97(T=353.15, P=0.101325).h - IAPWS97(T=293.15, P=0.101325).h
+    answer = solve(at.session_state[WORKSHEET]).answer
+    assert answer.unit == "kg/h" and answer.value == pytest.approx(50 / dh * 3600, rel=1e-6)  # ≈ 717.2 kg/h
+    assert answer_text(at) == answer.text
 
 
 def test_an_engine_failure_is_a_plain_message_not_a_traceback(monkeypatch):

@@ -128,3 +128,18 @@ def test_a_wrong_unit_typed_in_the_browser_is_marked(page, output_dir):
     assert "Traceback" not in body
     assert before == "745.6 kg/h"
     page.screenshot(path=str(output_dir / "browser_wrong_unit.png"), full_page=True)
+
+
+def test_us_customary_display_converts_the_answer(page, output_dir):
+    sheet = load_worksheet((SAMPLES / "steam_heater_glycol.json").read_bytes())
+    before = _answer(page)
+    assert before == solve(sheet).answer.text  # the page opens on this sample
+    page.get_by_text("US customary (°F, lb, Btu)").click()
+    after = _wait_for_new_answer(page, before)
+    expected = solve(sheet, "US").answer
+    assert after == expected.text and expected.unit == "lb/h"
+    # 745.6 kg/h ÷ 0.45359237 kg/lb (exact, NIST SP 811) ≈ 1,644 lb/h
+    assert expected.value == pytest.approx(solve(sheet).answer.value / 0.45359237, rel=1e-9)
+    _wait_until_drawn(page)
+    assert "heat into the process [Btu/h]" in page.inner_text("body")
+    page.screenshot(path=str(output_dir / "browser_us_units.png"), full_page=True)

@@ -114,6 +114,21 @@ def test_blank_added_rows_are_ignored():
     assert problems == [] and back.model_dump() == ws.model_dump()
 
 
+def test_a_new_line_may_leave_its_unknown_open_and_the_engine_says_where():
+    from heatbalance import HeatBalanceError, unknown_choices
+    ws = tb.empty_worksheet()
+    tables = tb.worksheet_to_tables(ws)
+    tables["streams"] = [{"name": "Water", "material": "water", "flow": "", "inlet": "20 °C", "outlet": ""}]
+    built, problems = tb.tables_to_worksheet(tables, ws)
+    assert problems == [] and built.streams[0].flow is None
+    assert [label for label, _ in unknown_choices(built)] == ["Water: flow", "Water: inlet temperature",
+                                                              "Water: outlet temperature"]
+    with pytest.raises(HeatBalanceError) as refused:
+        solve(built.model_copy(update={"unknowns": [Unknown(kind="amount", line="Water")]}))
+    assert refused.value.where == "stream Water outlet temperature"
+    assert tb.locate(refused.value.where, built).column == "outlet"
+
+
 def test_a_worksheet_built_from_tables_alone_solves_against_iapws():
     """A new sheet typed row by row: 1000 kg/h of water heated from 20 to 80 °C at 1 atm; the duty?"""
     ws = tb.empty_worksheet()
