@@ -237,11 +237,20 @@ def render_answer(worksheet: Worksheet, result: Result | None, error: HeatBalanc
             else:
                 render_not_solved(worksheet, error)
     if result is not None and result.warnings:
-        st.warning(f"{len(result.warnings)} warning(s) below the results: read them before using this answer.",
-                   icon=":material/warning:")
-    if worksheet.vessels or worksheet.reactions:
-        st.warning(f"**Safety:** this batch end temperature and any reaction heat bear on safety. {SAFETY_CAUTION}",
-                   icon=":material/health_and_safety:")
+        listed = "\n".join(f"- {warning}" for warning in result.warnings)
+        st.warning(f"**Read before using this answer:**\n{listed}", icon=":material/warning:")
+    render_safety_caution(worksheet)
+
+
+def render_safety_caution(worksheet: Worksheet) -> None:
+    """Where the results bear on safety: batch end temperatures and reaction heat."""
+    if worksheet.reactions:
+        bearing = "The reaction heat and the end temperature bear on safety."
+    elif worksheet.vessels:
+        bearing = "A batch end temperature can bear on safety."
+    else:
+        return
+    st.warning(f"**Safety:** {bearing} {SAFETY_CAUTION}", icon=":material/health_and_safety:")
 
 
 def render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
