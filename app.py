@@ -86,6 +86,7 @@ def sync_tables_with_model() -> None:
     state["title_input"] = worksheet.title
     state["basis_kind"] = worksheet.basis.kind
     state["basis_duration"] = tb.format_quantity(worksheet.basis.duration)
+    state["sample_picker"] = None  # a menu: any pick loads a fresh copy, the same sample again too
 
 
 def apply_pending_edits() -> None:
@@ -123,7 +124,6 @@ def on_sample_pick() -> None:
 
 
 def on_new_worksheet() -> None:
-    st.session_state["sample_picker"] = None
     replace_worksheet(tb.empty_worksheet())
 
 
@@ -202,7 +202,7 @@ def render_sidebar() -> None:
             "**How it works**  \n"
             "1. List the streams (flows) or vessels (batch charges), each from its initial to its final state.  \n"
             "2. Add duties, losses, reaction heat and the equipment that warms with the contents.  \n"
-            "3. Pick the one quantity to solve for: its cell shows **?**.  \n"
+            "3. Pick the one quantity to solve for: its cell shows **?**.\n\n"
             "Type every value with its unit: `12 t/h`, `4 barg`, `55 °C`, `-110 kW`. A state can also be "
             "`saturated vapour`, `saturated liquid`, `vapour fraction 0.3` or `solid fraction 0.5`.")
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import os
 import re
+import sys
 from pathlib import Path
 
 import pytest
@@ -143,3 +144,13 @@ def test_us_customary_display_converts_the_answer(page, output_dir):
     _wait_until_drawn(page)
     assert "heat into the process [Btu/h]" in page.inner_text("body")
     page.screenshot(path=str(output_dir / "browser_us_units.png"), full_page=True)
+
+
+def test_a_missing_browser_is_a_skip_with_its_reason_but_a_failure_in_ci(monkeypatch):
+    monkeypatch.setattr(sys.modules[__name__], "CHROMIUM", Path("/nonexistent/chromium"))
+    monkeypatch.delenv("HEATBALANCE_REQUIRE_BROWSER", raising=False)
+    with pytest.raises(pytest.skip.Exception, match="Debian chromium not found at /nonexistent/chromium"):
+        _browser_or_skip()
+    monkeypatch.setenv("HEATBALANCE_REQUIRE_BROWSER", "1")
+    with pytest.raises(pytest.fail.Exception, match="HEATBALANCE_REQUIRE_BROWSER=1 makes this a failure"):
+        _browser_or_skip()
