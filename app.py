@@ -127,25 +127,33 @@ def on_new_worksheet() -> None:
     replace_worksheet(tb.empty_worksheet())
 
 
+def commit_model(base: Worksheet) -> None:
+    """Read the tables, as the user left them, onto ``base`` (a new title or basis); bad cells stay as typed."""
+    state = st.session_state
+    worksheet, problems = tb.tables_to_worksheet(state[ROWS], base)
+    state[PROBLEMS] = problems
+    state[WORKSHEET] = worksheet if worksheet is not None else base
+    if worksheet is None:
+        state[ROWS_OF] = _model_json(base)  # keep the rows: they hold what the user typed
+
+
 def on_title_change() -> None:
     state = st.session_state
     title = (state.get("title_input") or "").strip() or "Untitled worksheet"
-    state[WORKSHEET] = state[WORKSHEET].model_copy(update={"title": title[:200]})
+    commit_model(state[WORKSHEET].model_copy(update={"title": title[:200]}))
 
 
 def on_basis_change() -> None:
     state = st.session_state
     text = (state.get("basis_duration") or "").strip()
-    duration = None
-    if text:
-        try:
-            duration = tb.parse_quantity(text, ("duration",), "duration")
-        except Exception as exc:  # a _CellError carries the message
-            state[BASIS_PROBLEM] = getattr(exc, "message", str(exc))
-            return
+    try:
+        duration = tb.parse_quantity(text, ("duration",), "duration") if text else None
+    except HeatBalanceError as exc:
+        state[BASIS_PROBLEM] = exc.message
+        return
     state[BASIS_PROBLEM] = ""
     basis = state[WORKSHEET].basis.model_copy(update={"kind": state["basis_kind"], "duration": duration})
-    state[WORKSHEET] = state[WORKSHEET].model_copy(update={"basis": basis})
+    commit_model(state[WORKSHEET].model_copy(update={"basis": basis}))
 
 
 def on_unknown_pick(choices: dict) -> None:
@@ -219,8 +227,9 @@ def render_unknown_picker(worksheet: Worksheet) -> None:
     current = tb.unknown_label(worksheet, list(choices.items()))
     if st.session_state.get("unknown_picker") != current:
         st.session_state["unknown_picker"] = current
+    blocked = bool(st.session_state.get(PROBLEMS))  # fix the marked cell first: the '?' cells move
     st.selectbox("Solve for", list(choices), index=None, key="unknown_picker", on_change=on_unknown_pick,
-                 args=(choices,),
+                 args=(choices,), disabled=blocked,
                  placeholder="pick the one unknown quantity…",
                  help="The one quantity the balance is solved for. Picking another one gives the old "
                       "unknown its last answer as a value.")

@@ -81,10 +81,12 @@ class CellProblem:
         return f"{self.place}: {self.message}"
 
 
-class _CellError(Exception):
+class _CellError(InputError):
+    """A cell that cannot be read; ``where`` is its column."""
+
     def __init__(self, column: str, message: str):
-        super().__init__(message)
-        self.column, self.message = column, message
+        super().__init__(message, column)
+        self.column = column
 
 
 # --------------------------------------------------------------------------- cells

@@ -146,6 +146,17 @@ def test_a_wrong_unit_is_marked_and_the_inputs_are_kept():
     assert answer_text(at) == "745.6 kg/h" and errors(at) == ""
 
 
+def test_a_bad_cell_is_kept_when_the_title_or_basis_changes():
+    at = page()
+    edit(at, "streams", {"edited_rows": {0: {"flow": "12 kW"}}})
+    at.text_input(key="title_input").input("Glycol heater, revised").run()
+    no_traceback(at)
+    assert at.session_state[WORKSHEET].title == "Glycol heater, revised"
+    assert at.session_state[ROWS]["streams"][0]["flow"] == "12 kW"  # not reverted to the last good value
+    assert "unit 'kW' is not a mass flow" in errors(at)
+    assert at.selectbox(key="unknown_picker").disabled  # fix the marked cell before moving the unknown
+
+
 def test_a_negative_mass_shows_the_engines_message_and_keeps_the_inputs():
     at = page("hot_condensate_quench.json")
     edit(at, "charges", {"edited_rows": {0: {"mass": "-3 t"}}})
