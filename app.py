@@ -27,6 +27,7 @@ DEFAULT_SAMPLE = "steam_heater_glycol.json"
 SAFETY_CAUTION = ("A screening estimate, not a substitute for reaction calorimetry, a process hazard "
                   "analysis or licensed engineering; follow local codes and your site's practice.")
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
+NUMBER_COLUMNS = ("mass fraction", "conversion", "cp per K", "cp per K²")  # table cells that are plain numbers
 
 # Session-state keys of the model, apart from widget keys.
 WORKSHEET = "hb_worksheet"  # the last valid Worksheet: what is solved
@@ -329,8 +330,6 @@ def _column_config(worksheet: Worksheet) -> dict:
     }
 
 
-NUMBER_COLUMNS = ("mass fraction", "conversion", "cp per K", "cp per K²")
-
 
 def _check_marks(table: str, count: int, problems: list[tb.CellProblem]) -> list[str]:
     """The 'check' column: ⚠ and the bad column(s) on each row with a problem."""
@@ -420,6 +419,15 @@ def render_inputs(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
 
 
 # --------------------------------------------------------------------------- drawing: results
+def _number(value: float | None) -> str:
+    """A heat in the contribution table: 1,234.57; blank where it does not apply."""
+    return "" if value is None else _no_negative_zero(f"{value:,.2f}")
+
+
+def _no_negative_zero(text: str) -> str:
+    return text[1:] if text.startswith("-") and not text.strip("-0.,").split(" ")[0] else text
+
+
 def render_results(result: Result | None, system: str) -> None:
     st.header("Results")
     if result is None:
@@ -457,15 +465,6 @@ def render_results(result: Result | None, system: str) -> None:
             st.warning(warning, icon=":material/warning:")
     else:
         st.markdown("None.")
-
-
-def _number(value: float | None) -> str:
-    """A heat in the contribution table: 1,234.57; blank where it does not apply."""
-    return "" if value is None else _no_negative_zero(f"{value:,.2f}")
-
-
-def _no_negative_zero(text: str) -> str:
-    return text[1:] if text.startswith("-") and not text.strip("-0.,").split(" ")[0] else text
 
 
 # Panels other features add below the results; each is called as panel(worksheet, result, system),
