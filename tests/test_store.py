@@ -19,6 +19,7 @@ from heatbalance.links import LinkError, canonical_json, revision_id
 from heatbalance.store import (ENV_DATABASE_URL, ENV_DB, RevisionNotFoundError, StoreError, WorksheetStore,
                                database_url, default_database_path, open_store)
 from heatbalance.worksheet import load_worksheet
+import store_workers
 from pg_server import postgres_url  # noqa: F401  (a fixture)
 
 SAMPLES = sorted(Path(__file__).parent.parent.joinpath("sample_data").glob("*.json"))
@@ -134,34 +135,26 @@ def test_saved_at_is_utc_and_increases(store):
 
 
 # -- concurrency --------------------------------------------------------------------------------------------
-def _concurrent_worker(url: str, worker: int, barrier, out) -> None:
-    """Save SAVES_PER_WORKER worksheets: half of them this worker's own, half shared by every worker."""
-    base = _sample(SAMPLES[worker % len(SAMPLES)])
-    shared = _sample(SAMPLES[0])
-    store = WorksheetStore(url, busy_timeout=60)
-    barrier.wait(timeout=60)
-    results = []
-    for i in range(SAVES_PER_WORKER):
-        if i % 2:
-            ws = shared.model_copy(update={"notes": f"shared {i}"})
-        else:
-            ws = base.model_copy(update={"notes": f"worker {worker} save {i}"})
-        rev = store.save(ws)
-        results.append((rev.id, canonical_json(ws)))
-    store.close()
-    out.put((worker, results))
-
-
 def _save_from_many_processes(url: str):
-    context = multiprocessing.get_context("fork")
+    # forkserver: each worker is forked from a clean single-threaded server process that has imported the
+    # engine once (forking the test session itself could inherit a lock held by another of its threads)
+    context = multiprocessing.get_context("forkserver")
+    context.set_forkserver_preload(["store_workers", "heatbalance.store"])
     barrier, out = context.Barrier(WORKERS), context.Queue()
-    workers = [context.Process(target=_concurrent_worker, args=(url, w, barrier, out)) for w in range(WORKERS)]
+    workers = [context.Process(target=store_workers.save_many, args=(url, w, SAVES_PER_WORKER, barrier, out))
+               for w in range(WORKERS)]
     for p in workers:
         p.start()
-    collected = dict(out.get(timeout=300) for _ in workers)
-    for p in workers:
-        p.join(timeout=60)
-        assert p.exitcode == 0
+    try:
+        collected = dict(out.get(timeout=600) for _ in workers)
+    finally:
+        for p in workers:
+            p.join(timeout=60)
+            if p.is_alive():
+                p.kill()
+    failures = {w: r for w, r in collected.items() if isinstance(r, str)}
+    assert not failures, failures
+    assert [p.exitcode for p in workers] == [0] * WORKERS
     return collected
 
 
