@@ -13,7 +13,7 @@ from pathlib import Path
 
 import pytest
 
-from heatbalance import load_worksheet, solve
+from heatbalance import contribution_rows, load_worksheet, solve
 
 pytestmark = pytest.mark.browser
 
@@ -144,6 +144,18 @@ def test_us_customary_display_converts_the_answer(page, output_dir):
     _wait_until_drawn(page)
     assert "heat into the process [Btu/h]" in page.inner_text("body")
     page.screenshot(path=str(output_dir / "browser_us_units.png"), full_page=True)
+
+
+def test_hovering_a_waterfall_bar_shows_the_line_its_states_and_its_heat(page):
+    sheet = load_worksheet((SAMPLES / "steam_heater_glycol.json").read_bytes())
+    glycol = contribution_rows(solve(sheet))[0]  # the engine's own table, heat into the process in kW
+    bar = page.locator(".js-plotly-plot .point").first
+    box = bar.bounding_box()
+    page.mouse.move(box["x"] + box["width"] / 2, box["y"] + box["height"] / 2)  # the plot's drag layer is on top
+    page.wait_for_function("document.querySelector('.js-plotly-plot .hoverlayer').textContent.includes('Glycol')")
+    hover = page.evaluate("document.querySelector('.js-plotly-plot .hoverlayer').textContent")
+    assert "Glycol (stream)" in hover and "5.0 °C liquid → 40.0 °C liquid" in hover
+    assert f"heat into the process: {glycol['heat into process [kW]']:,.1f} kW" in hover  # -434.5 kW
 
 
 def test_a_missing_browser_is_a_skip_with_its_reason_but_a_failure_in_ci(monkeypatch):
