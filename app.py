@@ -387,7 +387,6 @@ def render_vessel_tables(config: dict, problems: list[tb.CellProblem]) -> None:
     st.subheader("Vessels", help="batch basis: the charges of a vessel are mixed and end at its final state")
     render_table("vessels", config, problems, "every charge of a vessel ends at the vessel's final state")
     render_table("charges", config, problems, "what is put in each vessel, at its initial state")
-    render_table("equipment", config, problems, "vessel wall, agitator and internals that warm with the contents")
 
 
 def render_inputs(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
@@ -410,6 +409,9 @@ def render_inputs(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
     with right:
         render_table("losses", config, problems, "heat lost to the surroundings, entered as positive")
     render_table("reactions", config, problems, "heat released = −ΔH × amount fed × conversion")
+    if worksheet.basis.kind == "batch" or worksheet.vessels:
+        render_table("equipment", config, problems,
+                     "vessel wall, agitator and internals that warm with the contents (per vessel)")
     own = bool(worksheet.materials or worksheet.common_temperatures
                or any(p.table in ("shared", "materials") for p in problems))
     if st.toggle("Shared temperatures and materials of your own", value=own, key="show_own_tables"):
