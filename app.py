@@ -88,6 +88,7 @@ def sync_tables_with_model() -> None:
     state["basis_kind"] = worksheet.basis.kind
     state["basis_duration"] = tb.format_quantity(worksheet.basis.duration)
     state["sample_picker"] = None  # a menu: any pick loads a fresh copy, the same sample again too
+    state["show_own_tables"] = bool(worksheet.materials or worksheet.common_temperatures)
 
 
 def apply_pending_edits() -> None:
@@ -412,9 +413,9 @@ def render_inputs(worksheet: Worksheet, error: HeatBalanceError | None) -> None:
     if worksheet.basis.kind == "batch" or worksheet.vessels:
         render_table("equipment", config, problems,
                      "vessel wall, agitator and internals that warm with the contents (per vessel)")
-    own = bool(worksheet.materials or worksheet.common_temperatures
-               or any(p.table in ("shared", "materials") for p in problems))
-    if st.toggle("Shared temperatures and materials of your own", value=own, key="show_own_tables"):
+    if any(p.table in ("shared", "materials") for p in problems):
+        st.session_state["show_own_tables"] = True  # a marked cell is never hidden
+    if st.toggle("Shared temperatures and materials of your own", key="show_own_tables"):
         render_table("shared", config, problems, "one temperature for lines that end mixed; "
                      "refer to it in a state cell as 'shared: <name>'")
         render_table("materials", config, problems, "one row per phase; cp = a + b·T + c·T² with T in K")

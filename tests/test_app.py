@@ -197,6 +197,16 @@ def test_a_bad_batch_duration_is_marked_and_kept():
     assert held.basis.duration.value == 60 and answer_text(at) == solve(held).answer.text
 
 
+def test_a_sample_with_its_own_material_shows_the_materials_table():
+    at = page()
+    assert at.toggle(key="show_own_tables").value is False  # the glycol heater uses library materials only
+    at.selectbox(key="sample_picker").select(sample("batch_reactor_exotherm.json").title).run()
+    assert at.toggle(key="show_own_tables").value is True
+    assert any((d.key or "").startswith("editor_materials_") for d in at.dataframe)  # the table is drawn
+    rows = at.session_state[ROWS]["materials"]
+    assert [(r["material"], r["cp"]) for r in rows] == [("reagent solution", "3.2 kJ/(kg*K)")]  # the sample's own
+
+
 def test_batch_results_carry_the_safety_caution():
     at = page("batch_reactor_exotherm.json")
     cautions = "\n".join(w.value for w in at.warning)
