@@ -479,6 +479,11 @@ def _solve_linear(p: Problem) -> None:
         raise NoSolutionError(f"{target.name} does not change state (h_final = h_initial), so its "
                               "amount cannot carry any heat: give it different initial and final states",
                               p.unknown_label)
+    others = [ln for ln in p.lines if ln is not target] + p.equipment + [t for t in p.terms if t.heat]
+    if not others or (supplied == 0 and absorbed == 0):
+        raise NoSolutionError(f"nothing else in the balance gives {target.name} heat or takes heat from it, so "
+                              "its amount is undetermined: add the duty or the line that exchanges heat with it, "
+                              "or solve for one of its temperatures instead", p.unknown_label)
     amount = (supplied - absorbed) / dh
     if amount < 0:
         raise NoSolutionError(_negative_amount_message(p, target, dh, supplied - absorbed), p.unknown_label)

@@ -5,6 +5,7 @@ the process for heat terms and positive when absorbed for lines.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import asdict, dataclass, field
 
 from .units import DISPLAY_UNITS, display_unit, from_si
@@ -123,6 +124,14 @@ def _state_text(T: float, phase: str, P: float, system: str) -> str:
             f"{from_si(P, p_unit, 'pressure'):.4g} {display_unit(p_unit)}")
 
 
+def _amount_text(value: float) -> str:
+    """Four significant figures without scientific notation: 12,000 / 745.6 / 0.1234."""
+    if value == 0:
+        return "0"
+    decimals = max(0, 3 - int(math.floor(math.log10(abs(value)))))
+    return f"{round(value, decimals):,.{decimals}f}"
+
+
 def contribution_rows(result: Result, system: str = "SI") -> list[dict]:
     """One row per contribution, heats as *heat into the process* so the rows sum to −residual.
 
@@ -130,7 +139,8 @@ def contribution_rows(result: Result, system: str = "SI") -> list[dict]:
     """
     kind = heat_kind(result.basis)
     unit = DISPLAY_UNITS[system][kind]
-    amount_unit = DISPLAY_UNITS[system]["mass_flow" if result.basis == "continuous" else "mass"]
+    amount_kind = "mass_flow" if result.basis == "continuous" else "mass"
+    amount_unit = DISPLAY_UNITS[system][amount_kind]
 
     def convert(value: float) -> float:
         return from_si(value, unit, kind)
@@ -139,7 +149,7 @@ def contribution_rows(result: Result, system: str = "SI") -> list[dict]:
     for line in result.lines:
         rows.append({
             "item": line.name, "type": line.kind, "material": line.material,
-            "amount": f"{from_si(line.amount_si, amount_unit, 'mass_flow' if result.basis == 'continuous' else 'mass'):,.4g} {amount_unit}",
+            "amount": f"{_amount_text(from_si(line.amount_si, amount_unit, amount_kind))} {amount_unit}",
             "from": _state_text(line.initial_T, line.initial_phase, line.initial_P, system),
             "to": _state_text(line.final_T, line.final_phase, line.final_P, system),
             f"sensible absorbed [{unit}]": convert(line.sensible),

@@ -34,7 +34,8 @@ COLUMNS: dict[str, list[str]] = {
     "charges": ["vessel", "name", "material", "mass fraction", "mass", "initial"],
     "duties": ["name", "heat"],
     "losses": ["name", "heat"],
-    "reactions": ["name", "heat of reaction", "amount", "conversion", "molar mass", "vessel"],
+    "reactions": ["name", "heat of reaction", "equation", "key reactant", "amount", "conversion", "molar mass",
+                  "vessel"],
     "equipment": ["vessel", "material", "mass", "heat capacity", "initial temperature"],
     "shared": ["name", "temperature"],
     "materials": ["material", "phase", "cp", "cp per K", "cp per K²", "up to", "latent heat",
@@ -283,8 +284,8 @@ def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:
         tables["losses"].append({"name": loss.name, "heat": format_quantity(loss.value)})
     for r in ws.reactions:
         tables["reactions"].append({
-            "name": r.name, "heat of reaction": format_quantity(r.enthalpy), "amount": format_quantity(r.amount),
-            "conversion": r.conversion, "molar mass": format_quantity(r.molar_mass), "vessel": r.vessel})
+            "name": r.name, "heat of reaction": format_quantity(r.enthalpy), "equation": r.equation,
+            "key reactant": r.key_reactant, "amount": format_quantity(r.amount), "conversion": r.conversion, "molar mass": format_quantity(r.molar_mass), "vessel": r.vessel})
     for c in ws.common_temperatures:
         unknown = _is_unknown_temperature(ws, None, None, common=c.name)
         tables["shared"].append({"name": c.name, "temperature": _unknown_cell(c.temperature) if unknown
@@ -428,6 +429,7 @@ def _vessels(tables, ws: Worksheet, problems) -> list[dict]:
             "name": name,
             "pressure": r.quantity("pressure", ("pressure",), required=False) or Quantity(value=0, unit="barg"),
             "final": r.state("final", _is_unknown_temperature(ws, name, "final"), old.final if old else None),
+            "screening": old.screening if old else None,  # not a table: kept from the model
             "charges": [], "_row": index})
     by_name = {v["name"]: v for v in vessels}
     _charges(tables, ws, by_name, problems)
@@ -500,17 +502,27 @@ def _losses(tables, ws: Worksheet, problems) -> list[dict]:
     return out
 
 
+def _is_mass(cell: str) -> bool:
+    """True when an amount cell is a mass or mass flow (an equation gives the key reactant's molar mass)."""
+    try:
+        return parse_quantity(cell, ("mass", "mass_flow"), "amount") is not None
+    except (_CellError, HeatBalanceError):
+        return False
+
+
 def _reactions(tables, ws: Worksheet, problems) -> list[dict]:
     out = []
     for index, row in _rows(tables, "reactions"):
         r = _Reader("reactions", index, row, problems)
         molar_mass = r.quantity("molar mass", ("molar_mass",), required=False)
-        by_mass = molar_mass is not None
+        equation = r.text("equation") or None
+        by_mass = molar_mass is not None or (equation is not None and _is_mass(r.text("amount")))
         amount_kinds = ("mass", "mass_flow") if by_mass else ("amount", "molar_flow")
         if ws.basis.kind == "continuous":
             amount_kinds = amount_kinds[1:]
         out.append({"name": r.text("name", required=True),
-                    "enthalpy": r.quantity("heat of reaction", ("molar_energy",)),
+                    "enthalpy": r.quantity("heat of reaction", ("molar_energy",), required=equation is None),
+                    "equation": equation, "key_reactant": r.text("key reactant") or None,
                     "amount": r.quantity("amount", amount_kinds), "conversion": r.number("conversion", 1.0),
                     "molar_mass": molar_mass, "vessel": r.text("vessel") or None})
     return out

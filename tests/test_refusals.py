@@ -159,3 +159,11 @@ def test_quantity_as_text_is_read():
                    "unknowns": [{"kind": "duty", "term": "Heater"}]})
     # hand calculation: 1 kg/s × 2.0 kJ/(kg·K) × 60 K = 120 kW
     assert solve(parse_worksheet(doc)).answer.value == pytest.approx(120.0)
+
+
+def test_flow_of_a_line_alone_is_undetermined():
+    # found through the page: the condensate flash sample solved for its flow gave "0 t/h"
+    streams = [stream("Feed", "liquid A", q(1, "kg/h"), temp(20), temp(80))]
+    with pytest.raises(NoSolutionError, match=r"^Feed flow: nothing else in the balance gives Feed heat or takes heat "
+                                              r"from it, so its amount is undetermined"):
+        solve_with(streams=streams, duties=[], unknowns=[{"kind": "amount", "line": "Feed"}])

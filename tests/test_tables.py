@@ -239,3 +239,23 @@ def test_material_picker_lists_own_materials_first_then_the_catalogue():
     names = tb.material_names(sample("batch_reactor_exotherm.json"))
     assert names[0] == "reagent solution"
     assert {"water", "ethylene glycol (aq)", "stainless steel 316"} <= set(names)
+
+
+def test_an_edit_keeps_the_reaction_equation_and_the_screening_inputs():
+    ws = sample("glycol_hydration_screening.json")
+    back, problems = edited(ws, "duties", {"edited_rows": {"0": {"heat": "-80 kW"}}})
+    assert problems == []
+    assert back.reactions[0].equation == "ethylene oxide(l) + water(l) -> ethylene glycol(l)"
+    assert back.reactions[0].enthalpy is None and back.reactions[0].key_reactant == "ethylene oxide"
+    assert back.vessels[0].screening == ws.vessels[0].screening
+    assert back.duties[0].value == Quantity(value=-80, unit="kW")
+
+
+def test_a_reaction_needs_a_heat_or_an_equation():
+    ws = sample("glycol_hydration_screening.json")
+    back, problems = edited(ws, "reactions", {"edited_rows": {"0": {"equation": None}}})
+    assert back is None
+    # without the equation, ΔH must be typed, and a mass amount needs a molar mass
+    assert [(p.table, p.column) for p in problems] == [("reactions", "heat of reaction"), ("reactions", "amount")]
+    assert problems[0].message.startswith("empty: give a value with its unit")
+    assert "is not an amount of substance or a molar flow" in problems[1].message
