@@ -1,8 +1,9 @@
-"""Shared fixtures: the app server for the real-browser tests.
+"""Shared fixtures of the real-browser tests: the app server and Debian's chromium.
 
 The server is started once per test session, only when a browser test asks for it, on a free
 port of 127.0.0.1, and stopped at the end. With HEATBALANCE_APP_URL set (as `.ci/run` does),
-that server is used instead.
+that server is used instead. A missing chromium is a skip with its reason, except with
+HEATBALANCE_REQUIRE_BROWSER=1 (set by `.ci/run`), where it is a failure.
 """
 from __future__ import annotations
 
@@ -12,6 +13,7 @@ import subprocess
 import sys
 import time
 import urllib.request
+from contextlib import contextmanager
 from pathlib import Path
 
 import pytest
@@ -19,6 +21,9 @@ import pytest
 ROOT = Path(__file__).resolve().parent.parent
 OUTPUT = ROOT / "test-output"
 SERVER_START_TIMEOUT_S = 90
+CHROMIUM = Path("/usr/bin/chromium")
+LAUNCH_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+               "--no-first-run"]
 
 
 def _free_port() -> int:
@@ -50,21 +55,16 @@ def output_dir() -> Path:
     return OUTPUT
 
 
-@pytest.fixture(scope="session")
-def app_url(output_dir):
-    """The URL of a running app: HEATBALANCE_APP_URL, or a server started here for the session."""
-    given = os.environ.get("HEATBALANCE_APP_URL")
-    if given:
-        yield given.rstrip("/")
-        return
+@contextmanager
+def running_app(log_path: Path, env: dict | None = None):
+    """Start ``streamlit run app.py`` on a free loopback port, yield its URL, stop it at the end."""
     port = _free_port()
     url = f"http://127.0.0.1:{port}"
-    log_path = output_dir / "app-server.log"
     with open(log_path, "wb") as log:
         process = subprocess.Popen(
             [sys.executable, "-m", "streamlit", "run", "app.py", "--server.headless", "true",
              "--server.address", "127.0.0.1", "--server.port", str(port), "--browser.gatherUsageStats", "false"],
-            cwd=ROOT, stdout=log, stderr=subprocess.STDOUT)
+            cwd=ROOT, stdout=log, stderr=subprocess.STDOUT, env=env)
         try:
             deadline = time.monotonic() + SERVER_START_TIMEOUT_S
             while not _answers(url):
@@ -76,3 +76,34 @@ def app_url(output_dir):
             yield url
         finally:
             _stop(process)
+
+
+@pytest.fixture(scope="session")
+def app_url(output_dir):
+    """The URL of a running app: HEATBALANCE_APP_URL, or a server started here for the session."""
+    given = os.environ.get("HEATBALANCE_APP_URL")
+    if given:
+        yield given.rstrip("/")
+        return
+    with running_app(output_dir / "app-server.log") as url:
+        yield url
+
+
+def playwright_or_skip(chromium: Path = CHROMIUM):
+    """Playwright's sync API when Debian's chromium is there; otherwise a skip (a failure in CI)."""
+    if not chromium.exists():
+        reason = f"Debian chromium not found at {chromium} (apt-get install -y chromium)"
+        if os.environ.get("HEATBALANCE_REQUIRE_BROWSER") == "1":
+            pytest.fail(reason + "; HEATBALANCE_REQUIRE_BROWSER=1 makes this a failure")
+        pytest.skip(reason)
+    return pytest.importorskip("playwright.sync_api")
+
+
+@pytest.fixture(scope="module")
+def browser():
+    """Headless Debian chromium driven by Playwright."""
+    playwright_api = playwright_or_skip()
+    with playwright_api.sync_playwright() as playwright:
+        launched = playwright.chromium.launch(executable_path=str(CHROMIUM), headless=True, args=LAUNCH_ARGS)
+        yield launched
+        launched.close()

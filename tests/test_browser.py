@@ -6,41 +6,21 @@ Screenshots go to test-output/ (gitignored).
 """
 from __future__ import annotations
 
-import os
 import re
-import sys
 from pathlib import Path
 
 import pytest
 
+from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
+from conftest import playwright_or_skip
 from heatbalance import contribution_rows, load_worksheet, solve
 
 pytestmark = pytest.mark.browser
 
-CHROMIUM = Path("/usr/bin/chromium")
-LAUNCH_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-               "--no-first-run"]
 SAMPLES = Path(__file__).resolve().parent.parent / "sample_data"
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 TIMEOUT_MS = 30_000
-
-
-def _browser_or_skip():
-    if not CHROMIUM.exists():
-        reason = f"Debian chromium not found at {CHROMIUM} (apt-get install -y chromium)"
-        if os.environ.get("HEATBALANCE_REQUIRE_BROWSER") == "1":
-            pytest.fail(reason + "; HEATBALANCE_REQUIRE_BROWSER=1 makes this a failure")
-        pytest.skip(reason)
-    return pytest.importorskip("playwright.sync_api")
-
-
-@pytest.fixture(scope="module")
-def browser():
-    playwright_api = _browser_or_skip()
-    with playwright_api.sync_playwright() as playwright:
-        launched = playwright.chromium.launch(executable_path=str(CHROMIUM), headless=True, args=LAUNCH_ARGS)
-        yield launched
-        launched.close()
 
 
 @pytest.fixture
@@ -72,19 +52,35 @@ def _pick_sample(page, title: str) -> None:
                            arg=title)
 
 
+def _open_cell_editor(page, grid, row: int, column: int, attempts: int = 6) -> None:
+    """Click the table's first cell, walk to (row, column) by keyboard, open its editor.
+
+    The table's script loads lazily and a click before it is ready is lost, so a slow machine gets
+    a few tries, each waiting for the cell editor to appear.
+    """
+    for attempt in range(attempts):
+        page.wait_for_timeout(1000)
+        box = grid.bounding_box()
+        page.mouse.click(box["x"] + 60, box["y"] + 52)  # first row, first column (past the row markers)
+        for _ in range(column):
+            page.keyboard.press("ArrowRight")
+        for _ in range(row):
+            page.keyboard.press("ArrowDown")
+        page.keyboard.press("Enter")
+        try:
+            page.wait_for_selector("textarea.gdg-input", timeout=5000)
+            return
+        except PlaywrightTimeout:
+            if attempt == attempts - 1:
+                raise
+            page.keyboard.press("Escape")
+
+
 def _type_into_cell(page, editor: str, row: int, column: int, text: str) -> None:
     """Select a table cell by keyboard from the first cell of the table, open it, replace its text."""
     grid = page.locator(f"[class*='st-key-editor_{editor}_'] [data-testid='stDataFrameResizable']")
     _wait_until_drawn(page)
-    page.wait_for_timeout(1000)  # the table script loads lazily; a click before it is ready is lost
-    box = grid.bounding_box()
-    page.mouse.click(box["x"] + 60, box["y"] + 52)  # first row, first column (past the row markers)
-    for _ in range(column):
-        page.keyboard.press("ArrowRight")
-    for _ in range(row):
-        page.keyboard.press("ArrowDown")
-    page.keyboard.press("Enter")
-    page.wait_for_selector("textarea.gdg-input")
+    _open_cell_editor(page, grid, row, column)
     page.keyboard.press("Control+a")
     page.keyboard.type(text)
     page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
@@ -159,10 +155,10 @@ def test_hovering_a_waterfall_bar_shows_the_line_its_states_and_its_heat(page):
 
 
 def test_a_missing_browser_is_a_skip_with_its_reason_but_a_failure_in_ci(monkeypatch):
-    monkeypatch.setattr(sys.modules[__name__], "CHROMIUM", Path("/nonexistent/chromium"))
+    missing = Path("/nonexistent/chromium")
     monkeypatch.delenv("HEATBALANCE_REQUIRE_BROWSER", raising=False)
     with pytest.raises(pytest.skip.Exception, match="Debian chromium not found at /nonexistent/chromium"):
-        _browser_or_skip()
+        playwright_or_skip(missing)
     monkeypatch.setenv("HEATBALANCE_REQUIRE_BROWSER", "1")
     with pytest.raises(pytest.fail.Exception, match="HEATBALANCE_REQUIRE_BROWSER=1 makes this a failure"):
-        _browser_or_skip()
+        playwright_or_skip(missing)

@@ -9,15 +9,11 @@ from __future__ import annotations
 
 import os
 import re
-import socket
-import subprocess
-import sys
-import time
-import urllib.request
 from pathlib import Path
 
 import pytest
 
+from conftest import running_app
 from heatbalance import load_worksheet, solve
 from heatbalance.links import revision_id, sheet_link
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
@@ -25,25 +21,9 @@ from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 pytestmark = pytest.mark.browser
 
 ROOT = Path(__file__).resolve().parent.parent
-APP = str(ROOT / "app.py")
-CHROMIUM = Path("/usr/bin/chromium")
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 SAMPLE = ROOT / "sample_data" / "condensate_flash.json"
 TIMEOUT_MS = 30_000
-
-
-def _free_port() -> int:
-    with socket.socket() as probe:
-        probe.bind(("127.0.0.1", 0))
-        return probe.getsockname()[1]
-
-
-def _answers(url: str) -> bool:
-    try:
-        with urllib.request.urlopen(f"{url}/_stcore/health", timeout=2) as response:
-            return response.status == 200
-    except OSError:
-        return False
 
 
 @pytest.fixture(scope="module")
@@ -51,42 +31,8 @@ def server(tmp_path_factory):
     db = tmp_path_factory.mktemp("share-store") / "worksheets.sqlite3"
     env = {k: v for k, v in os.environ.items() if k != ENV_DATABASE_URL}
     env[ENV_DB] = str(db)
-    port = _free_port()
-    url = f"http://127.0.0.1:{port}"
-    log = open(tmp_path_factory.mktemp("share-log") / "server.log", "wb")
-    process = subprocess.Popen(
-        [sys.executable, "-m", "streamlit", "run", APP, "--server.headless", "true", "--server.address",
-         "127.0.0.1", "--server.port", str(port), "--browser.gatherUsageStats", "false"],
-        cwd=ROOT, stdout=log, stderr=subprocess.STDOUT, env=env)
-    try:
-        deadline = time.monotonic() + 90
-        while not _answers(url):
-            if process.poll() is not None or time.monotonic() > deadline:
-                pytest.fail(f"the app server did not start (status {process.poll()}); see {log.name}")
-            time.sleep(0.25)
+    with running_app(tmp_path_factory.mktemp("share-log") / "server.log", env) as url:
         yield url, f"sqlite:///{db}"
-    finally:
-        process.terminate()
-        try:
-            process.wait(timeout=10)
-        except subprocess.TimeoutExpired:
-            process.kill()
-        log.close()
-
-
-@pytest.fixture(scope="module")
-def browser():
-    if not CHROMIUM.exists():
-        reason = f"Debian chromium not found at {CHROMIUM} (apt-get install -y chromium)"
-        if os.environ.get("HEATBALANCE_REQUIRE_BROWSER") == "1":
-            pytest.fail(reason + "; HEATBALANCE_REQUIRE_BROWSER=1 makes this a failure")
-        pytest.skip(reason)
-    api = pytest.importorskip("playwright.sync_api")
-    with api.sync_playwright() as playwright:
-        launched = playwright.chromium.launch(executable_path=str(CHROMIUM), headless=True,
-                                             args=["--no-sandbox", "--disable-gpu", "--no-first-run"])
-        yield launched
-        launched.close()
 
 
 @pytest.fixture
