@@ -17,7 +17,8 @@ from scipy.optimize import brentq
 
 from .errors import InputError, NoSolutionError, UnitError
 from .materials import get_material
-from .properties import Material, Phase, TabulatedMaterial, Transition, property_library_versions
+from .properties import (IncompressibleSolution, Material, Phase, TabulatedMaterial, Transition,
+                         property_library_versions)
 from .reactions import reaction_enthalpy
 from .reactor import screen_worksheet
 from .results import Answer, LineResult, Result, TermResult, heat_kind
@@ -714,10 +715,12 @@ def _phase_warnings(p: Problem, lines: list[LineResult]) -> list[str]:
     out = []
     for model, ln in zip(p.lines, lines):
         if abs(ln.latent) > 1e-9 * max(1.0, abs(ln.total)):
-            out.append(f"{ln.name} changes phase ({ln.initial_phase} → {ln.final_phase}): latent heat "
-                       f"{ln.latent / max(ln.amount_si, 1e-300) / 1000:,.1f} kJ/kg included.")
+            per_kg = ln.latent / max(ln.amount_si, 1e-300) / 1000
+            verb = "takes up" if per_kg > 0 else "gives up"
+            out.append(f"{ln.name} changes phase ({ln.initial_phase} → {ln.final_phase}) and {verb} latent heat, "
+                       f"{abs(per_kg):,.1f} kJ/kg; included in the balance.")
         for T, P, label in ((ln.initial_T, ln.initial_P, "inlet"), (ln.final_T, ln.final_P, "outlet")):
-            if model.material.__class__.__name__ == "IncompressibleSolution":
+            if isinstance(model.material, IncompressibleSolution):
                 water_boils = get_material("water").transitions(P)
                 if water_boils and T > water_boils[0].T:
                     out.append(f"{ln.name} {label} is above the boiling point of water at "

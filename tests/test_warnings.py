@@ -14,8 +14,20 @@ def test_phase_change_is_reported_with_its_latent_heat():
     result = solve(ws)
     (warning,) = result.warnings
     # IAPWS-IF97: h_fg at 1 atm ≈ 2257 kJ/kg (DOMAIN.md)
-    assert warning.startswith("Boiler feed changes phase (liquid → vapour): latent heat 2,256.5 kJ/kg included")
+    assert warning.startswith("Boiler feed changes phase (liquid → vapour) and takes up latent heat, 2,256.5 kJ/kg;")
     assert result.lines[0].latent == pytest.approx(1000 / 3600 * 2256.54e3, rel=1e-5)
+
+
+def test_condensing_steam_gives_up_latent_heat():
+    ws = build(materials=[A],
+               streams=[stream("Feed", "liquid A", q(3600, "kg/h"), temp(20), temp(80)),
+                        stream("Steam", "water", q(1, "kg/h"), {"vapour_fraction": 1}, {"vapour_fraction": 0},
+                               pressure=q(4, "barg"))],
+               unknowns=[{"kind": "amount", "line": "Steam"}])
+    (warning,) = solve(ws).warnings
+    # IAPWS-IF97 via iapws: h_fg at 0.501325 MPa = 2107.4 kJ/kg
+    assert warning.startswith("Steam changes phase (saturated vapour → saturated liquid) and gives up latent heat, "
+                              "2,107.")
 
 
 def test_temperature_cross_with_a_heater_duty_is_a_warning_not_a_refusal():
