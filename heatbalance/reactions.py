@@ -296,6 +296,7 @@ def _compounds_by_formula() -> dict[str, tuple[str, ...]]:
     return {formula: tuple(sorted(names)) for formula, names in found.items()}
 
 
+@lru_cache(maxsize=1024)  # the chemicals tables are pandas lookups; a worksheet re-solves often
 def heat_of_formation(CAS: str, phase: str, prefer: str | None = None, species: str = "",
                       formula: str = "", where: str = "equation") -> tuple[float, str]:
     """Standard heat of formation at 25 °C [J/mol] of a species in a phase, and the table used.
