@@ -52,7 +52,11 @@ def _pick_sample(page, title: str) -> None:
                            arg=title)
 
 
-def _open_cell_editor(page, grid, row: int, column: int, attempts: int = 6) -> None:
+TEXT_EDITOR = "textarea.gdg-input"
+PICKER_EDITOR = "input[role='combobox']"
+
+
+def _open_cell_editor(page, grid, row: int, column: int, editor: str = TEXT_EDITOR, attempts: int = 6) -> None:
     """Click the table's first cell, walk to (row, column) by keyboard, open its editor.
 
     The table's script loads lazily and a click before it is ready is lost, so a slow machine gets
@@ -68,7 +72,7 @@ def _open_cell_editor(page, grid, row: int, column: int, attempts: int = 6) -> N
             page.keyboard.press("ArrowDown")
         page.keyboard.press("Enter")
         try:
-            page.wait_for_selector("textarea.gdg-input", timeout=5000)
+            page.wait_for_selector(editor, timeout=5000)
             return
         except PlaywrightTimeout:
             if attempt == attempts - 1:
@@ -162,3 +166,16 @@ def test_a_missing_browser_is_a_skip_with_its_reason_but_a_failure_in_ci(monkeyp
     monkeypatch.setenv("HEATBALANCE_REQUIRE_BROWSER", "1")
     with pytest.raises(pytest.fail.Exception, match="HEATBALANCE_REQUIRE_BROWSER=1 makes this a failure"):
         playwright_or_skip(missing)
+
+
+def test_the_material_picker_is_searchable(page, output_dir):
+    # the default sample's first stream; streams columns: name, material
+    grid = page.locator("[class*='st-key-editor_streams_'] [data-testid='stDataFrameResizable']")
+    _wait_until_drawn(page)
+    _open_cell_editor(page, grid, row=0, column=1, editor=PICKER_EDITOR)
+    page.keyboard.type("propyl")
+    options = page.get_by_role("option")
+    options.first.wait_for()
+    assert options.all_inner_texts() == ["propylene glycol (aq)"]  # typing filters the engine's catalogue
+    page.screenshot(path=str(output_dir / "browser_material_search.png"))
+    page.keyboard.press("Escape")
