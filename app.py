@@ -20,7 +20,7 @@ from heatbalance import tables as tb
 from heatbalance.figures import energy_waterfall
 from heatbalance.results import SIGN_CONVENTION, Result, contribution_rows, format_heat
 from webapp import sharing
-from webapp.screening_panel import render_screening_panel
+from webapp import screening_panel
 
 SAMPLES_DIR = Path(__file__).resolve().parent / "sample_data"
 DEFAULT_SAMPLE = "steam_heater_glycol.json"
@@ -473,7 +473,7 @@ def render_results(result: Result | None, system: str) -> None:
 # Panels other features add below the results; each is called as panel(worksheet, result, system),
 # with result None when the balance is not solved. Add one call each (screening, save/share).
 EXTRA_PANELS: list = []
-EXTRA_PANELS.append(render_screening_panel)  # thermal screening (webapp/screening_panel.py)
+EXTRA_PANELS.append(screening_panel.panel(replace_worksheet))  # thermal screening (webapp/screening_panel.py)
 EXTRA_PANELS.append(sharing.panel(replace_worksheet))  # save and share (webapp/sharing.py)
 
 

@@ -461,12 +461,6 @@ APP = ROOT / "app.py"
 REACTOR_SAMPLE = ROOT / "sample_data" / "batch_reactor_exotherm.json"
 
 
-def _app_hooks_the_panel() -> bool:
-    return APP.exists() and "render_screening_panel" in APP.read_text(encoding="utf-8")
-
-
-@pytest.mark.skipif(not _app_hooks_the_panel(),
-                    reason="app.py does not hook in webapp.screening_panel yet (the page of issue 3 is in progress)")
 def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
     from streamlit.testing.v1 import AppTest
 
@@ -483,7 +477,15 @@ def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
     at.number_input(key="screening_0_T_D24").set_value(60.0).run()
     assert not at.exception
     assert any("MTSR 66.1 °C reaches T_D24 60.0 °C" in a for a in _alarms(at))
+    # the input is written into the worksheet, so a saved or shared sheet carries it
+    assert at.session_state["hb_worksheet"].vessels[0].screening.T_D24 == Quantity(value=60.0, unit="degC")
     # raised above MTSR and MTT -> no alarm, class 1
     at.number_input(key="screening_0_T_D24").set_value(150.0).run()
     assert _alarms(at) == []
     assert any("Criticality class 1" in m.value for m in at.markdown)
+    # a refused input is shown on the panel and not written into the worksheet
+    at.number_input(key="screening_0_T_D24").set_value(-300.0).run()
+    assert not at.exception
+    assert any("These screening inputs cannot be used" in e.value and "below absolute zero" in e.value
+               for e in at.error)
+    assert at.session_state["hb_worksheet"].vessels[0].screening.T_D24 == Quantity(value=150.0, unit="degC")

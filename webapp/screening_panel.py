@@ -5,10 +5,10 @@ Hooked into ``app.py`` as one of its extra panels, called as
 put in the result (:mod:`heatbalance.reactor`): the cautions, a loud alarm when MTSR reaches
 MTT or T_D24, one chart of the temperatures, the numbers and the criticality class.
 
-Three what-if inputs (accumulation, T_D24, MTT) start from the worksheet's own screening
-inputs; changing them re-solves a copy of the worksheet with the new inputs. They are not
-written into the worksheet itself: to keep them, put them in the vessel's ``screening``
-inputs of the worksheet file.
+Three inputs (accumulation, T_D24, MTT) start from the worksheet's own screening inputs.
+Hooked in with :func:`panel`, a change is written into the worksheet (the vessel's
+``screening`` inputs), so it is saved and shared with it; inputs the engine refuses are
+shown with their message and not written. Without a setter the inputs are a what-if on a copy.
 """
 from __future__ import annotations
 
@@ -20,7 +20,7 @@ from heatbalance.results import Result
 from heatbalance.units import DISPLAY_UNITS, display_unit, from_si, to_si
 from heatbalance.worksheet import Quantity, ScreeningInputs, Worksheet
 
-__all__ = ["render_screening_panel", "what_if_worksheet", "widget_key"]
+__all__ = ["panel", "render_screening_panel", "what_if_worksheet", "widget_key"]
 
 _CLASS_HELP = ("Stoessel's classes order T_process, MTSR, MTT and T_D24: 1-2 the batch neither boils nor "
                "decomposes on loss of cooling; 3-4 it boils, and evaporative cooling is the barrier; 5 a "
@@ -75,11 +75,47 @@ def _fill_widgets(worksheet: Worksheet, result: Result, system: str) -> None:
         return
     st.session_state[_SOURCE] = source
     for index, screening in enumerate(result.screening):
+        st.session_state.pop(_error_key(index), None)
         for field, value in _defaults(worksheet, screening, system).items():
             st.session_state[widget_key(index, field)] = value
 
 
-def render_screening_panel(worksheet: Worksheet, result: Result | None, system: str = "SI") -> None:
+def panel(set_worksheet):
+    """The panel as the page hooks it in: inputs are written into the worksheet through ``set_worksheet``."""
+    def draw(worksheet: Worksheet, result: Result | None, system: str) -> None:
+        render_screening_panel(worksheet, result, system, set_worksheet)
+    return draw
+
+
+def _chosen(index: int) -> dict[str, object]:
+    return {field: st.session_state.get(widget_key(index, field)) for field in ("accumulation", "T_D24", "MTT")}
+
+
+def _with_inputs(worksheet: Worksheet, index: int, vessel: str, system: str) -> Worksheet:
+    chosen = _chosen(index)
+    accumulation = (chosen["accumulation"] if chosen["accumulation"] is not None else 100.0) / 100.0
+    return what_if_worksheet(worksheet, vessel, accumulation, _typed(chosen["T_D24"], system),
+                             _typed(chosen["MTT"], system))
+
+
+def _commit(index: int, vessel: str, worksheet: Worksheet, system: str, set_worksheet) -> None:
+    """Write the inputs into the worksheet when the engine accepts them; else keep the message."""
+    try:
+        changed = _with_inputs(worksheet, index, vessel, system)
+        solve(changed, system)
+    except Exception as exc:  # noqa: BLE001 - a refusal is shown on the panel, never a traceback
+        st.session_state[_error_key(index)] = str(exc)
+        return
+    st.session_state.pop(_error_key(index), None)
+    set_worksheet(changed)
+
+
+def _error_key(index: int) -> str:
+    return f"screening_{index}_refused"
+
+
+def render_screening_panel(worksheet: Worksheet, result: Result | None, system: str = "SI",
+                           set_worksheet=None) -> None:
     """Draw the screening of every vessel with a reaction (nothing when there is none or no result)."""
     if result is None:
         if worksheet.vessels and worksheet.reactions:
@@ -93,26 +129,32 @@ def render_screening_panel(worksheet: Worksheet, result: Result | None, system: 
         st.header("Thermal screening (loss of cooling)")
         st.warning(f"**Screening only.** {CAUTION}", icon=":material/health_and_safety:")
         for index, screening in enumerate(result.screening):
-            _vessel_panel(index, worksheet, screening, system)
+            _vessel_panel(index, worksheet, screening, system, set_worksheet)
 
 
-def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system: str) -> None:
+def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system: str, set_worksheet) -> None:
     unit = display_unit(_temperature_unit(system))
+    commit = None if set_worksheet is None else \
+        {"on_change": _commit, "args": (index, screening.vessel, worksheet, system, set_worksheet)}
     with st.container(key=f"screening_vessel_{index}", border=True):
         st.subheader(f"Vessel {screening.vessel}")
         c1, c2, c3 = st.columns(3)
         c1.number_input("Accumulation at cooling failure [%]", min_value=0.0, max_value=100.0, step=5.0,
-                        key=widget_key(index, "accumulation"),
+                        key=widget_key(index, "accumulation"), **(commit or {}),
                         help="Share of the reaction heat not yet released when cooling fails (100 % = batch "
                              "with everything charged).")
-        c2.number_input(f"T_D24 [{unit}]", value=None, step=5.0, key=widget_key(index, "T_D24"),
+        c2.number_input(f"T_D24 [{unit}]", value=None, step=5.0, key=widget_key(index, "T_D24"), **(commit or {}),
                         placeholder="from calorimetry",
                         help="Temperature at which the decomposition's time to maximum rate is 24 h "
                              "(from DSC/ARC data). Needed for the criticality class.")
-        c3.number_input(f"MTT [{unit}]", value=None, step=5.0, key=widget_key(index, "MTT"),
+        c3.number_input(f"MTT [{unit}]", value=None, step=5.0, key=widget_key(index, "MTT"), **(commit or {}),
                         placeholder="boiling point from the data",
                         help="Maximum technical temperature. Empty: the boiling point at the vessel's pressure "
                              "from the property data.")
+        if _error_key(index) in st.session_state:
+            st.error(f"These screening inputs cannot be used: {st.session_state[_error_key(index)]}",
+                     icon=":material/error:")
+            return
         screening = _current(index, worksheet, screening, system)
         if screening is None:
             return
@@ -139,15 +181,10 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
 
 def _current(index: int, worksheet: Worksheet, screening: Screening, system: str) -> Screening | None:
     """The screening for the what-if inputs: the result's own when they match the worksheet."""
-    state = st.session_state
-    chosen = {field: state.get(widget_key(index, field)) for field in ("accumulation", "T_D24", "MTT")}
-    if chosen == _defaults(worksheet, screening, system):
+    if _chosen(index) == _defaults(worksheet, screening, system):
         return screening
-    accumulation = (chosen["accumulation"] if chosen["accumulation"] is not None else 100.0) / 100.0
     try:
-        copy = what_if_worksheet(worksheet, screening.vessel, accumulation, _typed(chosen["T_D24"], system),
-                                 _typed(chosen["MTT"], system))
-        redone = solve(copy, system)
+        redone = solve(_with_inputs(worksheet, index, screening.vessel, system), system)
     except Exception as exc:  # noqa: BLE001 - a refusal is shown, never a traceback
         st.error(f"These screening inputs cannot be used: {exc}", icon=":material/error:")
         return None
