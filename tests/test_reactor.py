@@ -464,7 +464,7 @@ REACTOR_SAMPLE = ROOT / "sample_data" / "batch_reactor_exotherm.json"
 def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
     from streamlit.testing.v1 import AppTest
 
-    from heatbalance.worksheet import load_worksheet
+    from heatbalance.worksheet import Quantity, load_worksheet
 
     at = AppTest.from_file(str(APP), default_timeout=60)
     at.session_state["hb_worksheet"] = load_worksheet(REACTOR_SAMPLE.read_bytes())  # app.py's model key
