@@ -123,10 +123,12 @@ def on_sample_pick() -> None:
     path = sample_files().get(st.session_state.get("sample_picker"))
     if path is not None:
         replace_worksheet(load_sample(path))
+        sharing.forget_revision()
 
 
 def on_new_worksheet() -> None:
     replace_worksheet(tb.empty_worksheet())
+    sharing.forget_revision()
 
 
 def commit_model(base: Worksheet) -> None:

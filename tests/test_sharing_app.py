@@ -142,6 +142,21 @@ def test_an_edit_saved_again_is_a_new_revision_with_the_old_one_as_parent(db):
     assert any(f"`{first}`" in m.value and f"`{second}`" in m.value for m in at.markdown)
 
 
+def test_another_sample_descends_from_no_revision_and_leaves_the_address(db):
+    at = page()
+    at.button(key="share_save").click().run()
+    first = revision_id(at.session_state[WORKSHEET])
+    other = _sample(SAMPLES[0])
+    at.selectbox(key="sample_picker").select(other.title).run()
+    no_traceback(at)
+    assert "ws" not in at.query_params  # the address no longer names the first revision
+    assert not any(c.value.endswith(f"?ws={first}") for c in at.code)
+    at.button(key="share_save").click().run()
+    second = revision_id(other)
+    with WorksheetStore(db) as store:
+        assert [r.id for r in store.history(second)] == [second]  # not recorded as an edit of the first
+
+
 def test_the_compressed_link_on_the_page_opens_the_same_worksheet(db):
     at = page()
     payload = encode_sheet(at.session_state[WORKSHEET])

@@ -25,7 +25,8 @@ from heatbalance.results import Result
 from heatbalance.store import WorksheetStore, database_url
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-__all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "PROBLEM", "BASE", "SAVED", "OPENED_FROM"]
+__all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
+           "PROBLEM", "BASE", "SAVED", "OPENED_FROM"]
 
 # Session-state keys of this part (apart from widget keys).
 BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
@@ -97,6 +98,16 @@ def worksheet_from_upload(upload) -> Worksheet:
         raise WorksheetFormatError(f"the file is {upload.size:,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}",
                                    upload.name)
     return load_worksheet(upload.getvalue())
+
+
+def forget_revision() -> None:
+    """Another worksheet is on the page (a sample, a new sheet): it descends from no saved revision,
+    and the address bar no longer names the old one."""
+    for key in (BASE, SAVED, NOTICE):
+        st.session_state.pop(key, None)
+    for kind in ("ws", "sheet"):
+        if kind in st.query_params:
+            del st.query_params[kind]
 
 
 # --------------------------------------------------------------------------- callbacks
