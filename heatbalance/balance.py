@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import partial
 
 from scipy.optimize import brentq
 
@@ -21,7 +22,8 @@ from .properties import (IncompressibleSolution, Material, Phase, TabulatedMater
                          property_library_versions)
 from .reactions import reaction_enthalpy
 from .reactor import screen_worksheet
-from .results import Answer, LineResult, Result, TermResult, heat_kind
+from .results import (Answer, LineResult, Result, TermResult, heat_kind, heat_text, pressure_text,
+                      specific_energy_text, temperature_text)
 from .units import ATMOSPHERE, DISPLAY_UNITS, check_unit, from_si, is_us_customary, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
@@ -492,14 +494,11 @@ def _solve_linear(p: Problem) -> None:
 
 
 def _negative_amount_message(p: Problem, line: Line, dh: float, surplus: float) -> str:
-    kind = heat_kind(p.basis)
-    unit = DISPLAY_UNITS["SI"][kind]
-    rest = from_si(abs(surplus), unit, kind)
     role = "absorbs heat" if dh > 0 else "gives up heat"
     other = "a heat surplus" if surplus > 0 else "a heat deficit"
-    return (f"the balance would need a negative amount: {line.name} {role} ({dh / 1000:,.1f} kJ/kg), "
-            f"but the rest of the worksheet already has {other} of {rest:,.4g} {unit}. "
-            "Check the states of this line and the duties.")
+    return (f"the balance would need a negative amount: {line.name} {role} "
+            f"({specific_energy_text(abs(dh), p.system)}), but the rest of the worksheet already has {other} of "
+            f"{heat_text(abs(surplus), p.basis, p.system)}. Check the states of this line and the duties.")
 
 
 def _solve_temperature(p: Problem) -> float | None:
@@ -560,16 +559,15 @@ def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, fl
 
 
 def _unreachable_message(p: Problem, points, limits: dict[float, str]) -> str:
-    kind = heat_kind(p.basis)
-    unit = DISPLAY_UNITS["SI"][kind]
     (low, _, r_low), (high, r_high, _) = points[0], points[-1]
     too_much = r_low < 0 and r_high < 0
-    gap = from_si(min(abs(r_low), abs(r_high)), unit, kind)
+    gap = heat_text(min(abs(r_low), abs(r_high)), p.basis, p.system)
     bound = high if too_much else low
-    return (f"no temperature between {low - 273.15:.2f} and {high - 273.15:.2f} °C (the range of the property "
-            f"data) closes the balance: even at {bound - 273.15:.2f} °C (the {'upper' if too_much else 'lower'} "
+    T = partial(temperature_text, system=p.system)
+    return (f"no temperature between {T(low)} and {T(high)} (the range of the property "
+            f"data) closes the balance: even at {T(bound)} (the {'upper' if too_much else 'lower'} "
             f"limit of the data for {limits[bound]}) there is {'too much' if too_much else 'too little'} heat by "
-            f"{gap:,.4g} {unit}. Check the duties, the amounts and the other states.")
+            f"{gap}. Check the duties, the amounts and the other states.")
 
 
 def solve(ws: Worksheet, system: str = "SI") -> Result:
@@ -690,11 +688,12 @@ def _second_law(p: Problem, lines: list[LineResult], terms: list[TermResult]) ->
     if not hot or not cold:
         return []
     warnings = []
+    T = partial(temperature_text, system=p.system)
     source = max(hot, key=lambda ln: ln.initial_T)
     target = max(cold, key=lambda ln: ln.final_T)
     if target.final_T > source.initial_T + 1e-3:
-        text = (f"{source.name} enters at {source.initial_T - 273.15:.2f} °C, so it cannot heat "
-                f"{target.name} to {target.final_T - 273.15:.2f} °C: heat does not flow from cold to hot")
+        text = (f"{source.name} enters at {T(source.initial_T)}, so it cannot heat "
+                f"{target.name} to {T(target.final_T)}: heat does not flow from cold to hot")
         if not any(t.heat > 0 for t in terms if t.kind in ("duty", "reaction")):
             raise NoSolutionError(text + ". Use a hotter heating medium (higher steam pressure), lower the "
                                   "target, or add a heater duty.", p.unknown_label)
@@ -702,8 +701,8 @@ def _second_law(p: Problem, lines: list[LineResult], terms: list[TermResult]) ->
     sink = min(cold, key=lambda ln: ln.initial_T)
     cooled = min(hot, key=lambda ln: ln.final_T)
     if cooled.final_T < sink.initial_T - 1e-3:
-        text = (f"{sink.name} enters at {sink.initial_T - 273.15:.2f} °C, so it cannot cool "
-                f"{cooled.name} to {cooled.final_T - 273.15:.2f} °C: heat does not flow from cold to hot")
+        text = (f"{sink.name} enters at {T(sink.initial_T)}, so it cannot cool "
+                f"{cooled.name} to {T(cooled.final_T)}: heat does not flow from cold to hot")
         if not any(t.heat < 0 for t in terms if t.kind in ("duty", "loss")):
             raise NoSolutionError(text + ". Use a colder cooling medium, raise the outlet temperature, or add "
                                   "a cooler duty.", p.unknown_label)
@@ -718,13 +717,13 @@ def _phase_warnings(p: Problem, lines: list[LineResult]) -> list[str]:
             per_kg = ln.latent / max(ln.amount_si, 1e-300) / 1000
             verb = "takes up" if per_kg > 0 else "gives up"
             out.append(f"{ln.name} changes phase ({ln.initial_phase} → {ln.final_phase}) and {verb} latent heat, "
-                       f"{abs(per_kg):,.1f} kJ/kg; included in the balance.")
+                       f"{specific_energy_text(abs(per_kg) * 1000, p.system)}; included in the balance.")
         for T, P, label in ((ln.initial_T, ln.initial_P, "inlet"), (ln.final_T, ln.final_P, "outlet")):
             if isinstance(model.material, IncompressibleSolution):
                 water_boils = get_material("water").transitions(P)
                 if water_boils and T > water_boils[0].T:
                     out.append(f"{ln.name} {label} is above the boiling point of water at "
-                               f"{P / 1e5:.4g} bar(a); boiling of the solution is not modelled.")
+                               f"{pressure_text(P, p.system)}; boiling of the solution is not modelled.")
     return out
 
 
@@ -733,17 +732,18 @@ def _range_warnings(p: Problem, lines: list[LineResult]) -> list[str]:
     for model, ln in zip(p.lines, lines):
         for T in (ln.initial_T, ln.final_T):
             if model.material.extrapolated(T):
-                out.append(f"{ln.name}: {T - 273.15:.1f} °C is outside the validated range of the data for "
-                           f"{model.material.name} ({model.material.valid_min - 273.15:.0f} to "
-                           f"{model.material.valid_max - 273.15:.0f} °C); the value is extrapolated.")
+                out.append(f"{ln.name}: {temperature_text(T, p.system, 1)} is outside the validated range of the "
+                           f"data for {model.material.name} ({temperature_text(model.material.valid_min, p.system, 0)}"
+                           f" to {temperature_text(model.material.valid_max, p.system, 0)}); the value is "
+                           "extrapolated.")
                 break
     for e in p.equipment:
         if e.material is not None:
             T1 = p.temperatures.get(e.final.var) if e.final.var else None
             for T in (p.temperatures[e.initial_var], T1):
                 if T is not None and e.material.extrapolated(T):
-                    out.append(f"{e.name}: {T - 273.15:.1f} °C is outside the validated range of the data for "
-                               f"{e.material.name}; the value is extrapolated.")
+                    out.append(f"{e.name}: {temperature_text(T, p.system, 1)} is outside the validated range of "
+                               f"the data for {e.material.name}; the value is extrapolated.")
                     break
     return out
 

@@ -11,7 +11,8 @@ from dataclasses import asdict, dataclass, field
 from .units import DISPLAY_UNITS, display_unit, from_si
 
 __all__ = ["SIGN_CONVENTION", "Answer", "LineResult", "TermResult", "Result", "heat_kind",
-           "contribution_rows", "format_heat"]
+           "contribution_rows", "format_heat", "temperature_text", "pressure_text", "specific_energy_text",
+           "heat_text"]
 
 SIGN_CONVENTION = ("+ = heat into the process. Duties: heater +, cooler −. Reaction heat is + when "
                    "exothermic. Losses are heat leaving. Each line absorbs ΔH = m·(h_final − h_initial); "
@@ -130,6 +131,31 @@ def _amount_text(value: float) -> str:
         return "0"
     decimals = max(0, 3 - int(math.floor(math.log10(abs(value)))))
     return f"{round(value, decimals):,.{decimals}f}"
+
+
+def temperature_text(T: float, system: str = "SI", digits: int = 2) -> str:
+    """An absolute temperature [K] in the display unit: ``151.94 °C`` or ``305.49 °F``."""
+    unit = DISPLAY_UNITS[system]["temperature"]
+    return f"{from_si(T, unit, 'temperature'):.{digits}f} {display_unit(unit)}"
+
+
+def pressure_text(P: float, system: str = "SI") -> str:
+    """An absolute pressure [Pa] in the display unit: ``5.013 bar(a)`` or ``72.7 psia``."""
+    unit = DISPLAY_UNITS[system]["pressure"]
+    return f"{from_si(P, unit, 'pressure'):.4g} {display_unit(unit)}"
+
+
+def specific_energy_text(value: float, system: str = "SI") -> str:
+    """An energy per mass [J/kg] in the display unit: ``2,107.6 kJ/kg`` or ``906.1 Btu/lb``."""
+    unit = DISPLAY_UNITS[system]["specific_energy"]
+    return f"{from_si(value, unit, 'specific_energy'):,.1f} {unit}"
+
+
+def heat_text(value: float, basis: str, system: str = "SI") -> str:
+    """A heat in the display unit of the basis, 4 significant figures: ``440 kW``."""
+    kind = heat_kind(basis)
+    unit = DISPLAY_UNITS[system][kind]
+    return f"{from_si(value, unit, kind):,.4g} {unit}"
 
 
 def contribution_rows(result: Result, system: str = "SI") -> list[dict]:

@@ -81,7 +81,7 @@ def test_unreachable_target_steam_too_cold():
 
 def test_unreachable_temperature_too_much_heat():
     # 1 kg/s × 2 kJ/(kg·K) × (300 − 20) K = 560 kW is the most liquid A can take within its data
-    with pytest.raises(NoSolutionError, match=r"^stream Feed outlet temperature: no temperature between -50\.00 and "
+    with pytest.raises(NoSolutionError, match=r"^stream Feed outlet temperature: no temperature between -50\.00 °C and "
                                               r"300\.00 °C \(the range of the property data\) closes the balance: "
                                               r"even at 300\.00 °C \(the upper limit of the data for liquid A\) "
                                               r"there is too much heat by 440 kW"):

@@ -59,7 +59,7 @@ def test_extrapolated_table_data_is_a_warning():
     result = solve(ws)
     # hand calculation: 100 kg × 0.434 kJ/(kg·K) × 280 K (Incropera Table A.1, from memory)
     assert result.answer.value_si == pytest.approx(100 * 434 * 280)
-    assert any("300.0 °C is outside the validated range of the data for carbon steel (-50 to 150 °C)" in w
+    assert any("300.0 °C is outside the validated range of the data for carbon steel (-50 °C to 150 °C)" in w
                for w in result.warnings)
 
 
@@ -121,3 +121,22 @@ def test_mixed_vessel_cannot_end_on_a_fraction():
                duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
     with pytest.raises(InputError, match=r"^vessel V final: a final phase fraction needs all charges of one material"):
         solve(ws)
+
+
+def test_warnings_follow_the_display_units():
+    ws = build(streams=[stream("Boiler feed", "water", q(1, "t/h"), temp(20), temp(150))],
+               duties=[{"name": "Boiler"}], unknowns=[{"kind": "duty", "term": "Boiler"}])
+    (warning,) = solve(ws, "US").warnings
+    # IAPWS-IF97 h_fg at 1 atm 2256.5 kJ/kg = 970.1 Btu/lb (1 Btu/lb = 2.326 kJ/kg, exact)
+    assert "takes up latent heat, 970.1 Btu/lb" in warning
+
+
+def test_refusals_follow_the_display_units():
+    from heatbalance.errors import NoSolutionError
+    ws = build(materials=[A],
+               streams=[stream("Product", "liquid A", q(3600, "kg/h"), temp(80), temp(20)),
+                        stream("Cooling water", "water", q(1, "kg/s"), temp(28), temp(35), pressure=q(3, "barg"))],
+               unknowns=[{"kind": "amount", "line": "Cooling water"}])
+    # 28 °C = 82.40 °F, 20 °C = 68.00 °F (exact conversions)
+    with pytest.raises(NoSolutionError, match=r"Cooling water enters at 82\.40 °F, so it cannot cool Product to 68\.00 °F"):
+        solve(ws, "US")
