@@ -593,6 +593,21 @@ def solve(ws: Worksheet, system: str = "SI") -> Result:
     NoSolutionError
         No physical answer: a negative amount, an unreachable temperature, a
         second-law violation between lines.
+
+    Examples
+    --------
+    Heat 3.6 t/h of a liquid with cp = 2 kJ/(kg·K) from 20 to 80 °C; the duty by hand is
+    1 kg/s × 2 kJ/(kg·K) × 60 K = 120 kW:
+
+    >>> from heatbalance.worksheet import parse_worksheet
+    >>> ws = parse_worksheet({
+    ...     "materials": [{"name": "oil", "source": "example", "phases": [{"name": "liquid", "cp": "2 kJ/(kg*K)"}],
+    ...                    "min_temperature": "0 degC", "max_temperature": "200 degC"}],
+    ...     "streams": [{"name": "Oil", "material": "oil", "flow": "3.6 t/h",
+    ...                  "inlet": {"temperature": "20 degC"}, "outlet": {"temperature": "80 degC"}}],
+    ...     "duties": [{"name": "Heater"}], "unknowns": [{"kind": "duty", "term": "Heater"}]})
+    >>> solve(ws).answer.text
+    '120 kW'
     """
     if system not in DISPLAY_UNITS:
         raise InputError(f"unit system must be one of {sorted(DISPLAY_UNITS)}", "units")
