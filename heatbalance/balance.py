@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from functools import partial
+from functools import cached_property, partial
 
 from scipy.optimize import brentq
 
@@ -30,6 +30,7 @@ from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 __all__ = ["solve", "unknown_choices", "build_problem", "Problem"]
 
 T_TOL = 1e-6  # K: two temperatures closer than this are the same (a state on a plateau)
+LATENT_NOTICE_KJ_PER_KG = 0.01  # a line's latent heat above this is reported as a phase change
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
     "Losses as entered.",
@@ -60,6 +61,8 @@ class Line:
     initial: StateSpec
     final: StateSpec
     amount_label: str = ""
+    vessel: str | None = None  # for a charge: its vessel and its own name
+    charge: str | None = None
 
 
 @dataclass
@@ -187,7 +190,7 @@ class _Builder:
         return key
 
     # -- the unknown
-    @property
+    @cached_property
     def _unknown_var(self) -> str | None:
         u = self.unknown
         if u.kind != "temperature":
@@ -195,7 +198,11 @@ class _Builder:
         if u.common is not None:
             return f"common:{u.common}"
         if u.charge is not None:
-            return f"charge:{u.line}/{u.charge}:initial"
+            charge = next((c for v in self.ws.vessels if v.name == u.line for c in v.charges if c.name == u.charge),
+                          None)
+            if charge is not None:
+                common = charge.initial.common
+                return f"common:{common}" if common else f"charge:{u.line}/{u.charge}:initial"
         stream = next((s for s in self.ws.streams if s.name == u.line), None)
         if stream is not None and u.end in ("inlet", "outlet"):
             state = stream.inlet if u.end == "inlet" else stream.outlet
@@ -252,7 +259,7 @@ class _Builder:
                               self.material(c.material, c.mass_fraction, cw),
                               self.amount(c.mass, f"{cw} mass", is_unknown),
                               self.state(c.initial, f"charge:{v.name}/{c.name}:initial", f"{cw} initial", P),
-                              final, amount_label=f"{v.name} / {c.name} mass"))
+                              final, amount_label=f"{v.name} / {c.name} mass", vessel=v.name, charge=c.name))
         if final.plateau and len({line.material_name for line in lines}) > 1:
             raise InputError("a final phase fraction needs all charges of one material; give a temperature",
                              f"{where} final")
@@ -327,14 +334,20 @@ class _Builder:
         if moles < 0:
             raise InputError(f"the amount reacted cannot be negative ({r.amount})", f"{where} amount")
         reacted = moles * r.conversion
+        amount_kind = "amount" if self.basis == "batch" else "molar_flow"
+        amount_unit = DISPLAY_UNITS[self.system][amount_kind]
         entered = str(r.enthalpy) if r.enthalpy is not None else \
             f"{dH / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
-        detail = f"ΔH = {entered} × {reacted / 1000:.4g} kmol reacted (conversion {r.conversion:.0%})"
+        detail = (f"ΔH = {entered} × {from_si(reacted, amount_unit, amount_kind):.4g} {amount_unit} reacted "
+                  f"(conversion {r.conversion:.0%})")
         return HeatTerm(r.name, "reaction", -dH * reacted, detail)
 
     def _target(self, lines: list[Line], terms: list[HeatTerm], var: str | None):
         u = self.unknown
         if u.kind == "temperature":
+            if var not in self.var_labels:
+                raise InputError(f"the unknown temperature names no state of this worksheet ({_unknown_text(u)})",
+                                 "unknown")
             return var, self.var_labels[var], self.var_units[var]
         if u.kind == "amount":
             line = next((ln for ln in lines if ln.amount is None), None)
@@ -353,8 +366,8 @@ class _Builder:
         if line.kind == "stream":
             q = next(s.flow for s in self.ws.streams if s.name == line.name)
         else:
-            vessel, charge = line.name.split(" / ", 1)
-            q = next(c.mass for v in self.ws.vessels if v.name == vessel for c in v.charges if c.name == charge)
+            q = next(c.mass for v in self.ws.vessels if v.name == line.vessel for c in v.charges
+                     if c.name == line.charge)
         return q.unit if q is not None else DISPLAY_UNITS[self.system][
             "mass_flow" if self.basis == "continuous" else "mass"]
 
@@ -482,8 +495,7 @@ def _solve_linear(p: Problem) -> None:
         raise NoSolutionError(f"{target.name} does not change state (h_final = h_initial), so its "
                               "amount cannot carry any heat: give it different initial and final states",
                               p.unknown_label)
-    others = [ln for ln in p.lines if ln is not target] + p.equipment + [t for t in p.terms if t.heat]
-    if not others or (supplied == 0 and absorbed == 0):
+    if supplied == 0 and absorbed == 0:
         raise NoSolutionError(f"nothing else in the balance gives {target.name} heat or takes heat from it, so "
                               "its amount is undetermined: add the duty or the line that exchanges heat with it, "
                               "or solve for one of its temperatures instead", p.unknown_label)
@@ -718,18 +730,18 @@ def _second_law(p: Problem, lines: list[LineResult], terms: list[TermResult]) ->
     if cooled.final_T < sink.initial_T - 1e-3:
         text = (f"{sink.name} enters at {T(sink.initial_T)}, so it cannot cool "
                 f"{cooled.name} to {T(cooled.final_T)}: heat does not flow from cold to hot")
-        if not any(t.heat < 0 for t in terms if t.kind in ("duty", "loss")):
+        if not any(t.heat < 0 for t in terms if t.kind == "duty"):
             raise NoSolutionError(text + ". Use a colder cooling medium, raise the outlet temperature, or add "
                                   "a cooler duty.", p.unknown_label)
-        warnings.append("Temperature cross: " + text + " without the cooler duty or losses.")
+        warnings.append("Temperature cross: " + text + " without the cooler duty.")
     return warnings
 
 
 def _phase_warnings(p: Problem, lines: list[LineResult]) -> list[str]:
     out = []
     for model, ln in zip(p.lines, lines):
-        if abs(ln.latent) > 1e-9 * max(1.0, abs(ln.total)):
-            per_kg = ln.latent / max(ln.amount_si, 1e-300) / 1000
+        per_kg = ln.latent / max(ln.amount_si, 1e-300) / 1000
+        if abs(per_kg) > LATENT_NOTICE_KJ_PER_KG:
             verb = "takes up" if per_kg > 0 else "gives up"
             out.append(f"{ln.name} changes phase ({ln.initial_phase} → {ln.final_phase}) and {verb} latent heat, "
                        f"{specific_energy_text(abs(per_kg) * 1000, p.system)}; included in the balance.")
@@ -777,6 +789,8 @@ def unknown_choices(ws: Worksheet) -> list[tuple[str, Unknown]]:
             out.append((f"{v.name}: final temperature", Unknown(kind="temperature", line=v.name, end="final")))
         for c in v.charges:
             out.append((f"{v.name} / {c.name}: mass", Unknown(kind="amount", line=v.name, charge=c.name)))
+            if c.initial.common is not None:
+                continue  # its temperature is the shared one, offered as such
             out.append((f"{v.name} / {c.name}: initial temperature",
                         Unknown(kind="temperature", line=v.name, charge=c.name, end="initial")))
     for c in ws.common_temperatures:

@@ -124,6 +124,8 @@ class CoolPropFluid(Material):
         self.p_critical = probe.p_critical()
         self.p_triple = probe.trivial_keyed_output(CP.iP_triple)
         self.p_max = probe.pmax() if backend == "HEOS" else 100e6
+        # IF97 has no data below the triple-point pressure (611.657 Pa); HEOS gases go lower.
+        self.p_min = self.p_triple if backend == "IF97" else 0.0
         label = "IAPWS-IF97" if backend == "IF97" else "Helmholtz equation of state"
         self.source = f"CoolProp {CoolProp.__version__}, {backend} backend ({label})"
 
@@ -131,8 +133,9 @@ class CoolPropFluid(Material):
         return self._local.state
 
     def check_pressure(self, P: float, where: str = "") -> None:
-        if P > self.p_max:
-            raise PropertyRangeError(self.name, "pressure", P / 1e5, 0.0, self.p_max / 1e5, "bar(a)", where)
+        if not self.p_min <= P <= self.p_max:
+            raise PropertyRangeError(self.name, "pressure", P / 1e5, self.p_min / 1e5, self.p_max / 1e5, "bar(a)",
+                                     where)
 
     def phase_name(self, T: float, P: float) -> str:
         return "supercritical fluid" if P >= self.p_critical else super().phase_name(T, P)
@@ -148,8 +151,14 @@ class CoolPropFluid(Material):
         try:
             state.update(CP.PT_INPUTS, P, T)
             return state.hmass()
-        except (ValueError, IndexError):  # on the saturation line (IF97: "Region 4 with T and p")
-            sat = _saturation(self, P)
+        except (ValueError, IndexError) as exc:
+            if not self.p_triple < P < self.p_critical:
+                raise PropertyRangeError(self.name, "pressure", P / 1e5, self.p_min / 1e5, self.p_max / 1e5,
+                                         "bar(a)") from exc
+            sat = _saturation(self, P)  # on the saturation line (IF97: "Region 4 with T and p")
+            if abs(T - sat.T) > 1e-3:
+                raise InputError(f"no property data for {self.name} at {T - 273.15:.2f} °C, "
+                                 f"{P / 1e5:.4g} bar(a) ({exc})") from exc
             return sat.h_lower if T <= sat.T else sat.h_upper
 
 

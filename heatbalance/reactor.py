@@ -21,10 +21,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-import pint
-
-from .errors import InputError, NoSolutionError, UnitError
-from .units import DISPLAY_UNITS, display_unit, from_si, to_si, ureg
+from .errors import InputError, NoSolutionError
+from .units import DISPLAY_UNITS, display_unit, from_si, to_si
 
 __all__ = ["CAUTION", "CLASS_MEANINGS", "thermal_inertia_factor", "adiabatic_temperature_rise", "mtsr",
            "criticality_class", "jacket_time", "jacket_temperature", "JacketTime", "Screening",
@@ -496,17 +494,6 @@ def _cp_at(material, T: float, P: float) -> float:
     return (material.enthalpy(hi, P) - material.enthalpy(lo, P)) / (hi - lo)
 
 
-def _quantity(q, si_unit: str, words: str, where: str) -> float:
-    """A typed quantity of a kind the unit registry has no name for (U, UA, area), in SI."""
-    if not math.isfinite(q.value):
-        raise InputError(f"{q.value!r} is not a finite number", where)
-    text = q.unit.strip().replace("·", "*").replace("⋅", "*").replace("²", "**2").replace("°", "deg")
-    try:
-        return float(ureg.Quantity(q.value, text).to(si_unit).magnitude)
-    except (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError, KeyError):
-        raise UnitError(q.unit, words, where) from None
-
-
 def _t(T: float, system: str) -> str:
     unit = DISPLAY_UNITS[system]["temperature"]
     return f"{from_si(T, unit, 'temperature'):.1f} {display_unit(unit)}"
@@ -576,9 +563,7 @@ def screen_worksheet(ws, problem, result) -> list[Screening]:
 def _screen_vessel(vessel, reactions: list, problem, result, system: str) -> Screening:
     where = f"vessel {vessel.name} screening"
     inputs = vessel.screening
-    prefix = f"{vessel.name} / "
-    charges = [(model, line) for model, line in zip(problem.lines, result.lines)
-               if line.kind == "charge" and line.name.startswith(prefix)]
+    charges = [(model, line) for model, line in zip(problem.lines, result.lines) if model.vessel == vessel.name]
     P = charges[0][1].final_P
     T_final = charges[0][1].final_T
     notes: list[str] = []
@@ -669,10 +654,10 @@ def _jacket(j, T_process: float, heat_capacity: float, where: str) -> JacketTime
     T1 = T_process if j.start_temperature is None else \
         to_si(j.start_temperature.value, j.start_temperature.unit, "temperature", f"{where} start temperature")
     if j.UA is not None:
-        UA = _quantity(j.UA, "W/K", "a heat-transfer coefficient times area (e.g. kW/K)", f"{where} UA")
+        UA = to_si(j.UA.value, j.UA.unit, "thermal_conductance", f"{where} UA")
     else:
-        U = _quantity(j.U, "W/(m**2*K)", "a heat-transfer coefficient (e.g. W/(m^2*K))", f"{where} U")
-        A = _quantity(j.area, "m**2", "an area (e.g. m^2)", f"{where} area")
+        U = to_si(j.U.value, j.U.unit, "heat_transfer_coefficient", f"{where} U")
+        A = to_si(j.area.value, j.area.unit, "area", f"{where} area")
         _positive(U, "U", "W/(m²·K)", f"{where} U")
         _positive(A, "the area", "m²", f"{where} area")
         UA = U * A

@@ -27,6 +27,7 @@ ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=Tru
 # thermochemical default.
 ureg.define("kcal = 1000 * international_calorie")
 ureg.define("MMBtu = 1e6 * Btu")
+ureg.define("lbmol = 453.59237 * mol = pound_mole")  # exact: a pound of substance in grams-per-mole
 ureg.define("MBtu = 1e3 * Btu")
 ureg.define("TR = ton_of_refrigeration")
 ureg.define("tonne_per_hour = tonne / hour = tph")
@@ -51,6 +52,9 @@ KINDS: dict[str, tuple[str, str]] = {
     "specific_heat": ("J/(kg*K)", "a specific heat capacity"),
     "specific_energy": ("J/kg", "an energy per unit mass"),
     "molar_mass": ("kg/mol", "a molar mass"),
+    "thermal_conductance": ("W/K", "a heat-transfer coefficient times area (e.g. kW/K)"),
+    "heat_transfer_coefficient": ("W/(m**2*K)", "a heat-transfer coefficient (e.g. W/(m^2*K))"),
+    "area": ("m**2", "an area (e.g. m^2)"),
 }
 
 _GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}
@@ -64,7 +68,7 @@ _DIFFERENCE_ALIASES = {"K": "K", "degC": "delta_degC", "°C": "delta_degC", "C":
 
 def _normalise(unit: str) -> str:
     """Write typographic forms the way pint reads them: ``kJ/(kg·K)`` -> ``kJ/(kg*K)``."""
-    text = unit.strip().replace("·", "*").replace("⋅", "*").replace("°", "deg")
+    text = unit.strip().replace("·", "*").replace("⋅", "*").replace("²", "**2").replace("°", "deg")
     text = text.replace("deg C", "degC").replace("deg F", "degF").replace("deg R", "degR")
     return re.sub(r"\s+", " ", text)
 
@@ -88,7 +92,7 @@ def _parse(unit: str, kind: str, where: str) -> tuple[pint.Unit, float]:
         text = _ABSOLUTE_ALIASES.get(text, text)
     try:
         parsed = _unit(_normalise(text))
-    except (pint.errors.PintError, AttributeError, TypeError, ValueError, SyntaxError, KeyError) as exc:
+    except Exception as exc:  # noqa: BLE001 - pint's parser raises many types ("kg/0", "(", "kg**(1/0)")
         raise UnitError(unit, KINDS[kind][1], where, detail="not a unit this tool knows") from exc
     return parsed, offset
 

@@ -294,7 +294,11 @@ class Worksheet(_Model):
     def _unique_names(self):
         names = [s.name for s in self.streams] + [v.name for v in self.vessels]
         terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
-        for label, group in (("line", names), ("heat term", terms)):
+        groups = [("line", names), ("heat term", terms),
+                  ("common temperature", [c.name for c in self.common_temperatures]),
+                  ("material", [m.name for m in self.materials])]
+        groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]
+        for label, group in groups:
             repeated = sorted({n for n in group if group.count(n) > 1})
             if repeated:
                 raise ValueError(f"{label} names must be unique; repeated: {', '.join(repeated)}")

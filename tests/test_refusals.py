@@ -167,3 +167,42 @@ def test_flow_of_a_line_alone_is_undetermined():
     with pytest.raises(NoSolutionError, match=r"^Feed flow: nothing else in the balance gives Feed heat or takes heat "
                                               r"from it, so its amount is undetermined"):
         solve_with(streams=streams, duties=[], unknowns=[{"kind": "amount", "line": "Feed"}])
+
+
+@pytest.mark.parametrize("part, message", [
+    ({"common_temperatures": [{"name": "M"}, {"name": "M"}]}, r"common temperature names must be unique; repeated: M"),
+    ({"materials": [A, A]}, r"material names must be unique; repeated: liquid A"),
+    ({"basis": {"kind": "batch"}, "streams": [],
+      "vessels": [{"name": "V", "final": temp(30), "charges": [
+          {"name": "c", "material": "water", "mass": q(1, "t"), "initial": temp(20)},
+          {"name": "c", "material": "water", "mass": q(1, "t"), "initial": temp(80)}]}]},
+     r"charge \(in vessel V\) names must be unique; repeated: c"),
+])
+def test_repeated_names_of_other_parts(part, message):
+    with pytest.raises(WorksheetFormatError, match=message):
+        parse_worksheet(sheet(**{**HEATER, **part}))
+
+
+@pytest.mark.parametrize("unknown", [{"kind": "temperature", "line": "Feed", "charge": "nope"},
+                                     {"kind": "temperature", "common": "X"},
+                                     {"kind": "temperature", "line": "Feed", "end": "final"}])
+def test_unknown_temperature_that_names_nothing(unknown):
+    with pytest.raises(InputError, match=r"^unknown: the unknown temperature names no state of this worksheet"):
+        solve_with(unknowns=[unknown])
+
+
+def test_water_below_its_triple_point_pressure():
+    streams = [stream("LP", "water", q(1, "t/h"), temp(20), temp(40), pressure=q(0.005, "bar"))]
+    # IAPWS: triple-point pressure of water 611.657 Pa
+    with pytest.raises(PropertyRangeError, match=r"^stream LP inlet: pressure 0\.005 bar\(a\) is outside the property "
+                                                 r"data of water \(0\.00611\d* to 1000 bar\(a\)\)"):
+        solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
+
+
+def test_a_vessel_name_with_a_slash_is_just_a_name():
+    # hand calculation: m = 40 MJ / (2.0 kJ/(kg·K) × 10 K) = 2 t
+    ws = build(basis={"kind": "batch", "duration": q(1, "h")}, materials=[A],
+               vessels=[{"name": "A / B", "final": temp(30), "charges": [
+                   {"name": "C / D", "material": "liquid A", "mass": q(1, "t"), "initial": temp(20)}]}],
+               duties=[{"name": "H", "value": q(40, "MJ")}], unknowns=[{"kind": "amount", "line": "A / B", "charge": "C / D"}])
+    assert solve(ws).answer.value == pytest.approx(2.0)

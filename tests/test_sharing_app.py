@@ -168,10 +168,12 @@ def test_pasting_a_link_opens_it(db):
     with WorksheetStore(db) as store:
         rev_id = store.save(worksheet).id
     at = page()
+    at.button(key="share_save").click().run()  # the default sheet saved: the address names its revision
     at.text_input(key="share_link_input").set_value(f"https://sheets.example.invalid/?ws={rev_id}").run()
     no_traceback(at)
     assert at.session_state[WORKSHEET] == worksheet
     assert answer(at) == solve(worksheet).answer.text
+    assert at.query_params["ws"] in (rev_id, [rev_id])  # now the pasted revision, not the saved one
 
 
 def test_pasting_a_bad_link_says_why_and_keeps_the_sheet(db):

@@ -138,7 +138,7 @@ def _on_upload(replace: Callable[[Worksheet], None]) -> None:
         state[PROBLEM] = f"{upload.name} was not opened: {exc}"
         return
     replace(worksheet)
-    state[BASE] = None
+    forget_revision()
     state[NOTICE] = f"Opened {upload.name}."
 
 
@@ -154,7 +154,10 @@ def _on_open_link(replace: Callable[[Worksheet], None]) -> None:
         state[PROBLEM] = f"The link could not be opened: {exc.message}"
         return
     replace(worksheet)
+    forget_revision()
     state[BASE] = rev_id
+    if rev_id:
+        st.query_params["ws"] = rev_id  # the address bar names what is on the page
     state[NOTICE] = f"Opened saved revision {rev_id}." if rev_id else "Opened the worksheet carried by the link."
 
 
