@@ -14,7 +14,7 @@ from typing import Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
 from .errors import WorksheetFormatError
-from .migrations import migrate
+from .migrations import CURRENT_VERSION, migrate
 
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
@@ -23,7 +23,7 @@ __all__ = [
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH",
 ]
 
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = CURRENT_VERSION  # one number, kept in migrations.py beside the migrations that reach it
 MAX_DOCUMENT_BYTES = 1_000_000  # a worksheet larger than 1 MB is refused
 MAX_NESTING_DEPTH = 20  # objects/lists nested deeper are refused (a real worksheet is about 7 deep)
 
