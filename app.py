@@ -27,7 +27,6 @@ DEFAULT_SAMPLE = "steam_heater_glycol.json"
 SAFETY_CAUTION = ("A screening estimate, not a substitute for reaction calorimetry, a process hazard "
                   "analysis or licensed engineering; follow local codes and your site's practice.")
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
-NUMBER_COLUMNS = ("mass fraction", "conversion", "cp per K", "cp per K²")  # table cells that are plain numbers
 
 # Session-state keys of the model, apart from widget keys.
 WORKSHEET = "hb_worksheet"  # the last valid Worksheet: what is solved
@@ -349,7 +348,7 @@ def table_frame(table: str, rows: list[dict], problems: list[tb.CellProblem]) ->
     data = {"check": pd.Series(_check_marks(table, len(rows), problems), dtype="object")}
     for column in tb.COLUMNS[table]:
         values = [row.get(column) for row in rows]
-        if column in NUMBER_COLUMNS:
+        if column in tb.NUMBER_COLUMNS:
             data[column] = pd.Series([v if isinstance(v, (int, float)) else None for v in values], dtype="float64")
         else:
             data[column] = pd.Series([None if v in (None, "") else str(v) for v in values], dtype="object")

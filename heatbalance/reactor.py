@@ -22,7 +22,8 @@ import math
 from dataclasses import dataclass, field
 
 from .errors import InputError, NoSolutionError
-from .units import DISPLAY_UNITS, display_unit, from_si, to_si
+from .results import temperature_text
+from .units import ATMOSPHERE, DISPLAY_UNITS, display_unit, from_si, to_si
 
 __all__ = ["CAUTION", "CLASS_MEANINGS", "thermal_inertia_factor", "adiabatic_temperature_rise", "mtsr",
            "criticality_class", "jacket_time", "jacket_temperature", "JacketTime", "Screening",
@@ -495,8 +496,7 @@ def _cp_at(material, T: float, P: float) -> float:
 
 
 def _t(T: float, system: str) -> str:
-    unit = DISPLAY_UNITS[system]["temperature"]
-    return f"{from_si(T, unit, 'temperature'):.1f} {display_unit(unit)}"
+    return temperature_text(T, system, 1)
 
 
 def _dt(dT: float, system: str) -> str:
@@ -588,7 +588,7 @@ def _screen_vessel(vessel, reactions: list, problem, result, system: str) -> Scr
     for e in problem.equipment:
         if e.name == f"{vessel.name} equipment":
             C_vessel = e.heat_capacity if e.heat_capacity is not None else \
-                e.mass * _cp_at(e.material, T_process, 101325.0)
+                e.mass * _cp_at(e.material, T_process, ATMOSPHERE)
     phi = thermal_inertia_factor(mass, cp, C_vessel=C_vessel)
     dT_ad = adiabatic_temperature_rise(Q, mass, cp)
     dT_ad_phi = adiabatic_temperature_rise(Q, mass, cp, phi)

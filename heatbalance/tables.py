@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from .errors import HeatBalanceError, InputError, WorksheetFormatError
 from .materials import catalogue
 from .units import KINDS, check_unit, kind_of
-from .worksheet import Quantity, State, Unknown, Worksheet, parse_worksheet
+from .worksheet import QUANTITY_TEXT, Quantity, State, Unknown, Worksheet, parse_worksheet
 
 __all__ = [
     "TABLES", "TABLE_TITLES", "COLUMNS", "CellProblem", "worksheet_to_tables", "tables_to_worksheet",
@@ -50,11 +50,10 @@ TABLE_TITLES = {
 }
 #: columns the page shows read-only (derived from other cells)
 DERIVED = {"pressure is"}
-_NUMBER_COLUMNS = {"mass fraction", "conversion", "cp per K", "cp per K²"}
+NUMBER_COLUMNS = frozenset({"mass fraction", "conversion", "cp per K", "cp per K²"})  # plain-number cells
 _GAUGE_UNITS = ("barg", "psig", "kPag", "MPag")
 _PRETTY_UNITS = {"degC": "°C", "degF": "°F", "degR": "°R"}
 _STORED_UNITS = {pretty: unit for unit, pretty in _PRETTY_UNITS.items()}
-_QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 _FRACTION_TEXT = re.compile(r"^(vapou?r|solid)(?:\s+(?:fraction|quality))?\s*[:=]?\s*([-+]?[\d.]+)\s*(%?)$")
 
 
@@ -117,7 +116,7 @@ def parse_quantity(text: str, kinds: tuple[str, ...], column: str) -> Quantity:
     >>> parse_quantity("12 t/h", ("mass_flow",), "flow")
     Quantity(value=12.0, unit='t/h')
     """
-    match = _QUANTITY_TEXT.match(text.replace("−", "-"))
+    match = QUANTITY_TEXT.match(text.replace("−", "-"))
     if not match:
         raise _CellError(column, f"'{text}' is not a number followed by a unit (e.g. {_example(kinds)})")
     value, unit = float(match.group(1)), match.group(2)
@@ -200,7 +199,7 @@ def pressure_reference(text) -> str:
     >>> pressure_reference("4 barg"), pressure_reference("2.1 bar")
     ('gauge', 'absolute')
     """
-    match = _QUANTITY_TEXT.match(_text(text))
+    match = QUANTITY_TEXT.match(_text(text))
     if not match or not match.group(2):
         return ""
     unit = match.group(2)

@@ -32,7 +32,7 @@ class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", validate_assignment=True)
 
 
-_QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 
 
 class Quantity(_Model):
@@ -45,7 +45,7 @@ class Quantity(_Model):
     @classmethod
     def _from_text(cls, data):
         if isinstance(data, str):
-            match = _QUANTITY_TEXT.match(data)
+            match = QUANTITY_TEXT.match(data)
             if not match:
                 raise ValueError(f"'{data}' is not a number followed by a unit")
             return {"value": float(match.group(1)), "unit": match.group(2)}
