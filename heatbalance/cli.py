@@ -7,54 +7,26 @@ import json
 import sys
 from pathlib import Path
 
-from .balance import solve
+from .analyses import solve_and_analyse
 from .errors import HeatBalanceError
 from .materials import catalogue
-from .reactor import screening_report
-from .results import SIGN_CONVENTION, contribution_rows, format_heat
+from .present.report import format_result, result_json
+from .present.text import error_text
 from .worksheet import dump_worksheet, load_worksheet
 
 __all__ = ["main"]
 
 
-def _table(rows: list[dict], columns: list[str]) -> str:
-    def cell(value) -> str:
-        if value is None:
-            return ""
-        return f"{value:,.2f}" if isinstance(value, float) else str(value)
-
-    cells = [[cell(r.get(c)) for c in columns] for r in rows]
-    widths = [max(len(c), *(len(row[i]) for row in cells)) for i, c in enumerate(columns)]
-    lines = ["  ".join(c.ljust(w) for c, w in zip(columns, widths)), "  ".join("-" * w for w in widths)]
-    lines += ["  ".join(v.rjust(w) if i >= 4 else v.ljust(w) for i, (v, w) in enumerate(zip(row, widths)))
-              for row in cells]
-    return "\n".join(lines)
-
-
-def format_result(result, system: str) -> str:
-    """A readable report of a solved worksheet."""
-    rows = contribution_rows(result, system)
-    columns = ["item", "type", "from", "to", *[k for k in rows[0] if "[" in k]]
-    out = [result.title, "=" * len(result.title), f"ANSWER  {result.answer.label} = {result.answer.text}", "",
-           _table(rows, columns), "",
-           f"closure residual: {format_heat(result.residual, result.basis, system)}",
-           f"sign convention: {SIGN_CONVENTION}", "", "assumptions:"]
-    out += [f"  - {a}" for a in result.assumptions]
-    out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
-    out += ["warnings:"] + ([f"  ! {w}" for w in result.warnings] or ["  (none)"])
-    if result.screening:
-        out += [""] + screening_report(result.screening, system)
-    out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
-    return "\n".join(out)
+def _print_result(result, args) -> None:
+    if args.json:
+        print(json.dumps(result_json(result, args.units), indent=2, ensure_ascii=False))
+    else:
+        print(format_result(result, args.units))
 
 
 def _solve(args) -> int:
     worksheet = load_worksheet(Path(args.worksheet).read_bytes())
-    result = solve(worksheet, args.units)
-    if args.json:
-        print(json.dumps(result.to_dict(), indent=2, ensure_ascii=False))
-    else:
-        print(format_result(result, args.units))
+    _print_result(solve_and_analyse(worksheet), args)
     return 0
 
 
@@ -92,9 +64,7 @@ def _opened(link: str):
 def _open(args) -> int:
     worksheet = _opened(args.id)
     if args.solve:
-        result = solve(worksheet, args.units)
-        print(json.dumps(result.to_dict(), indent=2, ensure_ascii=False) if args.json
-              else format_result(result, args.units))
+        _print_result(solve_and_analyse(worksheet), args)
     else:
         print(dump_worksheet(worksheet))
     return 0
@@ -141,7 +111,8 @@ def main(argv: list[str] | None = None) -> int:
     try:
         return args.handler(args)
     except HeatBalanceError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        where = f"{exc.where}: " if exc.where else ""
+        print(f"error: {where}{error_text(exc, getattr(args, 'units', 'SI'))}", file=sys.stderr)
         return 1
     except OSError as exc:
         print(f"error: cannot read {getattr(args, 'worksheet', '')}: {exc.strerror or exc}", file=sys.stderr)

@@ -1,10 +1,14 @@
 """Errors raised by the engine: one base class, each also a builtin.
 
-Every error keeps its data as fields and builds its message from them, so the
-page and the command line can say *where* the problem is (``where``) and
-*what* is wrong (``message``).
+Every error keeps its data as fields: ``address`` names the input at fault (see
+:mod:`heatbalance.address`; ``where`` is the same string) and ``phrase`` says what is
+wrong, with any temperature or pressure kept as an SI :class:`~heatbalance.messages.Measure`
+so the page and the command line write it in their own units. ``message`` is the
+phrase in plain SI units.
 """
 from __future__ import annotations
+
+from .messages import Measure, Phrase
 
 __all__ = [
     "HeatBalanceError",
@@ -13,16 +17,33 @@ __all__ = [
     "PropertyRangeError",
     "NoSolutionError",
     "WorksheetFormatError",
+    "AddressError",
 ]
 
 
 class HeatBalanceError(Exception):
-    """Base class of every error the engine raises on purpose."""
+    """Base class of every error the engine raises on purpose.
 
-    def __init__(self, message: str, where: str = ""):
-        self.message = message
-        self.where = where
-        super().__init__(f"{where}: {message}" if where else message)
+    Parameters
+    ----------
+    message : str or Phrase
+        What is wrong and how to fix it.
+    where : str
+        The address of the field at fault (``streams[Steam].flow``), or ``""``.
+    """
+
+    def __init__(self, message: str | Phrase, where: str = ""):
+        self.phrase = message if isinstance(message, Phrase) else Phrase(str(message))
+        self.address = where
+        super().__init__(f"{where}: {self.message}" if where else self.message)
+
+    @property
+    def message(self) -> str:
+        return self.phrase.text
+
+    @property
+    def where(self) -> str:
+        return self.address
 
 
 class InputError(HeatBalanceError, ValueError):
@@ -42,15 +63,16 @@ class UnitError(InputError):
 
 
 class PropertyRangeError(InputError):
-    """A state lies outside the range of a material's property data."""
+    """A state lies outside the range of a material's property data (``value``, ``low``, ``high`` in SI)."""
 
     def __init__(self, material: str, quantity: str, value: float, low: float, high: float,
-                 unit: str, where: str = ""):
+                 kind: str, where: str = ""):
         self.material, self.quantity, self.value = material, quantity, value
-        self.low, self.high, self.unit = low, high, unit
-        message = (f"{quantity} {value:.6g} {unit} is outside the property data of "
-                   f"{material} ({low:.6g} to {high:.6g} {unit})")
-        super().__init__(message, where)
+        self.low, self.high, self.kind = low, high, kind
+        phrase = Phrase("{quantity} {value} is outside the property data of {material} ({low} to {high})",
+                        {"quantity": quantity, "material": material, "value": Measure(value, kind, 6),
+                         "low": Measure(low, kind, 6), "high": Measure(high, kind, 6)})
+        super().__init__(phrase, where)
 
 
 class NoSolutionError(HeatBalanceError, ArithmeticError):
@@ -59,3 +81,10 @@ class NoSolutionError(HeatBalanceError, ArithmeticError):
 
 class WorksheetFormatError(InputError):
     """A worksheet document that does not follow the worksheet format."""
+
+
+class AddressError(InputError, KeyError):
+    """An address that names nothing in the worksheet, or a field that cannot take the value given."""
+
+    def __str__(self) -> str:  # KeyError would quote the message
+        return f"{self.where}: {self.message}" if self.where else self.message

@@ -21,6 +21,7 @@ import CoolProp
 import CoolProp.CoolProp as CP
 
 from .errors import InputError, PropertyRangeError
+from .messages import Measure, Phrase
 
 __all__ = ["Transition", "Material", "CoolPropFluid", "IncompressibleSolution", "TabulatedMaterial",
            "Phase", "EVALUATIONS", "property_library_versions"]
@@ -83,8 +84,7 @@ class Material:
     def check_range(self, T: float, where: str = "") -> None:
         """Refuse a temperature outside the property data's range."""
         if not self.t_min - 1e-9 <= T <= self.t_max + 1e-9:
-            raise PropertyRangeError(self.name, "temperature", T - 273.15, self.t_min - 273.15,
-                                     self.t_max - 273.15, "°C", where)
+            raise PropertyRangeError(self.name, "temperature", T, self.t_min, self.t_max, "temperature", where)
 
     def extrapolated(self, T: float) -> bool:
         """True when T lies in the extrapolation band of the data."""
@@ -134,8 +134,7 @@ class CoolPropFluid(Material):
 
     def check_pressure(self, P: float, where: str = "") -> None:
         if not self.p_min <= P <= self.p_max:
-            raise PropertyRangeError(self.name, "pressure", P / 1e5, self.p_min / 1e5, self.p_max / 1e5, "bar(a)",
-                                     where)
+            raise PropertyRangeError(self.name, "pressure", P, self.p_min, self.p_max, "pressure", where)
 
     def phase_name(self, T: float, P: float) -> str:
         return "supercritical fluid" if P >= self.p_critical else super().phase_name(T, P)
@@ -153,12 +152,12 @@ class CoolPropFluid(Material):
             return state.hmass()
         except (ValueError, IndexError) as exc:
             if not self.p_triple < P < self.p_critical:
-                raise PropertyRangeError(self.name, "pressure", P / 1e5, self.p_min / 1e5, self.p_max / 1e5,
-                                         "bar(a)") from exc
+                raise PropertyRangeError(self.name, "pressure", P, self.p_min, self.p_max, "pressure") from exc
             sat = _saturation(self, P)  # on the saturation line (IF97: "Region 4 with T and p")
             if abs(T - sat.T) > 1e-3:
-                raise InputError(f"no property data for {self.name} at {T - 273.15:.2f} °C, "
-                                 f"{P / 1e5:.4g} bar(a) ({exc})") from exc
+                raise InputError(Phrase("no property data for {name} at {T}, {P} ({detail})",
+                                        {"name": self.name, "T": Measure(T, "temperature"),
+                                         "P": Measure(P, "pressure"), "detail": str(exc)})) from exc
             return sat.h_lower if T <= sat.T else sat.h_upper
 
 

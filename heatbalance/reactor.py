@@ -10,9 +10,9 @@ Published methods, usual names (Stoessel [1]_):
 * the criticality class 1-5 from the order of T_process, MTSR, MTT and T_D24;
 * the time to heat or cool a batch through a jacket with a utility at constant temperature.
 
-The functions take and return plain SI floats (K, J, kg, J/(kg·K), W/K, s).
-:func:`screen_worksheet` builds the screening of every vessel with a reaction from a
-solved worksheet; :func:`screening_figure` draws it; :func:`screening_report` writes it.
+The functions take and return plain SI floats (K, J, kg, J/(kg·K), W/K, s). The screening
+of a solved worksheet is :mod:`heatbalance.analyses.screening`; its report and figure are in
+:mod:`heatbalance.present.screening`.
 
 Every number here is a screening estimate: see :data:`CAUTION`.
 """
@@ -22,15 +22,14 @@ import math
 from dataclasses import dataclass, field
 
 from .errors import InputError, NoSolutionError
-from .results import temperature_text
-from .units import ATMOSPHERE, DISPLAY_UNITS, display_unit, from_si, to_si
+from .messages import Measure, Phrase
 
 __all__ = ["CAUTION", "CLASS_MEANINGS", "thermal_inertia_factor", "adiabatic_temperature_rise", "mtsr",
-           "criticality_class", "jacket_time", "jacket_temperature", "JacketTime", "Screening",
-           "screen_worksheet", "screening_figure", "screening_report"]
+           "criticality_class", "jacket_time", "jacket_temperature"]
 
-CAUTION = ("A screening estimate, not a substitute for reaction calorimetry or a process hazard analysis; "
-           "defer to local codes and licensed practice.")
+#: The one wording of the safety caution, shown once wherever a result bears on safety.
+CAUTION = ("A screening estimate, not a substitute for reaction calorimetry, a process hazard analysis or "
+           "licensed engineering; defer to local codes.")
 
 #: Stoessel's criticality classes, in plain words (our wording of [1]_, section 3.3)
 CLASS_MEANINGS = {
@@ -366,11 +365,12 @@ def jacket_time(T1: float, T2: float, T_utility: float, m: float, cp: float, UA:
     first, last = T_utility - T1, T_utility - T2
     if first * last <= 0 or abs(last) >= abs(first):
         verb = "heat" if T2 > T1 else "cool"
-        raise NoSolutionError(
-            f"a utility at {T_utility - 273.15:.2f} °C cannot {verb} the batch from {T1 - 273.15:.2f} to "
-            f"{T2 - 273.15:.2f} °C: the target must lie between the start and the utility temperature "
-            f"(it is approached, never reached or passed). Use a {'hotter' if verb == 'heat' else 'colder'} "
-            "utility or a less ambitious target.", "jacket target temperature")
+        raise NoSolutionError(Phrase(
+            "a utility at {Tu} cannot {verb} the batch from {T1} to {T2}: the target must lie between the start and "
+            "the utility temperature (it is approached, never reached or passed). Use a {other} utility or a less "
+            "ambitious target.", {"Tu": Measure(T_utility, "temperature"), "T1": Measure(T1, "temperature"),
+                                  "T2": Measure(T2, "temperature"), "verb": verb,
+                                  "other": "hotter" if verb == "heat" else "colder"}), "jacket target temperature")
     return m * cp / UA * math.log(first / last)
 
 
@@ -424,345 +424,3 @@ def jacket_temperature(t: float, T1: float, T_utility: float, m: float, cp: floa
     _positive(cp, "the batch specific heat", "J/(kg·K)")
     _positive(UA, "UA", "W/K")
     return T_utility - (T_utility - T1) * math.exp(-UA * t / (m * cp))
-
-
-# --------------------------------------------------------------------------- records
-@dataclass
-class JacketTime:
-    """Heating or cooling time through the jacket, SI."""
-
-    direction: str  # heating | cooling
-    start_T: float  # K
-    target_T: float  # K
-    utility_T: float  # K
-    UA: float  # W/K
-    heat_capacity: float  # J/K: contents m·cp plus the vessel's heat capacity
-    time: float  # s
-
-
-@dataclass
-class Screening:
-    """The thermal screening of one vessel with a reaction, SI (K, J, kg, J/(kg·K), J/K)."""
-
-    vessel: str
-    reactions: list[str]
-    T_process: float
-    Q_reaction: float  # J released by the reactions (+ exothermic)
-    mass: float  # kg of reaction mass (all charges)
-    cp: float  # J/(kg·K), mass-weighted at the process temperature
-    heat_capacity_vessel: float  # J/K
-    phi: float
-    dT_ad: float  # K, without the vessel (φ = 1)
-    dT_ad_phi: float  # K, with the vessel (ΔT_ad / φ)
-    accumulation: float
-    thermal_inertia_used: bool
-    MTSR: float  # K
-    MTT: float | None  # K
-    MTT_source: str
-    T_D24: float | None  # K
-    criticality_class: int | None
-    class_meaning: str
-    alarms: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)
-    jacket: JacketTime | None = None
-    caution: str = CAUTION
-
-    @property
-    def alarm(self) -> bool:
-        """MTSR at or above MTT or T_D24 (or the process already there)."""
-        return bool(self.alarms)
-
-
-# --------------------------------------------------------------------------- from a solved worksheet
-_T_STEP = 0.5  # K: half-width of the enthalpy difference that gives cp
-
-
-def _cp_at(material, T: float, P: float) -> float:
-    """cp [J/(kg·K)] of the phase present just at or below T, by a centred enthalpy difference."""
-    lo, hi = T - _T_STEP, T + _T_STEP
-    for tr in material.transitions(P):
-        if lo - 1e-9 <= tr.T <= hi + 1e-9:
-            if tr.T >= T - 1e-6:  # on or just above T: stay below the transition
-                hi = min(T, tr.T) - 1e-4
-                lo = hi - 2 * _T_STEP
-            else:
-                lo = tr.T + 1e-4
-                hi = lo + 2 * _T_STEP
-    lo, hi = max(lo, material.t_min), min(hi, material.t_max)
-    if hi - lo < 1e-3:
-        raise InputError(f"no cp of {material.name} at {T - 273.15:.2f} °C in its property data",
-                         "screening")
-    return (material.enthalpy(hi, P) - material.enthalpy(lo, P)) / (hi - lo)
-
-
-def _t(T: float, system: str) -> str:
-    return temperature_text(T, system, 1)
-
-
-def _dt(dT: float, system: str) -> str:
-    unit = DISPLAY_UNITS[system]["temperature_difference"]
-    return f"{from_si(dT, unit, 'temperature_difference'):.1f} {display_unit(unit)}"
-
-
-def _vessel_reactions(ws, vessel_names: list[str]) -> dict[str, list]:
-    found: dict[str, list] = {name: [] for name in vessel_names}
-    for r in ws.reactions:
-        if r.vessel is None:
-            if len(vessel_names) == 1:
-                found[vessel_names[0]].append(r)
-            continue
-        if r.vessel not in found:
-            raise InputError(f"names vessel '{r.vessel}', which is not a vessel of this worksheet "
-                             f"(vessels: {', '.join(vessel_names)})", f"reaction {r.name} vessel")
-        found[r.vessel].append(r)
-    return found
-
-
-def screen_worksheet(ws, problem, result) -> list[Screening]:
-    """The thermal screening of every vessel of a solved worksheet that has a reaction.
-
-    A reaction belongs to the vessel it names, or to the only vessel when it names none.
-
-    Parameters
-    ----------
-    ws : Worksheet
-        The worksheet (its vessels' optional ``screening`` inputs are used)
-    problem : balance.Problem
-        The solved problem (its materials and equipment)
-    result : Result
-        The solved result (masses, the process temperature, the reaction heats)
-
-    Returns
-    -------
-    list[Screening]
-        One per vessel with a reaction, in the worksheet's order
-
-    Raises
-    ------
-    InputError
-        A reaction naming no vessel of the worksheet; a bad screening input (the field is named).
-    NoSolutionError
-        A jacket target the utility cannot reach.
-    """
-    if not ws.vessels:
-        return []
-    system = getattr(problem, "system", "SI")
-    by_vessel = _vessel_reactions(ws, [v.name for v in ws.vessels])
-    if len(ws.vessels) > 1:
-        for r in ws.reactions:
-            if r.vessel is None:
-                result.warnings.append(f"Reaction {r.name} names no vessel and the worksheet has "
-                                       f"{len(ws.vessels)}: it gets no thermal screening. Set its vessel.")
-    out = []
-    for vessel in ws.vessels:
-        if by_vessel[vessel.name]:
-            out.append(_screen_vessel(vessel, by_vessel[vessel.name], problem, result, system))
-    return out
-
-
-def _screen_vessel(vessel, reactions: list, problem, result, system: str) -> Screening:
-    where = f"vessel {vessel.name} screening"
-    inputs = vessel.screening
-    charges = [(model, line) for model, line in zip(problem.lines, result.lines) if model.vessel == vessel.name]
-    P = charges[0][1].final_P
-    T_final = charges[0][1].final_T
-    notes: list[str] = []
-    if inputs is not None and inputs.process_temperature is not None:
-        q = inputs.process_temperature
-        T_process = to_si(q.value, q.unit, "temperature", f"{where} process temperature")
-        notes.append(f"Process temperature entered: {_t(T_process, system)}.")
-    else:
-        T_process = T_final
-        notes.append(f"Process temperature = the vessel's final temperature, {_t(T_process, system)}.")
-    names = {r.name for r in reactions}
-    Q = sum(t.heat for t in result.terms if t.kind == "reaction" and t.name in names)
-    mass = sum(line.amount_si for _, line in charges)
-    if mass <= 0:
-        raise InputError("the vessel holds no mass: the screening needs the charges' masses", where)
-    cp = sum(line.amount_si * _cp_at(model.material, T_process, line.final_P) for model, line in charges) / mass
-    cp_unit = DISPLAY_UNITS[system]["specific_heat"]
-    notes.append(f"cp of the reaction mass at the process temperature, mass-weighted from the property data: "
-                 f"{from_si(cp, cp_unit, 'specific_heat'):.3f} {display_unit(cp_unit)}; ΔT_ad assumes it "
-                 "constant over the rise.")
-    C_vessel = 0.0
-    for e in problem.equipment:
-        if e.name == f"{vessel.name} equipment":
-            C_vessel = e.heat_capacity if e.heat_capacity is not None else \
-                e.mass * _cp_at(e.material, T_process, ATMOSPHERE)
-    phi = thermal_inertia_factor(mass, cp, C_vessel=C_vessel)
-    dT_ad = adiabatic_temperature_rise(Q, mass, cp)
-    dT_ad_phi = adiabatic_temperature_rise(Q, mass, cp, phi)
-    accumulation = inputs.accumulation if inputs is not None else 1.0
-    use_phi = bool(inputs is not None and inputs.thermal_inertia)
-    MTSR = mtsr(T_process, dT_ad_phi if use_phi else dT_ad, accumulation)
-    notes.append(f"MTSR = T_process + {accumulation:.0%} accumulation × ΔT_ad"
-                 + (" / φ (thermal inertia of the vessel included)." if use_phi
-                    else " (vessel left out, φ = 1: conservative)."))
-    if Q <= 0:
-        notes.append("The reaction heat is not exothermic: loss of cooling does not raise the temperature "
-                     "through this reaction (MTSR = process temperature).")
-    # MTT
-    MTT, MTT_source = None, "not available: enter MTT (e.g. the boiling point of the reaction mass)"
-    if inputs is not None and inputs.MTT is not None:
-        MTT = to_si(inputs.MTT.value, inputs.MTT.unit, "temperature", f"{where} MTT")
-        MTT_source = "entered"
-    else:
-        boiling = [(tr.T, model.material) for model, line in charges
-                   for tr in model.material.transitions(line.final_P) if tr.kind == "boiling"]
-        if boiling:
-            MTT, material = min(boiling, key=lambda b: b[0])
-            MTT_source = (f"boiling point of {material.name} at {P / 1e5:.4g} bar(a), the lowest among the "
-                          f"charges ({material.source})")
-            if len({model.material_name for model, _ in charges}) > 1:
-                notes.append("MTT is the lowest boiling point of the pure charges; a mixture boils elsewhere: "
-                             "enter MTT from data for the mixture if it matters.")
-    T_D24 = None
-    if inputs is not None and inputs.T_D24 is not None:
-        T_D24 = to_si(inputs.T_D24.value, inputs.T_D24.unit, "temperature", f"{where} T_D24")
-    # class and alarms
-    klass, meaning = None, ""
-    if MTT is not None and T_D24 is not None:
-        klass = criticality_class(T_process, MTSR, MTT, T_D24)
-        meaning = CLASS_MEANINGS[klass]
-    else:
-        missing = " and ".join(n for n, v in (("MTT", MTT), ("T_D24 (from calorimetry)", T_D24)) if v is None)
-        meaning = f"No criticality class: enter {missing} to classify."
-    alarms = []
-    if MTT is not None and MTSR >= MTT:
-        alarms.append(f"MTSR {_t(MTSR, system)} reaches MTT {_t(MTT, system)}: if cooling fails the batch boils "
-                      "(pressure rise, boil-up); the condenser, vent and relief must cope.")
-    if T_D24 is not None and MTSR >= T_D24:
-        alarms.append(f"MTSR {_t(MTSR, system)} reaches T_D24 {_t(T_D24, system)}: if cooling fails a "
-                      "decomposition can be triggered (time to maximum rate under 24 h).")
-    if MTT is not None and T_process >= MTT:
-        alarms.append(f"The process temperature {_t(T_process, system)} is already at or above MTT.")
-    if T_D24 is not None and T_process >= T_D24:
-        alarms.append(f"The process temperature {_t(T_process, system)} is already at or above T_D24.")
-    jacket = None
-    if inputs is not None and inputs.jacket is not None:
-        jacket = _jacket(inputs.jacket, T_process, mass * cp + C_vessel, f"{where} jacket")
-        notes.append("Jacket time: m·cp of the contents plus the vessel's heat capacity, no reaction heat "
-                     "or losses during it.")
-    return Screening(vessel.name, sorted(names), T_process, Q, mass, cp, C_vessel, phi, dT_ad, dT_ad_phi,
-                     accumulation, use_phi, MTSR, MTT, MTT_source, T_D24, klass, meaning, alarms, notes, jacket)
-
-
-def _jacket(j, T_process: float, heat_capacity: float, where: str) -> JacketTime:
-    Tu = to_si(j.utility_temperature.value, j.utility_temperature.unit, "temperature",
-               f"{where} utility temperature")
-    T2 = to_si(j.target_temperature.value, j.target_temperature.unit, "temperature", f"{where} target temperature")
-    T1 = T_process if j.start_temperature is None else \
-        to_si(j.start_temperature.value, j.start_temperature.unit, "temperature", f"{where} start temperature")
-    if j.UA is not None:
-        UA = to_si(j.UA.value, j.UA.unit, "thermal_conductance", f"{where} UA")
-    else:
-        U = to_si(j.U.value, j.U.unit, "heat_transfer_coefficient", f"{where} U")
-        A = to_si(j.area.value, j.area.unit, "area", f"{where} area")
-        _positive(U, "U", "W/(m²·K)", f"{where} U")
-        _positive(A, "the area", "m²", f"{where} area")
-        UA = U * A
-    _positive(UA, "UA", "W/K", f"{where} UA")
-    try:
-        time = jacket_time(T1, T2, Tu, 1.0, heat_capacity, UA=UA)
-    except NoSolutionError as exc:
-        raise NoSolutionError(exc.message, f"{where} target temperature") from None
-    return JacketTime("heating" if T2 >= T1 else "cooling", T1, T2, Tu, UA, heat_capacity, time)
-
-
-# --------------------------------------------------------------------------- report and figure
-def screening_report(screenings: list[Screening], system: str = "SI") -> list[str]:
-    """Lines of text for the command line: the numbers, the class, the alarms and the caution.
-
-    Parameters
-    ----------
-    screenings : list[Screening]
-        From ``Result.screening``
-    system : str
-        ``"SI"`` or ``"US"``: the display units
-
-    Returns
-    -------
-    list[str]
-        The report, one line each; an alarm line starts with ``!!! ALARM:``
-    """
-    out: list[str] = []
-    for s in screenings:
-        title = f"THERMAL SCREENING  vessel {s.vessel} ({', '.join(s.reactions)})"
-        out += [title, "-" * len(title), f"  caution: {s.caution}"]
-        for alarm in s.alarms:
-            out.append(f"  !!! ALARM: {alarm}")
-        kind = "energy"
-        unit = DISPLAY_UNITS[system][kind]
-        out += [
-            f"  reaction heat released     {from_si(s.Q_reaction, unit, kind):,.1f} {display_unit(unit)}",
-            f"  reaction mass              {from_si(s.mass, DISPLAY_UNITS[system]['mass'], 'mass'):,.1f} "
-            f"{DISPLAY_UNITS[system]['mass']}, cp {from_si(s.cp, DISPLAY_UNITS[system]['specific_heat'], 'specific_heat'):.3f} "
-            f"{display_unit(DISPLAY_UNITS[system]['specific_heat'])}",
-            f"  thermal inertia factor φ   {s.phi:.4f}",
-            f"  ΔT_ad (φ = 1)              {_dt(s.dT_ad, system)}",
-            f"  ΔT_ad / φ                  {_dt(s.dT_ad_phi, system)}",
-            f"  T_process                  {_t(s.T_process, system)}",
-            f"  MTSR ({s.accumulation:.0%} accumulation)   {_t(s.MTSR, system)}",
-            f"  MTT                        {_t(s.MTT, system) if s.MTT is not None else 'not available'}"
-            f"  [{s.MTT_source}]",
-            f"  T_D24                      {_t(s.T_D24, system) if s.T_D24 is not None else 'not entered'}",
-            f"  criticality class          {s.criticality_class if s.criticality_class else '-'}: "
-            f"{s.class_meaning}",
-        ]
-        if s.jacket is not None:
-            j = s.jacket
-            out.append(f"  jacket {j.direction} time        {j.time / 60:,.1f} min from {_t(j.start_T, system)} to "
-                       f"{_t(j.target_T, system)} with the utility at {_t(j.utility_T, system)}, "
-                       f"UA {j.UA / 1000:,.3g} kW/K")
-        out += [f"  note: {n}" for n in s.notes]
-        out.append("")
-    return out
-
-
-def screening_figure(screening: Screening, system: str = "SI"):
-    """One bar chart of T_process, MTSR, MTT and T_D24, with MTT and T_D24 as dashed limits.
-
-    Parameters
-    ----------
-    screening : Screening
-        One vessel's screening
-    system : str
-        ``"SI"`` (°C) or ``"US"`` (°F)
-
-    Returns
-    -------
-    plotly.graph_objects.Figure
-        Bars in the order T_process, MTSR, MTT, T_D24 (those known); MTSR red and "ALARM" in
-        the title when it reaches MTT or T_D24; the caution written under the plot.
-    """
-    import plotly.graph_objects as go
-
-    unit = DISPLAY_UNITS[system]["temperature"]
-
-    def shown(T: float) -> float:
-        return from_si(T, unit, "temperature")
-
-    s = screening
-    reaches = (s.MTT is not None and s.MTSR >= s.MTT) or (s.T_D24 is not None and s.MTSR >= s.T_D24)
-    bars = [("T_process", s.T_process, "#7f8c8d"), ("MTSR", s.MTSR, "#c0392b" if reaches else "#e67e22")]
-    if s.MTT is not None:
-        bars.append(("MTT", s.MTT, "#2980b9"))
-    if s.T_D24 is not None:
-        bars.append(("T_D24", s.T_D24, "#8e44ad"))
-    figure = go.Figure(go.Bar(x=[b[0] for b in bars], y=[shown(b[1]) for b in bars],
-                              marker_color=[b[2] for b in bars],
-                              text=[f"{shown(b[1]):.1f} {display_unit(unit)}" for b in bars],
-                              textposition="outside", name="temperature"))
-    for label, T, color in bars[2:]:
-        figure.add_hline(y=shown(T), line_dash="dash", line_color=color, annotation_text=label,
-                         annotation_position="top left")
-    low = min(shown(b[1]) for b in bars)
-    high = max(shown(b[1]) for b in bars)
-    figure.update_layout(title=f"Thermal screening: {s.vessel}" + ("  (ALARM)" if reaches else ""),
-                         yaxis_title=f"temperature [{display_unit(unit)}]", showlegend=False,
-                         yaxis_range=[low - 0.15 * (high - low + 10), high + 0.15 * (high - low + 10)],
-                         margin={"t": 60, "b": 80, "l": 60, "r": 20}, height=400)
-    figure.add_annotation(text=CAUTION.replace("; defer", ";<br>defer"), xref="paper", yref="paper", x=0,
-                          y=-0.12, xanchor="left", yanchor="top", showarrow=False, font={"size": 10},
-                          align="left")
-    return figure

@@ -19,7 +19,7 @@ from .errors import InputError, UnitError
 
 __all__ = [
     "ureg", "Q_", "ATMOSPHERE", "KINDS", "to_si", "from_si", "kind_of", "check_unit",
-    "DISPLAY_UNITS", "display_unit", "is_us_customary",
+    "basis_kinds", "heat_kind",
 ]
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=True)
@@ -191,33 +191,22 @@ def from_si(value: float, unit: str, kind: str) -> float:
     return (value - offset) / scale
 
 
-#: Display units of each unit system, per kind.
-DISPLAY_UNITS: dict[str, dict[str, str]] = {
-    "SI": {"temperature": "degC", "temperature_difference": "K", "pressure": "bar", "mass": "kg",
-           "mass_flow": "kg/h", "energy": "kJ", "power": "kW", "duration": "min",
-           "specific_heat": "kJ/(kg*K)", "heat_capacity": "kJ/K", "amount": "kmol",
-           "molar_flow": "kmol/h", "molar_energy": "kJ/mol", "specific_energy": "kJ/kg",
-           "molar_mass": "g/mol"},
-    "US": {"temperature": "degF", "temperature_difference": "delta_degF", "pressure": "psi",
-           "mass": "lb", "mass_flow": "lb/h", "energy": "Btu", "power": "Btu/h", "duration": "min",
-           "specific_heat": "Btu/(lb*delta_degF)", "heat_capacity": "Btu/delta_degF",
-           "amount": "lbmol", "molar_flow": "lbmol/h", "molar_energy": "Btu/lbmol",
-           "specific_energy": "Btu/lb", "molar_mass": "lb/lbmol"},
-}
-
-_US_WORDS = ("degF", "°F", "degR", "°R", "lb", "Btu", "psi", "gal", "ton_of_refrigeration", "TR")
+#: role -> (kind of a total, kind of a rate): what a field of that role measures
+_ROLES = {"amount": ("mass", "mass_flow"), "heat": ("energy", "power"), "moles": ("amount", "molar_flow")}
 
 
-def is_us_customary(unit: str) -> bool:
-    """True for a unit of the US customary system (°F, lb, Btu, psi, ...)."""
-    return unit.strip() in ("F", "R") or any(word in unit for word in _US_WORDS)
+def basis_kinds(role: str, basis: str) -> tuple[str, ...]:
+    """The kinds a field takes on a basis, the one results are in first: the one rule for basis -> unit kind.
+
+    Continuous: rates only. Batch: a total, or a rate applied over the batch duration.
+
+    >>> basis_kinds("amount", "continuous"), basis_kinds("heat", "batch")
+    (('mass_flow',), ('energy', 'power'))
+    """
+    total, rate = _ROLES[role]
+    return (rate,) if basis == "continuous" else (total, rate)
 
 
-_PRETTY = {"degC": "°C", "degF": "°F", "degR": "°R", "delta_degF": "°F", "delta_degC": "K",
-           "kJ/(kg*K)": "kJ/(kg·K)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "Btu/delta_degF": "Btu/°F",
-           "bar": "bar(a)", "psi": "psia"}
-
-
-def display_unit(unit: str) -> str:
-    """How a unit is written on screen: ``degC`` -> ``°C``, ``bar`` -> ``bar(a)``."""
-    return _PRETTY.get(unit, unit)
+def heat_kind(basis: str) -> str:
+    """The unit kind of heat on a basis: power when continuous, energy in batch."""
+    return basis_kinds("heat", basis)[0]

@@ -4,8 +4,10 @@ from __future__ import annotations
 import csv
 import io
 
-from .results import Result, contribution_rows, format_heat
-from .worksheet import Worksheet, dump_worksheet
+from ..results import Result
+from ..worksheet import Worksheet, dump_worksheet
+from .tables import contribution_rows
+from .text import answer_text, format_heat, phrase_text
 
 __all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename"]
 
@@ -24,10 +26,10 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
     rows = contribution_rows(result, system)
     out = io.StringIO()
     header = [f"# {result.title}",
-              f"# answer: {result.answer.label} = {result.answer.text}",
+              f"# answer: {result.answer.label} = {answer_text(result.answer, system)}",
               f"# closure residual: {format_heat(result.residual, result.basis, system)}",
               f"# sign convention: {result.sign_convention}"]
-    header += [f"# warning: {w}" for w in result.warnings]
+    header += [f"# warning: {phrase_text(w, system)}" for w in result.warnings]
     out.write("\n".join(line.replace("\n", " ") for line in header) + "\n")
     columns = list(rows[0]) if rows else ["item"]
     writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")

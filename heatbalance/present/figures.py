@@ -8,8 +8,10 @@ from __future__ import annotations
 
 import plotly.graph_objects as go
 
-from .results import Result, heat_kind
-from .units import DISPLAY_UNITS, display_unit, from_si
+from ..results import Result
+from ..units import from_si, heat_kind
+from .tables import state_text
+from .text import UNIT_SETS, display_unit, phrase_text
 
 __all__ = ["waterfall_steps", "energy_waterfall", "HEAT_IN_COLOUR", "HEAT_OUT_COLOUR", "CLOSING_COLOUR"]
 
@@ -22,30 +24,25 @@ _KIND_WORDS = {"duty": "duty", "loss": "loss", "reaction": "reaction heat", "equ
                "stream": "stream", "charge": "vessel charge"}
 
 
-def _state_words(T: float, phase: str, system: str) -> str:
-    unit = DISPLAY_UNITS[system]["temperature"]
-    return f"{from_si(T, unit, 'temperature'):.1f} {display_unit(unit)} {phase}"
-
-
 def waterfall_steps(result: Result, system: str = "SI") -> list[dict]:
     """The bars of the waterfall: label, heat into the process in the display unit, hover text.
 
     The last step is the closing bar (the sum, −residual).
     """
     kind = heat_kind(result.basis)
-    unit = DISPLAY_UNITS[system][kind]
+    unit = UNIT_SETS[system][kind]
     shown = display_unit(unit)
     steps = []
     for line in result.lines:
         heat = -from_si(line.total, unit, kind)
-        states = (f"{_state_words(line.initial_T, line.initial_phase, system)} → "
-                  f"{_state_words(line.final_T, line.final_phase, system)}")
+        states = (f"{state_text(line.initial_T, line.initial_phase, None, system, 1)} → "
+                  f"{state_text(line.final_T, line.final_phase, None, system, 1)}")
         steps.append({"label": line.name, "heat": heat, "kind": _KIND_WORDS[line.kind],
                       "detail": f"{line.material}: {states}<br>absorbs {-heat:,.4g} {shown} "
                                 f"(latent {from_si(line.latent, unit, kind):,.4g} {shown})"})
     for term in result.terms:
         steps.append({"label": term.name, "heat": from_si(term.heat, unit, kind), "kind": _KIND_WORDS[term.kind],
-                      "detail": term.detail})
+                      "detail": phrase_text(term.detail, system)})
     steps.append({"label": CLOSING_LABEL, "heat": -from_si(result.residual, unit, kind), "kind": "sum",
                   "detail": "sum of all contributions (zero when the balance closes)"})
     return steps
@@ -68,7 +65,7 @@ def energy_waterfall(result: Result, system: str = "SI") -> go.Figure:
     Hover shows the item, its kind, its states (for a line) and its heat.
     """
     steps = waterfall_steps(result, system)
-    unit = display_unit(DISPLAY_UNITS[system][heat_kind(result.basis)])
+    unit = display_unit(UNIT_SETS[system][heat_kind(result.basis)])
     number = _number_format(steps)
     figure = go.Figure(go.Waterfall(
         x=[s["label"] for s in steps],

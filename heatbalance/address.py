@@ -1,0 +1,493 @@
+"""Addresses: a stable, readable name for every input and every possible unknown of a worksheet.
+
+An address is a path through the worksheet by names, the JSON keys joined with dots and
+list items picked by their name in brackets::
+
+    basis.duration
+    streams[Steam].flow
+    streams[Steam].inlet.temperature          streams[Steam].outlet.vapour_fraction
+    vessels[Reactor].charges[Water].mass      vessels[Reactor].final.temperature
+    vessels[Reactor].equipment.heat_capacity  vessels[Reactor].screening.jacket.UA
+    duties[Heater].value    losses[Shell].value    reactions[Hydration].conversion
+    common_temperatures[Mix].temperature      materials[oil].phases[liquid].cp
+
+A name holding ``]`` or ``\\`` writes it as ``\\]`` or ``\\\\``. Addresses name items by
+name, not position, so they survive a save and a reload, and a reordering; a rename made
+through :func:`rename` carries the references (unknown, a reaction's vessel, shared
+temperatures) with it, and :func:`follow_rename` moves an address kept elsewhere.
+
+The unknown is named by the address of the field it stands for (``streams[Steam].flow``);
+:func:`unknown_address` and :func:`unknown_at` go back and forth.
+
+Refusals carry the address of the field at fault in ``HeatBalanceError.where``.
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+from .errors import AddressError, HeatBalanceError, InputError
+from .units import basis_kinds, check_unit, from_si, kind_of
+from .worksheet import Quantity, Unknown, Worksheet, parse_worksheet
+
+__all__ = ["Input", "item", "parse", "inputs", "get", "with_value", "unknown_address", "unknown_at",
+           "unknown_choices", "with_unknown", "answer_value", "storage_unit", "rename", "follow_rename", "kinds_of", "label", "FRACTION"]
+
+FRACTION = "fraction"  # the kind of a plain number between 0 and 1
+_COLLECTIONS = {"streams", "vessels", "charges", "duties", "losses", "reactions", "common_temperatures",
+                "materials", "phases"}
+_STATE_ENDS = ("inlet", "outlet", "initial", "final")
+_STEP = re.compile(r"(\w+)(?:\[((?:[^\]\\]|\\.)*)\])?")
+
+
+@dataclass(frozen=True)
+class Input:
+    """One addressable input: its address, the kinds of quantity it takes, and its value as typed."""
+
+    address: str
+    kinds: tuple[str, ...]  # keys of units.KINDS, or FRACTION
+    value: Quantity | float | None
+    is_unknown: bool = False
+
+    @property
+    def unit(self) -> str | None:
+        return self.value.unit if isinstance(self.value, Quantity) else None
+
+
+# --------------------------------------------------------------------------- syntax
+def _escape(name: str) -> str:
+    return name.replace("\\", "\\\\").replace("]", "\\]")
+
+
+def item(collection: str, name: str, *rest: str) -> str:
+    """The address of a named item, and of fields under it: ``item("streams", "Steam", "flow")``.
+
+    >>> item("vessels", "R-1", item("charges", "Water [dry]", "mass"))
+    'vessels[R-1].charges[Water [dry\\\\]].mass'
+    """
+    head = f"{collection}[{_escape(name)}]"
+    return ".".join((head, *rest))
+
+
+def parse(address: str) -> list[tuple[str, str | None]]:
+    """An address as steps ``(field, name or None)``; refuses text that is not an address.
+
+    >>> parse("vessels[Reactor].charges[Water].mass")
+    [('vessels', 'Reactor'), ('charges', 'Water'), ('mass', None)]
+    """
+    steps, pos = [], 0
+    text = address.strip()
+    while pos < len(text):
+        match = _STEP.match(text, pos)
+        if not match or match.end() == pos:
+            raise AddressError(f"'{address}' is not an address (e.g. streams[Steam].flow)", "address")
+        name = match.group(2)
+        steps.append((match.group(1), None if name is None else re.sub(r"\\(.)", r"\1", name)))
+        pos = match.end()
+        if pos < len(text):
+            if text[pos] != ".":
+                raise AddressError(f"'{address}' is not an address: '.' expected at character {pos + 1}",
+                                   "address")
+            pos += 1
+    if not steps:
+        raise AddressError("an empty address names nothing", "address")
+    return steps
+
+
+def _pattern(steps: list[tuple[str, str | None]]) -> str:
+    """The address with names left out: ``streams[].inlet.temperature``."""
+    return ".".join(f"{f}[]" if n is not None else f for f, n in steps)
+
+
+def label(address: str) -> str:
+    """The address in words, for headings: ``streams[Steam].inlet.temperature`` -> ``Steam inlet temperature``.
+
+    >>> label("vessels[R-1].charges[Water].mass"), label("duties[Heater].value")
+    ('R-1 / Water mass', 'duty Heater')
+    """
+    steps = parse(address)
+    names = " / ".join(n for _, n in steps if n is not None)
+    fields = [f for f, n in steps if n is None]
+    if steps[0][0] == "duties" and fields == ["value"]:
+        return f"duty {names}"
+    if steps[0][0] == "losses" and fields == ["value"]:
+        return f"loss {names}"
+    if steps[0][0] == "common_temperatures":
+        return f"shared temperature {names}"
+    words = " ".join(f.replace("_", " ") for f in fields)
+    return f"{names} {words}".strip()
+
+
+# --------------------------------------------------------------------------- kinds
+_FIXED_KINDS: dict[str, tuple[str, ...]] = {
+    "basis.duration": ("duration",),
+    "streams[].pressure": ("pressure",),
+    "streams[].mass_fraction": (FRACTION,),
+    "vessels[].pressure": ("pressure",),
+    "vessels[].charges[].mass_fraction": (FRACTION,),
+    "vessels[].equipment.mass": ("mass",),
+    "vessels[].equipment.heat_capacity": ("heat_capacity",),
+    "vessels[].equipment.initial_temperature": ("temperature",),
+    "vessels[].screening.accumulation": (FRACTION,),
+    "vessels[].screening.T_D24": ("temperature",),
+    "vessels[].screening.MTT": ("temperature",),
+    "vessels[].screening.process_temperature": ("temperature",),
+    "vessels[].screening.jacket.utility_temperature": ("temperature",),
+    "vessels[].screening.jacket.target_temperature": ("temperature",),
+    "vessels[].screening.jacket.start_temperature": ("temperature",),
+    "vessels[].screening.jacket.UA": ("thermal_conductance",),
+    "vessels[].screening.jacket.U": ("heat_transfer_coefficient",),
+    "vessels[].screening.jacket.area": ("area",),
+    "reactions[].enthalpy": ("molar_energy",),
+    "reactions[].conversion": (FRACTION,),
+    "reactions[].molar_mass": ("molar_mass",),
+    "common_temperatures[].temperature": ("temperature",),
+    "materials[].min_temperature": ("temperature",),
+    "materials[].max_temperature": ("temperature",),
+    "materials[].phases[].cp": ("specific_heat",),
+    "materials[].phases[].up_to": ("temperature",),
+    "materials[].phases[].latent_heat": ("specific_energy",),
+}
+_STATE_KINDS = {"temperature": ("temperature",), "pressure": ("pressure",), "vapour_fraction": (FRACTION,),
+                "solid_fraction": (FRACTION,)}
+
+
+def kinds_of(address: str, basis: str = "continuous") -> tuple[str, ...]:
+    """The kinds of quantity a field takes on a basis (the first is the one a total is in).
+
+    >>> kinds_of("streams[Steam].flow"), kinds_of("duties[Heater].value", "batch")
+    (('mass_flow',), ('energy', 'power'))
+    """
+    pattern = _pattern(parse(address))
+    if pattern in _FIXED_KINDS:
+        return _FIXED_KINDS[pattern]
+    if pattern in ("streams[].flow", "vessels[].charges[].mass"):
+        return basis_kinds("amount", basis)
+    if pattern in ("duties[].value", "losses[].value"):
+        return basis_kinds("heat", basis)
+    if pattern == "reactions[].amount":
+        return basis_kinds("moles", basis) + basis_kinds("amount", basis)
+    head, _, last = pattern.rpartition(".")
+    if head.rpartition(".")[2] in _STATE_ENDS and last in _STATE_KINDS:
+        return _STATE_KINDS[last]
+    raise AddressError(f"'{address}' is not a numeric input of a worksheet", address)
+
+
+# --------------------------------------------------------------------------- reading
+def _names(items) -> str:
+    return ", ".join(getattr(i, "name", "?") for i in items) or "none"
+
+
+def _walk(ws: Worksheet, steps: list[tuple[str, str | None]], address: str):
+    """(the model holding the last field, the last field's name)."""
+    node = ws
+    for i, (field, name) in enumerate(steps):
+        last = i == len(steps) - 1
+        if not hasattr(node, field) or (name is None) == (field in _COLLECTIONS):
+            raise AddressError(f"'{address}' names no field of a worksheet ('{field}')", address)
+        if last and name is None:
+            return node, field
+        value = getattr(node, field)
+        if name is not None:
+            found = next((x for x in value if x.name == name), None)
+            if found is None:
+                raise AddressError(f"no {field.rstrip('s').replace('_', ' ')} called '{name}' "
+                                   f"(there are: {_names(value)})", address)
+            value = found
+        if value is None:
+            raise AddressError(f"'{address}': the worksheet has no {field.replace('_', ' ')} here", address)
+        node = value
+    raise AddressError(f"'{address}' names a whole item, not one of its numbers", address)
+
+
+def get(ws: Worksheet, address: str):
+    """The value at an address, as typed: a :class:`Quantity`, a number, or ``None`` (not given)."""
+    node, field = _walk(ws, parse(address), address)
+    return getattr(node, field)
+
+
+def inputs(ws: Worksheet) -> list[Input]:
+    """Every numeric input of a worksheet that holds a value (or is the unknown), in worksheet order."""
+    unknown = unknown_address(ws.unknowns[0]) if len(ws.unknowns) == 1 else None
+    out: list[Input] = []
+
+    def add(address: str, value) -> None:
+        if value is not None or address == unknown:
+            out.append(Input(address, kinds_of(address, ws.basis.kind), value, address == unknown))
+
+    def state(prefix: str, s) -> None:
+        for name in _STATE_KINDS:
+            add(f"{prefix}.{name}", getattr(s, name))
+
+    add("basis.duration", ws.basis.duration)
+    for m in ws.materials:
+        add(item("materials", m.name, "min_temperature"), m.min_temperature)
+        add(item("materials", m.name, "max_temperature"), m.max_temperature)
+        for p in m.phases:
+            for name in ("cp", "up_to", "latent_heat"):
+                add(item("materials", m.name, item("phases", p.name, name)), getattr(p, name))
+    for c in ws.common_temperatures:
+        add(item("common_temperatures", c.name, "temperature"), c.temperature)
+    for s in ws.streams:
+        for name in ("flow", "pressure", "mass_fraction"):
+            add(item("streams", s.name, name), getattr(s, name))
+        state(item("streams", s.name, "inlet"), s.inlet)
+        state(item("streams", s.name, "outlet"), s.outlet)
+    for v in ws.vessels:
+        add(item("vessels", v.name, "pressure"), v.pressure)
+        state(item("vessels", v.name, "final"), v.final)
+        for c in v.charges:
+            charge = item("vessels", v.name, item("charges", c.name))
+            add(f"{charge}.mass", c.mass)
+            add(f"{charge}.mass_fraction", c.mass_fraction)
+            state(f"{charge}.initial", c.initial)
+        if v.equipment is not None:
+            for name in ("mass", "heat_capacity", "initial_temperature"):
+                add(item("vessels", v.name, "equipment", name), getattr(v.equipment, name))
+        if v.screening is not None:
+            for name in ("accumulation", "T_D24", "MTT", "process_temperature"):
+                add(item("vessels", v.name, "screening", name), getattr(v.screening, name))
+            if v.screening.jacket is not None:
+                for name in ("utility_temperature", "target_temperature", "start_temperature", "UA", "U", "area"):
+                    add(item("vessels", v.name, "screening", "jacket", name), getattr(v.screening.jacket, name))
+    for d in ws.duties:
+        add(item("duties", d.name, "value"), d.value)
+    for loss in ws.losses:
+        add(item("losses", loss.name, "value"), loss.value)
+    for r in ws.reactions:
+        for name in ("enthalpy", "amount", "conversion", "molar_mass"):
+            add(item("reactions", r.name, name), getattr(r, name))
+    return out
+
+
+# --------------------------------------------------------------------------- writing
+def _as_value(value, kinds: tuple[str, ...], address: str):
+    """A typed value for a field: a Quantity (from a Quantity, ``"12 t/h"`` or ``(12, "t/h")``) or a fraction."""
+    if kinds == (FRACTION,):
+        if isinstance(value, Quantity) or isinstance(value, str) or not isinstance(value, (int, float)):
+            raise AddressError(f"{value!r}: this field takes a plain number between 0 and 1", address)
+        if not 0.0 <= float(value) <= 1.0:
+            raise AddressError(f"{value:g} is not between 0 and 1", address)
+        return float(value)
+    if isinstance(value, tuple) and len(value) == 2:
+        value = {"value": value[0], "unit": value[1]}
+    try:
+        q = value if isinstance(value, Quantity) else Quantity.model_validate(value)
+    except Exception:  # noqa: BLE001 - pydantic raises its own ValidationError; refused in words below
+        raise AddressError(f"{value!r} is not a number with a unit (e.g. '12 t/h')", address) from None
+    try:
+        check_unit(q.unit, kinds[0], address) if len(kinds) == 1 else kind_of(q.unit, kinds, address)
+    except HeatBalanceError as exc:
+        raise AddressError(exc.message, address) from None
+    return q
+
+
+def with_value(ws: Worksheet, address: str, value) -> Worksheet:
+    """A copy of the worksheet with the input at ``address`` set to ``value`` (in any unit of its kind).
+
+    A state's temperature replaces a phase fraction or shared temperature given there (and the reverse).
+    """
+    steps = parse(address)
+    kinds = kinds_of(address, ws.basis.kind)
+    node, field = _walk(ws, steps, address)  # the item must exist
+    new = _as_value(value, kinds, address)
+    data = ws.model_dump(mode="json", exclude_none=True)
+    target = data
+    for name, key in steps[:-1]:
+        target = target.setdefault(name, {}) if key is None else next(x for x in target[name] if x["name"] == key)
+    if field in _STATE_KINDS and field != "pressure" and steps[-2][0] in _STATE_ENDS:
+        for other in ("temperature", "vapour_fraction", "solid_fraction", "common"):
+            target.pop(other, None)
+    target[field] = new.model_dump() if isinstance(new, Quantity) else new
+    try:
+        return parse_worksheet(data)
+    except HeatBalanceError as exc:
+        raise InputError(exc.message, address) from None
+
+
+# --------------------------------------------------------------------------- the unknown
+def unknown_address(u: Unknown) -> str:
+    """The address of the field an unknown stands for.
+
+    >>> unknown_address(Unknown(kind="temperature", line="Glycol", end="outlet"))
+    'streams[Glycol].outlet.temperature'
+    """
+    if u.kind == "duty":
+        return item("duties", u.term or "", "value")
+    if u.kind == "temperature" and u.common is not None:
+        return item("common_temperatures", u.common, "temperature")
+    if u.charge is not None:
+        field = "mass" if u.kind == "amount" else "initial.temperature"
+        return item("vessels", u.line or "", item("charges", u.charge, field))
+    if u.kind == "amount":
+        return item("streams", u.line or "", "flow")
+    if u.end == "final":
+        return item("vessels", u.line or "", "final", "temperature")
+    return item("streams", u.line or "", u.end or "outlet", "temperature")
+
+
+def unknown_at(address: str) -> Unknown:
+    """The unknown that stands for the field at ``address`` (the inverse of :func:`unknown_address`)."""
+    steps = parse(address)
+    pattern = _pattern(steps)
+    names = [n for _, n in steps if n is not None]
+    forms = {
+        "streams[].flow": lambda: Unknown(kind="amount", line=names[0]),
+        "vessels[].charges[].mass": lambda: Unknown(kind="amount", line=names[0], charge=names[1]),
+        "streams[].inlet.temperature": lambda: Unknown(kind="temperature", line=names[0], end="inlet"),
+        "streams[].outlet.temperature": lambda: Unknown(kind="temperature", line=names[0], end="outlet"),
+        "vessels[].final.temperature": lambda: Unknown(kind="temperature", line=names[0], end="final"),
+        "vessels[].charges[].initial.temperature":
+            lambda: Unknown(kind="temperature", line=names[0], charge=names[1], end="initial"),
+        "common_temperatures[].temperature": lambda: Unknown(kind="temperature", common=names[0]),
+        "duties[].value": lambda: Unknown(kind="duty", term=names[0]),
+    }
+    if pattern not in forms:
+        raise AddressError(f"'{address}' cannot be the unknown: a flow or mass, a state's temperature, a shared "
+                           "temperature or a duty can", address)
+    return forms[pattern]()
+
+
+def unknown_choices(ws: Worksheet) -> list[tuple[str, str]]:
+    """Every field of a worksheet that can be the unknown: ``(address, label)``, in worksheet order."""
+    out: list[tuple[str, str]] = []
+    for s in ws.streams:
+        out.append((item("streams", s.name, "flow"), f"{s.name}: flow"))
+        for end, state in (("inlet", s.inlet), ("outlet", s.outlet)):
+            if state.common is None:
+                out.append((item("streams", s.name, end, "temperature"), f"{s.name}: {end} temperature"))
+    for v in ws.vessels:
+        if v.final.common is None:
+            out.append((item("vessels", v.name, "final", "temperature"), f"{v.name}: final temperature"))
+        for c in v.charges:
+            charge = item("vessels", v.name, item("charges", c.name))
+            out.append((f"{charge}.mass", f"{v.name} / {c.name}: mass"))
+            if c.initial.common is None:  # else its temperature is the shared one, offered as such
+                out.append((f"{charge}.initial.temperature", f"{v.name} / {c.name}: initial temperature"))
+    for c in ws.common_temperatures:
+        out.append((item("common_temperatures", c.name, "temperature"), f"shared temperature {c.name}"))
+    for d in ws.duties:
+        out.append((item("duties", d.name, "value"), f"duty {d.name}"))
+    return out
+
+
+#: the unit an answer is stored in when its field has no unit and no other field of its kind has one
+_STORAGE_UNITS = {"mass_flow": "kg/h", "mass": "kg", "temperature": "degC", "power": "kW", "energy": "kJ"}
+
+
+def storage_unit(ws: Worksheet, address: str, kind: str) -> str:
+    """The unit a value for ``address`` is written in, whatever the view: the unit typed there if it
+    measures ``kind``, else the first unit of that kind typed elsewhere in the worksheet, else SI's."""
+    candidates = [get(ws, address)] + [i.value for i in inputs(ws) if i.address != address]
+    for q in candidates:
+        if isinstance(q, Quantity):
+            try:
+                check_unit(q.unit, kind)
+                return q.unit
+            except HeatBalanceError:
+                continue
+    return _STORAGE_UNITS.get(kind, "")
+
+
+def answer_value(ws: Worksheet, answer) -> Quantity | dict:
+    """A solved :class:`~heatbalance.results.Answer` as the value its field stores, independent of any view.
+
+    A plateau answer is the state's phase fraction (``{"vapour_fraction": 0.123}``); anything else a
+    Quantity in :func:`storage_unit`, to 6 significant figures.
+    """
+    if answer.phase_fraction is not None:
+        if answer.plateau == "boiling":
+            return {"vapour_fraction": round(answer.phase_fraction, 6)}
+        return {"solid_fraction": round(1.0 - answer.phase_fraction, 6)}
+    unit = storage_unit(ws, answer.address, answer.si_kind)
+    return Quantity(value=float(f"{from_si(answer.value_si, unit, answer.si_kind):.6g}"), unit=unit)
+
+
+def with_unknown(ws: Worksheet, address: str, old_value=None) -> Worksheet:
+    """A copy with the field at ``address`` as the one unknown; the old unknown's field takes ``old_value``.
+
+    ``old_value`` (a Quantity, or for a state on a plateau a fraction field as ``{"vapour_fraction": x}``)
+    is usually the last answer, so the sheet still balances; ``None`` leaves the old field as it was.
+    """
+    new = unknown_at(address)
+    _walk(ws, parse(address), address)  # the field must exist
+    if old_value is not None and len(ws.unknowns) == 1:
+        old = unknown_address(ws.unknowns[0])
+        if isinstance(old_value, dict):  # a plateau state
+            (field, fraction), = old_value.items()
+            ws = with_value(ws, old.rpartition(".")[0] + "." + field, fraction)
+        else:
+            ws = with_value(ws, old, old_value)
+    return ws.model_copy(update={"unknowns": [new]})
+
+
+# --------------------------------------------------------------------------- renames
+def rename(ws: Worksheet, address: str, new_name: str) -> Worksheet:
+    """A copy with the item at ``address`` (``streams[Steam]``) renamed; references follow it.
+
+    The unknown, a reaction's ``vessel`` and states that name a shared temperature are updated.
+    A name already used in the same list is refused.
+    """
+    steps = parse(address)
+    if steps[-1][1] is None:
+        raise AddressError(f"'{address}' names a field, not an item to rename", address)
+    collection, old_name = steps[-1]
+    new_name = new_name.strip()
+    data = ws.model_dump(mode="json", exclude_none=True)
+    holder = data
+    for name, key in steps[:-1]:
+        holder = holder[name] if key is None else next(x for x in holder[name] if x["name"] == key)
+    items = holder.get(collection, [])
+    if not any(x["name"] == old_name for x in items):
+        raise AddressError(f"no {collection.rstrip('s')} called '{old_name}'", address)
+    if any(x["name"] == new_name for x in items):
+        raise AddressError(f"'{new_name}' is already the name of another {collection.rstrip('s')}", address)
+    next(x for x in items if x["name"] == old_name)["name"] = new_name
+    _rename_references(data, [s[0] for s in steps], old_name, new_name)
+    return parse_worksheet(data)
+
+
+def _rename_references(data: dict, path: list[str], old: str, new: str) -> None:
+    top = path[0]
+    for u in data.get("unknowns", []):
+        if top in ("streams", "vessels") and len(path) == 1 and u.get("line") == old:
+            u["line"] = new
+        elif path == ["vessels", "charges"] and u.get("charge") == old:
+            u["charge"] = new
+        elif top == "duties" and u.get("term") == old:
+            u["term"] = new
+        elif top == "common_temperatures" and u.get("common") == old:
+            u["common"] = new
+    if path == ["vessels"]:
+        for r in data.get("reactions", []):
+            if r.get("vessel") == old:
+                r["vessel"] = new
+    if path == ["common_temperatures"]:
+        states = [s[e] for s in data.get("streams", []) for e in ("inlet", "outlet")]
+        states += [v["final"] for v in data.get("vessels", [])]
+        states += [c["initial"] for v in data.get("vessels", []) for c in v["charges"]]
+        for state in states:
+            if state.get("common") == old:
+                state["common"] = new
+    if path == ["materials"]:
+        lines = data.get("streams", []) + [c for v in data.get("vessels", []) for c in v["charges"]]
+        lines += [v["equipment"] for v in data.get("vessels", []) if v.get("equipment")]
+        for line in lines:
+            if line.get("material") == old:
+                line["material"] = new
+
+
+def follow_rename(address: str, item_address: str, new_name: str) -> str:
+    """An address kept elsewhere (a sweep, a case) moved after :func:`rename` of ``item_address``.
+
+    >>> follow_rename("streams[Steam].inlet.temperature", "streams[Steam]", "HP steam")
+    'streams[HP steam].inlet.temperature'
+    """
+    steps, renamed = parse(address), parse(item_address)
+    if steps[:len(renamed)] != renamed:
+        return address
+    collection = renamed[-1][0]
+    head = ".".join(item(f, n) if n is not None else f for f, n in renamed[:-1])
+    moved = item(collection, new_name)
+    rest = ".".join(item(f, n) if n is not None else f for f, n in steps[len(renamed):])
+    return ".".join(p for p in (head, moved, rest) if p)

@@ -1,0 +1,245 @@
+"""Thermal screening of every vessel with a reaction, on a solved balance (SI only).
+
+The published relations are in :mod:`heatbalance.reactor`; this module gathers their
+inputs from the solved problem and result (reaction heat, masses, cp at the process
+temperature, the vessel's equipment, boiling points) and returns typed records. The
+report and the figure are :mod:`heatbalance.present.screening`.
+
+A reaction belongs to the vessel it names in ``vessel``, or to the only vessel.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..address import item
+from ..errors import InputError, NoSolutionError
+from ..messages import Measure, Phrase
+from ..problem import JacketInputs, Problem
+from ..reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, criticality_class, jacket_time, mtsr,
+                       thermal_inertia_factor)
+from ..results import Result
+from ..units import ATMOSPHERE
+
+__all__ = ["JacketTime", "Screening", "screen", "cp_at"]
+
+_T_STEP = 0.5  # K: half-width of the enthalpy difference that gives cp
+
+
+@dataclass
+class JacketTime:
+    """Heating or cooling time through the jacket, SI."""
+
+    direction: str  # heating | cooling
+    start_T: float  # K
+    target_T: float  # K
+    utility_T: float  # K
+    UA: float  # W/K
+    heat_capacity: float  # J/K: contents m·cp plus the vessel's heat capacity
+    time: float  # s
+
+
+@dataclass
+class Screening:
+    """The thermal screening of one vessel with a reaction, SI (K, J, kg, J/(kg·K), J/K)."""
+
+    vessel: str
+    reactions: list[str]
+    T_process: float
+    Q_reaction: float  # J released by the reactions (+ exothermic)
+    mass: float  # kg of reaction mass (all charges)
+    cp: float  # J/(kg·K), mass-weighted at the process temperature
+    heat_capacity_vessel: float  # J/K
+    phi: float
+    dT_ad: float  # K, without the vessel (φ = 1)
+    dT_ad_phi: float  # K, with the vessel (ΔT_ad / φ)
+    accumulation: float
+    thermal_inertia_used: bool
+    MTSR: float  # K
+    MTT: float | None  # K
+    MTT_source: Phrase
+    T_D24: float | None  # K
+    criticality_class: int | None
+    class_meaning: str
+    alarms: list[Phrase] = field(default_factory=list)
+    notes: list[Phrase] = field(default_factory=list)
+    jacket: JacketTime | None = None
+    caution: str = CAUTION
+
+    @property
+    def alarm(self) -> bool:
+        """MTSR at or above MTT or T_D24 (or the process already there)."""
+        return bool(self.alarms)
+
+
+def cp_at(material, T: float, P: float, where: str = "") -> float:
+    """cp [J/(kg·K)] of the phase present just at or below T, by a centred enthalpy difference."""
+    lo, hi = T - _T_STEP, T + _T_STEP
+    for tr in material.transitions(P):
+        if lo - 1e-9 <= tr.T <= hi + 1e-9:
+            if tr.T >= T - 1e-6:  # on or just above T: stay below the transition
+                hi = min(T, tr.T) - 1e-4
+                lo = hi - 2 * _T_STEP
+            else:
+                lo = tr.T + 1e-4
+                hi = lo + 2 * _T_STEP
+    lo, hi = max(lo, material.t_min), min(hi, material.t_max)
+    if hi - lo < 1e-3:
+        raise InputError(Phrase("no cp of {name} at {T} in its property data",
+                                {"name": material.name, "T": Measure(T, "temperature")}), where)
+    return (material.enthalpy(hi, P) - material.enthalpy(lo, P)) / (hi - lo)
+
+
+def _vessel_reactions(problem: Problem) -> dict[str, list]:
+    found: dict[str, list] = {name: [] for name in problem.vessels}
+    for term in (t for t in problem.terms if t.kind == "reaction"):
+        if term.vessel is None:
+            if len(problem.vessels) == 1:
+                found[problem.vessels[0]].append(term)
+            continue
+        if term.vessel not in found:
+            raise InputError(f"names vessel '{term.vessel}', which is not a vessel of this worksheet "
+                             f"(vessels: {', '.join(problem.vessels)})", item("reactions", term.name, "vessel"))
+        found[term.vessel].append(term)
+    return found
+
+
+def screen(problem: Problem, result: Result) -> list[Screening]:
+    """The thermal screening of every vessel of a solved balance that has a reaction.
+
+    Parameters
+    ----------
+    problem : Problem
+        The solved problem (materials, equipment, each vessel's SI screening inputs)
+    result : Result
+        Its result (masses, the process temperature, the reaction heats); a reaction that names
+        no vessel on a sheet with several gets a warning added to ``result.warnings``
+
+    Returns
+    -------
+    list[Screening]
+        One per vessel with a reaction, in the worksheet's order
+
+    Raises
+    ------
+    InputError
+        A reaction naming no vessel of the worksheet (at ``reactions[R].vessel``).
+    NoSolutionError
+        A jacket target the utility cannot reach (at ``vessels[V].screening.jacket.target_temperature``).
+    """
+    if not problem.vessels:
+        return []
+    by_vessel = _vessel_reactions(problem)
+    if len(problem.vessels) > 1:
+        for term in problem.terms:
+            if term.kind == "reaction" and term.vessel is None:
+                result.warnings.append(Phrase(
+                    f"Reaction {term.name} names no vessel and the worksheet has {len(problem.vessels)}: it gets no "
+                    "thermal screening. Set its vessel.", address=item("reactions", term.name, "vessel")))
+    return [_screen_vessel(name, by_vessel[name], problem, result) for name in problem.vessels if by_vessel[name]]
+
+
+def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Result) -> Screening:
+    where = item("vessels", vessel, "screening")
+    inputs = problem.screening[vessel]
+    charges = [(model, line) for model, line in zip(problem.lines, result.lines) if model.vessel == vessel]
+    notes: list[Phrase] = []
+    if inputs.T_process is not None:
+        T_process = inputs.T_process
+        notes.append(Phrase("Process temperature entered: {T}.", {"T": Measure(T_process, "temperature", 1)}))
+    else:
+        T_process = charges[0][1].final_T
+        notes.append(Phrase("Process temperature = the vessel's final temperature, {T}.",
+                            {"T": Measure(T_process, "temperature", 1)}))
+    names = {t.name for t in reactions}
+    Q = sum(t.heat for t in result.terms if t.kind == "reaction" and t.name in names)
+    mass = sum(line.amount_si for _, line in charges)
+    if mass <= 0:
+        raise InputError("the vessel holds no mass: the screening needs the charges' masses", where)
+    cp = sum(line.amount_si * cp_at(model.material, T_process, line.final_P, where)
+             for model, line in charges) / mass
+    notes.append(Phrase("cp of the reaction mass at the process temperature, mass-weighted from the property data: "
+                        "{cp}; ΔT_ad assumes it constant over the rise.", {"cp": Measure(cp, "specific_heat")}))
+    C_vessel = _vessel_heat_capacity(problem, vessel, T_process, where)
+    phi = thermal_inertia_factor(mass, cp, C_vessel=C_vessel)
+    dT_ad = adiabatic_temperature_rise(Q, mass, cp)
+    dT_ad_phi = adiabatic_temperature_rise(Q, mass, cp, phi)
+    MTSR = mtsr(T_process, dT_ad_phi if inputs.thermal_inertia else dT_ad, inputs.accumulation)
+    notes.append(Phrase(f"MTSR = T_process + {inputs.accumulation:.0%} accumulation × ΔT_ad"
+                        + (" / φ (thermal inertia of the vessel included)." if inputs.thermal_inertia
+                           else " (vessel left out, φ = 1: conservative).")))
+    if Q <= 0:
+        notes.append(Phrase("The reaction heat is not exothermic: loss of cooling does not raise the temperature "
+                            "through this reaction (MTSR = process temperature)."))
+    MTT, MTT_source = _mtt(inputs.MTT, charges, notes)
+    T_D24 = inputs.T_D24
+    if MTT is not None and T_D24 is not None:
+        klass = criticality_class(T_process, MTSR, MTT, T_D24)
+        meaning = CLASS_MEANINGS[klass]
+    else:
+        klass = None
+        missing = " and ".join(n for n, v in (("MTT", MTT), ("T_D24 (from calorimetry)", T_D24)) if v is None)
+        meaning = f"No criticality class: enter {missing} to classify."
+    jacket = None
+    if inputs.jacket is not None:
+        jacket = _jacket(inputs.jacket, T_process, mass * cp + C_vessel, f"{where}.jacket")
+        notes.append(Phrase("Jacket time: m·cp of the contents plus the vessel's heat capacity, no reaction heat "
+                            "or losses during it."))
+    return Screening(vessel, sorted(names), T_process, Q, mass, cp, C_vessel, phi, dT_ad, dT_ad_phi,
+                     inputs.accumulation, inputs.thermal_inertia, MTSR, MTT, MTT_source, T_D24, klass, meaning,
+                     _alarms(T_process, MTSR, MTT, T_D24, where), notes, jacket)
+
+
+def _vessel_heat_capacity(problem: Problem, vessel: str, T: float, where: str) -> float:
+    equipment = next((e for e in problem.equipment if e.vessel == vessel), None)
+    if equipment is None:
+        return 0.0
+    if equipment.heat_capacity is not None:
+        return equipment.heat_capacity
+    return equipment.mass * cp_at(equipment.material, T, ATMOSPHERE, where)
+
+
+def _mtt(entered: float | None, charges: list, notes: list[Phrase]) -> tuple[float | None, Phrase]:
+    if entered is not None:
+        return entered, Phrase("entered")
+    boiling = [(tr.T, model.material, line.final_P) for model, line in charges
+               for tr in model.material.transitions(line.final_P) if tr.kind == "boiling"]
+    if not boiling:
+        return None, Phrase("not available: enter MTT (e.g. the boiling point of the reaction mass)")
+    T, material, P = min(boiling, key=lambda b: b[0])
+    if len({model.material_name for model, _ in charges}) > 1:
+        notes.append(Phrase("MTT is the lowest boiling point of the pure charges; a mixture boils elsewhere: "
+                            "enter MTT from data for the mixture if it matters."))
+    return T, Phrase("boiling point of {name} at {P}, the lowest among the charges ({source})",
+                     {"name": material.name, "P": Measure(P, "pressure"), "source": material.source})
+
+
+def _alarms(T_process: float, MTSR: float, MTT: float | None, T_D24: float | None, where: str) -> list[Phrase]:
+    def t(T: float) -> Measure:
+        return Measure(T, "temperature", 1)
+
+    alarms = []
+    if MTT is not None and MTSR >= MTT:
+        alarms.append(Phrase("MTSR {MTSR} reaches MTT {MTT}: if cooling fails the batch boils (pressure rise, "
+                             "boil-up); the condenser, vent and relief must cope.",
+                             {"MTSR": t(MTSR), "MTT": t(MTT)}, f"{where}.MTT"))
+    if T_D24 is not None and MTSR >= T_D24:
+        alarms.append(Phrase("MTSR {MTSR} reaches T_D24 {T_D24}: if cooling fails a decomposition can be "
+                             "triggered (time to maximum rate under 24 h).",
+                             {"MTSR": t(MTSR), "T_D24": t(T_D24)}, f"{where}.T_D24"))
+    if MTT is not None and T_process >= MTT:
+        alarms.append(Phrase("The process temperature {T} is already at or above MTT.", {"T": t(T_process)},
+                             f"{where}.MTT"))
+    if T_D24 is not None and T_process >= T_D24:
+        alarms.append(Phrase("The process temperature {T} is already at or above T_D24.", {"T": t(T_process)},
+                             f"{where}.T_D24"))
+    return alarms
+
+
+def _jacket(j: JacketInputs, T_process: float, heat_capacity: float, where: str) -> JacketTime:
+    T1 = T_process if j.start_T is None else j.start_T
+    try:
+        time = jacket_time(T1, j.target_T, j.utility_T, 1.0, heat_capacity, UA=j.UA)
+    except NoSolutionError as exc:
+        raise NoSolutionError(exc.phrase, f"{where}.target_temperature") from None
+    return JacketTime("heating" if j.target_T >= T1 else "cooling", T1, j.target_T, j.utility_T, j.UA,
+                      heat_capacity, time)

@@ -1,0 +1,50 @@
+"""The command line's report of a solved worksheet, and its JSON, in a unit set."""
+from __future__ import annotations
+
+from ..results import SIGN_CONVENTION, Result
+from .screening import screening_report
+from .tables import contribution_rows
+from .text import answer_text, answer_unit, answer_value, format_heat, phrase_text
+
+__all__ = ["format_result", "result_json"]
+
+
+def _table(rows: list[dict], columns: list[str]) -> str:
+    def cell(value) -> str:
+        if value is None:
+            return ""
+        return f"{value:,.2f}" if isinstance(value, float) else str(value)
+
+    cells = [[cell(r.get(c)) for c in columns] for r in rows]
+    widths = [max(len(c), *(len(row[i]) for row in cells)) for i, c in enumerate(columns)]
+    lines = ["  ".join(c.ljust(w) for c, w in zip(columns, widths)), "  ".join("-" * w for w in widths)]
+    lines += ["  ".join(v.rjust(w) if i >= 4 else v.ljust(w) for i, (v, w) in enumerate(zip(row, widths)))
+              for row in cells]
+    return "\n".join(lines)
+
+
+def format_result(result: Result, system: str = "SI") -> str:
+    """A readable report of a solved worksheet in a unit set."""
+    rows = contribution_rows(result, system)
+    columns = ["item", "type", "from", "to", *[k for k in rows[0] if "[" in k]]
+    out = [result.title, "=" * len(result.title),
+           f"ANSWER  {result.answer.label} = {answer_text(result.answer, system)}", "",
+           _table(rows, columns), "",
+           f"closure residual: {format_heat(result.residual, result.basis, system)}",
+           f"sign convention: {SIGN_CONVENTION}", "", "assumptions:"]
+    out += [f"  - {a}" for a in result.assumptions]
+    out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
+    out += ["warnings:"] + ([f"  ! {phrase_text(w, system)}" for w in result.warnings] or ["  (none)"])
+    if result.screening:
+        out += [""] + screening_report(result.screening, system)
+    out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
+    return "\n".join(out)
+
+
+def result_json(result: Result, system: str = "SI") -> dict:
+    """The full result as JSON-ready data: SI numbers, words in the unit set, the answer also as shown."""
+    data = result.to_dict(lambda phrase: phrase_text(phrase, system))
+    data["answer"].update(text=answer_text(result.answer, system), unit=answer_unit(result.answer, system),
+                          value=answer_value(result.answer, system))
+    data["units"] = system
+    return data

@@ -1,0 +1,452 @@
+"""Worksheet as typed -> problem in SI: the one place where typed units become plain floats.
+
+Every refusal raised here carries the address of the field at fault (see
+:mod:`heatbalance.address`). The problem holds each line, equipment heat and heat
+term in SI, the temperature variables, the unknown (as an address and a target),
+and the SI inputs of any vessel's thermal screening.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import cached_property
+
+from .address import item, unknown_address
+from .errors import InputError
+from .materials import get_material
+from .messages import Measure, Phrase
+from .properties import Material, Phase, TabulatedMaterial
+from .reactions import reaction_enthalpy
+from .units import basis_kinds, kind_of, to_si
+from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
+
+__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "Problem",
+           "build_problem", "ASSUMPTIONS"]
+
+ASSUMPTIONS = [
+    "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
+    "Losses as entered.",
+    "Reaction heat applied at the process temperature (no Kirchhoff correction).",
+    "Gauge pressures are relative to the standard atmosphere, 1.01325 bar.",
+]
+
+
+# --------------------------------------------------------------------------- the problem model
+@dataclass
+class StateSpec:
+    """A state in SI: either on a temperature variable, or on a plateau at a fraction.
+
+    ``label`` is the state's address (``streams[Steam].inlet``).
+    """
+
+    label: str
+    P: float
+    var: str | None = None
+    plateau: str | None = None  # boiling | melting
+    fraction: float | None = None  # of the upper phase
+
+
+@dataclass
+class Line:
+    name: str
+    kind: str  # stream | charge
+    material_name: str
+    material: Material
+    amount: float | None  # kg/s or kg (None: the unknown)
+    initial: StateSpec
+    final: StateSpec
+    address: str = ""  # of the line: streams[S] or vessels[V].charges[C]
+    vessel: str | None = None  # for a charge: its vessel and its own name
+    charge: str | None = None
+
+    @property
+    def amount_address(self) -> str:
+        return f"{self.address}.{'flow' if self.kind == 'stream' else 'mass'}"
+
+
+@dataclass
+class EquipmentHeat:
+    name: str
+    vessel: str
+    initial_var: str
+    final: StateSpec  # the vessel's final state (its temperature)
+    final_material: Material
+    heat_capacity: float | None = None  # J/K
+    material: Material | None = None
+    mass: float = 0.0
+
+
+@dataclass
+class HeatTerm:
+    name: str
+    kind: str  # duty | loss | reaction
+    heat: float | None  # + into the process; None: the unknown
+    detail: Phrase = field(default_factory=lambda: Phrase(""))
+    vessel: str | None = None  # a reaction's vessel, as named
+
+
+@dataclass
+class JacketInputs:
+    """A jacket heating or cooling the batch, SI (K, W/K)."""
+
+    utility_T: float
+    target_T: float
+    start_T: float | None
+    UA: float
+
+
+@dataclass
+class ScreeningInputs:
+    """A vessel's optional screening inputs, SI (K); ``None`` where not entered."""
+
+    accumulation: float = 1.0
+    T_D24: float | None = None
+    MTT: float | None = None
+    T_process: float | None = None
+    thermal_inertia: bool = False
+    jacket: JacketInputs | None = None
+
+
+@dataclass
+class Problem:
+    """A worksheet in plain SI numbers."""
+
+    title: str
+    basis: str
+    lines: list[Line]
+    equipment: list[EquipmentHeat]
+    terms: list[HeatTerm]
+    temperatures: dict[str, float | None]
+    var_addresses: dict[str, str]  # temperature variable -> the address of its field
+    unknown: Unknown
+    unknown_target: object  # a Line, a HeatTerm, or a temperature variable key
+    unknown_address: str
+    vessels: list[str] = field(default_factory=list)
+    screening: dict[str, ScreeningInputs] = field(default_factory=dict)  # vessel -> its inputs
+    warnings: list[Phrase] = field(default_factory=list)
+    assumptions: list[str] = field(default_factory=list)
+
+
+# --------------------------------------------------------------------------- building
+def _si(q: Quantity, kind: str, where: str) -> float:
+    return to_si(q.value, q.unit, kind, where)
+
+
+class _Builder:
+    """Turns a validated :class:`Worksheet` into a :class:`Problem`."""
+
+    def __init__(self, ws: Worksheet):
+        self.ws = ws
+        self.basis = ws.basis.kind
+        self.duration = self._duration()
+        self.user_materials = {m.name: _user_material(m) for m in ws.materials}
+        self.temperatures: dict[str, float | None] = {}
+        self.var_addresses: dict[str, str] = {}
+        self.assumptions = list(ASSUMPTIONS)
+        self.unknown = _the_unknown(ws)
+
+    def _duration(self) -> float | None:
+        q = self.ws.basis.duration
+        if q is None:
+            return None
+        value = _si(q, "duration", "basis.duration")
+        if value <= 0:
+            raise InputError(f"the duration must be positive, not {q}", "basis.duration")
+        return value
+
+    # -- quantities on the basis
+    def basis_value(self, q: Quantity, role: str, where: str) -> float:
+        """A total (batch) or a rate (continuous); a rate in batch is applied over the duration."""
+        kinds = basis_kinds(role, self.basis)
+        kind = kinds[0] if len(kinds) == 1 else kind_of(q.unit, kinds, where)
+        value = _si(q, kind, where)
+        if self.basis == "batch" and kind == kinds[1]:
+            if self.duration is None:
+                raise InputError(f"{q} is a rate; a batch worksheet needs a duration to apply it", where)
+            self.assumptions.append(f"{where}: {q} applied over the batch duration {self.ws.basis.duration}.")
+            value *= self.duration
+        return value
+
+    def amount(self, q: Quantity | None, where: str, is_unknown: bool) -> float | None:
+        if is_unknown:
+            return None
+        if q is None:
+            raise InputError("no value given, and it is not the unknown: enter it or make it the unknown",
+                             where)
+        value = self.basis_value(q, "amount", where)
+        if value < 0:
+            raise InputError(f"a mass or flow cannot be negative ({q})", where)
+        return value
+
+    def material(self, name: str, fraction: float | None, where: str) -> Material:
+        return get_material(name, fraction, self.user_materials, where)
+
+    # -- temperatures and states
+    def variable(self, key: str, address: str, q: Quantity | None) -> str:
+        is_unknown = self.unknown.kind == "temperature" and self._unknown_var == key
+        if q is None and not is_unknown:
+            raise InputError("no temperature given, and it is not the unknown: enter it or make it the unknown",
+                             address)
+        self.temperatures[key] = None if is_unknown else _si(q, "temperature", address)
+        self.var_addresses[key] = address
+        return key
+
+    def state(self, state: State, key: str, address: str, line_pressure: float) -> StateSpec:
+        P = _si(state.pressure, "pressure", f"{address}.pressure") if state.pressure else line_pressure
+        is_unknown = self.unknown.kind == "temperature" and self._unknown_var == key
+        if state.common is not None and not is_unknown:
+            return StateSpec(address, P, var=self._common_key(state.common, address))
+        if not is_unknown and state.vapour_fraction is not None:
+            return StateSpec(address, P, plateau="boiling", fraction=state.vapour_fraction)
+        if not is_unknown and state.solid_fraction is not None:
+            return StateSpec(address, P, plateau="melting", fraction=1.0 - state.solid_fraction)
+        return StateSpec(address, P, var=self.variable(key, f"{address}.temperature", state.temperature))
+
+    def _common_key(self, name: str, where: str) -> str:
+        key = f"common:{name}"
+        if key not in self.temperatures:
+            raise InputError(f"no shared temperature called '{name}'", f"{where}.common")
+        return key
+
+    # -- the unknown
+    @cached_property
+    def _unknown_var(self) -> str | None:
+        u = self.unknown
+        if u.kind != "temperature":
+            return None
+        if u.common is not None:
+            return f"common:{u.common}"
+        if u.charge is not None:
+            charge = next((c for v in self.ws.vessels if v.name == u.line for c in v.charges if c.name == u.charge),
+                          None)
+            if charge is not None:
+                common = charge.initial.common
+                return f"common:{common}" if common else f"charge:{u.line}/{u.charge}:initial"
+        stream = next((s for s in self.ws.streams if s.name == u.line), None)
+        if stream is not None and u.end in ("inlet", "outlet"):
+            state = stream.inlet if u.end == "inlet" else stream.outlet
+            return f"common:{state.common}" if state.common else f"stream:{u.line}:{u.end}"
+        vessel = next((v for v in self.ws.vessels if v.name == u.line), None)
+        if vessel is not None and u.end == "final":
+            return f"common:{vessel.final.common}" if vessel.final.common else f"vessel:{u.line}:final"
+        raise InputError(f"the unknown names no field of this worksheet ({unknown_address(u)})", "unknown")
+
+    # -- the whole problem
+    def build(self) -> Problem:
+        ws = self.ws
+        if ws.vessels and self.basis == "continuous":
+            raise InputError("vessels hold batch charges: switch the basis to batch, or model the vessel's "
+                             "feeds as streams", item("vessels", ws.vessels[0].name))
+        if not ws.streams and not ws.vessels:
+            raise InputError("the worksheet has no streams or vessels", "worksheet")
+        unknown_var = self._unknown_var
+        for common in ws.common_temperatures:
+            self.variable(f"common:{common.name}", item("common_temperatures", common.name, "temperature"),
+                          common.temperature)
+        lines = [self._stream(s) for s in ws.streams]
+        equipment = []
+        for vessel in ws.vessels:
+            vessel_lines, vessel_equipment = self._vessel(vessel)
+            lines += vessel_lines
+            equipment += vessel_equipment
+        terms = self._terms()
+        target, address = self._target(lines, terms, unknown_var)
+        screening = {v.name: self._screening(v) for v in ws.vessels}
+        return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_addresses,
+                       self.unknown, target, address, [v.name for v in ws.vessels], screening,
+                       assumptions=self.assumptions)
+
+    def _stream(self, s) -> Line:
+        where = item("streams", s.name)
+        P = _si(s.pressure, "pressure", f"{where}.pressure")
+        is_unknown = self.unknown.kind == "amount" and self.unknown.line == s.name and self.unknown.charge is None
+        return Line(s.name, "stream", s.material, self.material(s.material, s.mass_fraction, f"{where}.material"),
+                    self.amount(s.flow, f"{where}.flow", is_unknown),
+                    self.state(s.inlet, f"stream:{s.name}:inlet", f"{where}.inlet", P),
+                    self.state(s.outlet, f"stream:{s.name}:outlet", f"{where}.outlet", P), address=where)
+
+    def _vessel(self, v) -> tuple[list[Line], list[EquipmentHeat]]:
+        where = item("vessels", v.name)
+        P = _si(v.pressure, "pressure", f"{where}.pressure")
+        final = self.state(v.final, f"vessel:{v.name}:final", f"{where}.final", P)
+        lines = []
+        for c in v.charges:
+            cw = f"{where}.{item('charges', c.name)}"
+            is_unknown = (self.unknown.kind == "amount" and self.unknown.line == v.name
+                          and self.unknown.charge == c.name)
+            lines.append(Line(f"{v.name} / {c.name}", "charge", c.material,
+                              self.material(c.material, c.mass_fraction, f"{cw}.material"),
+                              self.amount(c.mass, f"{cw}.mass", is_unknown),
+                              self.state(c.initial, f"charge:{v.name}/{c.name}:initial", f"{cw}.initial", P),
+                              final, address=cw, vessel=v.name, charge=c.name))
+        if final.plateau and len({line.material_name for line in lines}) > 1:
+            raise InputError("a final phase fraction needs all charges of one material; give a temperature",
+                             f"{where}.final")
+        return lines, ([self._equipment(v, lines, final)] if v.equipment else [])
+
+    def _equipment(self, v, lines: list[Line], final: StateSpec) -> EquipmentHeat:
+        e, where = v.equipment, item("vessels", v.name, "equipment")
+        if e.initial_temperature is not None:
+            initial = self.variable(f"equipment:{v.name}:initial", f"{where}.initial_temperature",
+                                    e.initial_temperature)
+        elif lines[0].initial.var is not None:
+            initial = lines[0].initial.var
+        else:
+            raise InputError("give the equipment's initial temperature (the first charge starts on a plateau)",
+                             f"{where}.initial_temperature")
+        heat = EquipmentHeat(f"{v.name} equipment", v.name, initial, final, lines[0].material)
+        if e.heat_capacity is not None:
+            heat.heat_capacity = _si(e.heat_capacity, "heat_capacity", f"{where}.heat_capacity")
+            if heat.heat_capacity < 0:
+                raise InputError(f"a heat capacity cannot be negative ({e.heat_capacity})", f"{where}.heat_capacity")
+        else:
+            heat.material = self.material(e.material, None, f"{where}.material")
+            heat.mass = _si(e.mass, "mass", f"{where}.mass")
+            if heat.mass < 0:
+                raise InputError(f"a mass cannot be negative ({e.mass})", f"{where}.mass")
+        return heat
+
+    def _terms(self) -> list[HeatTerm]:
+        terms = []
+        for d in self.ws.duties:
+            where = item("duties", d.name, "value")
+            is_unknown = self.unknown.kind == "duty" and self.unknown.term == d.name
+            if d.value is None and not is_unknown:
+                raise InputError("no value given, and it is not the unknown", where)
+            value = None if is_unknown else self.basis_value(d.value, "heat", where)
+            terms.append(HeatTerm(d.name, "duty", value, Phrase("heater +, cooler −")))
+        for loss in self.ws.losses:
+            where = item("losses", loss.name, "value")
+            value = self.basis_value(loss.value, "heat", where)
+            if value < 0:
+                raise InputError(f"enter a loss as a positive amount of heat leaving ({loss.value})", where)
+            terms.append(HeatTerm(loss.name, "loss", -value, Phrase(f"{loss.value} lost")))
+        for r in self.ws.reactions:
+            terms.append(self._reaction(r))
+        return terms
+
+    def _reaction(self, r) -> HeatTerm:
+        where = item("reactions", r.name)
+        hess = None if r.equation is None else reaction_enthalpy(r.equation, r.key_reactant,
+                                                                 where=f"{where}.equation")
+        dH = _si(r.enthalpy, "molar_energy", f"{where}.enthalpy") if r.enthalpy is not None else hess.dH_per_key
+        if hess is not None:
+            used = "the entered ΔH is used; the equation gives " if r.enthalpy is not None else ""
+            tables = "; ".join(f"{name} = {source}" for name, source in hess.sources.items())
+            self.assumptions.append(f"{where}: {used}{hess.text}. Tables: {tables}.")
+        reacted = self._moles(r, hess, f"{where}.amount") * r.conversion
+        entered = str(r.enthalpy) if r.enthalpy is not None else \
+            f"{dH / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
+        amount_kind = basis_kinds("moles", "batch")[0] if self.basis == "batch" else "molar_flow"
+        detail = Phrase("ΔH = {entered} × {reacted} reacted (conversion {conversion})",
+                        {"entered": entered, "reacted": Measure(reacted, amount_kind),
+                         "conversion": f"{r.conversion:.0%}"})
+        return HeatTerm(r.name, "reaction", -dH * reacted, detail, vessel=r.vessel)
+
+    def _moles(self, r, hess, where: str) -> float:
+        by_mass = r.molar_mass is not None or (
+            hess is not None and kind_of(r.amount.unit, basis_kinds("moles", self.basis)
+                                         + basis_kinds("amount", self.basis), where) in ("mass", "mass_flow"))
+        if not by_mass:
+            moles = self.basis_value(r.amount, "moles", where)
+        else:
+            mass = self.basis_value(r.amount, "amount", where)
+            if r.molar_mass is None:
+                M = hess.key_molar_mass
+            else:
+                M = _si(r.molar_mass, "molar_mass", f"{where.rpartition('.')[0]}.molar_mass")
+                if M <= 0:
+                    raise InputError(f"a molar mass must be positive ({r.molar_mass})",
+                                     f"{where.rpartition('.')[0]}.molar_mass")
+            moles = mass / M
+        if moles < 0:
+            raise InputError(f"the amount reacted cannot be negative ({r.amount})", where)
+        return moles
+
+    def _screening(self, v) -> ScreeningInputs:
+        s, where = v.screening, item("vessels", v.name, "screening")
+        if s is None:
+            return ScreeningInputs()
+
+        def temperature(name: str) -> float | None:
+            q = getattr(s, name)
+            return None if q is None else _si(q, "temperature", f"{where}.{name}")
+
+        return ScreeningInputs(s.accumulation, temperature("T_D24"), temperature("MTT"),
+                               temperature("process_temperature"), s.thermal_inertia,
+                               None if s.jacket is None else _jacket(s.jacket, f"{where}.jacket"))
+
+    def _target(self, lines: list[Line], terms: list[HeatTerm], var: str | None) -> tuple[object, str]:
+        u = self.unknown
+        if u.kind == "temperature":
+            if var not in self.var_addresses:
+                raise InputError(f"the unknown names no temperature of this worksheet ({unknown_address(u)})",
+                                 "unknown")
+            return var, unknown_address(u)
+        if u.kind == "amount":
+            line = next((ln for ln in lines if ln.amount is None), None)
+            if line is None:
+                raise InputError(f"the unknown names no line of this worksheet ({unknown_address(u)})", "unknown")
+            return line, line.amount_address
+        term = next((t for t in terms if t.heat is None), None)
+        if term is None:
+            raise InputError(f"the unknown names no duty of this worksheet ({unknown_address(u)})", "unknown")
+        return term, item("duties", term.name, "value")
+
+
+def _jacket(j, where: str) -> JacketInputs:
+    def positive(q: Quantity, kind: str, name: str) -> float:
+        value = _si(q, kind, f"{where}.{name}")
+        if not value > 0:
+            raise InputError(f"{name} must be positive, not {q}", f"{where}.{name}")
+        return value
+
+    UA = positive(j.UA, "thermal_conductance", "UA") if j.UA is not None else \
+        positive(j.U, "heat_transfer_coefficient", "U") * positive(j.area, "area", "area")
+    start = None if j.start_temperature is None else \
+        _si(j.start_temperature, "temperature", f"{where}.start_temperature")
+    return JacketInputs(_si(j.utility_temperature, "temperature", f"{where}.utility_temperature"),
+                        _si(j.target_temperature, "temperature", f"{where}.target_temperature"), start, UA)
+
+
+def _the_unknown(ws: Worksheet) -> Unknown:
+    if not ws.unknowns:
+        raise InputError("no unknown: mark one quantity (a flow or mass, a temperature, or a duty) to solve for",
+                         "unknown")
+    if len(ws.unknowns) > 1:
+        listed = "; ".join(unknown_address(u) for u in ws.unknowns)
+        raise InputError(f"{len(ws.unknowns)} unknowns ({listed}): a balance solves for exactly one; "
+                         "give a value to all but one", "unknown")
+    return ws.unknowns[0]
+
+
+def _user_material(m: UserMaterial) -> TabulatedMaterial:
+    where = item("materials", m.name)
+    phases = []
+    for i, p in enumerate(m.phases):
+        pw = f"{where}.{item('phases', p.name)}"
+        cp0 = _si(p.cp, "specific_heat", f"{pw}.cp")
+        scale = cp0 / p.cp.value if p.cp.value else 1.0
+        if cp0 <= 0:
+            raise InputError(f"cp must be positive ({p.cp})", f"{pw}.cp")
+        last = i == len(m.phases) - 1
+        if not last and (p.up_to is None or p.latent_heat is None):
+            raise InputError("every phase but the last needs 'up_to' (its transition temperature) and "
+                             "'latent_heat'", f"{pw}.{'up_to' if p.up_to is None else 'latent_heat'}")
+        T_upper = _si(p.up_to, "temperature", f"{pw}.up_to") if not last else math.inf
+        latent = 0.0 if last else _si(p.latent_heat, "specific_energy", f"{pw}.latent_heat")
+        if latent < 0:
+            raise InputError(f"a latent heat cannot be negative ({p.latent_heat})", f"{pw}.latent_heat")
+        phases.append(Phase(p.name, (cp0, p.cp_per_kelvin * scale, p.cp_per_kelvin2 * scale), T_upper, latent))
+    t_min = _si(m.min_temperature, "temperature", f"{where}.min_temperature")
+    t_max = _si(m.max_temperature, "temperature", f"{where}.max_temperature")
+    uppers = [p.T_upper for p in phases[:-1]]
+    if not t_min < t_max or uppers != sorted(uppers) or any(not t_min <= T <= t_max for T in uppers):
+        raise InputError("temperatures must rise: min temperature < each transition < max temperature",
+                         f"{where}.max_temperature")
+    return TabulatedMaterial(m.name, tuple(phases), t_min, t_max, f"user-defined: {m.source}")
+
+
+def build_problem(ws: Worksheet) -> Problem:
+    """Check a worksheet and convert it to SI numbers (refusals name the field's address)."""
+    return _Builder(ws).build()
