@@ -65,9 +65,9 @@ def evaluate_state(material: Material, state: StateSpec, temperatures: dict, pla
         tr = _plateau_transition(material, state)
         return Point(tr.T, state.fraction, tr.h_lower + state.fraction * tr.latent)
     T = temperatures[state.var]
-    material.check_range(T, state.label)
+    material.check_range(T, f"{state.label}.temperature")
     if hasattr(material, "check_pressure"):
-        material.check_pressure(state.P, state.label)
+        material.check_pressure(state.P, state.pressure_address)
     fraction = plateau_side.get(state.var)
     if fraction is not None:
         tr = _transition_at(material, state.P, T)
@@ -127,7 +127,7 @@ def _negative_amount_message(p: Problem, line: Line, dh: float, surplus: float) 
     return Phrase("the balance would need a negative amount: {line} {role} ({dh}), but the rest of the worksheet "
                   "already has {other} of {gap}. Check the states of this line and the duties.",
                   {"line": line.name, "role": "absorbs heat" if dh > 0 else "gives up heat",
-                   "dh": Measure(abs(dh), "specific_energy"),
+                   "dh": Measure(abs(dh), "specific_energy", decimals=1),
                    "other": "a heat surplus" if surplus > 0 else "a heat deficit",
                    "gap": Measure(abs(surplus), heat_kind(p.basis))})
 
@@ -139,7 +139,7 @@ def _solve_temperature(p: Problem) -> float | None:
     dependent = [ln for ln in p.lines if _depends(ln, var)]
     equipment_dep = [e for e in p.equipment if var in (e.initial_var, e.final.var)]
     if not dependent and not equipment_dep:
-        raise InputError("no line's state depends on this temperature", p.unknown_label)
+        raise InputError("no line's state depends on this temperature", p.unknown_address)
     fixed = sum(ln.amount * _line_dh(ln, temps, {}) for ln in p.lines if not _depends(ln, var))
     fixed += sum(_equipment_heat(e, temps, {}) for e in p.equipment if e not in equipment_dep)
     fixed -= sum(t.heat for t in p.terms)
@@ -154,7 +154,7 @@ def _solve_temperature(p: Problem) -> float | None:
     low, high = max(m.t_min for m in materials), min(m.t_max for m in materials)
     if low >= high:
         raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
-                              f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_label)
+                              f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_address)
     breaks = sorted({tr.T for ln in dependent for st in (ln.initial, ln.final) if st.var == var
                      for tr in ln.material.transitions(st.P) if low - T_TOL <= tr.T <= high + T_TOL})
     # (T, residual on its cold side, residual on its hot side) at each bound and phase change
@@ -176,7 +176,7 @@ def _solve_temperature(p: Problem) -> float | None:
             return None
     limits = {low: next(m.name for m in materials if m.t_min == low),
               high: next(m.name for m in materials if m.t_max == high)}
-    raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_label)
+    raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_address)
 
 
 def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, float]) -> float:
@@ -366,7 +366,7 @@ def _phase_warnings(p: Problem, lines: list[LineResult]) -> list[Phrase]:
             out.append(Phrase("{name} changes phase ({a} → {b}) and {verb} latent heat, {latent}; included in the "
                               "balance.", {"name": ln.name, "a": ln.initial_phase, "b": ln.final_phase,
                                            "verb": "takes up" if per_kg > 0 else "gives up",
-                                           "latent": Measure(abs(per_kg), "specific_energy", 5)}, ln.address))
+                                           "latent": Measure(abs(per_kg), "specific_energy", decimals=1)}, ln.address))
         for T, P, end in ((ln.initial_T, ln.initial_P, "inlet"), (ln.final_T, ln.final_P, "outlet")):
             if isinstance(model.material, IncompressibleSolution):
                 water_boils = get_material("water").transitions(P)

@@ -22,7 +22,8 @@ class Measure:
 
     value: float
     kind: str
-    digits: int = 4  # significant figures (temperatures: decimals) when written
+    digits: int = 4  # significant figures when written (temperatures: decimals, at most 2)
+    decimals: int | None = None  # write with this many decimals instead
 
 
 # kind -> (unit written, scale, offset, how many decimals for temperatures): SI value * scale + offset
@@ -41,6 +42,8 @@ def fallback_text(measure: Measure) -> str:
     value = measure.value * scale + offset
     if not math.isfinite(value):
         return f"{value} {unit}".strip()
+    if measure.decimals is not None:
+        return f"{value:,.{measure.decimals}f} {unit}"
     if measure.kind == "temperature":
         return f"{value:.{min(measure.digits, 2)}f} {unit}"
     return f"{value:,.{measure.digits}g} {unit}".strip()

@@ -44,6 +44,7 @@ class StateSpec:
     var: str | None = None
     plateau: str | None = None  # boiling | melting
     fraction: float | None = None  # of the upper phase
+    pressure_address: str = ""  # the field its pressure comes from: its own, or its line's or vessel's
 
 
 @dataclass
@@ -192,15 +193,24 @@ class _Builder:
         return key
 
     def state(self, state: State, key: str, address: str, line_pressure: float) -> StateSpec:
-        P = _si(state.pressure, "pressure", f"{address}.pressure") if state.pressure else line_pressure
+        """``line_pressure``: the line's (or vessel's) pressure, used unless the state has its own."""
+        if state.pressure:
+            P, P_address = _si(state.pressure, "pressure", f"{address}.pressure"), f"{address}.pressure"
+        else:
+            P, P_address = line_pressure, f"{address.rpartition('.')[0]}.pressure"
+        if "].charges[" in address and not state.pressure:  # a charge is at its vessel's pressure
+            P_address = f"{address.partition('.charges[')[0]}.pressure"
         is_unknown = self.unknown.kind == "temperature" and self._unknown_var == key
         if state.common is not None and not is_unknown:
-            return StateSpec(address, P, var=self._common_key(state.common, address))
-        if not is_unknown and state.vapour_fraction is not None:
-            return StateSpec(address, P, plateau="boiling", fraction=state.vapour_fraction)
-        if not is_unknown and state.solid_fraction is not None:
-            return StateSpec(address, P, plateau="melting", fraction=1.0 - state.solid_fraction)
-        return StateSpec(address, P, var=self.variable(key, f"{address}.temperature", state.temperature))
+            spec = StateSpec(address, P, var=self._common_key(state.common, address))
+        elif not is_unknown and state.vapour_fraction is not None:
+            spec = StateSpec(address, P, plateau="boiling", fraction=state.vapour_fraction)
+        elif not is_unknown and state.solid_fraction is not None:
+            spec = StateSpec(address, P, plateau="melting", fraction=1.0 - state.solid_fraction)
+        else:
+            spec = StateSpec(address, P, var=self.variable(key, f"{address}.temperature", state.temperature))
+        spec.pressure_address = P_address
+        return spec
 
     def _common_key(self, name: str, where: str) -> str:
         key = f"common:{name}"

@@ -15,7 +15,7 @@ HEATER = "sample_data/us_water_heater_duty.json"
 def test_solve_prints_the_answer_and_every_contribution(capsys):
     assert main(["solve", FLASH]) == 0
     out = capsys.readouterr().out
-    assert "ANSWER  stream Condensate return outlet temperature = 111.6 °C, 12.3% vapour" in out
+    assert "ANSWER  Condensate return outlet temperature = 111.6 °C, 12.3% vapour" in out
     assert "+ = heat into the process" in out and "closure residual: 0.00 kW" in out
     assert "IAPWS-IF97" in out
 
@@ -55,7 +55,7 @@ def test_bad_input_is_one_line_and_exit_1(tmp_path, capsys):
     path.write_text(json.dumps(sheet))
     assert main(["solve", str(path)]) == 1
     err = capsys.readouterr().err
-    assert err == "error: stream Condensate return flow: unit 'kW' is not a mass flow (it measures power)\n"
+    assert err == "error: streams[Condensate return].flow: unit 'kW' is not a mass flow (it measures power)\n"
 
 
 def test_missing_file(capsys):

@@ -8,20 +8,21 @@ from pathlib import Path
 import pytest
 from iapws import IAPWS97
 
-from heatbalance import contribution_rows, load_worksheet, solve
-from heatbalance.figures import CLOSING_LABEL, energy_waterfall, waterfall_steps
+from heatbalance import load_worksheet, solve
+from heatbalance.present.tables import contribution_rows
+from heatbalance.present.figures import CLOSING_LABEL, energy_waterfall, waterfall_steps
 
 SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_data").glob("*.json"))
 
 
-def solved(name, system="SI"):
-    return solve(load_worksheet((SAMPLES[0].parent / name).read_bytes()), system)
+def solved(name):
+    return solve(load_worksheet((SAMPLES[0].parent / name).read_bytes()))
 
 
 @pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
 @pytest.mark.parametrize("system", ["SI", "US"])
 def test_the_waterfall_closes_at_zero_and_matches_the_contribution_table(path, system):
-    result = solve(load_worksheet(path.read_bytes()), system)
+    result = solve(load_worksheet(path.read_bytes()))
     steps = waterfall_steps(result, system)
     heat_column = next(c for c in contribution_rows(result, system)[0] if c.startswith("heat into process"))
     table = [row[heat_column] for row in contribution_rows(result, system)]
@@ -34,7 +35,7 @@ def test_the_waterfall_closes_at_zero_and_matches_the_contribution_table(path, s
 
 def test_a_bar_against_iapws_in_us_units():
     """Feedwater sample: 20,000 lb/h heated from 60 to 220 °F at 50 psig absorbs m·Δh."""
-    result = solved("us_water_heater_duty.json", "US")
+    result = solved("us_water_heater_duty.json")
     figure = energy_waterfall(result, "US")
     # IAPWS-IF97 (iapws package), P = 50 psi + 1 atm in MPa; h in kJ/kg
     P = (50 * 6894.757293168 + 101325) / 1e6

@@ -11,11 +11,13 @@ from pathlib import Path
 import pytest
 
 from heatbalance.balance import solve
+from heatbalance.present.text import answer_text, answer_unit, answer_value
 from heatbalance.errors import WorksheetFormatError
-from heatbalance.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
+from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import (ID_LENGTH, MAX_SHEET_PARAM_CHARS, SHEET_PREFIX, LinkError, canonical_json, check_id,
                                decode_sheet, encode_sheet, parse_link, revision_id, revision_link, sheet_link)
-from heatbalance.results import SIGN_CONVENTION, contribution_rows
+from heatbalance.present.tables import contribution_rows
+from heatbalance.results import SIGN_CONVENTION
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
 SAMPLES = sorted(Path(__file__).parent.parent.joinpath("sample_data").glob("*.json"))
@@ -174,13 +176,13 @@ def test_the_json_download_loads_back_identical(path):
 @pytest.mark.parametrize("system", ["SI", "US"])
 def test_the_csv_download_holds_every_contribution_and_the_sign_convention(path, system):
     ws = _sample(path)
-    result = solve(ws, system)
+    result = solve(ws)
     data = results_csv_bytes(result, system)
     assert data.startswith(b"\xef\xbb\xbf")  # a byte-order mark: spreadsheets then read UTF-8 (°C, −)
     text = data.decode("utf-8-sig")
     comments = [line for line in text.splitlines() if line.startswith("#")]
     assert comments[0] == f"# {ws.title}"
-    assert f"# answer: {result.answer.label} = {result.answer.text}" in comments
+    assert f"# answer: {result.answer.label} = {answer_text(result.answer, system)}" in comments
     assert f"# sign convention: {SIGN_CONVENTION}" in comments
     table = list(csv.DictReader(io.StringIO("\n".join(l for l in text.splitlines() if not l.startswith("#")))))
     expected = contribution_rows(result, system)

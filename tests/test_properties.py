@@ -138,6 +138,6 @@ def test_solution_needs_a_fraction_in_range():
 
 
 def test_temperature_outside_the_data_is_refused_with_the_range():
-    with pytest.raises(PropertyRangeError, match=r"temperature 1200 °C is outside the property data of water "
-                                                 r"\(0 to 800 °C\)"):
-        WATER.check_range(1473.15, "stream S outlet")
+    with pytest.raises(PropertyRangeError, match=r"^streams\[S\]\.outlet\.temperature: temperature 1200\.00 °C is "
+                                                 r"outside the property data of water \(0\.00 °C to 800\.00 °C\)"):
+        WATER.check_range(1473.15, "streams[S].outlet.temperature")

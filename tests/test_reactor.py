@@ -11,12 +11,13 @@ import pytest
 from iapws import IAPWS97
 from scipy.integrate import solve_ivp
 
-from heatbalance.balance import solve
+from heatbalance.analyses import solve_and_analyse as solve  # the balance and its screening
 from heatbalance.cli import main
 from heatbalance.errors import InputError, NoSolutionError, UnitError, WorksheetFormatError
 from heatbalance.reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, criticality_class,
-                                 jacket_temperature, jacket_time, mtsr, screening_figure, screening_report,
-                                 thermal_inertia_factor)
+                                 jacket_temperature, jacket_time, mtsr, thermal_inertia_factor)
+from heatbalance.present.screening import screening_figure, screening_report
+from heatbalance.present.text import phrase_text
 from sheet_factory import build, constant_cp_material, q, temp
 
 C = 273.15  # K at 0 °C (definition)
@@ -108,12 +109,12 @@ def test_jacket_time_against_numerical_integration(T1, T2, Tu):
 
 # --------------------------------------------------------------------------- refusals of the pure functions
 @pytest.mark.parametrize("T1, T2, Tu, message", [
-    pytest.param(20, 160, 150, r"a utility at 150.00 °C cannot heat the batch from 20.00 to 160.00 °C: the target "
+    pytest.param(20, 160, 150, r"a utility at 150.00 °C cannot heat the batch from 20.00 °C to 160.00 °C: the target "
                                r"must lie between the start and the utility temperature", id="target-above-utility"),
-    pytest.param(20, 150, 150, r"cannot heat the batch from 20.00 to 150.00 °C", id="target-equals-utility"),
-    pytest.param(80, 30, 90, r"a utility at 90.00 °C cannot cool the batch from 80.00 to 30.00 °C.*Use a colder "
+    pytest.param(20, 150, 150, r"cannot heat the batch from 20.00 °C to 150.00 °C", id="target-equals-utility"),
+    pytest.param(80, 30, 90, r"a utility at 90.00 °C cannot cool the batch from 80.00 °C to 30.00 °C.*Use a colder "
                              r"utility", id="cooling-with-a-hotter-utility"),
-    pytest.param(80, 10, 20, r"cannot cool the batch from 80.00 to 10.00 °C", id="target-below-coolant"),
+    pytest.param(80, 10, 20, r"cannot cool the batch from 80.00 °C to 10.00 °C", id="target-below-coolant"),
 ])
 def test_jacket_refuses_unreachable_targets(T1, T2, Tu, message):
     with pytest.raises(NoSolutionError, match=message):
@@ -219,8 +220,8 @@ def test_worksheet_reaches_every_class(MTT, T_D24, expected):
     assert s.criticality_class == expected
     assert s.class_meaning == CLASS_MEANINGS[expected]
     # alarms exactly when MTSR (71.95 °C) reaches MTT or T_D24
-    assert any("reaches MTT" in a for a in s.alarms) == (MTT <= 71.953125)
-    assert any("reaches T_D24" in a for a in s.alarms) == (T_D24 <= 71.953125)
+    assert any("reaches MTT" in a.text for a in s.alarms) == (MTT <= 71.953125)
+    assert any("reaches T_D24" in a.text for a in s.alarms) == (T_D24 <= 71.953125)
 
 
 def test_worksheet_MTT_is_the_boiling_point_at_the_vessel_pressure():
@@ -228,8 +229,8 @@ def test_worksheet_MTT_is_the_boiling_point_at_the_vessel_pressure():
     expected = IAPWS97(P=0.301325, x=0).T
     s = screening_of(scenario(pressure="2 barg", material="water"))
     assert s.MTT == pytest.approx(expected, abs=1e-3)
-    assert "boiling point of water at 3.013 bar(a)" in s.MTT_source
-    assert "IAPWS-IF97" in s.MTT_source
+    assert "boiling point of water at 3.013 bar(a)" in s.MTT_source.text
+    assert "IAPWS-IF97" in s.MTT_source.text
     # liquid water at 60 °C: cp 4.184 kJ/(kg·K) (CRC Handbook, from memory, ±0.1 %)
     assert s.cp == pytest.approx(4184, rel=2e-3)
     assert s.criticality_class is None and "enter T_D24" in s.class_meaning
@@ -238,14 +239,14 @@ def test_worksheet_MTT_is_the_boiling_point_at_the_vessel_pressure():
 def test_worksheet_MTT_entered_overrides_and_missing_MTT_is_said():
     assert screening_of(scenario({"MTT": "80 degC"})).MTT == pytest.approx(80 + C)
     s = screening_of(scenario())  # liquid A has no boiling point in its data
-    assert s.MTT is None and "enter MTT" in s.MTT_source
+    assert s.MTT is None and "enter MTT" in s.MTT_source.text
     assert s.class_meaning == "No criticality class: enter MTT and T_D24 (from calorimetry) to classify."
 
 
 def test_worksheet_alarm_text_is_loud_and_in_the_report():
     s = screening_of(scenario({"MTT": "100 degC", "T_D24": "70 degC"}))
     assert s.alarm
-    assert s.alarms == ["MTSR 72.0 °C reaches T_D24 70.0 °C: if cooling fails a decomposition can be triggered "
+    assert [a.text for a in s.alarms] == ["MTSR 72.0 °C reaches T_D24 70.0 °C: if cooling fails a decomposition can be triggered "
                         "(time to maximum rate under 24 h)."]
     text = "\n".join(screening_report([s]))
     assert "!!! ALARM: MTSR 72.0 °C reaches T_D24 70.0 °C" in text
@@ -276,7 +277,7 @@ def test_worksheet_endothermic_reaction_has_no_rise():
     s = screening_of(scenario(enthalpy=q(40, "kJ/mol")))
     assert s.Q_reaction < 0
     assert s.MTSR == pytest.approx(60 + C, abs=1e-9)
-    assert any("not exothermic" in n for n in s.notes)
+    assert any("not exothermic" in n.text for n in s.notes)
 
 
 def test_no_screening_without_reaction():
@@ -323,18 +324,18 @@ def test_the_reactor_sample_gets_a_screening():
 
 # --------------------------------------------------------------------------- worksheet refusals
 def test_worksheet_jacket_unreachable_target_is_refused():
-    with pytest.raises(NoSolutionError, match=r"^vessel R screening jacket target temperature: a utility at "
-                                              r"15.00 °C cannot cool the batch from 60.00 to 10.00 °C"):
+    with pytest.raises(NoSolutionError, match=r"^vessels\[R\]\.screening\.jacket\.target_temperature: a utility at "
+                                              r"15.00 °C cannot cool the batch from 60.00 °C to 10.00 °C"):
         solve(scenario({"jacket": {"utility_temperature": "15 degC", "target_temperature": "10 degC",
                                    "UA": "10 kW/K"}}))
 
 
 def test_worksheet_jacket_bad_unit_is_refused():
-    with pytest.raises(UnitError, match=r"^vessel R screening jacket UA: unit 'kg' is not a heat-transfer "
+    with pytest.raises(UnitError, match=r"^vessels\[R\]\.screening\.jacket\.UA: unit 'kg' is not a heat-transfer "
                                         r"coefficient times area"):
         solve(scenario({"jacket": {"utility_temperature": "15 degC", "target_temperature": "40 degC",
                                    "UA": "10 kg"}}))
-    with pytest.raises(InputError, match=r"^vessel R screening jacket UA: UA must be a positive number of W/K"):
+    with pytest.raises(InputError, match=r"^vessels\[R\]\.screening\.jacket\.UA: UA must be positive"):
         solve(scenario({"jacket": {"utility_temperature": "15 degC", "target_temperature": "40 degC",
                                    "UA": "-10 kW/K"}}))
 
@@ -355,12 +356,12 @@ def test_worksheet_accumulation_out_of_range_is_refused():
 
 
 def test_worksheet_bad_T_D24_unit_is_refused():
-    with pytest.raises(UnitError, match=r"^vessel R screening T_D24: unit 'kg' is not a temperature"):
+    with pytest.raises(UnitError, match=r"^vessels\[R\]\.screening\.T_D24: unit 'kg' is not a temperature"):
         solve(scenario({"T_D24": "150 kg"}))
 
 
 def test_reaction_naming_no_vessel_is_refused():
-    with pytest.raises(InputError, match=r"^reaction Rx vessel: names vessel 'R-9', which is not a vessel of "
+    with pytest.raises(InputError, match=r"^reactions\[Rx\]\.vessel: names vessel 'R-9', which is not a vessel of "
                                          r"this worksheet \(vessels: R\)"):
         solve(scenario(vessel="R-9"))
 
@@ -398,7 +399,7 @@ def _panel_page():
     sample = Path(heatbalance.__file__).resolve().parent.parent / "sample_data" / "batch_reactor_exotherm.json"
     ws = load_worksheet(sample.read_bytes())
     system = st.session_state.get("test_system", "SI")
-    render_screening_panel(ws, solve(ws, system), system)
+    render_screening_panel(ws, solve(ws), system)
 
 
 def _alarms(at):
@@ -438,7 +439,7 @@ def test_what_if_worksheet_changes_only_the_screening_inputs():
 def test_figure_carries_the_caution():
     figure = screening_figure(screening_of(scenario()))
     texts = " ".join(a.text for a in figure.layout.annotations)
-    assert "not a substitute for reaction calorimetry or a process hazard analysis" in texts
+    assert CAUTION.replace("; defer", ";<br>defer") in texts
 
 
 def test_reaction_without_vessel_among_several_is_warned():
@@ -452,7 +453,7 @@ def test_reaction_without_vessel_among_several_is_warned():
     result = solve(parse_worksheet(doc))
     assert result.screening == []
     assert "Reaction Rx names no vessel and the worksheet has 2: it gets no thermal screening" in \
-        " ".join(result.warnings)
+        " ".join(w.text for w in result.warnings)
 
 
 # --------------------------------------------------------------------------- the real page (app.py, issue 3)

@@ -9,8 +9,13 @@ import json
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from heatbalance.balance import solve, unknown_choices
+from heatbalance.address import parse, unknown_at, unknown_choices
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.errors import HeatBalanceError
+from heatbalance.present.exports import results_csv_bytes
+from heatbalance.present.figures import energy_waterfall
+from heatbalance.present.report import format_result, result_json
+from heatbalance.present.text import error_text
 from heatbalance.worksheet import parse_worksheet
 
 SAMPLES = [json.load(open(p, encoding="utf-8")) for p in sorted(glob.glob("sample_data/*.json"))]
@@ -39,10 +44,16 @@ def set_at(doc, path, value):
 
 
 def solve_or_refuse(ws):
+    """Solve and write every output in both unit sets, or refuse with a message and the field's address."""
     try:
-        solve(ws)
+        result = solve_and_analyse(ws)
     except HeatBalanceError as exc:
-        assert exc.message
+        assert exc.message and error_text(exc, "US")
+        assert exc.where in ("unknown", "worksheet") or parse(exc.where)  # an address, as data
+        return
+    for system in ("SI", "US"):
+        assert format_result(result, system) and result_json(result, system)
+        assert results_csv_bytes(result, system) and energy_waterfall(result, system)
 
 
 @settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -64,7 +75,7 @@ def test_any_typed_quantity_is_answered_or_refused(data):
 def test_any_unknown_is_answered_or_refused(data):
     doc = json.loads(json.dumps(data.draw(st.sampled_from(SAMPLES))))
     ws = parse_worksheet(doc)
-    choices = [u for _, u in unknown_choices(ws)]
+    choices = [unknown_at(address) for address, _ in unknown_choices(ws)]
     picked = data.draw(st.lists(st.sampled_from(choices), min_size=0, max_size=2))
     made_up = data.draw(st.fixed_dictionaries({"kind": st.sampled_from(["amount", "temperature", "duty"]),
                                                "line": st.sampled_from(["R-2", "Steam", "nope", "A / B"]),

@@ -2,6 +2,7 @@
 import pytest
 
 from heatbalance.balance import solve
+from heatbalance.present.text import error_text, phrase_text
 from heatbalance.errors import InputError, PropertyRangeError
 from sheet_factory import build, constant_cp_material, q, stream, temp
 
@@ -14,7 +15,7 @@ def test_phase_change_is_reported_with_its_latent_heat():
     result = solve(ws)
     (warning,) = result.warnings
     # IAPWS-IF97 via iapws: h_fg at 1 atm = 2256.5 kJ/kg
-    assert warning.startswith("Boiler feed changes phase (liquid → vapour) and takes up latent heat, 2,256.5 kJ/kg;")
+    assert warning.text.startswith("Boiler feed changes phase (liquid → vapour) and takes up latent heat, 2,256.5 kJ/kg;")
     assert result.lines[0].latent == pytest.approx(1000 / 3600 * 2256.54e3, rel=1e-5)
 
 
@@ -26,7 +27,7 @@ def test_condensing_steam_gives_up_latent_heat():
                unknowns=[{"kind": "amount", "line": "Steam"}])
     (warning,) = solve(ws).warnings
     # IAPWS-IF97 via iapws: h_fg at 0.501325 MPa = 2107.4 kJ/kg
-    assert warning.startswith("Steam changes phase (saturated vapour → saturated liquid) and gives up latent heat, "
+    assert warning.text.startswith("Steam changes phase (saturated vapour → saturated liquid) and gives up latent heat, "
                               "2,107.")
 
 
@@ -36,7 +37,7 @@ def test_temperature_cross_with_a_heater_duty_is_a_warning_not_a_refusal():
                         stream("Hot water", "water", q(1, "kg/s"), temp(90), temp(60), pressure=q(3, "barg"))],
                duties=[{"name": "Trim heater"}], unknowns=[{"kind": "duty", "term": "Trim heater"}])
     result = solve(ws)
-    assert any(w.startswith("Temperature cross: Hot water enters at 90.00 °C, so it cannot heat Feed to 150.00 °C")
+    assert any(w.text.startswith("Temperature cross: Hot water enters at 90.00 °C, so it cannot heat Feed to 150.00 °C")
                for w in result.warnings)
 
 
@@ -59,7 +60,7 @@ def test_extrapolated_table_data_is_a_warning():
     result = solve(ws)
     # hand calculation: 100 kg × 0.434 kJ/(kg·K) × 280 K (Incropera Table A.1, from memory)
     assert result.answer.value_si == pytest.approx(100 * 434 * 280)
-    assert any("300.0 °C is outside the validated range of the data for carbon steel (-50 °C to 150 °C)" in w
+    assert any("300.0 °C is outside the validated range of the data for carbon steel (-50 °C to 150 °C)" in w.text
                for w in result.warnings)
 
 
@@ -68,7 +69,7 @@ def test_solution_above_the_boiling_point_of_water_is_flagged():
                                mass_fraction=0.3)],
                duties=[{"name": "Heat"}], unknowns=[{"kind": "duty", "term": "Heat"}])
     result = solve(ws)
-    assert any("above the boiling point of water at 1.013 bar(a); boiling of the solution is not modelled" in w
+    assert any("above the boiling point of water at 1.013 bar(a); boiling of the solution is not modelled" in w.text
                for w in result.warnings)
 
 
@@ -90,7 +91,7 @@ def test_user_material_transitions_must_rise():
            "min_temperature": q(0, "degC"), "max_temperature": q(100, "degC")}
     ws = build(materials=[bad], streams=[stream("X", "bad", q(1, "kg/s"), temp(20), temp(30))],
                duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
-    with pytest.raises(InputError, match=r"^material bad: temperatures must rise: min temperature < each transition"):
+    with pytest.raises(InputError, match=r"^materials\[bad\]\.max_temperature: temperatures must rise: min temperature < each transition"):
         solve(ws)
 
 
@@ -100,15 +101,15 @@ def test_user_material_phase_needs_its_transition():
            "min_temperature": q(0, "degC"), "max_temperature": q(100, "degC")}
     ws = build(materials=[bad], streams=[stream("X", "bad", q(1, "kg/s"), temp(20), temp(30))],
                duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
-    with pytest.raises(InputError, match=r"^material bad solid: every phase but the last needs 'up_to'"):
+    with pytest.raises(InputError, match=r"^materials\[bad\]\.phases\[solid\]\.up_to: every phase but the last needs 'up_to'"):
         solve(ws)
 
 
 def test_pressure_above_the_property_data():
     ws = build(streams=[stream("HP water", "water", q(1, "t/h"), temp(20), temp(40), pressure=q(2000, "bar"))],
                duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
-    with pytest.raises(PropertyRangeError, match=r"^stream HP water inlet: pressure 2000 bar\(a\) is outside the "
-                                                 r"property data of water \(0\.00611\d* to 1000 bar\(a\)\)"):
+    with pytest.raises(PropertyRangeError, match=r"^streams\[HP water\]\.pressure: pressure 2,000 bar\(a\) is outside the "
+                                                 r"property data of water \(0\.00611\d* bar\(a\) to 1,000 bar\(a\)\)"):
         solve(ws)
 
 
@@ -119,16 +120,18 @@ def test_mixed_vessel_cannot_end_on_a_fraction():
                    {"name": "L", "material": "liquid A", "mass": q(1, "t"), "initial": temp(20)}],
                    "final": {"vapour_fraction": 0.5}}],
                duties=[{"name": "H"}], unknowns=[{"kind": "duty", "term": "H"}])
-    with pytest.raises(InputError, match=r"^vessel V final: a final phase fraction needs all charges of one material"):
+    with pytest.raises(InputError, match=r"^vessels\[V\]\.final: a final phase fraction needs all charges of one material"):
         solve(ws)
 
 
 def test_warnings_follow_the_display_units():
     ws = build(streams=[stream("Boiler feed", "water", q(1, "t/h"), temp(20), temp(150))],
                duties=[{"name": "Boiler"}], unknowns=[{"kind": "duty", "term": "Boiler"}])
-    (warning,) = solve(ws, "US").warnings
+    (warning,) = solve(ws).warnings
     # IAPWS-IF97 h_fg at 1 atm 2256.5 kJ/kg = 970.1 Btu/lb (1 Btu/lb = 2.326 kJ/kg, exact)
-    assert "takes up latent heat, 970.1 Btu/lb" in warning
+    assert "takes up latent heat, 970.1 Btu/lb" in phrase_text(warning, "US")
+    assert "takes up latent heat, 2,256.5 kJ/kg" in phrase_text(warning, "SI")
+    assert warning.address == "streams[Boiler feed]"
 
 
 def test_refusals_follow_the_display_units():
@@ -138,5 +141,8 @@ def test_refusals_follow_the_display_units():
                         stream("Cooling water", "water", q(1, "kg/s"), temp(28), temp(35), pressure=q(3, "barg"))],
                unknowns=[{"kind": "amount", "line": "Cooling water"}])
     # 28 °C = 82.40 °F, 20 °C = 68.00 °F (exact conversions)
-    with pytest.raises(NoSolutionError, match=r"Cooling water enters at 82\.40 °F, so it cannot cool Product to 68\.00 °F"):
-        solve(ws, "US")
+    with pytest.raises(NoSolutionError) as refusal:
+        solve(ws)
+    assert error_text(refusal.value, "US").startswith("Cooling water enters at 82.40 °F, so it cannot cool Product to "
+                                                      "68.00 °F")
+    assert refusal.value.where == "streams[Cooling water].flow"  # the unknown's address

@@ -59,6 +59,8 @@ def measure_text(measure: Measure, system: str = "SI") -> str:
     value = from_si(measure.value, unit, measure.kind)
     if not math.isfinite(value):
         return f"{value} {display_unit(unit)}"
+    if measure.decimals is not None:
+        return f"{value:,.{measure.decimals}f} {display_unit(unit)}"
     if measure.kind == "temperature":
         return f"{value:.{min(measure.digits, 2)}f} {display_unit(unit)}"
     return f"{value:,.{measure.digits}g} {display_unit(unit)}"
