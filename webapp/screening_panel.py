@@ -2,7 +2,7 @@
 
 Hooked into ``app.py`` as one of its extra panels, called as
 ``render_screening_panel(worksheet, result, system)``. It shows the screening the engine
-put in the result (:mod:`heatbalance.reactor`): the cautions, a loud alarm when MTSR reaches
+put in the result (:mod:`heatbalance.analyses.screening`): the cautions, a loud alarm when MTSR reaches
 MTT or T_D24, one chart of the temperatures, the numbers and the criticality class.
 
 Three inputs (accumulation, T_D24, MTT) start from the worksheet's own screening inputs.
@@ -14,11 +14,17 @@ from __future__ import annotations
 
 import streamlit as st
 
-from heatbalance.balance import solve
-from heatbalance.reactor import CAUTION, Screening, screening_figure
+from heatbalance.analyses import Screening, solve_and_analyse
+from heatbalance.errors import HeatBalanceError
+from heatbalance.messages import Measure
+from heatbalance.present.screening import screening_figure, temperature_difference_text
+from heatbalance.present.text import UNIT_SETS, display_unit, error_text, measure_text, phrase_text, temperature_text
+from heatbalance.reactor import CAUTION
 from heatbalance.results import Result
-from heatbalance.units import DISPLAY_UNITS, display_unit, from_si, to_si
+from heatbalance.units import from_si, to_si
 from heatbalance.worksheet import Quantity, ScreeningInputs, Worksheet
+
+from .common import plain
 
 __all__ = ["panel", "render_screening_panel", "what_if_worksheet", "widget_key"]
 
@@ -34,15 +40,20 @@ def widget_key(index: int, field: str) -> str:
 
 
 def _temperature_unit(system: str) -> str:
-    return DISPLAY_UNITS[system]["temperature"]
+    return UNIT_SETS[system]["temperature"]
 
 
 def _shown(T: float | None, system: str) -> float | None:
     return None if T is None else round(from_si(T, _temperature_unit(system), "temperature"), 2)
 
 
-def _typed(value: float | None, system: str) -> Quantity | None:
-    return None if value is None else Quantity(value=float(value), unit=_temperature_unit(system))
+def _typed(value: float | None, system: str, kept: Quantity | None) -> Quantity | None:
+    """The widget's value as a quantity; the worksheet's own (in the unit typed there) when unchanged."""
+    if value is None:
+        return None
+    if kept is not None and _shown(to_si(kept.value, kept.unit, "temperature"), system) == value:
+        return kept  # the view never rewrites a typed value
+    return Quantity(value=float(value), unit=_temperature_unit(system))
 
 
 def what_if_worksheet(worksheet: Worksheet, vessel: str, accumulation: float, T_D24: Quantity | None,
@@ -56,9 +67,12 @@ def what_if_worksheet(worksheet: Worksheet, vessel: str, accumulation: float, T_
     return Worksheet.model_validate(copy.model_dump())
 
 
+def _inputs(worksheet: Worksheet, vessel: str) -> ScreeningInputs:
+    return next(v for v in worksheet.vessels if v.name == vessel).screening or ScreeningInputs()
+
+
 def _defaults(worksheet: Worksheet, screening: Screening, system: str) -> dict[str, object]:
-    vessel = next(v for v in worksheet.vessels if v.name == screening.vessel)
-    inputs = vessel.screening or ScreeningInputs()
+    inputs = _inputs(worksheet, screening.vessel)
     mtt = None
     if inputs.MTT is not None:
         mtt = _shown(to_si(inputs.MTT.value, inputs.MTT.unit, "temperature"), system)
@@ -81,9 +95,10 @@ def _fill_widgets(worksheet: Worksheet, result: Result, system: str) -> None:
 
 
 def panel(set_worksheet):
-    """The panel as the page hooks it in: inputs are written into the worksheet through ``set_worksheet``."""
+    """The panel as the page hooks it in: inputs are written into the worksheet through ``set_worksheet``;
+    the page shows the safety caution once, so the panel does not repeat it."""
     def draw(worksheet: Worksheet, result: Result | None, system: str) -> None:
-        render_screening_panel(worksheet, result, system, set_worksheet)
+        render_screening_panel(worksheet, result, system, set_worksheet, caution=False)
     return draw
 
 
@@ -92,19 +107,21 @@ def _chosen(index: int) -> dict[str, object]:
 
 
 def _with_inputs(worksheet: Worksheet, index: int, vessel: str, system: str) -> Worksheet:
-    chosen = _chosen(index)
+    chosen, kept = _chosen(index), _inputs(worksheet, vessel)
     accumulation = (chosen["accumulation"] if chosen["accumulation"] is not None else 100.0) / 100.0
-    return what_if_worksheet(worksheet, vessel, accumulation, _typed(chosen["T_D24"], system),
-                             _typed(chosen["MTT"], system))
+    if round(kept.accumulation * 100, 3) == chosen["accumulation"]:
+        accumulation = kept.accumulation
+    return what_if_worksheet(worksheet, vessel, accumulation, _typed(chosen["T_D24"], system, kept.T_D24),
+                             _typed(chosen["MTT"], system, kept.MTT))
 
 
 def _commit(index: int, vessel: str, worksheet: Worksheet, system: str, set_worksheet) -> None:
     """Write the inputs into the worksheet when the engine accepts them; else keep the message."""
     try:
         changed = _with_inputs(worksheet, index, vessel, system)
-        solve(changed, system)
+        solve_and_analyse(changed)
     except Exception as exc:  # noqa: BLE001 - a refusal is shown on the panel, never a traceback
-        st.session_state[_error_key(index)] = str(exc)
+        st.session_state[_error_key(index)] = _refusal(exc, system)
         return
     st.session_state.pop(_error_key(index), None)
     set_worksheet(changed)
@@ -114,9 +131,17 @@ def _error_key(index: int) -> str:
     return f"screening_{index}_refused"
 
 
+def _refusal(exc: Exception, system: str) -> str:
+    if isinstance(exc, HeatBalanceError):
+        return error_text(exc, system)
+    return f"the engine failed unexpectedly ({exc.__class__.__name__})"
+
+
 def render_screening_panel(worksheet: Worksheet, result: Result | None, system: str = "SI",
-                           set_worksheet=None) -> None:
-    """Draw the screening of every vessel with a reaction (nothing when there is none or no result)."""
+                           set_worksheet=None, caution: bool = True) -> None:
+    """Draw the screening of every vessel with a reaction (nothing when there is none or no result).
+
+    ``caution=False`` when the page already shows the one safety caution."""
     if result is None:
         if worksheet.vessels and worksheet.reactions:
             st.header("Thermal screening (loss of cooling)")
@@ -127,7 +152,8 @@ def render_screening_panel(worksheet: Worksheet, result: Result | None, system: 
     _fill_widgets(worksheet, result, system)
     with st.container(key="screening_panel"):
         st.header("Thermal screening (loss of cooling)")
-        st.warning(f"**Screening only.** {CAUTION}", icon=":material/health_and_safety:")
+        if caution:
+            st.warning(CAUTION, icon=":material/health_and_safety:")
         for index, screening in enumerate(result.screening):
             _vessel_panel(index, worksheet, screening, system, set_worksheet)
 
@@ -152,14 +178,14 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
                         help="Maximum technical temperature. Empty: the boiling point at the vessel's pressure "
                              "from the property data.")
         if _error_key(index) in st.session_state:
-            st.error(f"These screening inputs cannot be used: {st.session_state[_error_key(index)]}",
+            st.error(f"These screening inputs cannot be used: {plain(st.session_state[_error_key(index)])}",
                      icon=":material/error:")
             return
         screening = _current(index, worksheet, screening, system)
         if screening is None:
             return
         for alarm in screening.alarms:
-            st.error(f"**ALARM:** {alarm}", icon=":material/emergency_home:")
+            st.error(f"**ALARM:** {plain(phrase_text(alarm, system))}", icon=":material/emergency_home:")
         st.plotly_chart(screening_figure(screening, system), key=f"screening_chart_{index}", width="stretch")
         _numbers(screening, system)
         if screening.criticality_class is not None:
@@ -167,16 +193,19 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
             st.markdown(f"**Criticality class {screening.criticality_class}** (Stoessel). "
                         f"{meaning[:1].upper()}{meaning[1:]}", help=_CLASS_HELP)
         else:
-            st.info(screening.class_meaning)
+            st.info(plain(screening.class_meaning))
         if screening.jacket is not None:
             j = screening.jacket
-            st.markdown(f"**Jacket {j.direction} time:** {j.time / 60:,.1f} min from "
-                        f"{_shown(j.start_T, system):.1f} to {_shown(j.target_T, system):.1f} {unit} with the "
-                        f"utility at {_shown(j.utility_T, system):.1f} {unit} (UA {j.UA / 1000:,.3g} kW/K; "
+            minutes = measure_text(Measure(j.time, "duration", decimals=1), system)
+            st.markdown(f"**Jacket {j.direction} time:** {minutes} from {temperature_text(j.start_T, system, 1)} "
+                        f"to {temperature_text(j.target_T, system, 1)} with the utility at "
+                        f"{temperature_text(j.utility_T, system, 1)} "
+                        f"(UA {measure_text(Measure(j.UA, 'thermal_conductance', 3), system)}; "
                         "contents and vessel heat capacity, no reaction heat during it).")
         with st.expander("How these numbers were made"):
-            st.markdown("\n".join(f"- {n}" for n in screening.notes) + f"\n- MTT: {screening.MTT_source}.")
-        st.caption(CAUTION)
+            notes = [plain(phrase_text(n, system)) for n in screening.notes]
+            notes.append(f"MTT: {plain(phrase_text(screening.MTT_source, system))}.")
+            st.markdown("\n".join(f"- {n}" for n in notes))
 
 
 def _current(index: int, worksheet: Worksheet, screening: Screening, system: str) -> Screening | None:
@@ -184,26 +213,22 @@ def _current(index: int, worksheet: Worksheet, screening: Screening, system: str
     if _chosen(index) == _defaults(worksheet, screening, system):
         return screening
     try:
-        redone = solve(_with_inputs(worksheet, index, screening.vessel, system), system)
+        redone = solve_and_analyse(_with_inputs(worksheet, index, screening.vessel, system))
     except Exception as exc:  # noqa: BLE001 - a refusal is shown, never a traceback
-        st.error(f"These screening inputs cannot be used: {exc}", icon=":material/error:")
+        st.error(f"These screening inputs cannot be used: {plain(_refusal(exc, system))}", icon=":material/error:")
         return None
     return next((s for s in redone.screening if s.vessel == screening.vessel), None)
 
 
 def _numbers(s: Screening, system: str) -> None:
     """The numbers as one small table (markdown: the page keeps ``st.metric`` for its one answer)."""
-    unit = display_unit(_temperature_unit(system))
-    dt_unit = DISPLAY_UNITS[system]["temperature_difference"]
-
-    def dt(value: float) -> str:
-        return f"{from_si(value, dt_unit, 'temperature_difference'):.1f} {display_unit(dt_unit)}"
+    dt = temperature_difference_text
 
     def t(value: float | None) -> str:
-        return f"{_shown(value, system):.1f} {unit}" if value is not None else "—"
+        return temperature_text(value, system, 1) if value is not None else "—"
 
     st.markdown(
         "| T_process | MTSR | MTT | T_D24 | ΔT_ad (φ = 1) | ΔT_ad / φ | φ |\n"
         "| --- | --- | --- | --- | --- | --- | --- |\n"
         f"| {t(s.T_process)} | **{t(s.MTSR)}** ({s.accumulation:.0%} accumulated) | {t(s.MTT)} | {t(s.T_D24)} "
-        f"| {dt(s.dT_ad)} | {dt(s.dT_ad_phi)} | {s.phi:.3f} |")
+        f"| {dt(s.dT_ad, system)} | {dt(s.dT_ad_phi, system)} | {s.phi:.3f} |")

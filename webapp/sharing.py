@@ -9,7 +9,7 @@ Hooked into ``app.py`` with two calls:
 
 Everything that can go wrong (a bad link, a locked database, a bad upload) is shown
 as a message on the page; nothing stored is changed by a refusal. The engine work is
-in :mod:`heatbalance.store`, :mod:`heatbalance.links` and :mod:`heatbalance.exports`.
+in :mod:`heatbalance.store`, :mod:`heatbalance.links` and :mod:`heatbalance.present.exports`.
 """
 from __future__ import annotations
 
@@ -19,11 +19,13 @@ from urllib.parse import urlsplit, urlunsplit
 import streamlit as st
 
 from heatbalance.errors import HeatBalanceError, WorksheetFormatError
-from heatbalance.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
+from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link
 from heatbalance.results import Result
 from heatbalance.store import WorksheetStore, database_url
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
+
+from .common import plain
 
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
            "PROBLEM", "BASE", "SAVED", "OPENED_FROM"]
@@ -83,7 +85,7 @@ def worksheet_from_link() -> Worksheet | None:
         except HeatBalanceError as exc:
             message = f"The link could not be opened: {exc.message}"
             st.session_state[PROBLEM] = message
-            st.error(message, icon="🔗")
+            st.error(_plain(message), icon="🔗")
             return None
         st.session_state[BASE] = rev_id
         st.session_state[NOTICE] = (f"Opened saved revision {rev_id}." if rev_id
@@ -176,9 +178,9 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
     state = st.session_state
     st.header("Save and share")
     if state.get(PROBLEM):
-        st.error(state[PROBLEM], icon="🚫")
+        st.error(_plain(state[PROBLEM]), icon="🚫")
     elif state.get(NOTICE):
-        st.success(state[NOTICE])
+        st.success(_plain(state[NOTICE]))
     base = base_url()
     try:
         current_id = revision_id(worksheet)
@@ -236,5 +238,5 @@ def render_history(rev_id: str, base: str) -> None:
 
 
 def _plain(text: str) -> str:
-    """A title shown as text, not as Markdown."""
-    return "".join("\\" + c if c in "\\`*_{}[]()#+-.!<>|~$" else c for c in text)
+    """User text (a title, a file name, a message quoting them) shown as text, not as Markdown."""
+    return plain(text)

@@ -1,0 +1,91 @@
+"""The answer box: what is solved for, the answer in the unit typed for it, warnings, the one caution."""
+from __future__ import annotations
+
+import dataclasses
+
+import streamlit as st
+
+from heatbalance import address
+from heatbalance.errors import HeatBalanceError
+from heatbalance.present.text import answer_text, error_text, phrase_text
+from heatbalance.reactor import CAUTION
+from heatbalance.results import Result
+from heatbalance.worksheet import Worksheet
+
+from .common import page_state, plain
+
+__all__ = ["render_header", "render_answer", "refusal_place"]
+
+
+def render_header(worksheet: Worksheet) -> None:
+    st.title(plain(worksheet.title))
+    if worksheet.notes:
+        st.caption(plain(worksheet.notes))
+
+
+def _on_unknown_pick(choices: dict[str, str]) -> None:
+    new = choices.get(st.session_state.get("unknown_picker"))
+    if new is not None:
+        page_state().pick_unknown(new)
+
+
+def _render_unknown_picker(worksheet: Worksheet, blocked: bool) -> None:
+    choices = {label: where for where, label in address.unknown_choices(worksheet)}
+    current = None
+    if len(worksheet.unknowns) == 1:
+        held = address.unknown_address(worksheet.unknowns[0])
+        current = next((label for label, where in choices.items() if where == held), None)
+    if st.session_state.get("unknown_picker") != current:
+        st.session_state["unknown_picker"] = current
+    st.selectbox("Solve for", list(choices), index=None, key="unknown_picker", on_change=_on_unknown_pick,
+                 args=(choices,), disabled=blocked,  # fix the marked cell first: the '?' cells move
+                 placeholder="pick the one unknown quantity…",
+                 help="The one quantity the balance is solved for. Picking another one gives the old "
+                      "unknown its last answer as a value, in the unit typed there.")
+
+
+def refusal_place(error: HeatBalanceError) -> str:
+    """Where a refusal is, in words (from its address): ``Quench pit / Hot condensate mass``."""
+    if not error.address or error.address == "worksheet":
+        return ""
+    try:
+        return address.label(error.address)
+    except HeatBalanceError:
+        return error.address
+
+
+def _render_answer_value(result: Result, system: str) -> None:
+    answer = result.answer
+    shown = answer_text(answer, system)
+    st.metric(f"Answer: {plain(answer.label)}", shown)
+    in_view = answer_text(dataclasses.replace(answer, typed_unit=None), system)
+    if in_view != shown:  # typed in another unit than the view's: show both
+        st.caption(f"= {in_view}")
+
+
+def _render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None, system: str) -> None:
+    if error is None:
+        st.info("Nothing to solve yet: add a stream or a vessel below, then pick what to solve for.")
+        return
+    place = refusal_place(error)
+    where = f"{plain(place)}: " if place else ""
+    st.error(f"**Not solved.** {where}{plain(error_text(error, system))}", icon=":material/error:")
+    st.caption("The place is marked in the tables below; everything else is kept as you left it.")
+
+
+def render_answer(worksheet: Worksheet, result: Result | None, error: HeatBalanceError | None,
+                  system: str) -> None:
+    with st.container(key="answer", border=True):
+        left, right = st.columns([2, 3], vertical_alignment="center")
+        with left:
+            _render_unknown_picker(worksheet, blocked=bool(page_state().problems))
+        with right:
+            if result is not None:
+                _render_answer_value(result, system)
+            else:
+                _render_not_solved(worksheet, error, system)
+    if result is not None and result.warnings:
+        listed = "\n".join(f"- {plain(phrase_text(w, system))}" for w in result.warnings)
+        st.warning(f"**Read before using this answer:**\n{listed}", icon=":material/warning:")
+    if worksheet.reactions or worksheet.vessels:  # a batch end temperature or reaction heat bears on safety
+        st.warning(CAUTION, icon=":material/health_and_safety:")

@@ -1,0 +1,62 @@
+"""Small helpers every part of the page uses: the state, the view's unit set, plain text, a guard."""
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import streamlit as st
+
+from heatbalance.errors import HeatBalanceError
+from heatbalance.worksheet import Worksheet, load_worksheet
+
+from .state import KEY, PageState
+
+__all__ = ["UNIT_SYSTEMS", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system", "plain", "guarded",
+           "sample_files", "load_sample"]
+
+UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
+SAMPLES_DIR = Path(__file__).resolve().parent.parent / "sample_data"
+DEFAULT_SAMPLE = "steam_heater_glycol.json"
+_MARKDOWN = set("\\`*_{}[]<>#|~$")
+
+
+def page_state() -> PageState:
+    """The page's one editing state (:data:`webapp.state.KEY`)."""
+    return st.session_state[KEY]
+
+
+def display_system() -> str:
+    """The view's unit set, ``SI`` or ``US``: a view only, never a typed value."""
+    return UNIT_SYSTEMS.get(st.session_state.get("unit_system"), "SI")
+
+
+def plain(text: str) -> str:
+    """User text (names, titles, messages quoting them) shown as text, not Markdown."""
+    out = "".join("\\" + c if c in _MARKDOWN else c for c in str(text))
+    return "\\" + out if out[:1] in ("-", "+", "=") else out
+
+
+def guarded(draw, *args) -> None:
+    """Draw a part of the page; an unexpected failure shows a plain message, never a traceback."""
+    try:
+        draw(*args)
+    except HeatBalanceError as exc:
+        st.error(plain(str(exc)), icon=":material/error:")
+    except Exception as exc:  # noqa: BLE001 - the page must never show a traceback
+        st.error(f"Something went wrong while drawing this part of the page ({exc.__class__.__name__}). "
+                 "Your inputs are kept; try undoing the last change.", icon=":material/error:")
+
+
+def sample_files() -> dict[str, Path]:
+    """Bundled samples, title -> path."""
+    samples = {}
+    for path in sorted(SAMPLES_DIR.glob("*.json")):
+        try:
+            samples[json.loads(path.read_text(encoding="utf-8")).get("title", path.stem)] = path
+        except (OSError, ValueError):
+            continue
+    return samples
+
+
+def load_sample(path: Path) -> Worksheet:
+    return load_worksheet(path.read_bytes())

@@ -1,0 +1,41 @@
+"""The sidebar: open a sample or a new sheet, the view's unit set, how it works."""
+from __future__ import annotations
+
+import streamlit as st
+
+from . import grids, sharing
+from .common import UNIT_SYSTEMS, load_sample, page_state, sample_files
+
+__all__ = ["render_sidebar"]
+
+_HOW = ("**How it works**  \n"
+        "1. List the streams (flows) or vessels (batch charges), each from its initial to its final state.  \n"
+        "2. Add duties, losses, reaction heat and the equipment that warms with the contents.  \n"
+        "3. Pick the one quantity to solve for: its cell shows **?**.\n\n"
+        "Type every value with its unit: `12 t/h`, `4 barg`, `55 °C`, `-110 kW`. A state can also be "
+        "`saturated vapour`, `saturated liquid`, `vapour fraction 0.3` or `solid fraction 0.5`. "
+        "Values stay in the units you type; the choice below only changes how results are shown.")
+
+
+def _on_sample_pick() -> None:
+    path = sample_files().get(st.session_state.get("sample_picker"))
+    if path is not None:
+        page_state().replace(load_sample(path))
+        sharing.forget_revision()
+
+
+def _on_new_worksheet() -> None:
+    page_state().replace(grids.empty_worksheet())
+    sharing.forget_revision()
+
+
+def render_sidebar() -> None:
+    with st.sidebar:
+        st.header("Worksheet")
+        st.selectbox("Open a sample worksheet", list(sample_files()), index=None, key="sample_picker",
+                     placeholder="choose a sample…", on_change=_on_sample_pick)
+        st.button("New, empty worksheet", key="new_worksheet", on_click=_on_new_worksheet, width="stretch")
+        st.divider()
+        st.radio("Show results in", list(UNIT_SYSTEMS), key="unit_system")
+        st.divider()
+        st.markdown(_HOW)
