@@ -67,8 +67,11 @@ def migrate_0_to_1(doc: dict) -> dict:
 MIGRATIONS: dict[int, Callable[[dict], dict]] = {0: migrate_0_to_1}
 
 
-def migrate(doc: dict) -> dict:
+def migrate(doc: dict, model_fields=()) -> dict:
     """Bring a decoded worksheet document to :data:`CURRENT_VERSION`, or raise :class:`WorksheetFormatError`.
+
+    ``model_fields``: the current model's keys (the loader passes them), so a document with any of them
+    counts as a worksheet whatever has been added since version 1; this module never imports the model.
 
     Returns the document itself when it is already current (nothing is copied),
     else a migrated copy. Refuses a document of a newer version, a version that
@@ -83,9 +86,7 @@ def migrate(doc: dict) -> dict:
     """
     if not isinstance(doc, dict):
         raise WorksheetFormatError("a worksheet is a JSON object")
-    from .worksheet import Worksheet  # the model's own fields, whatever has been added since version 1
-
-    if doc and not (doc.keys() & (_WORKSHEET_KEYS | set(Worksheet.model_fields))):
+    if doc and not (doc.keys() & (_WORKSHEET_KEYS | set(model_fields))):
         if doc.keys() >= _RESULT_KEYS:
             raise WorksheetFormatError("this is a solved result (the output of 'solve --json'), not a worksheet")
         shown = ", ".join(sorted(map(str, doc))[:5])

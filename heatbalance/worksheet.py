@@ -346,7 +346,7 @@ def parse_worksheet(data: dict) -> Worksheet:
     """
     if not isinstance(data, dict):
         raise WorksheetFormatError("a worksheet is a JSON object")
-    data = migrate(data)
+    data = migrate(data, Worksheet.model_fields)
     try:
         return Worksheet.model_validate(data)
     except ValidationError as exc:
