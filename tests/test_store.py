@@ -13,7 +13,9 @@ from pathlib import Path
 
 import pytest
 
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.balance import solve
+from heatbalance.present.report import result_json
 from heatbalance.cli import main
 from heatbalance.links import LinkError, canonical_json, revision_id
 from heatbalance.store import (ENV_DATABASE_URL, ENV_DB, RevisionNotFoundError, StoreError, WorksheetStore,
@@ -334,7 +336,8 @@ def test_cli_open_solves_and_opens_share_links(cli_store, capsys):
     main(["save", str(SAMPLES[0])])
     rev_id = capsys.readouterr().out.strip()
     assert main(["open", rev_id, "--solve", "--json"]) == 0
-    assert json.loads(capsys.readouterr().out) == json.loads(json.dumps(solve(worksheet).to_dict()))
+    expected = result_json(solve_and_analyse(worksheet), "SI")
+    assert json.loads(capsys.readouterr().out) == json.loads(json.dumps(expected))
     assert main(["open", f"https://sheets.example.invalid/?ws={rev_id}"]) == 0
     assert load_worksheet(capsys.readouterr().out) == worksheet
     assert main(["open", sheet_link(worksheet, "https://sheets.example.invalid/")]) == 0
