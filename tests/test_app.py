@@ -1,10 +1,12 @@
 """The page, driven through Streamlit's AppTest: the real app.py, no browser.
 
-AppTest cannot type into a table, so table edits are queued in the session (``hb_pending_edits``)
-and go through the same function as an edit in the browser. Every expected answer is the
-engine's own (heatbalance.solve) for the worksheet the page holds; the samples are our own scenarios;
-water from scratch is checked against IAPWS-IF97 through the `iapws` package.
+AppTest cannot type into a table, so a test calls the page state's own ``apply_table_edit`` (the
+method the editor's callback calls) through the one session key, then reruns. Every expected
+answer is the engine's own (heatbalance.solve, written by heatbalance.present.text) for the worksheet
+the page holds; the samples are our own scenarios; water from scratch is checked against IAPWS-IF97
+through the `iapws` package.
 """
+import re
 from pathlib import Path
 
 import pytest
@@ -12,11 +14,13 @@ from iapws import IAPWS97
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
-from heatbalance.worksheet import Unknown
+from heatbalance.present.text import answer_text as written
+from heatbalance.reactor import CAUTION
+from heatbalance.worksheet import Quantity, Unknown
+from webapp.state import KEY, PageState
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
-WORKSHEET, ROWS, PENDING = "hb_worksheet", "hb_rows", "hb_pending_edits"  # app.py's session keys
 SAMPLES = {p.name: p for p in sorted((ROOT / "sample_data").glob("*.json"))}
 US = "US customary (°F, lb, Btu)"
 
@@ -28,8 +32,23 @@ def sample(name):
 def page(name=None) -> AppTest:
     at = AppTest.from_file(APP, default_timeout=60)
     if name is not None:
-        at.session_state[WORKSHEET] = sample(name)
+        at.session_state[KEY] = PageState.opened(sample(name))
     return at.run()
+
+
+def held(at):
+    """The worksheet the page holds."""
+    return at.session_state[KEY].worksheet
+
+
+def rows(at, table):
+    """A grid's rows as the user left them."""
+    return at.session_state[KEY].rows[table]
+
+
+def engine(ws, system="SI") -> str:
+    """The engine's answer for ``ws``, written as the page writes it."""
+    return written(solve(ws).answer, system)
 
 
 def answer_text(at) -> str:
@@ -38,8 +57,13 @@ def answer_text(at) -> str:
     return metrics[0].value
 
 
+def _unescaped(text: str) -> str:
+    """Markdown source as read on screen (user text is shown escaped, as plain text)."""
+    return re.sub(r"\\(.)", r"\1", text)
+
+
 def errors(at) -> str:
-    return "\n".join(e.value for e in at.error)
+    return _unescaped("\n".join(e.value for e in at.error))
 
 
 def contributions(at):
@@ -48,8 +72,13 @@ def contributions(at):
 
 
 def edit(at, table, edits) -> AppTest:
-    at.session_state[PENDING] = [(table, edits)]
+    at.session_state[KEY].apply_table_edit(table, edits)
     return at.run()
+
+
+def grid(at, table):
+    """The frame the editor of a grid was given (its 'check' column marks bad cells)."""
+    return next(d for d in at.dataframe if (d.key or "").startswith(f"editor_{table}_")).value
 
 
 def no_traceback(at):
@@ -59,11 +88,13 @@ def no_traceback(at):
 def test_the_page_opens_on_a_solved_sample():
     at = page()
     no_traceback(at)
-    expected = solve(sample("steam_heater_glycol.json")).answer
-    assert answer_text(at) == expected.text == "745.6 kg/h"  # engine's answer for our sample
+    assert answer_text(at) == engine(sample("steam_heater_glycol.json")) == "745.6 kg/h"  # engine's answer
     assert at.main.metric[0].label == "Answer: Steam flow"
     assert at.selectbox(key="unknown_picker").value == "Steam: flow"
     assert errors(at) == ""
+    # the page's editing state is one object under one key (no back-door keys for tests)
+    assert [k for k in at.session_state if k.startswith("hb_") and not k.startswith(("hb_share_", "hb_screening_"))] \
+        == [KEY]
 
 
 @pytest.mark.parametrize("name", list(SAMPLES))
@@ -73,7 +104,8 @@ def test_the_picker_loads_every_sample_solved(name):
     at.selectbox(key="sample_picker").select(title).run()
     no_traceback(at)
     assert at.title[0].value == title
-    assert answer_text(at) == solve(sample(name)).answer.text
+    assert held(at) == sample(name)
+    assert answer_text(at) == engine(sample(name))
 
 
 def test_the_contribution_table_closes_the_balance():
@@ -91,45 +123,90 @@ def test_the_contribution_table_closes_the_balance():
 
 def test_editing_an_amount_changes_the_answer_to_the_engines():
     at = page()
+    key = at.session_state[KEY].editor_key("streams")
     edit(at, "streams", {"edited_rows": {0: {"flow": "15 t/h"}}})
     no_traceback(at)
-    held = at.session_state[WORKSHEET]
-    assert held.streams[0].flow.value == 15 and held.streams[0].flow.unit == "t/h"
-    expected = solve(held).answer
-    assert answer_text(at) == expected.text
+    ws = held(at)
+    assert ws.streams[0].flow == Quantity(value=15, unit="t/h")
+    assert answer_text(at) == engine(ws)
     # steam scales with the glycol duty: 15/12 of the glycol part plus the same 2 kW of losses
-    before = solve(sample("steam_heater_glycol.json")).answer.value
-    assert 1.24 * before < expected.value < 1.25 * before
-    assert at.session_state[ROWS]["streams"][0]["flow"] == "15 t/h"
+    before = solve(sample("steam_heater_glycol.json")).answer.value_si
+    assert 1.24 * before < solve(ws).answer.value_si < 1.25 * before
+    assert rows(at, "streams")[0]["flow"] == "15 t/h"
+    assert at.session_state[KEY].editor_key("streams") == key  # an edit does not re-key the editor
 
 
 def test_switching_the_unknown_from_a_temperature_to_a_flow_solves_the_other_way():
     at = page()
     at.selectbox(key="unknown_picker").select("Glycol: outlet temperature").run()
     no_traceback(at)
-    held = at.session_state[WORKSHEET]
-    assert held.unknowns == [Unknown(kind="temperature", line="Glycol", end="outlet")]
-    assert answer_text(at) == solve(held).answer.text == "40 °C"  # the sample's outlet, solved back
+    assert held(at).unknowns == [Unknown(kind="temperature", line="Glycol", end="outlet")]
+    assert answer_text(at) == engine(held(at)) == "40 °C"  # the sample's outlet, solved back
     edit(at, "streams", {"edited_rows": {1: {"flow": "900 kg/h"}}})  # more steam: a hotter outlet
-    hotter = solve(at.session_state[WORKSHEET]).answer
-    assert answer_text(at) == hotter.text and hotter.value > 45
+    hotter = solve(held(at)).answer
+    assert answer_text(at) == written(hotter, "SI") and hotter.value_si > 273.15 + 45
     at.selectbox(key="unknown_picker").select("Steam: flow").run()
-    held = at.session_state[WORKSHEET]
-    assert held.unknowns == [Unknown(kind="amount", line="Steam")]
-    assert held.streams[0].outlet.temperature.value == pytest.approx(hotter.value, rel=1e-5)
-    assert solve(held).answer.value == pytest.approx(900, rel=1e-4)  # back to the flow that was typed
-    assert answer_text(at) == solve(held).answer.text
+    ws = held(at)
+    assert ws.unknowns == [Unknown(kind="amount", line="Steam")]
+    assert ws.streams[0].outlet.temperature.unit == "degC"
+    assert ws.streams[0].outlet.temperature.value == pytest.approx(hotter.value_si - 273.15, rel=1e-5)
+    assert solve(ws).answer.value_si * 3600 == pytest.approx(900, rel=1e-4)  # back to the flow that was typed
+    assert answer_text(at) == engine(ws)
 
 
-def test_the_display_unit_system_converts_the_answer_and_the_tables():
+def _switch_and_back(system_label):
+    """On the glycol heater, in a view: solve for the outlet temperature, then for the steam flow again."""
+    at = page()
+    at.radio(key="unit_system").set_value(system_label).run()
+    at.selectbox(key="unknown_picker").select("Glycol: outlet temperature").run()
+    stored_flow = held(at).streams[1].flow
+    at.selectbox(key="unknown_picker").select("Steam: flow").run()
+    no_traceback(at)
+    return at, stored_flow
+
+
+def test_switching_the_unknown_stores_the_same_value_whatever_the_view():
+    """Issue 9: the US view stored 1643.83 lb/h and rewrote the outlet in °F; the SI view 745.627 kg/h."""
+    si, si_flow = _switch_and_back("SI (°C, kg, kW)")
+    us, us_flow = _switch_and_back(US)
+    assert si_flow == us_flow == Quantity(value=745.627, unit="kg/h")  # in the unit of the field, 6 figures
+    assert held(us) == held(si)
+    assert held(us).streams[0].outlet.temperature == Quantity(value=40.0, unit="degC")  # stays as typed
+    assert rows(us, "streams")[0]["outlet"] == "40 °C"
+    # the answer is in the unit typed for the field (kg/h), with the view's equivalent beside it
+    assert answer_text(us) == answer_text(si) == "745.6 kg/h"
+    assert "= 1,644 lb/h" in [c.value for c in us.caption]  # 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
+
+
+def test_a_typed_celsius_value_stays_celsius_when_the_view_changes():
+    at = page()
+    edit(at, "streams", {"edited_rows": {0: {"outlet": "45 °C"}}})
+    at.radio(key="unit_system").set_value(US).run()
+    no_traceback(at)
+    assert held(at).streams[0].outlet.temperature == Quantity(value=45.0, unit="degC")
+    assert rows(at, "streams")[0]["outlet"] == "45 °C"
+    assert grid(at, "streams")["outlet"][0] == "45 °C"
+    assert "heat into process [Btu/h]" in contributions(at).columns  # the results follow the view
+
+
+def test_the_us_sample_is_answered_in_the_unit_typed_for_its_duty():
+    at = page("us_water_heater_duty.json")
+    no_traceback(at)
+    assert at.radio(key="unit_system").value == "SI (°C, kg, kW)"
+    ws = sample("us_water_heater_duty.json")
+    assert ws.duties[0].value.unit == "MMBtu/h"
+    assert answer_text(at).endswith(" MMBtu/h") and answer_text(at) == engine(ws) == "3.202 MMBtu/h"
+    # 3.20183 MMBtu/h × 293.07107 W per kBtu/h (1 Btu = 1055.05585 J, IT) = 938.4 kW
+    assert "= 938.4 kW" in [c.value for c in at.caption]
+
+
+def test_the_display_unit_system_converts_the_results_not_the_inputs():
     at = page()
     at.radio(key="unit_system").set_value(US).run()
     no_traceback(at)
-    expected = solve(sample("steam_heater_glycol.json"), "US").answer
-    assert answer_text(at) == expected.text and expected.unit == "lb/h"
-    # 745.6 kg/h / 0.45359237 kg/lb (exact, NIST SP 811) = 1,644 lb/h
-    assert expected.value == pytest.approx(solve(sample("steam_heater_glycol.json")).answer.value / 0.45359237)
+    assert answer_text(at) == "745.6 kg/h"  # the steam flow's unit is typed in the sheet (its '?' cell)
     assert "heat into process [Btu/h]" in contributions(at).columns
+    assert held(at) == sample("steam_heater_glycol.json")
 
 
 def test_a_wrong_unit_is_marked_and_the_inputs_are_kept():
@@ -138,12 +215,14 @@ def test_a_wrong_unit_is_marked_and_the_inputs_are_kept():
     no_traceback(at)
     assert "Streams, row 1, flow: unit 'kW' is not a mass flow (it measures power)" in errors(at)
     assert not at.main.metric  # no answer that would not match the page
-    rows = at.session_state[ROWS]["streams"]
-    assert rows[0]["flow"] == "12 kW" and rows[1]["flow"] == "? kg/h" and rows[0]["outlet"] == "40 °C"
+    typed = rows(at, "streams")
+    assert typed[0]["flow"] == "12 kW" and typed[1]["flow"] == "? kg/h" and typed[0]["outlet"] == "40 °C"
+    assert list(grid(at, "streams")["check"]) == ["⚠ flow", ""]
     # the model is untouched, and fixing the cell solves again
-    assert at.session_state[WORKSHEET].streams[0].flow.unit == "t/h"
+    assert held(at).streams[0].flow.unit == "t/h"
     edit(at, "streams", {"edited_rows": {0: {"flow": "12 t/h"}}})
     assert answer_text(at) == "745.6 kg/h" and errors(at) == ""
+    assert "check" not in [c for c in grid(at, "streams").columns if grid(at, "streams")[c].any()]
 
 
 def test_a_bad_cell_is_kept_when_the_title_or_basis_changes():
@@ -151,22 +230,23 @@ def test_a_bad_cell_is_kept_when_the_title_or_basis_changes():
     edit(at, "streams", {"edited_rows": {0: {"flow": "12 kW"}}})
     at.text_input(key="title_input").input("Glycol heater, revised").run()
     no_traceback(at)
-    assert at.session_state[WORKSHEET].title == "Glycol heater, revised"
-    assert at.session_state[ROWS]["streams"][0]["flow"] == "12 kW"  # not reverted to the last good value
+    assert held(at).title == "Glycol heater, revised"
+    assert rows(at, "streams")[0]["flow"] == "12 kW"  # not reverted to the last good value
     assert "unit 'kW' is not a mass flow" in errors(at)
     assert at.selectbox(key="unknown_picker").disabled  # fix the marked cell before moving the unknown
 
 
-def test_a_negative_mass_shows_the_engines_message_and_keeps_the_inputs():
+def test_a_negative_mass_is_refused_by_the_engine_and_its_cell_is_marked():
     at = page("hot_condensate_quench.json")
     edit(at, "charges", {"edited_rows": {0: {"mass": "-3 t"}}})
     no_traceback(at)
-    message = "a mass or flow cannot be negative (-3 t)"  # heatbalance.balance, the engine's refusal
-    assert f"vessel Quench pit, charge Hot condensate mass: {message}" in errors(at)
-    assert f"Vessel charges, row 1, mass: {message}" in errors(at)
-    rows = at.session_state[ROWS]["charges"]
-    assert [r["mass"] for r in rows] == ["-3 t", "? t"]
-    assert [r["initial"] for r in rows] == ["95 °C", "12 °C"]
+    message = "a mass or flow cannot be negative (-3 t)"  # the engine's refusal
+    assert f"Quench pit / Hot condensate mass: {message}" in errors(at)  # the refusal's address, in words
+    assert f"Vessel charges, row 1, mass: {message}" in errors(at)  # placed on its cell
+    assert list(grid(at, "charges")["check"]) == ["⚠ mass", ""]
+    typed = rows(at, "charges")
+    assert [r["mass"] for r in typed] == ["-3 t", "? t"]
+    assert [r["initial"] for r in typed] == ["95 °C", "12 °C"]
 
 
 def test_two_unknowns_show_their_message_and_keep_the_inputs():
@@ -174,14 +254,13 @@ def test_two_unknowns_show_their_message_and_keep_the_inputs():
     two = ws.model_copy(update={"unknowns": [Unknown(kind="amount", line="Steam"),
                                              Unknown(kind="temperature", line="Glycol", end="outlet")]})
     at = AppTest.from_file(APP, default_timeout=60)
-    at.session_state[WORKSHEET] = two
+    at.session_state[KEY] = PageState.opened(two)
     at.run()
     no_traceback(at)
-    assert "2 unknowns (kind=amount, line=Steam; kind=temperature, line=Glycol, end=outlet): a balance " \
-           "solves for exactly one; give a value to all but one" in errors(at)
+    assert "2 unknowns" in errors(at) and "give a value to all but one" in errors(at)
     assert at.selectbox(key="unknown_picker").value is None
-    rows = at.session_state[ROWS]["streams"]
-    assert [r["flow"] for r in rows] == ["12 t/h", "? kg/h"] and rows[0]["outlet"] == "? °C"
+    typed = rows(at, "streams")
+    assert [r["flow"] for r in typed] == ["12 t/h", "? kg/h"] and typed[0]["outlet"] == "? °C"
     at.selectbox(key="unknown_picker").select("Steam: flow").run()  # picking one frees the other
     assert answer_text(at) == "745.6 kg/h"
 
@@ -193,42 +272,48 @@ def test_a_bad_batch_duration_is_marked_and_kept():
     assert "Batch duration: unit 'kW' is not a duration (it measures power)" in errors(at)
     assert at.text_input(key="basis_duration").value == "40 kW"
     at.text_input(key="basis_duration").input("60 min").run()
-    held = at.session_state[WORKSHEET]
-    assert held.basis.duration.value == 60 and answer_text(at) == solve(held).answer.text
+    ws = held(at)
+    assert ws.basis.duration == Quantity(value=60, unit="min") and answer_text(at) == engine(ws)
 
 
 def test_a_sample_with_its_own_material_shows_the_materials_table():
     at = page()
     assert at.toggle(key="show_own_tables").value is False  # the glycol heater uses library materials only
+    load = at.session_state[KEY].load
     at.selectbox(key="sample_picker").select(sample("batch_reactor_exotherm.json").title).run()
     assert at.toggle(key="show_own_tables").value is True
-    assert any((d.key or "").startswith("editor_materials_") for d in at.dataframe)  # the table is drawn
-    rows = at.session_state[ROWS]["materials"]
-    assert [(r["material"], r["cp"]) for r in rows] == [("reagent solution", "3.2 kJ/(kg*K)")]  # the sample's own
+    assert at.session_state[KEY].load == load + 1  # another worksheet: every editor starts afresh
+    assert any((d.key or "") == f"editor_materials_{load + 1}" for d in at.dataframe)  # the table is drawn
+    assert [(r["material"], r["cp"]) for r in rows(at, "materials")] == [("reagent solution", "3.2 kJ/(kg·K)")]
 
 
-def test_batch_results_carry_the_safety_caution():
+def test_batch_results_carry_the_one_safety_caution_once():
     at = page("batch_reactor_exotherm.json")
-    cautions = "\n".join(w.value for w in at.warning)
-    assert "not a substitute for reaction calorimetry, a process hazard analysis or licensed engineering" in cautions
-    assert "follow local codes" in cautions
+    shown = [w.value for w in at.warning] + [c.value for c in at.caption] + [m.value for m in at.markdown]
+    assert sum(CAUTION in text for text in shown) == 1
+    assert not any("follow local codes" in text for text in shown)  # the old second wording is gone
+
+
+def test_a_continuous_sheet_without_reaction_has_no_caution():
+    at = page()
+    assert not any(CAUTION in w.value for w in at.warning)
 
 
 def test_a_new_worksheet_starts_empty_without_an_error():
     at = page()
     at.button(key="new_worksheet").click().run()
     no_traceback(at)
-    assert at.session_state[WORKSHEET].streams == [] and errors(at) == ""
+    assert held(at).streams == [] and errors(at) == ""
     assert "Nothing to solve yet" in "\n".join(i.value for i in at.info)
 
 
 def test_a_worksheet_built_from_scratch_solves_for_the_picked_unknown():
     at = page()
     at.button(key="new_worksheet").click().run()
-    at.session_state[PENDING] = [
-        ("streams", {"added_rows": [{"name": "Water", "material": "water", "flow": "", "pressure": "0 barg",
-                                     "inlet": "20 °C", "outlet": "80 °C"}]}),
-        ("duties", {"added_rows": [{"name": "Heater", "heat": "50 kW"}]})]
+    state = at.session_state[KEY]
+    state.apply_table_edit("streams", {"added_rows": [{"name": "Water", "material": "water", "flow": "",
+                                                        "pressure": "0 barg", "inlet": "20 °C", "outlet": "80 °C"}]})
+    state.apply_table_edit("duties", {"added_rows": [{"name": "Heater", "heat": "50 kW"}]})
     at.run()
     no_traceback(at)
     assert "no unknown: mark one quantity" in errors(at)
@@ -236,18 +321,25 @@ def test_a_worksheet_built_from_scratch_solves_for_the_picked_unknown():
     assert errors(at) == ""
     # IAPWS-IF97 (iapws package): h(80 °C) − h(20 °C) at 1.01325 bar = 250.98 kJ/kg; 50 kW / Δh in kg/h
     dh = IAPWS97(T=353.15, P=0.101325).h - IAPWS97(T=293.15, P=0.101325).h
-    answer = solve(at.session_state[WORKSHEET]).answer
-    assert answer.unit == "kg/h" and answer.value == pytest.approx(50 / dh * 3600, rel=1e-6)  # ≈ 717.2 kg/h
-    assert answer_text(at) == answer.text
+    answer = solve(held(at)).answer
+    assert answer.value_si * 3600 == pytest.approx(50 / dh * 3600, rel=1e-6)  # ≈ 717.2 kg/h
+    assert answer_text(at) == written(answer, "SI") and answer_text(at).endswith(" kg/h")
+
+
+def test_user_text_is_shown_as_plain_text():
+    at = page()
+    at.text_input(key="title_input").input("**Bold** _heater_ [link](x)").run()
+    no_traceback(at)
+    assert at.title[0].value == "\\*\\*Bold\\*\\* \\_heater\\_ \\[link\\](x)"
 
 
 def test_an_engine_failure_is_a_plain_message_not_a_traceback(monkeypatch):
-    import heatbalance.balance as balance
+    import heatbalance.analyses as analyses
 
     def broken(*args, **kwargs):
         raise ZeroDivisionError("float division by zero")
 
-    monkeypatch.setattr(balance, "build_problem", broken)
+    monkeypatch.setattr(analyses, "build_problem", broken)
     at = page()
     no_traceback(at)
     assert "the engine failed unexpectedly (ZeroDivisionError)" in errors(at)
