@@ -12,13 +12,14 @@ import pytest
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
+from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
 from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
-WORKSHEET = "hb_worksheet"  # app.py's session key of the worksheet model
+KEY = "hb_page"  # app.py's one session key: the page state (webapp.state.PageState)
 SAMPLES = sorted((ROOT / "sample_data").glob("*.json"))
 DEFAULT = "steam_heater_glycol.json"  # the sample the page opens on
 
@@ -63,8 +64,8 @@ def test_a_saved_sample_opens_from_its_link_identical_with_the_identical_answer(
         rev_id = store.save(worksheet).id
     at = page(ws=rev_id)
     no_traceback(at)
-    assert at.session_state[WORKSHEET] == worksheet
-    assert answer(at) == solve(worksheet).answer.text
+    assert at.session_state[KEY].worksheet == worksheet
+    assert answer(at) == answer_text(solve(worksheet).answer)
     assert f"Opened saved revision {rev_id}." in [s.value for s in at.success]
     assert any(c.value.endswith(f"?ws={rev_id}") for c in at.code)  # its link, to pass on
 
@@ -73,8 +74,8 @@ def test_a_sheet_link_opens_the_identical_worksheet(db):
     worksheet = _sample(SAMPLES[0])
     at = page(sheet=encode_sheet(worksheet))
     no_traceback(at)
-    assert at.session_state[WORKSHEET] == worksheet
-    assert answer(at) == solve(worksheet).answer.text
+    assert at.session_state[KEY].worksheet == worksheet
+    assert answer(at) == answer_text(solve(worksheet).answer)
 
 
 @pytest.mark.parametrize("query, message", [
@@ -88,7 +89,7 @@ def test_a_bad_link_shows_a_clear_message_and_opens_the_default_sheet(db, query,
     at = page(**query)
     no_traceback(at)
     assert re.search(message, errors(at)), errors(at)
-    assert at.session_state[WORKSHEET] == _sample(ROOT / "sample_data" / DEFAULT)
+    assert at.session_state[KEY].worksheet == _sample(ROOT / "sample_data" / DEFAULT)
     answer(at)  # the page still solves
 
 
@@ -112,7 +113,7 @@ def test_an_unreadable_database_shows_a_clear_message_and_is_left_alone(monkeypa
 def test_save_and_share_gives_the_link_the_revision_list_and_the_address(db):
     at = page()
     no_traceback(at)
-    worksheet = at.session_state[WORKSHEET]
+    worksheet = at.session_state[KEY].worksheet
     at.button(key="share_save").click().run()
     no_traceback(at)
     rev_id = revision_id(worksheet)
@@ -122,19 +123,19 @@ def test_save_and_share_gives_the_link_the_revision_list_and_the_address(db):
     with WorksheetStore(db) as store:
         assert store.open(rev_id).worksheet == worksheet
     reopened = page(ws=rev_id)
-    assert reopened.session_state[WORKSHEET] == worksheet
+    assert reopened.session_state[KEY].worksheet == worksheet
     assert answer(reopened) == answer(at)
 
 
 def test_an_edit_saved_again_is_a_new_revision_with_the_old_one_as_parent(db):
     at = page()
     at.button(key="share_save").click().run()
-    first = revision_id(at.session_state[WORKSHEET])
+    first = revision_id(at.session_state[KEY].worksheet)
     at.text_input(key="title_input").set_value("Glycol heater, checked").run()
     no_traceback(at)
     assert any("Changed since revision" in c.value for c in at.caption)
     at.button(key="share_save").click().run()
-    second = revision_id(at.session_state[WORKSHEET])
+    second = revision_id(at.session_state[KEY].worksheet)
     assert second != first
     with WorksheetStore(db) as store:
         assert [r.id for r in store.history(second)] == [second, first]
@@ -145,7 +146,7 @@ def test_an_edit_saved_again_is_a_new_revision_with_the_old_one_as_parent(db):
 def test_another_sample_descends_from_no_revision_and_leaves_the_address(db):
     at = page()
     at.button(key="share_save").click().run()
-    first = revision_id(at.session_state[WORKSHEET])
+    first = revision_id(at.session_state[KEY].worksheet)
     other = _sample(SAMPLES[0])
     at.selectbox(key="sample_picker").select(other.title).run()
     no_traceback(at)
@@ -159,7 +160,7 @@ def test_another_sample_descends_from_no_revision_and_leaves_the_address(db):
 
 def test_the_compressed_link_on_the_page_opens_the_same_worksheet(db):
     at = page()
-    payload = encode_sheet(at.session_state[WORKSHEET])
+    payload = encode_sheet(at.session_state[KEY].worksheet)
     assert any(c.value.endswith("?sheet=" + payload) for c in at.code)
 
 
@@ -171,18 +172,18 @@ def test_pasting_a_link_opens_it(db):
     at.button(key="share_save").click().run()  # the default sheet saved: the address names its revision
     at.text_input(key="share_link_input").set_value(f"https://sheets.example.invalid/?ws={rev_id}").run()
     no_traceback(at)
-    assert at.session_state[WORKSHEET] == worksheet
-    assert answer(at) == solve(worksheet).answer.text
+    assert at.session_state[KEY].worksheet == worksheet
+    assert answer(at) == answer_text(solve(worksheet).answer)
     assert at.query_params["ws"] in (rev_id, [rev_id])  # now the pasted revision, not the saved one
 
 
 def test_pasting_a_bad_link_says_why_and_keeps_the_sheet(db):
     at = page()
-    before = at.session_state[WORKSHEET]
+    before = at.session_state[KEY].worksheet
     at.text_input(key="share_link_input").set_value("?ws=123").run()
     no_traceback(at)
     assert "The link could not be opened: '123' is not a worksheet id" in errors(at)
-    assert at.session_state[WORKSHEET] == before
+    assert at.session_state[KEY].worksheet == before
 
 
 class _Upload:
