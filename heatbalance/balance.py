@@ -65,7 +65,7 @@ def evaluate_state(material: Material, state: StateSpec, temperatures: dict, pla
         tr = _plateau_transition(material, state)
         return Point(tr.T, state.fraction, tr.h_lower + state.fraction * tr.latent)
     T = temperatures[state.var]
-    material.check_range(T, f"{state.label}.temperature")
+    material.check_range(T, state.temperature_address)
     if hasattr(material, "check_pressure"):
         material.check_pressure(state.P, state.pressure_address)
     fraction = plateau_side.get(state.var)

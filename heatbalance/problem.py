@@ -46,6 +46,10 @@ class StateSpec:
     fraction: float | None = None  # of the upper phase
     pressure_address: str = ""  # the field its pressure comes from: its own, or its line's or vessel's
 
+    @cached_property
+    def temperature_address(self) -> str:
+        return f"{self.label}.temperature"
+
 
 @dataclass
 class Line:

@@ -110,3 +110,34 @@ def test_the_layout_in_the_developers_guide_names_every_module():
         if path.name in ("__init__.py", "__main__.py"):
             continue
         assert path.name in layout, f"{path.relative_to(ROOT)} is missing from DEVELOPERS.md's layout"
+
+
+def layout_order() -> list[str]:
+    """The engine's modules in the order DEVELOPERS.md lists them (folders as packages)."""
+    guide = (ROOT / "DEVELOPERS.md").read_text(encoding="utf-8")
+    block = guide[guide.index("heatbalance/ "):guide.index("tests/ ")]
+    order, folder = [], None
+    for line in block.splitlines()[1:]:
+        indent = len(line) - len(line.lstrip(" "))
+        entry = line.strip().split(" ")[0].rstrip(",")
+        if indent == 2 and entry.endswith("/") and entry != "data/":
+            folder = entry.rstrip("/")
+            order.append(f"heatbalance.{folder}")
+        elif indent == 2 and entry.endswith(".py"):
+            folder = None
+            order.append(f"heatbalance.{entry.removesuffix('.py')}")
+        elif indent == 4 and entry.endswith(".py") and folder:
+            order.append(f"heatbalance.{folder}.{entry.removesuffix('.py')}")
+    return order
+
+
+def test_each_engine_module_imports_only_modules_listed_above_it():
+    order = layout_order()
+    edges = graph()
+    assert {m for m in edges if m.startswith("heatbalance.")} - {"heatbalance.__main__"} <= set(order)
+    for position, module in enumerate(order):
+        above = set(order[:position]) | {module}
+        package = module if any(m.startswith(module + ".") for m in order) else None
+        late = {m for m in edges.get(module, ()) if m.startswith("heatbalance.") and m not in above
+                and not (package and m.startswith(package + "."))}
+        assert not late, f"{module} imports {sorted(late)}, listed below it in DEVELOPERS.md"
