@@ -82,7 +82,9 @@ class Result:
     sources: dict[str, str] = field(default_factory=dict)
     versions: dict[str, str] = field(default_factory=dict)
     sign_convention: str = SIGN_CONVENTION
-    screening: list = field(default_factory=list)  # analyses.screening.Screening, one per vessel with a reaction
+    # filled by the analyses (this module may not import them): one analyses.screening.Screening per vessel
+    # with a reaction
+    screening: list["Screening"] = field(default_factory=list)  # noqa: F821
 
     @property
     def heat_si_unit(self) -> str:

@@ -217,3 +217,18 @@ def test_every_refusal_of_a_bad_cell_names_a_field_that_exists():
         solve(bad)
     assert refusal.value.where == address
     assert A.get(bad, refusal.value.where) == Quantity(value=-5, unit="kg")
+
+
+@pytest.mark.parametrize("path", SAMPLES, ids=IDS)
+def test_addresses_survive_a_share_link_and_the_store(path, tmp_path):
+    from heatbalance.links import decode_sheet, parse_link, sheet_link
+    from heatbalance.store import WorksheetStore
+
+    ws = sample(path)
+    kind, payload = parse_link(sheet_link(ws, "https://sheets.example.invalid/"))
+    reopened = decode_sheet(payload)
+    with WorksheetStore(f"sqlite:///{tmp_path / 'store.sqlite3'}") as store:
+        saved = store.open(store.save(ws).id).worksheet
+    for other in (reopened, saved):
+        assert [(i.address, i.value) for i in A.inputs(other)] == [(i.address, i.value) for i in A.inputs(ws)]
+        assert A.unknown_address(other.unknowns[0]) == A.unknown_address(ws.unknowns[0])

@@ -4,10 +4,10 @@ from __future__ import annotations
 import plotly.graph_objects as go
 
 from ..analyses.screening import Screening
+from ..messages import Measure
 from ..reactor import CAUTION
 from ..units import from_si
 from .text import UNIT_SETS, display_unit, measure_text, phrase_text
-from ..messages import Measure
 
 __all__ = ["screening_report", "screening_figure", "temperature_difference_text"]
 
