@@ -28,7 +28,7 @@ from dataclasses import dataclass
 
 from .errors import AddressError, HeatBalanceError, InputError
 from .units import basis_kinds, check_unit, from_si, kind_of
-from .worksheet import Quantity, Unknown, Worksheet, parse_worksheet
+from .worksheet import Quantity, Unknown, Worksheet, item_address, parse_worksheet
 
 __all__ = ["Input", "item", "parse", "inputs", "get", "with_value", "unknown_address", "unknown_at",
            "unknown_choices", "with_unknown", "answer_value", "storage_unit", "rename", "follow_rename", "kinds_of", "label", "FRACTION"]
@@ -55,18 +55,13 @@ class Input:
 
 
 # --------------------------------------------------------------------------- syntax
-def _escape(name: str) -> str:
-    return name.replace("\\", "\\\\").replace("]", "\\]")
-
-
 def item(collection: str, name: str, *rest: str) -> str:
     """The address of a named item, and of fields under it: ``item("streams", "Steam", "flow")``.
 
     >>> item("vessels", "R-1", item("charges", "Water [dry]", "mass"))
     'vessels[R-1].charges[Water [dry\\\\]].mass'
     """
-    head = f"{collection}[{_escape(name)}]"
-    return ".".join((head, *rest))
+    return item_address(collection, name, *rest)
 
 
 def parse(address: str) -> list[tuple[str, str | None]]:

@@ -80,7 +80,15 @@ class NoSolutionError(HeatBalanceError, ArithmeticError):
 
 
 class WorksheetFormatError(InputError):
-    """A worksheet document that does not follow the worksheet format."""
+    """A worksheet document that does not follow the worksheet format.
+
+    ``loc`` is the JSON path of the first problem as data (keys and list positions, e.g.
+    ``("streams", 0, "flow")``); ``where`` its address with items by name where they have one.
+    """
+
+    def __init__(self, message: str | Phrase, where: str = "", loc: tuple = ()):
+        self.loc = loc
+        super().__init__(message, where)
 
 
 class AddressError(InputError, KeyError):

@@ -20,7 +20,7 @@ __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
     "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Worksheet",
-    "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH",
+    "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
 SCHEMA_VERSION = CURRENT_VERSION  # one number, kept in migrations.py beside the migrations that reach it
@@ -305,13 +305,42 @@ class Worksheet(_Model):
         return self
 
 
-def _describe(error: ValidationError) -> str:
+def item_address(collection: str, name: str, *fields: str) -> str:
+    """The address of a named list item and of fields under it (syntax: :mod:`heatbalance.address`)."""
+    escaped = name.replace("\\", "\\\\").replace("]", "\\]")
+    return ".".join((f"{collection}[{escaped}]", *fields))
+
+
+def _address_of(data, loc: tuple) -> tuple[str, bool]:
+    """The address of a pydantic error location in the raw document, items by name (``worksheet`` if none),
+    and whether it reaches the whole location (a list item without a usable name stops it short)."""
+    parts, node = [], data
+    for key in loc:
+        if isinstance(key, int):
+            item = node[key] if isinstance(node, list) and key < len(node) else None
+            name = item.get("name") if isinstance(item, dict) else None
+            if not isinstance(name, str) or not parts:
+                return ".".join(parts) or "worksheet", False
+            parts[-1] = item_address(parts[-1], name)
+            node = item
+        elif isinstance(node, dict):
+            parts.append(str(key))
+            node = node.get(key)
+        else:
+            return ".".join(parts) or "worksheet", False
+    return ".".join(parts) or "worksheet", True
+
+
+def _refusal(error: ValidationError, data) -> WorksheetFormatError:
     first = error.errors()[0]
-    place = ".".join(str(p) for p in first["loc"])
+    loc = tuple(p for p in first["loc"] if not (isinstance(p, str) and p.startswith("function-")))
     message = first["msg"].removeprefix("Value error, ")
     more = len(error.errors()) - 1
     suffix = f" (and {more} more problem{'s' if more > 1 else ''})" if more else ""
-    return f"{place}: {message}{suffix}" if place else message + suffix
+    address, complete = _address_of(data, loc)
+    place = ".".join(str(p) for p in loc)
+    text = f"{place}: {message}{suffix}" if place and not complete else message + suffix
+    return WorksheetFormatError(text, address, loc=loc)
 
 
 def _check_shape(data) -> None:
@@ -350,7 +379,7 @@ def parse_worksheet(data: dict) -> Worksheet:
     try:
         return Worksheet.model_validate(data)
     except ValidationError as exc:
-        raise WorksheetFormatError(_describe(exc), "worksheet") from None
+        raise _refusal(exc, data) from None
 
 
 def load_worksheet(text: str | bytes) -> Worksheet:

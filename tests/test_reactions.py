@@ -253,7 +253,7 @@ def test_worksheet_entered_enthalpy_wins_and_equation_is_reported():
 
 
 def test_worksheet_refuses_reaction_without_heat():
-    with pytest.raises(WorksheetFormatError, match=r"reactions\.0: give the heat of reaction \('enthalpy'\) or a "
+    with pytest.raises(WorksheetFormatError, match=r"^reactions\[Rx\]: give the heat of reaction \('enthalpy'\) or a "
                                                    r"balanced 'equation'"):
         build(**_reactor({}))
 

@@ -350,7 +350,7 @@ def test_worksheet_jacket_forms_are_checked():
 
 
 def test_worksheet_accumulation_out_of_range_is_refused():
-    with pytest.raises(WorksheetFormatError, match=r"vessels\.0\.screening\.accumulation: Input should be less "
+    with pytest.raises(WorksheetFormatError, match=r"^vessels\[R\]\.screening\.accumulation: Input should be less "
                                                    r"than or equal to 1"):
         scenario({"accumulation": 1.2})
 

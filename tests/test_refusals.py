@@ -151,7 +151,7 @@ def test_oversized_document():
 def test_quantity_text_that_is_not_a_number():
     doc = sheet(**{**HEATER, "streams": [stream("Feed", "liquid A", "lots kg/h", temp(20), temp(80))],
                    "unknowns": [{"kind": "duty", "term": "Heater"}]})
-    with pytest.raises(WorksheetFormatError, match=r"streams\.0\.flow: 'lots kg/h' is not a number followed by a unit"):
+    with pytest.raises(WorksheetFormatError, match=r"^streams\[Feed\]\.flow: 'lots kg/h' is not a number followed by a unit"):
         parse_worksheet(doc)
 
 
@@ -207,3 +207,19 @@ def test_a_vessel_name_with_a_slash_is_just_a_name():
                    {"name": "C / D", "material": "liquid A", "mass": q(1, "t"), "initial": temp(20)}]}],
                duties=[{"name": "H", "value": q(40, "MJ")}], unknowns=[{"kind": "amount", "line": "A / B", "charge": "C / D"}])
     assert answer_value(solve(ws).answer) == pytest.approx(2.0)
+
+
+def test_a_format_refusal_carries_its_place_as_data():
+    """The page marks the cell from the refusal's data, never by reading the sentence back."""
+    doc = sheet(**{**HEATER, "streams": [stream("Feed", "liquid A", q(1, "t/h"), temp(20), temp(80)),
+                                         stream("Steam", "water", "lots kg/h", temp(20), temp(80))]})
+    with pytest.raises(WorksheetFormatError) as refusal:
+        parse_worksheet(doc)
+    assert refusal.value.loc == ("streams", 1, "flow")
+    assert refusal.value.where == "streams[Steam].flow"
+    assert refusal.value.message == "'lots kg/h' is not a number followed by a unit"
+    unnamed = sheet(**{**HEATER, "streams": [{"material": "water"}]})
+    with pytest.raises(WorksheetFormatError) as refusal:
+        parse_worksheet(unnamed)
+    assert refusal.value.loc[:2] == ("streams", 0) and refusal.value.where == "streams"
+    assert refusal.value.message.startswith("streams.0.")  # no name to address it by: the position is said
