@@ -63,7 +63,8 @@ def running_app(log_path: Path, env: dict | None = None):
     with open(log_path, "wb") as log:
         process = subprocess.Popen(
             [sys.executable, "-m", "streamlit", "run", "app.py", "--server.headless", "true",
-             "--server.address", "127.0.0.1", "--server.port", str(port), "--browser.gatherUsageStats", "false"],
+             "--server.address", "127.0.0.1", "--server.port", str(port), "--browser.gatherUsageStats", "false",
+             "--server.fileWatcherType", "none"],  # an edit elsewhere must not prompt a rerun mid-test
             cwd=ROOT, stdout=log, stderr=subprocess.STDOUT, env=env)
         try:
             deadline = time.monotonic() + SERVER_START_TIMEOUT_S

@@ -1,7 +1,8 @@
 """The page in a real browser: Debian's chromium driven by Playwright (headless).
 
 Loads a sample from the sidebar picker, types a new value into a table cell, reads the new answer
-from the page and checks it against the engine (heatbalance.solve) for the same worksheet.
+from the page and checks it against the engine (heatbalance.solve) for the same worksheet. Every
+wait is on page state (an element, a text, a value), never a fixed sleep.
 Screenshots go to test-output/ (gitignored).
 """
 from __future__ import annotations
@@ -14,7 +15,9 @@ import pytest
 from playwright.sync_api import TimeoutError as PlaywrightTimeout
 
 from conftest import playwright_or_skip
-from heatbalance import contribution_rows, load_worksheet, solve
+from heatbalance import load_worksheet, solve
+from heatbalance.present.tables import contribution_rows
+from heatbalance.present.text import answer_text
 
 pytestmark = pytest.mark.browser
 
@@ -60,10 +63,10 @@ def _open_cell_editor(page, grid, row: int, column: int, editor: str = TEXT_EDIT
     """Click the table's first cell, walk to (row, column) by keyboard, open its editor.
 
     The table's script loads lazily and a click before it is ready is lost, so a slow machine gets
-    a few tries, each waiting for the cell editor to appear.
+    a few tries, each waiting for the grid's canvas and then for the cell editor to appear.
     """
     for attempt in range(attempts):
-        page.wait_for_timeout(1000)
+        grid.locator("canvas").first.wait_for(state="visible")
         box = grid.bounding_box()
         page.mouse.click(box["x"] + 60, box["y"] + 52)  # first row, first column (past the row markers)
         for _ in range(column):
@@ -88,14 +91,14 @@ def _type_into_cell(page, editor: str, row: int, column: int, text: str) -> None
     page.keyboard.press("Control+a")
     page.keyboard.type(text)
     page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
-    page.wait_for_timeout(300)  # let the editor take the typed text before Enter commits it
     page.keyboard.press("Enter")
+    page.wait_for_selector(TEXT_EDITOR, state="detached")  # the cell took the text
 
 
 def _wait_for_new_answer(page, old: str) -> str:
     page.wait_for_function("([sel, old]) => { const e = document.querySelector(sel); "
                            "return e && e.innerText.trim() !== old; }", arg=[ANSWER, old])
-    page.wait_for_timeout(500)  # let the rerun finish drawing
+    _wait_until_drawn(page)
     return _answer(page)
 
 
@@ -103,18 +106,22 @@ def test_load_a_sample_change_a_mass_and_read_the_engines_answer(page, output_di
     sheet = load_worksheet((SAMPLES / "hot_condensate_quench.json").read_bytes())
     _pick_sample(page, sheet.title)
     page.wait_for_function("([sel, t]) => { const e = document.querySelector(sel); return e && e.innerText.trim() === t; }",
-                           arg=[ANSWER, solve(sheet).answer.text])
+                           arg=[ANSWER, answer_text(solve(sheet).answer)])
     before = _answer(page)
-    assert before == solve(sheet).answer.text == "5.902 t"  # the engine's answer for our sample
+    assert before == answer_text(solve(sheet).answer) == "5.902 t"  # the engine's answer for our sample
+    grid = page.locator("[class*='st-key-editor_charges_'] [data-testid='stDataFrameResizable']")
+    grid.evaluate("e => { e.dataset.drawnBefore = 'yes'; }")  # to see whether the editor is redrawn
     # the hot condensate charge: 3 t -> 4 t (charges columns: vessel, name, material, mass fraction, mass)
     _type_into_cell(page, "charges", row=0, column=4, text="4 t")
     after = _wait_for_new_answer(page, before)
     changed = sheet.model_copy(deep=True)
     changed.vessels[0].charges[0].mass.value = 4.0
     expected = solve(changed).answer
-    assert after == expected.text
+    assert after == answer_text(expected)
     # more hot condensate needs more mains water, in proportion: 5.902 t × 4/3
-    assert expected.value == pytest.approx(solve(sheet).answer.value * 4 / 3, rel=1e-3)
+    assert expected.value_si == pytest.approx(solve(sheet).answer.value_si * 4 / 3, rel=1e-3)
+    # the editor kept its key: the same grid element, not a new one (so the cursor stays in the cell)
+    assert grid.evaluate("e => e.dataset.drawnBefore") == "yes"
     assert "Traceback" not in page.inner_text("body")
     page.screenshot(path=str(output_dir / "browser_quench_after_edit.png"), full_page=True)
 
@@ -131,18 +138,17 @@ def test_a_wrong_unit_typed_in_the_browser_is_marked(page, output_dir):
     page.screenshot(path=str(output_dir / "browser_wrong_unit.png"), full_page=True)
 
 
-def test_us_customary_display_converts_the_answer(page, output_dir):
+def test_us_customary_display_keeps_the_typed_unit_and_converts_the_results(page, output_dir):
     sheet = load_worksheet((SAMPLES / "steam_heater_glycol.json").read_bytes())
     before = _answer(page)
-    assert before == solve(sheet).answer.text  # the page opens on this sample
+    assert before == answer_text(solve(sheet).answer) == "745.6 kg/h"  # the page opens on this sample
     page.get_by_text("US customary (°F, lb, Btu)").click()
-    after = _wait_for_new_answer(page, before)
-    expected = solve(sheet, "US").answer
-    assert after == expected.text and expected.unit == "lb/h"
+    # the answer stays in the unit of its field (kg/h), its view-unit equivalent beside it:
     # 745.6 kg/h ÷ 0.45359237 kg/lb (exact, NIST SP 811) ≈ 1,644 lb/h
-    assert expected.value == pytest.approx(solve(sheet).answer.value / 0.45359237, rel=1e-9)
+    page.locator(".st-key-answer").get_by_text("= 1,644 lb/h").wait_for()
     _wait_until_drawn(page)
-    assert "heat into the process [Btu/h]" in page.inner_text("body")
+    assert _answer(page) == answer_text(solve(sheet).answer, "US") == "745.6 kg/h"
+    page.get_by_text("heat into the process [Btu/h]").first.wait_for()
     page.screenshot(path=str(output_dir / "browser_us_units.png"), full_page=True)
 
 

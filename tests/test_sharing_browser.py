@@ -15,6 +15,7 @@ import pytest
 
 from conftest import running_app
 from heatbalance import load_worksheet, solve
+from heatbalance.present.text import answer_text
 from heatbalance.links import revision_id, sheet_link
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 
@@ -51,7 +52,7 @@ def test_a_saved_sample_opens_from_its_link_with_the_engines_answer(server, page
         rev_id = store.save(worksheet).id
     page.goto(f"{url}/?ws={rev_id}")
     page.wait_for_selector(ANSWER)
-    assert page.inner_text(ANSWER).strip() == solve(worksheet).answer.text
+    assert page.inner_text(ANSWER).strip() == answer_text(solve(worksheet).answer)
     assert worksheet.title in page.inner_text("h1")
     page.get_by_text(f"Opened saved revision {rev_id}.").wait_for()
 
@@ -61,7 +62,7 @@ def test_save_and_share_puts_the_link_in_the_address_bar_and_it_reopens(server, 
     worksheet = load_worksheet(SAMPLE.read_bytes())
     page.goto(f"{url}/?sheet={sheet_link(worksheet).split('=', 1)[1]}")
     page.wait_for_selector(ANSWER)
-    assert page.inner_text(ANSWER).strip() == solve(worksheet).answer.text
+    assert page.inner_text(ANSWER).strip() == answer_text(solve(worksheet).answer)
     page.get_by_role("button", name="Save and share").click()
     rev_id = revision_id(worksheet)
     page.wait_for_url(re.compile(rf"\?ws={rev_id}$"))
@@ -70,7 +71,7 @@ def test_save_and_share_puts_the_link_in_the_address_bar_and_it_reopens(server, 
         assert store.open(rev_id).worksheet == worksheet
     page.goto(page.url)
     page.wait_for_selector(ANSWER)
-    assert page.inner_text(ANSWER).strip() == solve(worksheet).answer.text
+    assert page.inner_text(ANSWER).strip() == answer_text(solve(worksheet).answer)
 
 
 def test_a_bad_link_shows_its_message_in_the_browser(server, page):
