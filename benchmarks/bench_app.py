@@ -3,7 +3,7 @@
     python benchmarks/bench_app.py [--repeat 7]
 
 For each sample: the median of ``repeat`` runs of
-  * solve: ``heatbalance.solve`` of the worksheet (warm: properties and imports loaded);
+  * solve: ``heatbalance.analyses.solve_and_analyse`` of the worksheet (what the page runs) (warm: properties and imports loaded);
   * page: a fresh ``AppTest`` of app.py holding that worksheet, one ``run()`` (the whole page:
     tables, solve, answer, contribution table, waterfall), AppTest's own overhead included;
   * rerun: a second ``run()`` of the same AppTest (what a widget change costs).
@@ -24,10 +24,11 @@ sys.path.insert(0, str(ROOT))
 
 from streamlit.testing.v1 import AppTest  # noqa: E402
 
-from heatbalance import load_worksheet, solve  # noqa: E402
+from heatbalance import load_worksheet  # noqa: E402
+from heatbalance.analyses import solve_and_analyse as solve  # noqa: E402
+from webapp.state import KEY, PageState  # noqa: E402
 
 APP = str(ROOT / "app.py")
-WORKSHEET = "hb_worksheet"  # app.py's session key of the model
 TARGET_ADDED_MS = 150.0
 
 
@@ -56,7 +57,7 @@ def page_ms(worksheet, repeat: int) -> tuple[float, float]:
     first, again = [], []
     for _ in range(repeat):
         page = AppTest.from_file(APP, default_timeout=60)
-        page.session_state[WORKSHEET] = worksheet
+        page.session_state[KEY] = PageState.opened(worksheet)  # the page's one state key
         first.append(_ms(page.run))
         if page.exception:
             raise SystemExit(f"the page failed: {[e.value for e in page.exception]}")
