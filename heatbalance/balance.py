@@ -14,6 +14,7 @@ analyses run on that result, and :mod:`heatbalance.present` writes it in a unit 
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from scipy.optimize import brentq
@@ -34,6 +35,8 @@ __all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state
 
 T_TOL = 1e-6  # K: two temperatures closer than this are the same (a state on a plateau)
 LATENT_NOTICE_J_PER_KG = 10.0  # a line's latent heat above this is reported as a phase change
+CLOSURE_RELATIVE = 1e-6  # a result is returned only if |residual| <= this × the largest contribution ...
+CLOSURE_FLOOR = 1e-3  # ... or this many W (J in batch), whichever is larger
 
 
 # --------------------------------------------------------------------------- evaluation
@@ -76,15 +79,25 @@ def evaluate_state(material: Material, state: StateSpec, temperatures: dict, pla
     return Point(T, None, material.enthalpy(T, state.P))
 
 
+def _equipment_enthalpy(e: EquipmentHeat, var: str, T: float, plateau_side: dict) -> float:
+    """Specific enthalpy of the equipment's material at T; on its own phase change, at the plateau's fraction."""
+    e.material.check_range(T, e.address)
+    fraction = plateau_side.get(var)
+    if fraction is not None:
+        tr = _transition_at(e.material, ATMOSPHERE, T)
+        if tr is not None:
+            return tr.h_lower + fraction * tr.latent
+    return e.material.enthalpy(T, ATMOSPHERE)
+
+
 def _equipment_heat(e: EquipmentHeat, temperatures: dict, plateau_side: dict) -> float:
     T0 = temperatures[e.initial_var]
     T1 = evaluate_state(e.final_material, e.final, temperatures, {}).T if e.final.plateau else \
         temperatures[e.final.var]
     if e.heat_capacity is not None:
         return e.heat_capacity * (T1 - T0)
-    e.material.check_range(T0, e.name)
-    e.material.check_range(T1, e.name)
-    return e.mass * (e.material.enthalpy(T1, ATMOSPHERE) - e.material.enthalpy(T0, ATMOSPHERE))
+    return e.mass * (_equipment_enthalpy(e, e.final.var, T1, plateau_side)
+                     - _equipment_enthalpy(e, e.initial_var, T0, plateau_side))
 
 
 def _line_dh(line: Line, temperatures: dict, plateau_side: dict) -> float:
@@ -155,8 +168,7 @@ def _solve_temperature(p: Problem) -> float | None:
     if low >= high:
         raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
                               f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_address)
-    breaks = sorted({tr.T for ln in dependent for st in (ln.initial, ln.final) if st.var == var
-                     for tr in ln.material.transitions(st.P) if low - T_TOL <= tr.T <= high + T_TOL})
+    breaks = sorted({tr.T for tr in _transitions_on(p, var) if low - T_TOL <= tr.T <= high + T_TOL})
     # (T, residual on its cold side, residual on its hot side) at each bound and phase change
     points = [(T, residual(T, 0.0), residual(T, 1.0)) for T in breaks]
     for bound in (low, high):
@@ -177,6 +189,15 @@ def _solve_temperature(p: Problem) -> float | None:
     limits = {low: next(m.name for m in materials if m.t_min == low),
               high: next(m.name for m in materials if m.t_max == high)}
     raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_address)
+
+
+def _transitions_on(p: Problem, var: str) -> list[Transition]:
+    """Every phase change a state on the temperature ``var`` can cross: the lines' and the equipment's."""
+    found = [tr for ln in p.lines for st in (ln.initial, ln.final) if st.var == var
+             for tr in ln.material.transitions(st.P)]
+    found += [tr for e in p.equipment if e.material is not None and var in (e.initial_var, e.final.var)
+              for tr in e.material.transitions(ATMOSPHERE)]
+    return found
 
 
 def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, float]) -> float:
@@ -297,9 +318,7 @@ def _answer(p: Problem, fraction: float | None, ws: Worksheet) -> Answer:
     typed = get_input(ws, p.unknown_address)
     plateau = None
     if fraction is not None:
-        dependent = [ln for ln in p.lines if _depends(ln, p.unknown_target)]
-        plateau = next(tr.kind for ln in dependent for st in (ln.initial, ln.final) if st.var == p.unknown_target
-                       for tr in ln.material.transitions(st.P) if abs(tr.T - value_si) < T_TOL)
+        plateau = next(tr.kind for tr in _transitions_on(p, p.unknown_target) if abs(tr.T - value_si) < T_TOL)
     return Answer(p.unknown_address, address_label(p.unknown_address), kind, si_kind, value_si,
                   typed.unit if isinstance(typed, Quantity) else None, fraction, plateau)
 
@@ -313,12 +332,31 @@ def _result(p: Problem, fraction: float | None, ws: Worksheet) -> Result:
                                 Phrase("heat taken up by the vessel and its internals (− into the process)"),
                                 vessel=e.vessel))
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
+    _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
         + _range_warnings(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction, ws), lines, terms, residual, warnings, p.assumptions,
                   sources, property_library_versions())
+
+
+def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> None:
+    """No result leaves the solver unless every number is finite and the balance closes."""
+    contributions = [x for ln in lines for x in (ln.sensible, ln.latent, ln.amount_si, ln.initial_T, ln.final_T)]
+    contributions += [t.heat for t in terms] + [residual]
+    if not all(math.isfinite(x) for x in contributions):
+        raise NoSolutionError("the balance gives a number that is not finite (a flow, heat or temperature beyond "
+                              "any physical scale): check the magnitudes of the inputs", p.unknown_address)
+    largest = max([abs(ln.total) for ln in lines] + [abs(t.heat) for t in terms], default=0.0)
+    tolerance = max(CLOSURE_RELATIVE * largest, CLOSURE_FLOOR)
+    if abs(residual) > tolerance:
+        raise NoSolutionError(Phrase(
+            "the balance does not close: {residual} is left over (tolerance {tolerance}); the answer would be "
+            "wrong, so none is given. This is a limit of the model here (e.g. two phase changes at one "
+            "temperature): give this temperature, or solve for another quantity, and report the worksheet.",
+            {"residual": Measure(residual, heat_kind(p.basis)),
+             "tolerance": Measure(tolerance, heat_kind(p.basis), 2)}), p.unknown_address)
 
 
 def _cross(source: LineResult, target: LineResult, verb: str) -> Phrase:

@@ -80,6 +80,10 @@ class EquipmentHeat:
     material: Material | None = None
     mass: float = 0.0
 
+    @property
+    def address(self) -> str:
+        return item("vessels", self.vessel, "equipment")
+
 
 @dataclass
 class HeatTerm:

@@ -18,7 +18,7 @@ import pint
 from .errors import InputError, UnitError
 
 __all__ = [
-    "ureg", "Q_", "ATMOSPHERE", "KINDS", "to_si", "from_si", "kind_of", "check_unit",
+    "ureg", "Q_", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
     "basis_kinds", "heat_kind",
 ]
 
@@ -55,6 +55,28 @@ KINDS: dict[str, tuple[str, str]] = {
     "thermal_conductance": ("W/K", "a heat-transfer coefficient times area (e.g. kW/K)"),
     "heat_transfer_coefficient": ("W/(m**2*K)", "a heat-transfer coefficient (e.g. W/(m^2*K))"),
     "area": ("m**2", "an area (e.g. m^2)"),
+}
+
+#: kind -> the largest magnitude accepted, in SI: physically generous, but finite (refused beyond, with the bound)
+BOUNDS: dict[str, float] = {
+    "temperature": 1e5,  # K
+    "temperature_difference": 1e5,  # K
+    "pressure": 1e10,  # Pa (100,000 bar)
+    "mass": 1e12,  # kg
+    "mass_flow": 1e7,  # kg/s (36 Mt/h)
+    "energy": 1e18,  # J
+    "power": 1e13,  # W
+    "duration": 1e10,  # s (about 300 years)
+    "amount": 1e15,  # mol
+    "molar_flow": 1e10,  # mol/s
+    "molar_energy": 1e8,  # J/mol
+    "heat_capacity": 1e15,  # J/K
+    "specific_heat": 1e6,  # J/(kg·K)
+    "specific_energy": 1e9,  # J/kg
+    "molar_mass": 1e3,  # kg/mol
+    "thermal_conductance": 1e12,  # W/K
+    "heat_transfer_coefficient": 1e7,  # W/(m²·K)
+    "area": 1e8,  # m²
 }
 
 _GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}
@@ -148,8 +170,8 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
     UnitError
         The unit is unknown or of another dimension.
     InputError
-        The number is not finite, a temperature is below absolute zero, or a
-        pressure is below vacuum.
+        The number is not finite, its magnitude exceeds :data:`BOUNDS` for its kind, a temperature is
+        below absolute zero, or a pressure is below vacuum.
 
     Examples
     --------
@@ -166,6 +188,11 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
         check_unit(unit, kind, where)  # the same refusal, naming the field
         raise
     si = value * scale + offset
+    if not abs(si) <= BOUNDS[kind]:
+        bound = from_si(BOUNDS[kind], unit, kind) if kind not in ("temperature", "pressure") else None
+        limit = f"{bound:.3g} {unit}" if bound is not None else f"{BOUNDS[kind]:g} {KINDS[kind][0]}"
+        raise InputError(f"{value:g} {unit} is beyond any plant scale: {KINDS[kind][1]} is accepted up to "
+                         f"{limit}", where)
     if kind == "temperature" and si < 0:
         raise InputError(f"{value:g} {unit} is below absolute zero (0 K = -273.15 °C = -459.67 °F)", where)
     if kind == "pressure" and si <= 0:

@@ -29,7 +29,7 @@ MAX_NESTING_DEPTH = 20  # objects/lists nested deeper are refused (a real worksh
 
 
 class _Model(BaseModel):
-    model_config = ConfigDict(extra="forbid", validate_assignment=True)
+    model_config = ConfigDict(extra="forbid", validate_assignment=True, allow_inf_nan=False)
 
 
 QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -323,9 +323,13 @@ def _address_of(data, loc: tuple) -> tuple[str, bool]:
                 return ".".join(parts) or "worksheet", False
             parts[-1] = item_address(parts[-1], name)
             node = item
+        elif isinstance(node, dict) and key in ("value", "unit") and {"value", "unit"} <= node.keys():
+            break  # inside a typed quantity: the address is the quantity's
         elif isinstance(node, dict):
             parts.append(str(key))
             node = node.get(key)
+        elif isinstance(node, str) and key in ("value", "unit"):
+            break  # a quantity written as text ("1e999 kg/h")
         else:
             return ".".join(parts) or "worksheet", False
     return ".".join(parts) or "worksheet", True
