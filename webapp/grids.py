@@ -581,6 +581,10 @@ def tables_to_worksheet(tables: dict[str, list[dict]], base: Worksheet) -> tuple
     try:
         return parse_worksheet(document), []
     except WorksheetFormatError as exc:
+        if exc.address and exc.address != "worksheet":  # the refusal's address names its cell
+            cell = cell_of(exc.address, base)
+            if cell.table in COLUMNS:
+                return None, [CellProblem(cell.table, cell.row, cell.column, exc.message)]
         return None, [_format_problem(exc.message)]
 
 
