@@ -127,7 +127,7 @@ def decode_sheet(payload: object) -> Worksheet:
             raise
         raise LinkError("the sheet link is damaged or has been altered (its data does not unpack); "
                         "ask for the link again", "sheet") from None
-    return load_worksheet(text)
+    return load_worksheet(text, source="link")
 
 
 def revision_link(rev_id: str, base_url: str = "") -> str:

@@ -49,7 +49,7 @@ def migrate_0_to_1(doc: dict) -> dict:
     out = copy.deepcopy(doc)
     out["schema_version"] = 1
     if "unknowns" in out:
-        raise WorksheetFormatError("a version 0 worksheet has 'unknown', not 'unknowns'", "worksheet.unknowns")
+        raise WorksheetFormatError("a version 0 worksheet has 'unknown', not 'unknowns'", "unknown")
     unknown = out.pop("unknown", None)
     out["unknowns"] = [] if unknown is None else [unknown]
     duties = out.get("duties")
@@ -82,7 +82,7 @@ def migrate(doc: dict, model_fields=()) -> dict:
     >>> migrate({"schema_version": 7})
     Traceback (most recent call last):
     ...
-    heatbalance.errors.WorksheetFormatError: worksheet.schema_version: schema_version 7 is newer than this program reads (0 to 1); update the program
+    heatbalance.errors.WorksheetFormatError: schema_version: schema_version 7 is newer than this program reads (0 to 1); update the program
     """
     if not isinstance(doc, dict):
         raise WorksheetFormatError("a worksheet is a JSON object")
@@ -94,16 +94,16 @@ def migrate(doc: dict, model_fields=()) -> dict:
     version = doc.get("schema_version", CURRENT_VERSION)
     if isinstance(version, bool) or not isinstance(version, int):
         raise WorksheetFormatError(f"schema_version must be a whole number, not {str(version)[:40]!r}",
-                                   "worksheet.schema_version")
+                                   "schema_version")
     oldest = min(MIGRATIONS, default=CURRENT_VERSION)
     if version > CURRENT_VERSION:
         raise WorksheetFormatError(f"schema_version {version} is newer than this program reads "
                                    f"({oldest} to {CURRENT_VERSION}); update the program",
-                                   "worksheet.schema_version")
+                                   "schema_version")
     if version < oldest:
         raise WorksheetFormatError(f"schema_version {version} is not a known version "
                                    f"(this program reads {oldest} to {CURRENT_VERSION})",
-                                   "worksheet.schema_version")
+                                   "schema_version")
     while version < CURRENT_VERSION:
         doc = MIGRATIONS[version](doc)
         version += 1

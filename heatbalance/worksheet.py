@@ -372,34 +372,47 @@ def _refuse_constant(name: str):
     raise WorksheetFormatError(f"{name} is not a number a worksheet can hold")
 
 
-def parse_worksheet(data: dict) -> Worksheet:
+def parse_worksheet(data: dict, source: str = "file") -> Worksheet:
     """Validate a decoded JSON document as a worksheet, or raise :class:`WorksheetFormatError`.
+
+    A refusal names the field's address; a problem with the whole document names ``source``
+    (``file``, or ``link`` for a share link).
 
     Older ``schema_version``s are first brought up to date by :func:`heatbalance.migrations.migrate`.
     """
     if not isinstance(data, dict):
-        raise WorksheetFormatError("a worksheet is a JSON object")
-    data = migrate(data, Worksheet.model_fields)
+        raise WorksheetFormatError("a worksheet is a JSON object", source)
+    try:
+        data = migrate(data, Worksheet.model_fields)
+    except WorksheetFormatError as exc:
+        if exc.where:
+            raise
+        raise WorksheetFormatError(exc.phrase, source) from None
     try:
         return Worksheet.model_validate(data)
     except ValidationError as exc:
         raise _refusal(exc, data) from None
 
 
-def load_worksheet(text: str | bytes) -> Worksheet:
-    """Read a worksheet from JSON text (size- and depth-limited), migrating older versions."""
+def load_worksheet(text: str | bytes, source: str = "file") -> Worksheet:
+    """Read a worksheet from JSON text (size- and depth-limited), migrating older versions.
+
+    A problem with the whole document (size, JSON, nesting, a number that is not finite) names ``source``.
+    """
     if len(text) > MAX_DOCUMENT_BYTES:
-        raise WorksheetFormatError(f"the document is {len(text):,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}")
+        raise WorksheetFormatError(f"the document is {len(text):,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}",
+                                   source)
     try:
         data = json.loads(text, parse_constant=_refuse_constant)
-    except (ValueError, RecursionError) as exc:  # JSONDecodeError, UnicodeDecodeError, too many digits
-        if isinstance(exc, WorksheetFormatError):
-            raise
-        if isinstance(exc, RecursionError):
-            raise WorksheetFormatError(f"the document is nested more than {MAX_NESTING_DEPTH} levels deep") from None
-        raise WorksheetFormatError(f"not valid JSON ({exc.__class__.__name__}: {str(exc)[:120]})") from None
-    _check_shape(data)
-    return parse_worksheet(data)
+        _check_shape(data)
+    except WorksheetFormatError as exc:
+        raise WorksheetFormatError(exc.phrase, source) from None
+    except RecursionError:
+        raise WorksheetFormatError(f"the document is nested more than {MAX_NESTING_DEPTH} levels deep",
+                                   source) from None
+    except ValueError as exc:  # JSONDecodeError, UnicodeDecodeError, too many digits
+        raise WorksheetFormatError(f"not valid JSON ({exc.__class__.__name__}: {str(exc)[:120]})", source) from None
+    return parse_worksheet(data, source)
 
 
 def dump_worksheet(worksheet: Worksheet) -> str:

@@ -66,7 +66,7 @@ def test_a_current_document_is_not_copied():
 
 
 def test_a_version_0_document_with_the_new_key_is_refused():
-    with pytest.raises(WorksheetFormatError, match=r"worksheet.unknowns: a version 0 worksheet has 'unknown', "
+    with pytest.raises(WorksheetFormatError, match=r"^unknown: a version 0 worksheet has 'unknown', "
                                                    r"not 'unknowns'"):
         parse_worksheet({"schema_version": 0, "unknowns": []})
 
@@ -107,5 +107,5 @@ def test_a_solved_result_uploaded_as_a_worksheet_is_named_as_such():
 
 
 def test_a_json_array_is_not_a_worksheet():
-    with pytest.raises(WorksheetFormatError, match=r"^a worksheet is a JSON object$"):
+    with pytest.raises(WorksheetFormatError, match=r"^file: a worksheet is a JSON object$"):
         load_worksheet("[1, 2]")

@@ -5,6 +5,7 @@ independent implementation named in a comment (the ``iapws`` package for IAPWS-I
 """
 import json
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -393,17 +394,18 @@ def _panel_page():
     import streamlit as st
 
     import heatbalance
-    from heatbalance import load_worksheet, solve
+    from heatbalance import load_worksheet, solve_and_analyse
     from webapp.screening_panel import render_screening_panel
 
     sample = Path(heatbalance.__file__).resolve().parent.parent / "sample_data" / "batch_reactor_exotherm.json"
     ws = load_worksheet(sample.read_bytes())
     system = st.session_state.get("test_system", "SI")
-    render_screening_panel(ws, solve(ws), system)
+    render_screening_panel(ws, solve_and_analyse(ws), system, caution=True)
 
 
 def _alarms(at):
-    return [e.value for e in at.error if "ALARM" in e.value]
+    """The alarms shown, as plain text (user-facing words are escaped for Markdown on the page)."""
+    return [re.sub(r"\\(.)", r"\1", e.value) for e in at.error if "ALARM" in e.value]
 
 
 def test_panel_alone_alarm_follows_T_D24():
@@ -467,8 +469,10 @@ def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
 
     from heatbalance.worksheet import Quantity, load_worksheet
 
+    from webapp.state import KEY, PageState
+
     at = AppTest.from_file(str(APP), default_timeout=60)
-    at.session_state["hb_worksheet"] = load_worksheet(REACTOR_SAMPLE.read_bytes())  # app.py's model key
+    at.session_state[KEY] = PageState.opened(load_worksheet(REACTOR_SAMPLE.read_bytes()))  # the page's one state
     at.run()
     assert not at.exception, [e.value for e in at.exception]
     assert any(h.value.startswith("Thermal screening") for h in at.header)
@@ -479,7 +483,7 @@ def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
     assert not at.exception
     assert any("MTSR 66.1 °C reaches T_D24 60.0 °C" in a for a in _alarms(at))
     # the input is written into the worksheet, so a saved or shared sheet carries it
-    assert at.session_state["hb_worksheet"].vessels[0].screening.T_D24 == Quantity(value=60.0, unit="degC")
+    assert at.session_state[KEY].worksheet.vessels[0].screening.T_D24 == Quantity(value=60.0, unit="degC")
     # raised above MTSR and MTT -> no alarm, class 1
     at.number_input(key="screening_0_T_D24").set_value(150.0).run()
     assert _alarms(at) == []
@@ -489,4 +493,4 @@ def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
     assert not at.exception
     assert any("These screening inputs cannot be used" in e.value and "below absolute zero" in e.value
                for e in at.error)
-    assert at.session_state["hb_worksheet"].vessels[0].screening.T_D24 == Quantity(value=150.0, unit="degC")
+    assert at.session_state[KEY].worksheet.vessels[0].screening.T_D24 == Quantity(value=150.0, unit="degC")
