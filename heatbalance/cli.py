@@ -4,15 +4,16 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
+import stat
 import sys
-from pathlib import Path
 
 from .analyses import solve_and_analyse
 from .errors import HeatBalanceError
 from .materials import catalogue
 from .present.report import format_result, result_json
 from .present.text import error_text
-from .worksheet import dump_worksheet, load_worksheet
+from .worksheet import MAX_DOCUMENT_BYTES, dump_worksheet, load_worksheet
 
 __all__ = ["main"]
 
@@ -24,8 +25,37 @@ def _print_result(result, args) -> None:
         print(format_result(result, args.units))
 
 
+class _FileError(HeatBalanceError):
+    """A worksheet file that cannot be read as one (missing, not a regular file, too large)."""
+
+
+def read_document(path: str) -> bytes:
+    """A worksheet file's bytes: a regular file of at most :data:`MAX_DOCUMENT_BYTES`, checked before reading.
+
+    A named pipe, a device or a folder is refused without opening it (opening a pipe would wait forever).
+    """
+    try:
+        info = os.stat(path)
+    except OSError as exc:
+        raise _FileError(f"cannot read it ({exc.strerror or exc})", path) from None
+    if not stat.S_ISREG(info.st_mode):
+        raise _FileError("not a regular file (a folder, a pipe or a device); give a worksheet .json file", path)
+    if info.st_size > MAX_DOCUMENT_BYTES:
+        raise _FileError(f"the file is {info.st_size:,} bytes; the limit is {MAX_DOCUMENT_BYTES:,}", path)
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read(MAX_DOCUMENT_BYTES + 1)  # bounded, even if the file grows meanwhile
+    except OSError as exc:
+        raise _FileError(f"cannot read it ({exc.strerror or exc})", path) from None
+    return data
+
+
+def _load(path: str):
+    return load_worksheet(read_document(path), source=path)
+
+
 def _solve(args) -> int:
-    worksheet = load_worksheet(Path(args.worksheet).read_bytes())
+    worksheet = _load(args.worksheet)
     _print_result(solve_and_analyse(worksheet), args)
     return 0
 
@@ -43,8 +73,11 @@ def _open_store():
 
 
 def _save(args) -> int:
-    worksheet = load_worksheet(Path(args.worksheet).read_bytes())
+    worksheet = _load(args.worksheet)
     with _open_store() as store:
+        if args.parent and store.info(args.parent) is None:
+            raise HeatBalanceError(f"no saved worksheet has the id {args.parent.strip().lower()} in this store; "
+                                   "give the id of the revision this one was edited from", "--parent")
         revision = store.save(worksheet, parent=args.parent)
     print(revision.id)
     return 0
@@ -77,10 +110,21 @@ def _history(args) -> int:
     return 0
 
 
+class _UsageError(HeatBalanceError):
+    """Arguments the command line cannot use."""
+
+
+class _Parser(argparse.ArgumentParser):
+    """Usage errors in the one-line form of every refusal, ``error: <where>: <what>`` (exit status 2)."""
+
+    def error(self, message: str):
+        where, _, what = message.partition(": ") if message.startswith("argument ") else ("", "", message)
+        raise _UsageError(what or message, where.removeprefix("argument ").split("/")[0] or self.prog)
+
+
 def _parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(prog="python -m heatbalance",
-                                     description="Solve process heat-balance worksheets.")
-    commands = parser.add_subparsers(dest="command", required=True)
+    parser = _Parser(prog="python -m heatbalance", description="Solve process heat-balance worksheets.")
+    commands = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
     run = commands.add_parser("solve", help="solve a worksheet JSON file for its unknown")
     run.add_argument("worksheet", help="path to a worksheet .json file")
     run.add_argument("--json", action="store_true", help="print the full result as JSON")
@@ -105,15 +149,27 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _refuse(exc: HeatBalanceError, units: str = "SI") -> None:
+    print(f"error: {exc.where or 'command'}: {error_text(exc, units)}", file=sys.stderr)
+
+
 def main(argv: list[str] | None = None) -> int:
-    """Run the command line; return the exit status (0 ok, 1 refused input, 2 usage)."""
-    args = _parser().parse_args(argv)
+    """Run the command line; return the exit status (0 ok, 1 refused input, 2 usage).
+
+    Every refusal is one line on standard error, ``error: <where>: <what>``; a reader that closes
+    the output early (``| head``) ends the run quietly.
+    """
+    try:
+        args = _parser().parse_args(argv)
+    except _UsageError as exc:
+        _refuse(exc)
+        return 2
     try:
         return args.handler(args)
     except HeatBalanceError as exc:
-        where = f"{exc.where}: " if exc.where else ""
-        print(f"error: {where}{error_text(exc, getattr(args, 'units', 'SI'))}", file=sys.stderr)
+        _refuse(exc, getattr(args, "units", "SI"))
         return 1
-    except OSError as exc:
-        print(f"error: cannot read {getattr(args, 'worksheet', '')}: {exc.strerror or exc}", file=sys.stderr)
-        return 1
+    except BrokenPipeError:
+        devnull = os.open(os.devnull, os.O_WRONLY)  # nothing more can be written; silence the final flush
+        os.dup2(devnull, sys.stdout.fileno())
+        return 0

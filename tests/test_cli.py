@@ -1,5 +1,6 @@
 """The command line: readable table, JSON, unit systems, one-line errors."""
 import json
+import os
 import subprocess
 import sys
 
@@ -60,9 +61,66 @@ def test_bad_input_is_one_line_and_exit_1(tmp_path, capsys):
 
 def test_missing_file(capsys):
     assert main(["solve", "no/such/file.json"]) == 1
-    assert capsys.readouterr().err.startswith("error: cannot read no/such/file.json")
+    assert capsys.readouterr().err == "error: no/such/file.json: cannot read it (No such file or directory)\n"
 
 
 def test_module_entry_point_exit_status():
     done = subprocess.run([sys.executable, "-m", "heatbalance", "solve", "missing.json"], capture_output=True, text=True)
     assert done.returncode == 1 and done.stderr.count("\n") == 1
+
+
+# --------------------------------------------------------------------------- refusals, one line each (issue 10)
+def test_a_named_pipe_is_refused_without_waiting(tmp_path, capsys):
+    pipe = tmp_path / "sheet.json"
+    os.mkfifo(pipe)
+    assert main(["solve", str(pipe)]) == 1  # opening the pipe would block: it is never opened
+    assert capsys.readouterr().err == (f"error: {pipe}: not a regular file (a folder, a pipe or a device); "
+                                       "give a worksheet .json file\n")
+
+
+def test_a_file_over_the_limit_is_refused_before_it_is_read(tmp_path, capsys, monkeypatch):
+    big = tmp_path / "big.json"
+    with open(big, "wb") as handle:
+        handle.truncate(2_000_000)  # sparse: 2 MB that would cost nothing to read, refused by its size
+    read = []
+    monkeypatch.setattr("builtins.open", lambda *a, **k: read.append(a) or (_ for _ in ()).throw(AssertionError))
+    assert main(["solve", str(big)]) == 1
+    assert read == []
+    assert capsys.readouterr().err == f"error: {big}: the file is 2,000,000 bytes; the limit is 1,000,000\n"
+
+
+def test_usage_errors_are_one_line_with_where_and_exit_2(capsys):
+    assert main(["solve", FLASH, "--units", "metric"]) == 2
+    assert capsys.readouterr().err == "error: --units: invalid choice: 'metric' (choose from 'SI', 'US')\n"
+    assert main(["nonsense"]) == 2
+    assert capsys.readouterr().err.startswith("error: command: invalid choice: 'nonsense'")
+    assert main(["solve"]) == 2
+    assert capsys.readouterr().err.count("\n") == 1
+
+
+def test_every_error_line_names_where(tmp_path, capsys):
+    bad_json = tmp_path / "bad.json"
+    bad_json.write_text("{not json")
+    for argv in (["solve", "no/such/file.json"], ["solve", str(tmp_path)], ["solve", str(bad_json)],
+                 ["open", "not-a-link"], ["solve", FLASH, "--units", "x"]):
+        main(argv)
+        line = capsys.readouterr().err
+        assert line.count("\n") == 1 and line.startswith("error: ")
+        where, _, what = line.removeprefix("error: ").partition(": ")
+        assert where and what, line
+
+
+def test_a_closed_output_pipe_ends_quietly():
+    done = subprocess.run(f"{sys.executable} -m heatbalance solve {FLASH} | head -1", shell=True,
+                          capture_output=True, text=True)
+    assert done.stdout.count("\n") == 1 and "Traceback" not in done.stderr and "Error" not in done.stderr
+
+
+def test_save_refuses_a_parent_that_is_not_stored(tmp_path, capsys, monkeypatch):
+    monkeypatch.setenv("HEATBALANCE_DB", str(tmp_path / "store.sqlite3"))
+    monkeypatch.delenv("HEATBALANCE_DATABASE_URL", raising=False)
+    assert main(["save", FLASH, "--parent", "0" * 24]) == 1
+    assert capsys.readouterr().err.startswith(f"error: --parent: no saved worksheet has the id {'0' * 24}")
+    assert main(["save", FLASH]) == 0
+    first = capsys.readouterr().out.strip()
+    assert main(["save", HEATER, "--parent", first]) == 0
