@@ -35,7 +35,8 @@ values = st.one_of(json_values, words, st.builds(lambda w: {"value": 1, "unit": 
 def _load_or_refuse(text) -> Worksheet | None:
     try:
         ws = load_worksheet(text)
-    except HeatBalanceError:
+    except HeatBalanceError as exc:
+        assert exc.where and exc.message  # every refusal says where: a field's address, or "file"
         return None
     assert isinstance(ws, Worksheet)
     canonical_json(ws)  # a worksheet that loads can always be saved and linked

@@ -3,7 +3,12 @@
 Each takes the solved :class:`~heatbalance.problem.Problem` and
 :class:`~heatbalance.results.Result` and returns typed SI records; the solver never imports them.
 """
+import math
+from dataclasses import fields, is_dataclass
+
+from ..address import item
 from ..balance import solve_problem
+from ..errors import NoSolutionError
 from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
@@ -12,9 +17,28 @@ from .screening import JacketTime, Screening, screen
 __all__ = ["JacketTime", "Screening", "screen", "analyse", "solve_and_analyse"]
 
 
+def _finite_numbers(record) -> bool:
+    """True when every number in a record (a dataclass, nested) is finite."""
+    if isinstance(record, float):
+        return math.isfinite(record)
+    if is_dataclass(record):
+        return all(_finite_numbers(getattr(record, f.name)) for f in fields(record))
+    if isinstance(record, (list, tuple)):
+        return all(_finite_numbers(x) for x in record)
+    return True
+
+
 def analyse(problem, result):
-    """Run every analysis on a solved balance and attach its records to the result (returned)."""
+    """Run every analysis on a solved balance and attach its records to the result (returned).
+
+    Like the balance, an analysis returns only finite numbers, or refuses at the inputs it used.
+    """
     result.screening = screen(problem, result)
+    for s in result.screening:
+        if not _finite_numbers(s):
+            raise NoSolutionError("the thermal screening gives a number that is not finite (e.g. a jacket so small "
+                                  "that the time is beyond any scale): check the screening inputs",
+                                  item("vessels", s.vessel, "screening"))
     return result
 
 
