@@ -125,3 +125,16 @@ def test_a_cp_coefficient_must_be_finite():
     with pytest.raises(WorksheetFormatError, match="finite") as refusal:
         parse_worksheet({"materials": [oil]})
     assert refusal.value.where == "materials[oil].phases[liquid].cp_per_kelvin"
+
+
+def test_an_analysis_never_returns_an_infinite_number():
+    """Found by the fuzz: a jacket UA of 2e-311 kW/K gave an infinite heating time in the JSON."""
+    from heatbalance.address import with_value
+    from heatbalance.analyses import solve_and_analyse
+
+    ws = load_worksheet(open("sample_data/glycol_hydration_screening.json", "rb").read())
+    tiny = with_value(ws, "vessels[R-7].screening.jacket.UA", (2.2e-311, "kW/K"))
+    with pytest.raises(NoSolutionError, match=r"^vessels\[R-7\]\.screening: the thermal screening gives a number "
+                                              r"that is not finite"):
+        solve_and_analyse(tiny)
+    assert solve_and_analyse(ws).screening[0].jacket.time > 0  # the sample itself is fine
