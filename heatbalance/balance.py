@@ -22,7 +22,7 @@ from scipy.optimize import brentq
 from .address import get as get_input
 from .address import item
 from .address import label as address_label
-from .errors import InputError, NoSolutionError
+from .errors import HeatBalanceError, InputError, NoSolutionError
 from .materials import get_material
 from .messages import Measure, Phrase
 from .problem import EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_problem
@@ -76,7 +76,10 @@ def evaluate_state(material: Material, state: StateSpec, temperatures: dict, pla
         tr = _transition_at(material, state.P, T)
         if tr is not None:
             return Point(T, fraction, tr.h_lower + fraction * tr.latent)
-    return Point(T, None, material.enthalpy(T, state.P))
+    try:
+        return Point(T, None, material.enthalpy(T, state.P))
+    except HeatBalanceError as exc:
+        raise exc.located(state.temperature_address)
 
 
 def _equipment_enthalpy(e: EquipmentHeat, var: str, T: float, plateau_side: dict) -> float:
@@ -87,7 +90,10 @@ def _equipment_enthalpy(e: EquipmentHeat, var: str, T: float, plateau_side: dict
         tr = _transition_at(e.material, ATMOSPHERE, T)
         if tr is not None:
             return tr.h_lower + fraction * tr.latent
-    return e.material.enthalpy(T, ATMOSPHERE)
+    try:
+        return e.material.enthalpy(T, ATMOSPHERE)
+    except HeatBalanceError as exc:
+        raise exc.located(e.address)
 
 
 def _equipment_heat(e: EquipmentHeat, temperatures: dict, plateau_side: dict) -> float:

@@ -45,6 +45,15 @@ class HeatBalanceError(Exception):
     def where(self) -> str:
         return self.address
 
+    def __str__(self) -> str:
+        return f"{self.address}: {self.message}" if self.address else self.message
+
+    def located(self, where: str) -> "HeatBalanceError":
+        """The same refusal, placed at ``where`` if it had no place yet (for re-raising from a caller)."""
+        if not self.address:
+            self.address = where
+        return self
+
 
 class InputError(HeatBalanceError, ValueError):
     """A value the user entered cannot be used as it is."""
@@ -94,5 +103,4 @@ class WorksheetFormatError(InputError):
 class AddressError(InputError, KeyError):
     """An address that names nothing in the worksheet, or a field that cannot take the value given."""
 
-    def __str__(self) -> str:  # KeyError would quote the message
-        return f"{self.where}: {self.message}" if self.where else self.message
+    __str__ = HeatBalanceError.__str__  # KeyError would quote the message

@@ -223,3 +223,26 @@ def test_a_format_refusal_carries_its_place_as_data():
         parse_worksheet(unnamed)
     assert refusal.value.loc[:2] == ("streams", 0) and refusal.value.where == "streams"
     assert refusal.value.message.startswith("streams.0.")  # no name to address it by: the position is said
+
+
+def test_a_temperature_a_hair_below_the_data_is_refused_at_its_field():
+    """Found by the fuzz: -1e-9 °C for water passed the range check (1e-9 K tolerance) and CoolProp's own
+    refusal reached the user without a place."""
+    ws = load_worksheet(open("sample_data/condensate_flash.json", "rb").read())
+    from heatbalance.address import with_value
+    cold = with_value(ws, "streams[Condensate return].inlet.temperature", (-1e-9, "degC"))
+    with pytest.raises(InputError) as refusal:
+        solve(cold)
+    assert refusal.value.where == "streams[Condensate return].inlet.temperature"
+
+
+def test_a_screening_input_at_absolute_zero_is_refused_at_the_vessels_screening():
+    """Found by the fuzz: the published relations named their own argument ('MTT'), not an address."""
+    from heatbalance.address import with_value
+    from heatbalance.analyses import solve_and_analyse
+    ws = load_worksheet(open("sample_data/glycol_hydration_screening.json", "rb").read())
+    for field in ("MTT", "T_D24"):
+        with pytest.raises(InputError) as refusal:
+            solve_and_analyse(with_value(ws, f"vessels[R-7].screening.{field}", (0, "K")))
+        assert refusal.value.where == "vessels[R-7].screening"
+        assert "above 0 K" in refusal.value.message

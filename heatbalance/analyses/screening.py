@@ -12,7 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ..address import item
-from ..errors import InputError, NoSolutionError
+from ..errors import HeatBalanceError, InputError, NoSolutionError
 from ..messages import Measure, Phrase
 from ..problem import JacketInputs, Problem
 from ..reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, criticality_class, jacket_time, mtsr,
@@ -135,7 +135,18 @@ def screen(problem: Problem, result: Result) -> list[Screening]:
                 result.warnings.append(Phrase(
                     f"Reaction {term.name} names no vessel and the worksheet has {len(problem.vessels)}: it gets no "
                     "thermal screening. Set its vessel.", address=item("reactions", term.name, "vessel")))
-    return [_screen_vessel(name, by_vessel[name], problem, result) for name in problem.vessels if by_vessel[name]]
+    return [_located(_screen_vessel, name, by_vessel[name], problem, result)
+            for name in problem.vessels if by_vessel[name]]
+
+
+def _located(screen_vessel, vessel: str, *args) -> Screening:
+    """A refusal of the published relations (which name their own arguments) placed at the vessel's screening."""
+    try:
+        return screen_vessel(vessel, *args)
+    except HeatBalanceError as exc:
+        if not exc.where.startswith(("vessels[", "reactions[")):
+            exc.address = item("vessels", vessel, "screening")
+        raise
 
 
 def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Result) -> Screening:
