@@ -438,12 +438,15 @@ def rename(ws: Worksheet, address: str, new_name: str) -> Worksheet:
     if any(x["name"] == new_name for x in items):
         raise AddressError(f"'{new_name}' is already the name of another {collection.rstrip('s')}", address)
     next(x for x in items if x["name"] == old_name)["name"] = new_name
-    _rename_references(data, [s[0] for s in steps], old_name, new_name)
+    _rename_references(data, [s[0] for s in steps], old_name, new_name, address)
     return parse_worksheet(data)
 
 
-def _rename_references(data: dict, path: list[str], old: str, new: str) -> None:
+def _rename_references(data: dict, path: list[str], old: str, new: str, item_address: str = "") -> None:
     top = path[0]
+    for case in data.get("cases", []):
+        for override in case.get("overrides", []):
+            override["address"] = follow_rename(override["address"], item_address, new)
     for u in data.get("unknowns", []):
         if top in ("streams", "vessels") and len(path) == 1 and u.get("line") == old:
             u["line"] = new
@@ -478,7 +481,10 @@ def follow_rename(address: str, item_address: str, new_name: str) -> str:
     >>> follow_rename("streams[Steam].inlet.temperature", "streams[Steam]", "HP steam")
     'streams[HP steam].inlet.temperature'
     """
-    steps, renamed = parse(address), parse(item_address)
+    try:
+        steps, renamed = parse(address), parse(item_address)
+    except AddressError:
+        return address  # not an address (refused when the case is run), left as typed
     if steps[:len(renamed)] != renamed:
         return address
     collection = renamed[-1][0]

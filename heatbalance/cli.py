@@ -1,10 +1,11 @@
-"""Command line: ``python -m heatbalance solve FILE``, ``materials``, and the worksheet store:
-``save FILE``, ``open ID`` (or a share link), ``history ID``."""
+"""Command line: ``python -m heatbalance solve FILE``, ``materials``, what-if (``sweep``, ``cases``), and the
+worksheet store: ``save FILE``, ``open ID`` (or a share link), ``history ID``."""
 from __future__ import annotations
 
 import argparse
 import json
 import os
+import re
 import stat
 import sys
 
@@ -103,6 +104,88 @@ def _open(args) -> int:
     return 0
 
 
+def _sheet(source: str):
+    """A worksheet from a file, else from a revision id or a share link."""
+    return _load(source) if os.path.exists(source) else _opened(source)
+
+
+_VARY = re.compile(r"^(?P<address>.+?)=(?P<values>[-+0-9.eE]+(?:[:,][-+0-9.eE]+)*)\s*(?P<unit>.*)$")
+
+
+def parse_vary(text: str):
+    """``ADDRESS=START:STOP:COUNT UNIT`` or ``ADDRESS=V1,V2,V3 UNIT`` (no unit for a fraction) -> a sweep axis.
+
+    >>> parse_vary("streams[Glycol].flow=6:18:3 t/h")
+    Axis(address='streams[Glycol].flow', values=(6.0, 12.0, 18.0), unit='t/h')
+    """
+    from .analyses.sweep import Axis, axis_values
+
+    match = _VARY.match(text.strip())
+    if not match:
+        raise _UsageError(f"'{text}' is not ADDRESS=START:STOP:COUNT UNIT or ADDRESS=V1,V2,... UNIT", "--vary")
+    spec, unit = match.group("values"), match.group("unit").strip()
+    try:
+        if ":" in spec:
+            start, stop, count = spec.split(":")
+            values = axis_values(float(start), float(stop), count=int(count))
+        else:
+            values = tuple(float(v) for v in spec.split(","))
+    except ValueError:
+        raise _UsageError(f"'{spec}' is not START:STOP:COUNT (a whole count) or a list of numbers", "--vary") from None
+    return Axis(match.group("address").strip(), values, unit)
+
+
+def _print_frame(table, args, csv_bytes) -> None:
+    if args.csv:
+        sys.stdout.write(csv_bytes.decode("utf-8-sig"))
+    elif args.json:
+        print(table.to_json(orient="split", force_ascii=False, indent=2))
+    else:
+        with pd_options():
+            print(table.to_string())
+
+
+def pd_options():
+    import pandas as pd
+
+    return pd.option_context("display.width", 200, "display.max_columns", 50, "display.max_rows", 10_000,
+                             "display.float_format", _number)
+
+
+def _number(value: float) -> str:
+    """Six significant figures, never in scientific notation for plant-sized numbers: 1,121,299 / 745.627."""
+    return f"{value:,.0f}" if 1e5 <= abs(value) < 1e15 else f"{value:,.6g}"
+
+
+def _sweep(args) -> int:
+    from .analyses.sweep import sweep
+    from .present.whatif import refusal_rows, sweep_csv_bytes, sweep_table
+
+    frame = sweep(_sheet(args.worksheet), [parse_vary(v) for v in args.vary], args.output or None)
+    _print_frame(sweep_table(frame, args.units), args, sweep_csv_bytes(frame, args.units))
+    if not (args.json or args.csv):
+        for row in refusal_rows(frame, args.units):
+            print(f"refused: {row}")
+    return 0
+
+
+def _cases(args) -> int:
+    import io
+
+    from .analyses.cases import AS_TYPED, run_cases
+    from .present.whatif import case_table
+
+    frame = run_cases(_sheet(args.worksheet), args.base or AS_TYPED, args.output or None)
+    table = case_table(frame, args.units)
+    buffer = io.StringIO()
+    table.to_csv(buffer, lineterminator="\n")
+    _print_frame(table, args, buffer.getvalue().encode("utf-8-sig"))
+    if not (args.json or args.csv):
+        for name, exc in frame.attrs["refusals"].items():
+            print(f"refused: {name}: {exc.where}: {error_text(exc, args.units)}")
+    return 0
+
+
 def _history(args) -> int:
     with _open_store() as store:
         for rev in store.history(args.id):
@@ -143,6 +226,22 @@ def _parser() -> argparse.ArgumentParser:
     show.add_argument("--json", action="store_true", help="with --solve: print the full result as JSON")
     show.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
     show.set_defaults(handler=_open)
+    what_if = commands.add_parser("sweep", help="solve the worksheet over a range of one or two inputs")
+    what_if.add_argument("worksheet", help="a worksheet .json file, a revision id or a share link")
+    what_if.add_argument("--vary", action="append", required=True, metavar="ADDRESS=START:STOP:COUNT UNIT",
+                         help="an input by its address and its values, e.g. 'streams[Glycol].flow=6:18:13 t/h' "
+                              "or 'streams[Glycol].outlet.temperature=30,40,50 degC'; give it twice for a grid")
+    what_if.add_argument("--output", action="append", help="an output to collect (default: the answer)")
+    cases = commands.add_parser("cases", help="solve the worksheet's named cases side by side")
+    cases.add_argument("worksheet", help="a worksheet .json file, a revision id or a share link")
+    cases.add_argument("--base", help="the case the differences are taken against (default: as typed)")
+    cases.add_argument("--output", action="append", help="an output to show (default: answer and heats)")
+    for command, handler in ((what_if, _sweep), (cases, _cases)):
+        formats = command.add_mutually_exclusive_group()
+        formats.add_argument("--json", action="store_true", help="print the table as JSON")
+        formats.add_argument("--csv", action="store_true", help="print the table as CSV")
+        command.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
+        command.set_defaults(handler=handler)
     history = commands.add_parser("history", help="list a revision and its ancestors, newest first" + store_help)
     history.add_argument("id", help="a revision id")
     history.set_defaults(handler=_history)

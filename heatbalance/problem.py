@@ -21,7 +21,7 @@ from .units import basis_kinds, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
 __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "Problem",
-           "build_problem", "ASSUMPTIONS"]
+           "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
@@ -134,11 +134,31 @@ class Problem:
     screening: dict[str, ScreeningInputs] = field(default_factory=dict)  # vessel -> its inputs
     warnings: list[Phrase] = field(default_factory=list)
     assumptions: list[str] = field(default_factory=list)
+    duration: float | None = None  # s, the batch duration a rate is applied over
 
 
 # --------------------------------------------------------------------------- building
 def _si(q: Quantity, kind: str, where: str) -> float:
     return to_si(q.value, q.unit, kind, where)
+
+
+def typed_si(value: float, unit: str, kind: str, where: str) -> float:
+    """A typed value in SI, with the refusals of any input (bounds, absolute zero, vacuum): for analyses that
+    write typed values into a built problem (a sweep's points)."""
+    return to_si(value, unit, kind, where)
+
+
+def basis_si(q: Quantity, role: str, basis: str, duration: float | None, where: str) -> tuple[float, bool]:
+    """A quantity of a role (``amount``, ``heat``, ``moles``) on a basis, in SI, and whether a rate was applied
+    over the batch duration (continuous: rates only; batch: a total, or a rate times the duration)."""
+    kinds = basis_kinds(role, basis)
+    kind = kinds[0] if len(kinds) == 1 else kind_of(q.unit, kinds, where)
+    value = _si(q, kind, where)
+    if basis == "batch" and kind == kinds[1]:
+        if duration is None:
+            raise InputError(f"{q} is a rate; a batch worksheet needs a duration to apply it", where)
+        return value * duration, True
+    return value, False
 
 
 class _Builder:
@@ -166,14 +186,9 @@ class _Builder:
     # -- quantities on the basis
     def basis_value(self, q: Quantity, role: str, where: str) -> float:
         """A total (batch) or a rate (continuous); a rate in batch is applied over the duration."""
-        kinds = basis_kinds(role, self.basis)
-        kind = kinds[0] if len(kinds) == 1 else kind_of(q.unit, kinds, where)
-        value = _si(q, kind, where)
-        if self.basis == "batch" and kind == kinds[1]:
-            if self.duration is None:
-                raise InputError(f"{q} is a rate; a batch worksheet needs a duration to apply it", where)
+        value, over_duration = basis_si(q, role, self.basis, self.duration, where)
+        if over_duration:
             self.assumptions.append(f"{where}: {q} applied over the batch duration {self.ws.basis.duration}.")
-            value *= self.duration
         return value
 
     def amount(self, q: Quantity | None, where: str, is_unknown: bool) -> float | None:
@@ -272,7 +287,7 @@ class _Builder:
         screening = {v.name: self._screening(v) for v in ws.vessels}
         return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_addresses,
                        self.unknown, target, address, [v.name for v in ws.vessels], screening,
-                       assumptions=self.assumptions)
+                       assumptions=self.assumptions, duration=self.duration)
 
     def _stream(self, s) -> Line:
         where = item("streams", s.name)

@@ -19,7 +19,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -267,6 +267,21 @@ class Unknown(_Model):
     common: str | None = None
 
 
+class Override(_Model):
+    """One input of a case, by its address (see :mod:`heatbalance.address`), and the value it takes there."""
+
+    address: str = Field(min_length=1, max_length=500)
+    value: Quantity | float
+
+
+class Case(_Model):
+    """A named what-if: the worksheet with a few inputs overridden (``"summer"``, ``"turndown 60 %"``)."""
+
+    name: str = Field(min_length=1, max_length=80)
+    overrides: list[Override] = Field(default_factory=list, max_length=200)
+    notes: str = Field(default="", max_length=2000)
+
+
 class Worksheet(_Model):
     """A whole worksheet, version :data:`SCHEMA_VERSION`."""
 
@@ -282,6 +297,7 @@ class Worksheet(_Model):
     losses: list[Loss] = Field(default_factory=list, max_length=100)
     reactions: list[Reaction] = Field(default_factory=list, max_length=50)
     unknowns: list[Unknown] = Field(default_factory=list, max_length=10)
+    cases: list[Case] = Field(default_factory=list, max_length=50)
 
     @field_validator("schema_version")
     @classmethod
@@ -296,7 +312,7 @@ class Worksheet(_Model):
         terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
-                  ("material", [m.name for m in self.materials])]
+                  ("material", [m.name for m in self.materials]), ("case", [c.name for c in self.cases])]
         groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]
         for label, group in groups:
             repeated = sorted({n for n in group if group.count(n) > 1})

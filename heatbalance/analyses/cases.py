@@ -1,0 +1,86 @@
+"""What if: the worksheet's named cases, solved side by side with differences against a base case.
+
+A case (``worksheet.cases``) is a name and a set of overrides, each an input's address and the value it
+takes (see :mod:`heatbalance.address`). The sheet as typed is the case :data:`AS_TYPED`. Each case is the
+sheet with its overrides set, solved and analysed like any sheet; a case that cannot be solved keeps its
+refusal (the address at fault, in the case's name) and the others go on.
+"""
+from __future__ import annotations
+
+import math
+
+import pandas as pd
+
+from ..address import item, with_value
+from ..errors import AddressError, HeatBalanceError
+from ..problem import build_problem
+from ..worksheet import Case, Worksheet
+from . import solve_and_analyse
+from .sweep import _collect, answer_field, output_names
+
+__all__ = ["AS_TYPED", "case_worksheet", "run_cases", "difference_column"]
+
+AS_TYPED = "as typed"  # the name of the sheet without overrides, as a case
+
+
+def case_worksheet(ws: Worksheet, case: Case) -> Worksheet:
+    """The worksheet with a case's overrides set; a bad override is refused at ``cases[name]`` with its address."""
+    for override in case.overrides:
+        try:
+            ws = with_value(ws, override.address, override.value)
+        except HeatBalanceError as exc:
+            raise AddressError(f"override of {override.address}: {exc.message}", item("cases", case.name)) from None
+    return ws.model_copy(update={"cases": []})
+
+
+def difference_column(case: str, base: str) -> str:
+    return f"{case} − {base}"
+
+
+def run_cases(ws: Worksheet, base: str = AS_TYPED, outputs: list[str] | None = None) -> pd.DataFrame:
+    """Every case solved side by side: one row per output (SI), one column per case, then the differences.
+
+    Parameters
+    ----------
+    ws : Worksheet
+        The worksheet and its ``cases``.
+    base : str
+        The case the differences are taken against (default: the sheet as typed).
+    outputs : list[str], optional
+        Names from :func:`heatbalance.analyses.sweep.output_names` (default: the answer, every line's and
+        heat term's heat, and each screening's MTSR).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Index: the outputs; columns: :data:`AS_TYPED`, each case, then ``"<case> − <base>"`` for every other
+        case. ``attrs["kinds"]`` gives each output's kind, ``attrs["refusals"]`` each refused case's
+        :class:`~heatbalance.errors.HeatBalanceError` (its column is NaN), ``attrs["base"]`` the base,
+        ``attrs["cases"]`` the case columns, ``attrs["answer"]`` the unknown's address and typed unit.
+    """
+    names = [AS_TYPED] + [c.name for c in ws.cases]
+    if base not in names:
+        raise AddressError(f"no case called '{base}' (there are: {', '.join(names)})", "cases")
+    known = output_names(build_problem(ws.model_copy(update={"cases": []})))
+    if outputs is None:
+        outputs = ["answer"] + [n for n in known if n.endswith("].heat") or n.endswith(".MTSR")]
+    unknown = [n for n in outputs if n not in known]
+    if unknown:
+        raise AddressError(f"no output called '{unknown[0]}' on this sheet (there are: {', '.join(known)})", "cases")
+    columns, refusals = {}, {}
+    sheets = {AS_TYPED: lambda: ws.model_copy(update={"cases": []})}
+    sheets.update({c.name: (lambda c=c: case_worksheet(ws, c)) for c in ws.cases})
+    for name, sheet in sheets.items():
+        try:
+            result = solve_and_analyse(sheet())
+            columns[name] = _collect(result, result.screening, outputs)
+        except HeatBalanceError as exc:
+            refusals[name] = exc
+            columns[name] = {o: math.nan for o in outputs}
+    frame = pd.DataFrame(columns, index=outputs)
+    for name in names:
+        if name != base:
+            frame[difference_column(name, base)] = frame[name] - frame[base]
+    frame.attrs.update(kinds={o: known[o] for o in outputs}, refusals=refusals, base=base, cases=names,
+                       basis=ws.basis.kind, answer=answer_field(ws))
+    return frame

@@ -1,0 +1,147 @@
+"""Sweeps and case tables in a unit set: tables, CSV and plotly figures (reads analyses.sweep / analyses.cases)."""
+from __future__ import annotations
+
+import io
+import math
+
+import pandas as pd
+import plotly.graph_objects as go
+
+from ..address import label as address_label
+from ..analyses.sweep import REASON, REFUSED_AT
+from ..errors import HeatBalanceError
+from ..units import check_unit, from_si
+from .text import UNIT_SETS, display_unit, error_text
+
+__all__ = ["output_label", "output_unit", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
+           "refusal_rows"]
+
+_OUTPUT_WORDS = {"answer": "answer", "answer.phase_fraction": "phase fraction of the answer", "residual": "residual"}
+
+
+def output_label(name: str, frame: pd.DataFrame | None = None) -> str:
+    """An output in words: ``lines[Steam].heat`` -> ``Steam: heat absorbed``; ``answer`` -> ``Steam flow``."""
+    answer = (frame.attrs.get("answer") or {}).get("address") if frame is not None else None
+    if name == "answer" and answer:
+        return address_label(answer)
+    if name in _OUTPUT_WORDS:
+        return _OUTPUT_WORDS[name]
+    head, _, field = name.rpartition(".")
+    owner = head[head.index("[") + 1:-1] if "[" in head else head
+    words = {"heat": "heat absorbed" if head.startswith("lines[") else "heat into the process",
+             "latent": "latent heat absorbed", "dT_ad": "ΔT_ad", "criticality_class": "criticality class"}
+    return f"{owner}: {words.get(field, field)}"
+
+
+def output_unit(kind: str, system: str, name: str = "", frame: pd.DataFrame | None = None) -> str:
+    """The unit an output is shown in: the answer's typed unit when there is one (as on the answer itself),
+    else the view's unit of its kind (``""`` for a plain number)."""
+    typed = (frame.attrs.get("answer") or {}).get("unit") if frame is not None and name == "answer" else None
+    if typed:
+        try:
+            check_unit(typed, kind)
+            return typed
+        except HeatBalanceError:
+            pass
+    return UNIT_SETS[system].get(kind, "") if kind else ""
+
+
+def _convert(values, kind: str, unit: str):
+    return values if not unit else values.map(lambda v: from_si(v, unit, kind) if math.isfinite(v) else math.nan)
+
+
+def _output_header(name: str, kind: str, system: str, frame: pd.DataFrame) -> tuple[str, str]:
+    unit = output_unit(kind, system, name, frame)
+    return _header(output_label(name, frame), unit), unit
+
+
+def _header(label: str, unit: str) -> str:
+    return f"{label} [{display_unit(unit)}]" if unit else label
+
+
+def sweep_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
+    """A sweep's frame for people: axes as given, outputs in the view's units, each refusal in words."""
+    out = {}
+    for column, unit in frame.attrs["units"].items():
+        out[_header(address_label(column), unit)] = frame[column]
+    for name, kind in frame.attrs["kinds"].items():
+        header, unit = _output_header(name, kind, system, frame)
+        out[header] = _convert(frame[name], kind, unit)
+    out[REFUSED_AT] = frame[REFUSED_AT]
+    out[REASON] = frame[REASON].map(lambda exc: "" if exc is None else error_text(exc, system))
+    return pd.DataFrame(out)
+
+
+def sweep_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
+    """The sweep table as CSV (UTF-8 with a byte-order mark, for spreadsheets); refused points have empty outputs."""
+    buffer = io.StringIO()
+    sweep_table(frame, system).to_csv(buffer, index=False, lineterminator="\n")
+    return buffer.getvalue().encode("utf-8-sig")
+
+
+def refusal_rows(frame: pd.DataFrame, system: str = "SI") -> list[str]:
+    """Each refused point in words: ``flow = 18 t/h: streams[Steam].flow: ...``."""
+    rows = []
+    axes = list(frame.attrs["units"].items())
+    for _, row in frame[frame[REASON].notna()].iterrows():
+        where = ", ".join(f"{address_label(c)} = {row[c]:g} {display_unit(u)}".rstrip() for c, u in axes)
+        rows.append(f"{where}: {row[REFUSED_AT]}: {error_text(row[REASON], system)}")
+    return rows
+
+
+def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = None) -> go.Figure:
+    """One input: a line per output against it (refused points are gaps). Two inputs: a heat map of one output."""
+    kinds = frame.attrs["kinds"]
+    output = output or next(iter(kinds))
+    axes = list(frame.attrs["units"].items())
+    table = sweep_table(frame, system)
+    if len(axes) == 1:
+        (column, unit), = axes
+        x_title = _header(address_label(column), unit)
+        figure = go.Figure()
+        for name, kind in kinds.items():
+            header, _ = _output_header(name, kind, system, frame)
+            figure.add_trace(go.Scatter(x=table[x_title], y=table[header], mode="lines+markers", name=header,
+                                        connectgaps=False,
+                                        hovertemplate=f"{x_title}: %{{x:.4g}}<br>{header}: %{{y:.4g}}<extra></extra>"))
+        refused = frame[REASON].notna()
+        if refused.any():
+            figure.add_trace(go.Scatter(x=table.loc[refused, x_title], y=[None] * int(refused.sum()), mode="markers",
+                                        name="refused (see the list)", showlegend=True))
+        figure.update_layout(xaxis_title=x_title, yaxis_title=_output_header(output, kinds[output], system, frame)[0])
+    else:
+        (x_col, x_unit), (y_col, y_unit) = axes
+        header, _ = _output_header(output, kinds[output], system, frame)
+        grid = table.pivot_table(index=_header(address_label(y_col), y_unit),
+                                 columns=_header(address_label(x_col), x_unit), values=header, dropna=False,
+                                 aggfunc="first")
+        figure = go.Figure(go.Heatmap(x=list(grid.columns), y=list(grid.index), z=grid.values,
+                                      colorbar={"title": {"text": header}},
+                                      hovertemplate=(f"{grid.columns.name}: %{{x:.4g}}<br>{grid.index.name}: "
+                                                     f"%{{y:.4g}}<br>{header}: %{{z:.4g}}<extra></extra>")))
+        figure.update_layout(xaxis_title=grid.columns.name, yaxis_title=grid.index.name)
+    figure.update_layout(title={"text": "What if: " + output_label(output, frame), "x": 0.0}, height=420,
+                         margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
+    return figure
+
+
+def case_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
+    """A case table for people: each output in its unit; a difference of temperatures as a temperature
+    difference (K or °F), other differences in the output's unit."""
+    rows = {}
+    cases = set(frame.attrs["cases"])
+    for name, kind in frame.attrs["kinds"].items():
+        header, unit = _output_header(name, kind, system, frame)
+        converted = {}
+        for column, value in frame.loc[name].items():
+            if not unit or not math.isfinite(value):
+                converted[column] = value
+            elif column not in cases and kind == "temperature":
+                converted[column] = from_si(value, UNIT_SETS[system]["temperature_difference"], "temperature_difference")
+            else:
+                converted[column] = from_si(value, unit, kind) - (from_si(0.0, unit, kind) if column not in cases
+                                                                  else 0.0)
+        rows[header] = converted
+    table = pd.DataFrame(rows).T
+    table.index.name = "output"
+    return table
