@@ -109,7 +109,7 @@ def _sheet(source: str):
     return _load(source) if os.path.exists(source) else _opened(source)
 
 
-_VARY = re.compile(r"^(?P<address>.+?)=(?P<values>[-+0-9.eE]+(?:[:,][-+0-9.eE]+)*)\s*(?P<unit>.*)$")
+_VARY = re.compile(r"^(?P<address>.+?)=(?P<values>[-+0-9.eE]+(?:[:,][-+0-9.eE]+)*)\s*(?P<unit>(?:[^\d:,\s.+\-].*)?)$")
 
 
 def parse_vary(text: str):
@@ -265,6 +265,9 @@ def main(argv: list[str] | None = None) -> int:
         return 2
     try:
         return args.handler(args)
+    except _UsageError as exc:
+        _refuse(exc)
+        return 2
     except HeatBalanceError as exc:
         _refuse(exc, getattr(args, "units", "SI"))
         return 1
