@@ -35,6 +35,7 @@ def set_worksheet(worksheet: Worksheet) -> None:
 # Panels below the results, each called as panel(worksheet, result, system) (result None when not solved).
 EXTRA_PANELS = [
     screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
+    __import__("webapp.whatif_panel", fromlist=["panel"]).panel(set_worksheet),  # what if (webapp/whatif_panel.py)
     sharing.panel(replace_worksheet),  # save and share (webapp/sharing.py)
 ]
 
