@@ -7,6 +7,7 @@ the page holds; the samples are our own scenarios; water from scratch is checked
 through the `iapws` package.
 """
 import re
+import string
 from pathlib import Path
 
 import pytest
@@ -17,6 +18,7 @@ from heatbalance import load_worksheet, solve
 from heatbalance.present.text import answer_text as written
 from heatbalance.reactor import CAUTION
 from heatbalance.worksheet import Quantity, Unknown
+from webapp.common import WORD_JOINER, plain
 from webapp.state import KEY, PageState
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -58,8 +60,9 @@ def answer_text(at) -> str:
 
 
 def _unescaped(text: str) -> str:
-    """Markdown source as read on screen (user text is shown escaped, as plain text)."""
-    return re.sub(r"\\(.)", r"\1", text)
+    """Markdown source as read on screen (user text is shown escaped, as plain text; the invisible word
+    joiners that break autolinks are not seen)."""
+    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
 
 
 def errors(at) -> str:
@@ -103,7 +106,7 @@ def test_the_picker_loads_every_sample_solved(name):
     title = sample(name).title
     at.selectbox(key="sample_picker").select(title).run()
     no_traceback(at)
-    assert at.title[0].value == title
+    assert _unescaped(at.title[0].value) == title
     assert held(at) == sample(name)
     assert answer_text(at) == engine(sample(name))
 
@@ -175,7 +178,7 @@ def test_switching_the_unknown_stores_the_same_value_whatever_the_view():
     assert rows(us, "streams")[0]["outlet"] == "40 °C"
     # the answer is in the unit typed for the field (kg/h), with the view's equivalent beside it
     assert answer_text(us) == answer_text(si) == "745.6 kg/h"
-    assert "= 1,644 lb/h" in [c.value for c in us.caption]  # 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
+    assert "= 1,644 lb/h" in [_unescaped(c.value) for c in us.caption]  # 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
 
 
 def test_a_typed_celsius_value_stays_celsius_when_the_view_changes():
@@ -197,7 +200,7 @@ def test_the_us_sample_is_answered_in_the_unit_typed_for_its_duty():
     assert ws.duties[0].value.unit == "MMBtu/h"
     assert answer_text(at).endswith(" MMBtu/h") and answer_text(at) == engine(ws) == "3.202 MMBtu/h"
     # 3.20183 MMBtu/h × 293.07107 W per kBtu/h (1 Btu = 1055.05585 J, IT) = 938.4 kW
-    assert "= 938.4 kW" in [c.value for c in at.caption]
+    assert "= 938.4 kW" in [_unescaped(c.value) for c in at.caption]
 
 
 def test_the_display_unit_system_converts_the_results_not_the_inputs():
@@ -289,7 +292,7 @@ def test_a_sample_with_its_own_material_shows_the_materials_table():
 
 def test_batch_results_carry_the_one_safety_caution_once():
     at = page("batch_reactor_exotherm.json")
-    shown = [w.value for w in at.warning] + [c.value for c in at.caption] + [m.value for m in at.markdown]
+    shown = [w.value for w in at.warning] + [_unescaped(c.value) for c in at.caption] + [m.value for m in at.markdown]
     assert sum(CAUTION in text for text in shown) == 1
     assert not any("follow local codes" in text for text in shown)  # the old second wording is gone
 
@@ -330,7 +333,50 @@ def test_user_text_is_shown_as_plain_text():
     at = page()
     at.text_input(key="title_input").input("**Bold** _heater_ [link](x)").run()
     no_traceback(at)
-    assert at.title[0].value == "\\*\\*Bold\\*\\* \\_heater\\_ \\[link\\](x)"
+    assert at.title[0].value == "\\*\\*Bold\\*\\* \\_heater\\_ \\[link\\]\\(x\\)"
+
+
+def test_plain_escapes_every_markdown_and_html_form_and_breaks_autolinks():
+    for typed in ("[x](http://e.invalid)", "![i](u.png)", "<img src=u>", "&amp;", "`c`", ":red[r]", "$x$",
+                  "# h", "1. item", "- item", "a | b", "~~s~~", "www.e.invalid", "a@e.invalid", "HTTPS://e"):
+        written_ = plain(typed)
+        assert _unescaped(written_) == typed
+        bare = re.sub(r"\\.", "", written_)  # what is left once every escaped character is taken out
+        assert not any(c in string.punctuation for c in bare), written_
+    assert "http\\:" + WORD_JOINER + "\\/\\/" in plain("http://e") and WORD_JOINER + "\\@" in plain("a@e")
+    assert "www" + WORD_JOINER in plain("WWW.e".lower())
+
+
+def _markdown_values(at) -> list[str]:
+    """Every text the page gives a Markdown-rendering element, with where it went."""
+    out = []
+    for kind in ("title", "header", "subheader", "markdown", "caption", "error", "warning", "info", "success"):
+        out += [(kind, e.value) for e in getattr(at, kind)]
+    out += [("metric label", m.label) for m in at.metric]
+    return out
+
+
+def test_user_text_from_a_sheet_link_reaches_every_markdown_element_escaped():
+    """Title, notes, names, a material and its source holding links, images, HTML and autolinks: every
+    element that renders Markdown gets them escaped, and the text reads as typed (solved and refused)."""
+    from heatbalance.links import encode_sheet
+    from test_plain_text_browser import MATERIAL, NOTES, SOURCE, TITLE, VESSEL, hostile_worksheet, \
+        refused_worksheet
+
+    solved = (TITLE, NOTES, f"Vessel {VESSEL}", f"**{MATERIAL}**: user-defined: {SOURCE}")
+    refused = (TITLE, NOTES, f"{VESSEL} / Reagent", f"is outside the property data of {MATERIAL}")
+    for worksheet, expected in ((hostile_worksheet(), solved), (refused_worksheet(), refused)):
+        at = AppTest.from_file(APP, default_timeout=60)
+        at.query_params["sheet"] = encode_sheet(worksheet)
+        at.run()
+        no_traceback(at)
+        values = _markdown_values(at)
+        for kind, value in values:
+            assert re.search(r"http://|www\.|\w@example|(?<!\\)<(a|img|b|script)\b|(?<!\\)\]\(|(?<!\\)!\[",
+                             value) is None, (kind, value)
+        shown = "\n".join(_unescaped(v) for _, v in values)
+        for typed in expected:
+            assert typed in shown, typed
 
 
 def test_an_engine_failure_is_a_plain_message_not_a_traceback(monkeypatch):

@@ -6,6 +6,7 @@ AppTest cannot click downloads: the download bytes are tested as pure functions 
 """
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 import pytest
@@ -16,6 +17,7 @@ from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
 from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from webapp.common import WORD_JOINER
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -53,8 +55,17 @@ def answer(at: AppTest) -> str:
     return metrics[0].value
 
 
+def shown(text: str) -> str:
+    """Markdown source as read on screen: the page escapes every user-supplied text (webapp.common.plain)."""
+    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
+
+
 def errors(at: AppTest) -> str:
-    return "\n".join(e.value for e in at.error)
+    return "\n".join(shown(e.value) for e in at.error)
+
+
+def successes(at: AppTest) -> list[str]:
+    return [shown(s.value) for s in at.success]
 
 
 @pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
@@ -66,7 +77,7 @@ def test_a_saved_sample_opens_from_its_link_identical_with_the_identical_answer(
     no_traceback(at)
     assert at.session_state[KEY].worksheet == worksheet
     assert answer(at) == answer_text(solve(worksheet).answer)
-    assert f"Opened saved revision {rev_id}." in [s.value for s in at.success]
+    assert f"Opened saved revision {rev_id}." in successes(at)
     assert any(c.value.endswith(f"?ws={rev_id}") for c in at.code)  # its link, to pass on
 
 
@@ -84,8 +95,6 @@ def test_a_sheet_link_opens_the_identical_worksheet(db):
     ({"sheet": "z1.AAAAtampered"}, r"the sheet link is damaged or has been altered"),
 ])
 def test_a_bad_link_shows_a_clear_message_and_opens_the_default_sheet(db, query, message):
-    import re
-
     at = page(**query)
     no_traceback(at)
     assert re.search(message, errors(at)), errors(at)

@@ -60,7 +60,7 @@ def _render_answer_value(result: Result, system: str) -> None:
     st.metric(f"Answer: {plain(answer.label)}", shown)
     in_view = answer_text(dataclasses.replace(answer, typed_unit=None), system)
     if in_view != shown:  # typed in another unit than the view's: show both
-        st.caption(f"= {in_view}")
+        st.caption(f"= {plain(in_view)}")
 
 
 def _render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None, system: str) -> None:

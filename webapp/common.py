@@ -2,6 +2,8 @@
 from __future__ import annotations
 
 import json
+import re
+import string
 from pathlib import Path
 
 import streamlit as st
@@ -17,7 +19,11 @@ __all__ = ["UNIT_SYSTEMS", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "displ
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
 SAMPLES_DIR = Path(__file__).resolve().parent.parent / "sample_data"
 DEFAULT_SAMPLE = "steam_heater_glycol.json"
-_MARKDOWN = set("\\`*_{}[]<>#|~$")
+_PUNCTUATION = frozenset(string.punctuation)  # CommonMark lets a backslash escape every one of these
+WORD_JOINER = "\u2060"  # invisible, no width: breaks an autolink's pattern without changing what is seen
+# The page's Markdown turns text that looks like an address into a link *after* escapes are read
+# (GFM autolink literals: ``http://…``, ``www.…``, ``name@host.tld``): a word joiner goes inside each pattern.
+_AUTOLINK = re.compile(r"(?<=:)(?=//)|(?i:(?<=www)(?=\.))|(?=@)")
 
 
 def page_state() -> PageState:
@@ -30,10 +36,23 @@ def display_system() -> str:
     return UNIT_SYSTEMS.get(st.session_state.get("unit_system"), "SI")
 
 
-def plain(text: str) -> str:
-    """User text (names, titles, messages quoting them) shown as text, not Markdown."""
-    out = "".join("\\" + c if c in _MARKDOWN else c for c in str(text))
-    return "\\" + out if out[:1] in ("-", "+", "=") else out
+def plain(text: object) -> str:
+    r"""User text (names, titles, messages quoting them) for a Markdown-rendering element, shown as typed.
+
+    Every ASCII punctuation character is backslash-escaped, so nothing the user typed becomes
+    Markdown or HTML: no link, image, emphasis, list, heading, entity (``&amp;``), math (``$``),
+    colour or icon directive (``:red[…]``, ``:material/…:``). Text that looks like an address
+    (``http://…``, ``www.…``, ``a@b.c``) would still be linked by the page's Markdown, whatever the
+    escapes: an invisible word joiner (U+2060) goes after ``:`` before ``//``, after ``www`` and before
+    ``@``. The page shows the text as typed (a copy of it carries the joiners).
+
+    >>> print(plain("[x](e.invalid) <b>"))
+    \[x\]\(e\.invalid\) \<b\>
+    >>> plain("http://e.invalid") == "http\\:\u2060\\/\\/e\\.invalid"
+    True
+    """
+    text = _AUTOLINK.sub(WORD_JOINER, str(text))
+    return "".join("\\" + c if c in _PUNCTUATION else c for c in text)
 
 
 def guarded(draw, *args) -> None:

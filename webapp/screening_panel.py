@@ -163,7 +163,7 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
     commit = None if set_worksheet is None else \
         {"on_change": _commit, "args": (index, screening.vessel, worksheet, system, set_worksheet)}
     with st.container(key=f"screening_vessel_{index}", border=True):
-        st.subheader(f"Vessel {screening.vessel}")
+        st.subheader(f"Vessel {plain(screening.vessel)}")
         c1, c2, c3 = st.columns(3)
         c1.number_input("Accumulation at cooling failure [%]", min_value=0.0, max_value=100.0, step=5.0,
                         key=widget_key(index, "accumulation"), **(commit or {}),
@@ -191,7 +191,7 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
         if screening.criticality_class is not None:
             meaning = screening.class_meaning.split(": ", 1)[1]
             st.markdown(f"**Criticality class {screening.criticality_class}** (Stoessel). "
-                        f"{meaning[:1].upper()}{meaning[1:]}", help=_CLASS_HELP)
+                        f"{plain(meaning[:1].upper() + meaning[1:])}", help=_CLASS_HELP)
         else:
             st.info(plain(screening.class_meaning))
         if screening.jacket is not None:

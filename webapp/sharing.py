@@ -185,7 +185,7 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
     try:
         current_id = revision_id(worksheet)
     except HeatBalanceError as exc:
-        st.error(f"This worksheet cannot be saved or shared: {exc.message}", icon="🚫")
+        st.error(f"This worksheet cannot be saved or shared: {_plain(exc.message)}", icon="🚫")
         return
     left, right = st.columns(2)
     with left:
@@ -209,7 +209,7 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
                 st.code(sheet_link(worksheet, base), language=None)
                 st.caption("Anyone with the link opens these inputs, on any server running this program.")
             except HeatBalanceError as exc:
-                st.warning(exc.message)
+                st.warning(_plain(exc.message))
         st.download_button("Download worksheet (JSON)", data=worksheet_json_bytes(worksheet),
                            file_name=worksheet_filename(worksheet), mime="application/json",
                            key="share_download_json")
@@ -229,7 +229,7 @@ def render_history(rev_id: str, base: str) -> None:
     try:
         chain = get_store().history(rev_id)
     except HeatBalanceError as exc:
-        st.caption(f"Revision list unavailable: {exc.message}")
+        st.caption(f"Revision list unavailable: {_plain(exc.message)}")
         return
     st.markdown("**Revisions** (newest first)")
     st.markdown("\n".join(

@@ -6,6 +6,8 @@ balance). The bars add up to the closing bar, which is −residual: zero when th
 """
 from __future__ import annotations
 
+from html import escape
+
 import plotly.graph_objects as go
 
 from ..results import Result
@@ -27,7 +29,8 @@ _KIND_WORDS = {"duty": "duty", "loss": "loss", "reaction": "reaction heat", "equ
 def waterfall_steps(result: Result, system: str = "SI") -> list[dict]:
     """The bars of the waterfall: label, heat into the process in the display unit, hover text.
 
-    The last step is the closing bar (the sum, −residual).
+    The last step is the closing bar (the sum, −residual). ``label`` is the item's name as typed;
+    ``detail`` is plotly text (user text in it escaped: plotly reads ``<``, ``>`` and ``&`` as HTML).
     """
     kind = heat_kind(result.basis)
     unit = UNIT_SETS[system][kind]
@@ -38,11 +41,12 @@ def waterfall_steps(result: Result, system: str = "SI") -> list[dict]:
         states = (f"{state_text(line.initial_T, line.initial_phase, None, system, 1)} → "
                   f"{state_text(line.final_T, line.final_phase, None, system, 1)}")
         steps.append({"label": line.name, "heat": heat, "kind": _KIND_WORDS[line.kind],
-                      "detail": f"{line.material}: {states}<br>absorbs {-heat:,.4g} {shown} "
+                      "detail": f"{escape(line.material, quote=False)}: {escape(states, quote=False)}<br>"
+                                f"absorbs {-heat:,.4g} {shown} "
                                 f"(latent {from_si(line.latent, unit, kind):,.4g} {shown})"})
     for term in result.terms:
         steps.append({"label": term.name, "heat": from_si(term.heat, unit, kind), "kind": _KIND_WORDS[term.kind],
-                      "detail": phrase_text(term.detail, system)})
+                      "detail": escape(phrase_text(term.detail, system), quote=False)})
     steps.append({"label": CLOSING_LABEL, "heat": -from_si(result.residual, unit, kind), "kind": "sum",
                   "detail": "sum of all contributions (zero when the balance closes)"})
     return steps
@@ -62,13 +66,14 @@ def _label(heat: float, number: str) -> str:
 def energy_waterfall(result: Result, system: str = "SI") -> go.Figure:
     """A waterfall of every contribution that closes at zero, labelled in the display unit.
 
-    Hover shows the item, its kind, its states (for a line) and its heat.
+    Hover shows the item, its kind, its states (for a line) and its heat. User text (names, materials)
+    is HTML-escaped: plotly renders ``<a href>``, ``<b>`` and entities in text.
     """
     steps = waterfall_steps(result, system)
     unit = display_unit(UNIT_SETS[system][heat_kind(result.basis)])
     number = _number_format(steps)
     figure = go.Figure(go.Waterfall(
-        x=[s["label"] for s in steps],
+        x=[escape(s["label"], quote=False) for s in steps],  # user names: plotly text reads some HTML
         y=[s["heat"] for s in steps],
         measure=["relative"] * (len(steps) - 1) + ["total"],
         text=[_label(s["heat"], number) for s in steps],

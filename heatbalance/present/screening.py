@@ -1,6 +1,8 @@
 """The thermal screening in a unit set: the command line's report and the page's figure."""
 from __future__ import annotations
 
+from html import escape
+
 import plotly.graph_objects as go
 
 from ..analyses.screening import Screening
@@ -110,7 +112,8 @@ def screening_figure(screening: Screening, system: str = "SI"):
                          annotation_position="top left")
     low = min(shown(b[1]) for b in bars)
     high = max(shown(b[1]) for b in bars)
-    figure.update_layout(title=f"Thermal screening: {s.vessel}" + ("  (ALARM)" if reaches else ""),
+    title = f"Thermal screening: {escape(s.vessel, quote=False)}"  # a user name: plotly text reads some HTML
+    figure.update_layout(title=title + ("  (ALARM)" if reaches else ""),
                          yaxis_title=f"temperature [{display_unit(unit)}]", showlegend=False,
                          yaxis_range=[low - 0.15 * (high - low + 10), high + 0.15 * (high - low + 10)],
                          margin={"t": 60, "b": 80, "l": 60, "r": 20}, height=400)
