@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 from .errors import AddressError, HeatBalanceError, InputError
 from .units import basis_kinds, check_unit, from_si, kind_of
@@ -70,6 +71,11 @@ def parse(address: str) -> list[tuple[str, str | None]]:
     >>> parse("vessels[Reactor].charges[Water].mass")
     [('vessels', 'Reactor'), ('charges', 'Water'), ('mass', None)]
     """
+    return list(_parse(address))
+
+
+@lru_cache(maxsize=4096)
+def _parse(address: str) -> tuple[tuple[str, str | None], ...]:
     steps, pos = [], 0
     text = address.strip()
     while pos < len(text):
@@ -86,7 +92,7 @@ def parse(address: str) -> list[tuple[str, str | None]]:
             pos += 1
     if not steps:
         raise AddressError("an empty address names nothing", "address")
-    return steps
+    return tuple(steps)
 
 
 def _pattern(steps: list[tuple[str, str | None]]) -> str:

@@ -19,7 +19,6 @@ from dataclasses import dataclass
 
 from scipy.optimize import brentq
 
-from .address import get as get_input
 from .address import item
 from .address import label as address_label
 from .errors import HeatBalanceError, InputError, NoSolutionError
@@ -162,11 +161,19 @@ def _solve_temperature(p: Problem) -> float | None:
     fixed = sum(ln.amount * _line_dh(ln, temps, {}) for ln in p.lines if not _depends(ln, var))
     fixed += sum(_equipment_heat(e, temps, {}) for e in p.equipment if e not in equipment_dep)
     fixed -= sum(t.heat for t in p.terms)
+    # the states that move with T, each with its line's amount and sign; the others' enthalpies are fixed
+    moving = []
+    for ln in dependent:
+        for state, sign in ((ln.initial, -1.0), (ln.final, 1.0)):
+            if state.var == var:
+                moving.append((ln.material, state, sign * ln.amount))
+            else:
+                fixed += sign * ln.amount * evaluate_state(ln.material, state, temps, {}).h
 
     def residual(T: float, side: float | None = None) -> float:
         temps[var] = T
         sides = {var: side} if side is not None else {}
-        value = fixed + sum(ln.amount * _line_dh(ln, temps, sides) for ln in dependent)
+        value = fixed + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
 
     materials = [ln.material for ln in dependent] + [e.material for e in equipment_dep if e.material]
@@ -267,13 +274,13 @@ def solve(ws: Worksheet) -> Result:
     >>> result.answer.address, result.answer.value_si  # W
     ('duties[Heater].value', 120000.0)
     """
-    return solve_problem(build_problem(ws), ws)
+    return solve_problem(build_problem(ws))
 
 
-def solve_problem(p: Problem, ws: Worksheet) -> Result:
-    """Solve a built problem (it is changed: the unknown takes its value); ``ws`` gives the answer's typed unit."""
+def solve_problem(p: Problem) -> Result:
+    """Solve a built problem (it is changed: the unknown takes its value)."""
     fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
-    return _result(p, fraction, ws)
+    return _result(p, fraction)
 
 
 # --------------------------------------------------------------------------- the result
@@ -313,7 +320,7 @@ def _line_result(line: Line, temps: dict, sides: dict) -> LineResult:
                       vessel=line.vessel)
 
 
-def _answer(p: Problem, fraction: float | None, ws: Worksheet) -> Answer:
+def _answer(p: Problem, fraction: float | None) -> Answer:
     kind = p.unknown.kind
     if kind == "temperature":
         si_kind, value_si = "temperature", p.temperatures[p.unknown_target]
@@ -321,15 +328,14 @@ def _answer(p: Problem, fraction: float | None, ws: Worksheet) -> Answer:
         si_kind, value_si = basis_kinds("amount", p.basis)[0], p.unknown_target.amount
     else:
         si_kind, value_si = heat_kind(p.basis), p.unknown_target.heat
-    typed = get_input(ws, p.unknown_address)
     plateau = None
     if fraction is not None:
         plateau = next(tr.kind for tr in _transitions_on(p, p.unknown_target) if abs(tr.T - value_si) < T_TOL)
     return Answer(p.unknown_address, address_label(p.unknown_address), kind, si_kind, value_si,
-                  typed.unit if isinstance(typed, Quantity) else None, fraction, plateau)
+                  p.unknown_typed_unit, fraction, plateau)
 
 
-def _result(p: Problem, fraction: float | None, ws: Worksheet) -> Result:
+def _result(p: Problem, fraction: float | None) -> Result:
     sides = {p.unknown_target: fraction} if fraction is not None else {}
     lines = [_line_result(ln, p.temperatures, sides) for ln in p.lines]
     terms = [TermResult(t.name, t.kind, t.heat, t.detail, vessel=t.vessel) for t in p.terms]
@@ -343,7 +349,7 @@ def _result(p: Problem, fraction: float | None, ws: Worksheet) -> Result:
         + _range_warnings(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
-    return Result(p.title, p.basis, _answer(p, fraction, ws), lines, terms, residual, warnings, p.assumptions,
+    return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
                   sources, property_library_versions())
 
 

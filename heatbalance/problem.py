@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass, field
 from functools import cached_property
 
+from .address import get as get_input
 from .address import item, unknown_address
 from .errors import InputError
 from .materials import get_material
@@ -130,6 +131,7 @@ class Problem:
     unknown: Unknown
     unknown_target: object  # a Line, a HeatTerm, or a temperature variable key
     unknown_address: str
+    unknown_typed_unit: str | None = None  # the unit typed in the unknown's field (None: none typed)
     vessels: list[str] = field(default_factory=list)
     screening: dict[str, ScreeningInputs] = field(default_factory=dict)  # vessel -> its inputs
     warnings: list[Phrase] = field(default_factory=list)
@@ -285,9 +287,10 @@ class _Builder:
         terms = self._terms()
         target, address = self._target(lines, terms, unknown_var)
         screening = {v.name: self._screening(v) for v in ws.vessels}
+        typed = get_input(ws, address)
         return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_addresses,
-                       self.unknown, target, address, [v.name for v in ws.vessels], screening,
-                       assumptions=self.assumptions, duration=self.duration)
+                       self.unknown, target, address, typed.unit if isinstance(typed, Quantity) else None,
+                       [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration)
 
     def _stream(self, s) -> Line:
         where = item("streams", s.name)

@@ -45,4 +45,4 @@ def analyse(problem, result):
 def solve_and_analyse(ws: Worksheet) -> Result:
     """Build, solve and analyse a worksheet: what the page and the command line show (SI records)."""
     problem = build_problem(ws)
-    return analyse(problem, solve_problem(problem, ws))
+    return analyse(problem, solve_problem(problem))

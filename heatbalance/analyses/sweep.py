@@ -329,11 +329,11 @@ class _FastRun:
                 p.unknown_target.heat = None
             for setter, value in zip(self.setters, values):
                 setter(value)
-            result = analyse(p, solve_problem(p, self.ws))
+            result = analyse(p, solve_problem(p))
             return result, result.screening
         ws = self.ws
         for axis, value, kinds in zip(self.axes, values, self.kinds):
             ws = with_value(ws, axis.address, _typed(axis, value, kinds))
         p = build_problem(ws)
-        result = analyse(p, solve_problem(p, ws))
+        result = analyse(p, solve_problem(p))
         return result, result.screening
