@@ -28,8 +28,8 @@ from heatbalance.worksheet import load_worksheet, parse_worksheet  # noqa: E402
 MATERIAL_CLASSES = (properties.CoolPropFluid, properties.IncompressibleSolution, properties.TabulatedMaterial)
 
 
-def record_calls(ws):
-    """Solve once, recording every enthalpy call as (bound method, T, P)."""
+def record_calls(action):
+    """Run ``action()`` once, recording every enthalpy call it makes as (bound method, T, P)."""
     calls = []
     originals = {cls: cls.enthalpy for cls in MATERIAL_CLASSES}
 
@@ -42,7 +42,7 @@ def record_calls(ws):
     for cls, original in originals.items():
         cls.enthalpy = recorder(original)
     try:
-        solve(ws)
+        action()
     finally:
         for cls, original in originals.items():
             cls.enthalpy = original
@@ -89,7 +89,7 @@ def bench(label: str, ws, repeat: int) -> dict:
     EVALUATIONS.reset()
     solve(ws)
     evaluations = EVALUATIONS.count
-    calls = record_calls(ws)
+    calls = record_calls(lambda: solve(ws))
     solve_ms = median_ms(lambda: solve(ws), repeat)
     bare_ms = median_ms(lambda: [f(T, P) for f, T, P in calls], repeat)
     return {"case": label, "unknown": ws.unknowns[0].kind, "lines": lines, "evals": evaluations,

@@ -20,7 +20,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from bench_engine import MATERIAL_CLASSES  # noqa: E402
+from bench_engine import record_calls  # noqa: E402
 from heatbalance.address import with_value  # noqa: E402
 from heatbalance.analyses import solve_and_analyse  # noqa: E402
 from heatbalance.analyses.sweep import Axis, axis_values, sweep  # noqa: E402
@@ -43,25 +43,6 @@ def median_s(action, repeat: int) -> float:
     return statistics.median(samples)
 
 
-def recorded_calls(action) -> list:
-    calls, originals = [], {cls: cls.enthalpy for cls in MATERIAL_CLASSES}
-
-    def recorder(original):
-        def enthalpy(self, T, P):
-            calls.append((self, T, P))
-            return original(self, T, P)
-        return enthalpy
-
-    for cls, original in originals.items():
-        cls.enthalpy = recorder(original)
-    try:
-        action()
-    finally:
-        for cls, original in originals.items():
-            cls.enthalpy = original
-    return [(material.enthalpy, T, P) for material, T, P in calls]
-
-
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--points", type=int, default=1000)
@@ -75,7 +56,7 @@ def main() -> None:
         return [solve_and_analyse(with_value(ws, axis.address, (v, "kW"))).answer.value_si for v in axis.values]
 
     run_sweep()  # warm the property caches
-    calls = recorded_calls(run_sweep)
+    calls = record_calls(run_sweep)
     sweep_s = median_s(run_sweep, args.repeat)
     loop_s = median_s(loop, max(1, args.repeat // 2))
     bare_s = median_s(lambda: [f(T, P) for f, T, P in calls], args.repeat)
