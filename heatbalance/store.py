@@ -2,11 +2,26 @@
 
 Every save is a revision whose id is :func:`heatbalance.links.revision_id` of the
 worksheet: the same worksheet saved twice gives the same id and the same row.
-A revision records its parent (the revision it was edited from), its title and
-the time it was first saved. Rows are only ever inserted (``INSERT ... ON CONFLICT
-DO NOTHING``): no revision is changed or deleted, so concurrent saves of the same
-worksheet cannot clash, and a link opens exactly what was shared, for good.
-Reading a revision re-checks its content against its id.
+A revision records its parent (the revision it was edited from), its title,
+the time it was first saved and who saved it (``saved_by``: the logged-in user
+when the page has a login, else empty; set at the save, never changed). Rows are
+only ever inserted (``INSERT ... ON CONFLICT DO NOTHING``): no revision is changed
+or deleted, so concurrent saves of the same worksheet cannot clash, and a link
+opens exactly what was shared, for good.
+
+Integrity: reading a revision re-checks its content against its id, and its record
+(id, parent, title, save time, schema version, content digest, saved_by) against
+``record_sha256``, a SHA-256 of the canonical record stored with it
+(:func:`record_digest`). A row whose content or record was edited in the database is
+refused with a :class:`StoreError`, never shown as genuine. This catches an edited
+row, not a forger who also recomputes the digest (anyone who can write the database
+can do that): protect the database itself.
+
+Store formats: format 1 (no ``saved_by`` nor ``record_sha256``) is migrated in place
+to format 2 the first time this program opens it: the two columns are added, every
+existing row is kept and gets its record digest, computed from what is stored then
+(the content is still checked against the id), and the format is set to 2, so a
+program that reads only format 1 refuses the store rather than write unchecked rows.
 
 Where the store lives:
 
@@ -22,10 +37,11 @@ failure is raised as :class:`StoreError` with a message a user can act on.
 from __future__ import annotations
 
 import hashlib
+import json
 import os
 import sys
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from datetime import datetime, timezone
 from pathlib import Path
 
@@ -44,7 +60,8 @@ ENV_DB = "HEATBALANCE_DB"
 ENV_DATABASE_URL = "HEATBALANCE_DATABASE_URL"
 MAX_HISTORY = 200  # revisions listed at most when following parent links
 BUSY_TIMEOUT_S = 15  # how long a save waits for another writer before giving up
-STORE_FORMAT = "1"
+STORE_FORMAT = "2"  # 2: saved_by and record_sha256 (format 1 is migrated in place, see the module docstring)
+MAX_SAVED_BY = 200  # characters of a saver's name or e-mail kept
 
 _metadata = sa.MetaData()
 revisions = sa.Table(
@@ -56,7 +73,11 @@ revisions = sa.Table(
     sa.Column("schema_version", sa.Integer, nullable=False),
     sa.Column("content_sha256", sa.String(64), nullable=False),
     sa.Column("content", sa.Text, nullable=False),
+    sa.Column("saved_by", sa.String(MAX_SAVED_BY), nullable=False, server_default=""),
+    sa.Column("record_sha256", sa.String(64), nullable=True),  # NULL only between the migration's two steps
 )
+_RECORD = ("id", "parent_id", "title", "saved_at", "schema_version", "content_sha256", "saved_by")
+_META = [revisions.c[name] for name in _RECORD] + [revisions.c.record_sha256]  # a revision without its content
 store_info = sa.Table(
     "heatbalance_store_info", _metadata,
     sa.Column("key", sa.String(40), primary_key=True),
@@ -75,19 +96,36 @@ class RevisionNotFoundError(StoreError, LookupError):
 
 @dataclass(frozen=True)
 class RevisionInfo:
-    """What the revision list shows: id, parent, title and time saved (UTC)."""
+    """What the revision list shows: id, parent, title, time saved (UTC) and who saved it ("" without a login)."""
 
     id: str
     parent: str | None
     title: str
     saved_at: datetime
+    saved_by: str = ""
 
 
 @dataclass(frozen=True)
 class Revision(RevisionInfo):
     """A saved revision with its worksheet."""
 
-    worksheet: Worksheet
+    worksheet: Worksheet = field(kw_only=True)
+
+
+def record_digest(row) -> str:
+    """SHA-256 (hex) of a revision's canonical record: its metadata and content digest as sorted, compact JSON.
+
+    ``row`` has the attributes or keys ``id``, ``parent_id``, ``title``, ``saved_at``, ``schema_version``,
+    ``content_sha256`` and ``saved_by``.
+
+    >>> record_digest({"id": "0" * 24, "parent_id": None, "title": "T", "saved_at": "2026-01-01T00:00:00+00:00",
+    ...                "schema_version": 1, "content_sha256": "0" * 64, "saved_by": ""})[:12]
+    'e82a420d7867'
+    """
+    get = row.get if isinstance(row, dict) else lambda name: getattr(row, name)
+    record = {name: get(name) for name in _RECORD}
+    text = json.dumps(record, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
 def default_database_path() -> Path:
@@ -163,10 +201,10 @@ class WorksheetStore:
         try:
             if self.dialect == "sqlite":
                 self._prepare_sqlite_file()
-                self.engine = sa.create_engine(self.url, connect_args={"timeout": busy_timeout})
-                sa.event.listen(self.engine, "connect", _sqlite_pragmas)
+                self._engine = sa.create_engine(self.url, connect_args={"timeout": busy_timeout})
+                sa.event.listen(self._engine, "connect", _sqlite_pragmas)
             else:
-                self.engine = sa.create_engine(self.url, pool_pre_ping=True,
+                self._engine = sa.create_engine(self.url, pool_pre_ping=True,
                                                connect_args={"connect_timeout": 10})
         except (sa_exc.ArgumentError, ImportError) as exc:
             raise StoreError(f"cannot use database URL {self.where} ({exc})", "store") from None
@@ -187,39 +225,70 @@ class WorksheetStore:
             raise StoreError(f"{path} is not a file", "store")
 
     def _create_schema(self) -> None:
-        """Check an existing store (reading only), or create the tables of a new one."""
+        """Check an existing store (reading only), create the tables of a new one, or migrate format 1."""
         statements = [sa.schema.CreateTable(table, if_not_exists=True) for table in (revisions, store_info)]
         statements.append(sa.schema.CreateIndex(_parent_index, if_not_exists=True))
         for attempt in range(5):
             try:
-                with self.engine.connect() as conn:
+                with self._engine.connect() as conn:
                     if self.dialect == "sqlite":
                         self._refuse_foreign_sqlite(conn)
                     found = self._format(conn)
                 if found is None:
-                    with self.engine.begin() as conn:
+                    with self._engine.begin() as conn:
                         for statement in statements:
                             conn.execute(statement)
                         conn.execute(self._insert(store_info).values(key="format", value=STORE_FORMAT)
                                      .on_conflict_do_nothing(index_elements=["key"]))
                         found = self._format(conn)
+                if found == "1":
+                    found = self._migrate_1_to_2()
                 if found != STORE_FORMAT:
                     raise StoreError(f"{self.where} holds worksheet store format {found!r}; this program reads "
                                      f"format {STORE_FORMAT}", "store")
                 if self.dialect == "sqlite":
                     self._use_wal()
                 return
-            except (sa_exc.IntegrityError, sa_exc.ProgrammingError) as exc:
-                # Two processes creating the same table at once (PostgreSQL's catalogue race): try again.
+            except (sa_exc.IntegrityError, sa_exc.ProgrammingError, sa_exc.OperationalError) as exc:
+                # Two processes creating the same table, or migrating the same store, at once: try again
+                # (the loser finds the work done; SQLite tells a reader that lost the race "locked" at once,
+                # so that is tried once more). A lock held longer than the busy timeout is reported.
+                text = str(exc).lower()
+                if isinstance(exc, sa_exc.OperationalError) and "duplicate column" not in text \
+                        and not ("lock" in text and attempt == 0):
+                    raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
                 if attempt == 4:
                     raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
                 time.sleep(0.05 * (attempt + 1))
             except sa_exc.SQLAlchemyError as exc:
                 raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
 
+    def _migrate_1_to_2(self) -> str:
+        """Format 1 -> 2, in place and in one transaction: add ``saved_by`` ('' for every existing row) and
+        ``record_sha256`` (the digest of each existing row's record as stored now); keep every row."""
+        with self._engine.begin() as conn:
+            if self._format(conn) != "1":  # another process migrated it meanwhile
+                return self._format(conn)
+            present = {c["name"] for c in sa.inspect(conn).get_columns(revisions.name)}
+            table = conn.dialect.identifier_preparer.quote(revisions.name)
+            if "saved_by" not in present:
+                conn.exec_driver_sql(f"ALTER TABLE {table} ADD COLUMN saved_by VARCHAR({MAX_SAVED_BY}) "
+                                     "NOT NULL DEFAULT ''")
+            if "record_sha256" not in present:
+                conn.exec_driver_sql(f"ALTER TABLE {table} ADD COLUMN record_sha256 VARCHAR(64)")
+            rows = conn.execute(sa.select(*_META).where(revisions.c.record_sha256.is_(None))).all()
+            for row in rows:
+                conn.execute(revisions.update().where(revisions.c.id == row.id, revisions.c.record_sha256.is_(None))
+                             .values(record_sha256=record_digest(row)))
+            conn.execute(store_info.update().where(store_info.c.key == "format", store_info.c.value == "1")
+                         .values(value=STORE_FORMAT))
+            conn.execute(self._insert(store_info).values(key="migrated_from_1", value=f"{_now()}, {len(rows)} rows")
+                         .on_conflict_do_nothing(index_elements=["key"]))
+            return self._format(conn)
+
     def _use_wal(self) -> None:
         """Write-ahead logging (kept in the file): readers never wait for a writer. Set once, on our store only."""
-        with self.engine.connect() as conn:
+        with self._engine.connect() as conn:
             if conn.exec_driver_sql("PRAGMA journal_mode").scalar() != "wal":
                 conn.exec_driver_sql("PRAGMA journal_mode = WAL")
 
@@ -237,7 +306,7 @@ class WorksheetStore:
 
     def close(self) -> None:
         """Release the database connections."""
-        self.engine.dispose()
+        self._engine.dispose()
 
     def __enter__(self):
         return self
@@ -246,12 +315,14 @@ class WorksheetStore:
         self.close()
 
     # -- the interface --------------------------------------------------------------------------------------
-    def save(self, worksheet: Worksheet, parent: str | None = None) -> RevisionInfo:
+    def save(self, worksheet: Worksheet, parent: str | None = None, saved_by: str = "") -> RevisionInfo:
         """Save a worksheet as a revision (or find it already saved); return the stored revision's record.
 
         ``parent`` is the id of the revision this worksheet was edited from; it is
         recorded only when the revision is new (the first save of a content wins)
-        and ignored when it is the worksheet's own id (saved unchanged).
+        and ignored when it is the worksheet's own id (saved unchanged). ``saved_by``
+        names who saves (the page's logged-in user; "" without a login), kept with the
+        revision when it is new (at most :data:`MAX_SAVED_BY` characters) and never changed.
         """
         content = canonical_json(worksheet)
         if len(content.encode("utf-8")) > MAX_DOCUMENT_BYTES:
@@ -261,11 +332,15 @@ class WorksheetStore:
         parent = check_id(parent, "parent") if parent else None
         if parent == rev_id:
             parent = None
+        if not isinstance(saved_by, str):
+            raise StoreError("saved_by must be text (a user's e-mail or name)", "save")
         row = dict(id=rev_id, parent_id=parent, title=worksheet.title[:200], saved_at=_now(),
-                   schema_version=worksheet.schema_version, content_sha256=digest, content=content)
+                   schema_version=worksheet.schema_version, content_sha256=digest, content=content,
+                   saved_by=" ".join(saved_by.split())[:MAX_SAVED_BY])
+        row["record_sha256"] = record_digest(row)
         statement = self._insert(revisions).values(**row).on_conflict_do_nothing(index_elements=["id"])
         try:
-            with self.engine.begin() as conn:
+            with self._engine.begin() as conn:
                 conn.execute(statement)
                 stored = conn.execute(sa.select(revisions).where(revisions.c.id == rev_id)).one_or_none()
         except sa_exc.SQLAlchemyError as exc:
@@ -273,13 +348,13 @@ class WorksheetStore:
         if stored is None or stored.content != content:
             raise StoreError(f"revision {rev_id} is stored with other content than this worksheet; the stored "
                              "one was kept. Report this: it should never happen", "save")
-        return _info(stored)
+        return _info(stored, "save")
 
     def open(self, rev_id: str) -> Revision:
         """The revision with this id, its content checked against the id; :class:`RevisionNotFoundError` if none."""
         rev_id = check_id(rev_id)
         try:
-            with self.engine.connect() as conn:
+            with self._engine.connect() as conn:
                 row = conn.execute(sa.select(revisions).where(revisions.c.id == rev_id)).one_or_none()
         except sa_exc.SQLAlchemyError as exc:
             raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
@@ -290,19 +365,19 @@ class WorksheetStore:
                 or not row.content_sha256.startswith(rev_id):
             raise StoreError(f"saved worksheet {rev_id} has been altered in the database (its content no longer "
                              "matches its id); it is not opened", "ws")
+        info = _info(row)
         try:
             worksheet = load_worksheet(row.content)
         except HeatBalanceError as exc:
             raise StoreError(f"saved worksheet {rev_id} cannot be read ({exc})", "ws") from None
-        return Revision(**vars(_info(row)), worksheet=worksheet)
+        return Revision(**vars(info), worksheet=worksheet)
 
     def info(self, rev_id: str) -> RevisionInfo | None:
         """The record of one revision without its worksheet, or None when it is not stored."""
         rev_id = check_id(rev_id)
-        columns = [revisions.c.id, revisions.c.parent_id, revisions.c.title, revisions.c.saved_at]
         try:
-            with self.engine.connect() as conn:
-                row = conn.execute(sa.select(*columns).where(revisions.c.id == rev_id)).one_or_none()
+            with self._engine.connect() as conn:
+                row = conn.execute(sa.select(*_META).where(revisions.c.id == rev_id)).one_or_none()
         except sa_exc.SQLAlchemyError as exc:
             raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
         return None if row is None else _info(row)
@@ -327,11 +402,10 @@ class WorksheetStore:
     def children(self, rev_id: str, limit: int = MAX_HISTORY) -> list[RevisionInfo]:
         """Revisions saved as edits of this one, oldest first (at most ``limit``)."""
         rev_id = check_id(rev_id)
-        columns = [revisions.c.id, revisions.c.parent_id, revisions.c.title, revisions.c.saved_at]
-        query = (sa.select(*columns).where(revisions.c.parent_id == rev_id)
+        query = (sa.select(*_META).where(revisions.c.parent_id == rev_id)
                  .order_by(revisions.c.saved_at, revisions.c.id).limit(limit))
         try:
-            with self.engine.connect() as conn:
+            with self._engine.connect() as conn:
                 return [_info(row) for row in conn.execute(query)]
         except sa_exc.SQLAlchemyError as exc:
             raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
@@ -339,7 +413,7 @@ class WorksheetStore:
     def count(self) -> int:
         """How many revisions the store holds."""
         try:
-            with self.engine.connect() as conn:
+            with self._engine.connect() as conn:
                 return conn.execute(sa.select(sa.func.count()).select_from(revisions)).scalar_one()
         except sa_exc.SQLAlchemyError as exc:
             raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
@@ -353,9 +427,19 @@ def _sqlite_pragmas(dbapi_connection, _record) -> None:
         cursor.close()
 
 
-def _info(row) -> RevisionInfo:
-    return RevisionInfo(id=row.id, parent=row.parent_id, title=row.title,
-                        saved_at=datetime.fromisoformat(row.saved_at))
+def _info(row, where: str = "ws") -> RevisionInfo:
+    """The record of a stored row, once its record digest is checked: an edited row is refused, never shown."""
+    if row.record_sha256 is None or row.record_sha256 != record_digest(row):
+        why = ("has no record digest (written by an older program after this store was migrated, or edited)"
+               if row.record_sha256 is None else "no longer matches its digest")
+        raise StoreError(f"the record of saved worksheet {row.id} (title, parent, save time, saved by) has been "
+                         f"altered in the database: it {why}; it is not shown", where)
+    try:
+        saved_at = datetime.fromisoformat(row.saved_at)
+    except (TypeError, ValueError):
+        raise StoreError(f"saved worksheet {row.id} has an unreadable save time; it is not shown", where) from None
+    return RevisionInfo(id=row.id, parent=row.parent_id, title=row.title, saved_at=saved_at,
+                        saved_by=row.saved_by or "")
 
 
 def open_store(url: str | None = None) -> WorksheetStore:

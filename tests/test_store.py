@@ -264,6 +264,132 @@ def test_a_revision_altered_in_the_database_is_not_opened(tmp_path):
             store.open(rev.id)
 
 
+# -- who saved it; the record's integrity; the format-1 migration ------------------------------------------------
+def test_saved_by_is_kept_with_the_revision_and_never_rewritten(store):
+    worksheet = _sample(SAMPLES[0])
+    first = store.save(worksheet, saved_by="ana.lima@plant.example")
+    assert first.saved_by == "ana.lima@plant.example"
+    assert store.save(worksheet, saved_by="someone else").saved_by == "ana.lima@plant.example"  # first save wins
+    assert store.open(first.id).saved_by == store.info(first.id).saved_by == "ana.lima@plant.example"
+    edited = store.save(worksheet.model_copy(update={"notes": "checked"}), parent=first.id, saved_by="Bo Chen")
+    assert [(r.id, r.saved_by) for r in store.history(edited.id)] == [(edited.id, "Bo Chen"),
+                                                                     (first.id, "ana.lima@plant.example")]
+    assert [r.saved_by for r in store.children(first.id)] == ["Bo Chen"]
+    assert store.save(_sample(SAMPLES[1])).saved_by == ""  # no login: nothing recorded
+    with pytest.raises(StoreError, match="saved_by must be text"):
+        store.save(_sample(SAMPLES[2]), saved_by=None)
+
+
+def test_the_raw_database_engine_is_private(store):
+    assert not hasattr(store, "engine")
+    assert "engine" not in [name for name in dir(store) if not name.startswith("_")]
+
+
+def _sql(url: str, *statements: str, params: dict | None = None) -> None:
+    """Run statements on the store's database directly, as someone with database access could."""
+    import sqlalchemy as sa
+
+    engine = sa.create_engine(url)
+    with engine.begin() as conn:
+        for statement in statements:
+            conn.execute(sa.text(statement), params or {})
+    engine.dispose()
+
+
+@pytest.mark.parametrize("column, value", [("title", "Approved by the shift lead"), ("saved_by", "the plant manager"),
+                                           ("parent_id", "f" * 24), ("saved_at", "2020-01-01T00:00:00.000000+00:00"),
+                                           ("record_sha256", None)])
+def test_an_edited_revision_record_is_refused_and_never_shown_as_genuine(store, column, value):
+    first = store.save(_sample(SAMPLES[0]), saved_by="ana")
+    second = store.save(_sample(SAMPLES[1]), parent=first.id, saved_by="bo")
+    url = store.url.render_as_string(hide_password=False)
+    _sql(url, f"UPDATE heatbalance_revisions SET {column} = :value WHERE id = :id",
+         params={"value": value, "id": first.id})
+    message = rf"the record of saved worksheet {first.id} \(title, parent, save time, saved by\) has been altered"
+    for read in (lambda: store.open(first.id), lambda: store.info(first.id), lambda: store.history(second.id),
+                 lambda: store.save(_sample(SAMPLES[0]))):
+        with pytest.raises(StoreError, match=message):
+            read()
+    assert store.open(second.id).title == _sample(SAMPLES[1]).title  # the others are untouched
+    assert store.count() == 2  # nothing deleted
+
+
+_FORMAT_1 = [  # the store's tables as the previous program (store format 1) created them
+    "CREATE TABLE heatbalance_revisions (id VARCHAR(32) NOT NULL PRIMARY KEY, parent_id VARCHAR(32), "
+    "title VARCHAR(200) NOT NULL, saved_at VARCHAR(40) NOT NULL, schema_version INTEGER NOT NULL, "
+    "content_sha256 VARCHAR(64) NOT NULL, content TEXT NOT NULL)",
+    "CREATE TABLE heatbalance_store_info (key VARCHAR(40) NOT NULL PRIMARY KEY, value VARCHAR(200) NOT NULL)",
+    "CREATE INDEX heatbalance_revisions_parent ON heatbalance_revisions (parent_id)",
+    "INSERT INTO heatbalance_store_info (key, value) VALUES ('format', '1')",
+]
+
+
+def _format_1_store(url: str) -> list[dict]:
+    """A store written by the previous program: format 1, one revision per sample in a parent chain."""
+    rows, parent = [], None
+    for i, path in enumerate(SAMPLES):
+        content = canonical_json(_sample(path))
+        digest = hashlib.sha256(content.encode("utf-8")).hexdigest()
+        rows.append(dict(id=digest[:24], parent_id=parent, title=_sample(path).title,
+                         saved_at=f"2025-0{1 + i % 9}-01T08:00:00.000000+00:00", schema_version=1,
+                         content_sha256=digest, content=content))
+        parent = digest[:24]
+    _sql(url, *_FORMAT_1)
+    for row in rows:
+        _sql(url, "INSERT INTO heatbalance_revisions (id, parent_id, title, saved_at, schema_version, "
+                  "content_sha256, content) VALUES (:id, :parent_id, :title, :saved_at, :schema_version, "
+                  ":content_sha256, :content)", params=row)
+    return rows
+
+
+@pytest.fixture(params=["sqlite", "postgresql"])
+def empty_url(request, tmp_path):
+    if request.param == "sqlite":
+        return f"sqlite:///{tmp_path / 'old.sqlite3'}"
+    url = request.getfixturevalue("postgres_url")
+    _empty_postgres(url)
+    return url
+
+
+def test_a_format_1_store_is_migrated_in_place_and_keeps_every_revision(empty_url):
+    import sqlalchemy as sa
+
+    rows = _format_1_store(empty_url)
+    with WorksheetStore(empty_url) as store:
+        assert store.count() == len(rows)
+        for row in rows:  # every revision opens, with its record as the old program saved it
+            revision = store.open(row["id"])
+            assert canonical_json(revision.worksheet) == row["content"]
+            assert (revision.title, revision.parent, revision.saved_by) == (row["title"], row["parent_id"], "")
+            assert revision.saved_at.isoformat(timespec="microseconds") == row["saved_at"]
+        assert [r.id for r in store.history(rows[-1]["id"])] == [r["id"] for r in reversed(rows)]
+        new = store.save(_sample(SAMPLES[0]).model_copy(update={"notes": "after"}), parent=rows[-1]["id"],
+                         saved_by="ana")
+        assert store.info(new.id).saved_by == "ana"
+    engine = sa.create_engine(empty_url)
+    with engine.connect() as conn:
+        columns = {c["name"] for c in sa.inspect(conn).get_columns("heatbalance_revisions")}
+        info = dict(conn.execute(sa.text("SELECT key, value FROM heatbalance_store_info")).all())
+        stored = {r.id: r for r in conn.execute(sa.text("SELECT * FROM heatbalance_revisions"))}
+    engine.dispose()
+    assert {"saved_by", "record_sha256"} <= columns
+    assert info["format"] == "2" and info["migrated_from_1"].endswith(f", {len(rows)} rows")
+    for row in rows:  # nothing of the old rows changed but the two new columns
+        assert {k: getattr(stored[row["id"]], k) for k in row} == row
+    with WorksheetStore(empty_url) as again:  # a second opening finds it migrated
+        assert again.count() == len(rows) + 1
+
+
+def test_a_store_of_a_newer_format_is_refused_and_left_alone(tmp_path):
+    path = tmp_path / "newer.sqlite3"
+    url = f"sqlite:///{path}"
+    _sql(url, *_FORMAT_1[:-1], "INSERT INTO heatbalance_store_info (key, value) VALUES ('format', '3')")
+    before = _file_digest(path)
+    with pytest.raises(StoreError, match=r"holds worksheet store format '3'; this program reads format 2"):
+        WorksheetStore(url)
+    assert _file_digest(path) == before
+
+
 def test_a_folder_in_place_of_the_database_file_is_refused(tmp_path):
     (tmp_path / "dir.sqlite3").mkdir()
     with pytest.raises(StoreError, match=r"dir\.sqlite3 is not a file"):
@@ -361,7 +487,7 @@ def test_cli_history_lists_newest_first(cli_store, capsys, tmp_path):
     (["open", "123"], r"^error: ws: '123' is not a worksheet id \(an id is 24 characters 0-9 and a-f\)\n$"),
     (["open", "0123456789abcdef01234567"], r"^error: ws: no saved worksheet has the id 0123456789abcdef01234567"),
     (["open", "?sheet=z1.AAAA"], r"^error: sheet: the sheet link is damaged or has been altered"),
-    (["save", "/no/such/file.json"], r"^error: cannot read /no/such/file.json: No such file or directory\n$"),
+    (["save", "/no/such/file.json"], r"^error: /no/such/file.json: cannot read it \(No such file or directory\)\n$"),
     (["history", "0123456789abcdef01234567"], r"^error: ws: no saved worksheet has the id"),
 ])
 def test_cli_refuses_bad_input_in_one_line(cli_store, capsys, argv, message):
