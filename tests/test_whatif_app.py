@@ -5,6 +5,7 @@ A sweep's table is checked number by number against the public solve at each poi
 engine's ``run_cases``. Refusals (a point, a unit of another kind, too many points, a bad override)
 are shown in words with the address at fault. Case edits land in the worksheet the page holds.
 """
+import json
 import math
 import re
 from pathlib import Path
@@ -13,7 +14,7 @@ import pytest
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
-from heatbalance.address import with_value
+from heatbalance.address import rename, with_value
 from heatbalance.analyses.cases import AS_TYPED, run_cases
 from heatbalance.analyses.sweep import MAX_POINTS
 from heatbalance.units import from_si
@@ -300,3 +301,30 @@ def test_case_names_are_shown_as_plain_text():
     assert any(_unescaped(s) == f"cases[{name}]: there is already a case called '{name}'; choose another name"
                for s in shown)
     assert all("**bold**" not in s and "<b>" not in s for s in shown)  # escaped, not Markdown or HTML
+
+
+def chart(at) -> dict:
+    """The what-if chart's figure as the page sends it to the browser."""
+    figure = next(c for c in at.get("plotly_chart") if c.proto.id.endswith("whatif_figure"))
+    return json.loads(figure.proto.spec)
+
+
+def test_names_in_the_chart_are_plotly_text_escaped():
+    ws = rename(sample(GLYCOL), "streams[Glycol]", "<b>Gly&co</b>")
+    at = page(ws)
+    run(at)
+    line = chart(at)
+    assert line["layout"]["xaxis"]["title"]["text"] == "&lt;b&gt;Gly&amp;co&lt;/b&gt; flow [t/h]"
+    assert line["data"][0]["hovertemplate"].startswith("&lt;b&gt;Gly&amp;co&lt;/b&gt; flow [t/h]: %{x")
+    assert "<br>" in line["data"][0]["hovertemplate"]  # plotly's own markup is kept
+    at.selectbox(key="whatif_axis_1").set_value("streams[<b>Gly&co</b>].outlet.temperature").run()
+    at.multiselect(key="whatif_outputs").select("lines[<b>Gly&co</b>].heat").run()
+    run(at)
+    at.selectbox(key="whatif_chart_output").set_value("lines[<b>Gly&co</b>].heat").run()
+    grid = chart(at)
+    heat = "&lt;b&gt;Gly&amp;co&lt;/b&gt;: heat absorbed [kW]"
+    assert grid["data"][0]["type"] == "heatmap"
+    assert grid["data"][0]["colorbar"]["title"]["text"] == heat
+    assert grid["layout"]["title"]["text"] == "What if: &lt;b&gt;Gly&amp;co&lt;/b&gt;: heat absorbed"
+    assert grid["layout"]["yaxis"]["title"]["text"] == "&lt;b&gt;Gly&amp;co&lt;/b&gt; outlet temperature [°C]"
+    assert "<b>Gly" not in json.dumps(grid)
