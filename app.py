@@ -43,8 +43,11 @@ EXTRA_PANELS = [
 def open_state() -> None:
     """The state, opened on the worksheet a share link names (else the default sample); widgets set from it."""
     if KEY not in st.session_state:
-        st.session_state[KEY] = PageState.opened(
-            sharing.worksheet_from_link() or load_sample(SAMPLES_DIR / DEFAULT_SAMPLE))
+        worksheet = sharing.worksheet_from_link()
+        if worksheet is None:
+            worksheet = load_sample(SAMPLES_DIR / DEFAULT_SAMPLE)
+            sharing.note_origin("sample", worksheet, DEFAULT_SAMPLE)
+        st.session_state[KEY] = PageState.opened(worksheet)
     state = page_state()
     if state.widgets_stale:
         st.session_state.update(state.widget_values())
@@ -63,6 +66,7 @@ def main() -> None:
     result, error = state.solve()
     worksheet = state.worksheet
     guarded(render_header, worksheet)
+    guarded(sharing.render_origin, worksheet)  # where it came from: a saved revision, a link, a sample, …
     guarded(render_answer, worksheet, result, error, system)
     guarded(render_inputs, worksheet, system)
     guarded(render_results, result, system)

@@ -390,3 +390,54 @@ def test_an_engine_failure_is_a_plain_message_not_a_traceback(monkeypatch):
     no_traceback(at)
     assert "the engine failed unexpectedly (ZeroDivisionError)" in errors(at)
     assert "Traceback" not in errors(at)
+
+
+# -- exposure: the page listens on loopback unless told otherwise -----------------------------------------------
+def _listening(port: int) -> set[str]:
+    """Local addresses with a listening TCP socket on ``port`` (Linux /proc/net/tcp and tcp6, hex)."""
+    found = set()
+    for table in ("/proc/net/tcp", "/proc/net/tcp6"):
+        try:
+            lines = Path(table).read_text().splitlines()[1:]
+        except OSError:
+            continue
+        for line in lines:
+            local, state = line.split()[1], line.split()[3]
+            address, hex_port = local.rsplit(":", 1)
+            if state == "0A" and int(hex_port, 16) == port:  # 0A: LISTEN
+                found.add(address)
+    return found
+
+
+def test_the_project_config_listens_on_loopback_and_keeps_the_tests_settings():
+    import tomllib
+
+    config = tomllib.loads((ROOT / ".streamlit" / "config.toml").read_text())
+    assert config["server"]["address"] == "127.0.0.1"
+    assert config["server"]["headless"] is True  # no browser opened by `streamlit run` on a server
+    assert config["browser"]["gatherUsageStats"] is False
+
+
+@pytest.mark.skipif(not Path("/proc/net/tcp").exists(), reason="reads Linux's /proc/net/tcp")
+def test_streamlit_run_app_py_as_the_readme_says_listens_on_127_0_0_1_only(tmp_path):
+    """`streamlit run app.py` with no address given (the README's command): one listening socket, loopback."""
+    import subprocess
+    import sys
+    import time
+
+    from conftest import _answers, _free_port, _stop
+
+    port = _free_port()
+    with open(tmp_path / "server.log", "wb") as log:
+        process = subprocess.Popen([sys.executable, "-m", "streamlit", "run", "app.py", "--server.port", str(port),
+                                    "--server.fileWatcherType", "none"], cwd=ROOT, stdout=log,
+                                   stderr=subprocess.STDOUT)
+        try:
+            deadline = time.monotonic() + 90
+            while not _answers(f"http://127.0.0.1:{port}"):
+                assert process.poll() is None, (tmp_path / "server.log").read_text()
+                assert time.monotonic() < deadline, "the app server did not answer"
+                time.sleep(0.25)
+            assert _listening(port) == {"0100007F"}  # 127.0.0.1, and not 0.0.0.0 nor :: (every interface)
+        finally:
+            _stop(process)

@@ -29,6 +29,7 @@ SAMPLE = ROOT / "sample_data" / "batch_reactor_exotherm.json"
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 NOT_SOLVED = ".st-key-answer [data-testid='stAlert']"
 TIMEOUT_MS = 30_000
+FIRST_DRAW_MS = 120_000  # the first page of a fresh server (imports, property tables) on a busy machine
 HOST = "example.invalid"
 
 # Names are at most 80 characters: each carries one kind of attack; the title and notes carry all of them.
@@ -85,19 +86,21 @@ def page(browser):
 
 def _open(page, url: str, worksheet, ready: str) -> None:
     page.goto(f"{url}/?sheet={sheet_link(worksheet).split('=', 1)[1]}")
-    page.wait_for_selector(ready)
-    page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden")
+    page.wait_for_selector(ready, timeout=FIRST_DRAW_MS)
+    page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden", timeout=FIRST_DRAW_MS)
 
 
-# Every attribute of every element (SVG's namespaced xlink:href too), except the value of a text field
-# (the title's input holds the title as typed) and plotly's record of the text it drew (data-unformatted).
+# Every attribute that makes the browser fetch or navigate (SVG's namespaced xlink:href too, CSS url()):
+# text attributes (aria-label, a text field's value, plotly's data-unformatted) may hold the text as typed.
 _FOREIGN = """host => {
+  const urls = new Set(['href', 'xlink:href', 'src', 'srcset', 'action', 'formaction', 'poster', 'data',
+                        'background', 'cite', 'longdesc', 'ping', 'manifest']);
   const found = [];
   for (const el of document.querySelectorAll('*')) {
     for (const attr of el.attributes) {
-      if ((el.tagName === 'INPUT' || el.tagName === 'TEXTAREA') && attr.name === 'value') continue;
-      if (attr.name === 'data-unformatted') continue;
-      if (attr.value.includes(host)) found.push(el.tagName + ' ' + attr.name + '=' + attr.value.slice(0, 80));
+      const fetches = urls.has(attr.name) || urls.has(attr.localName)
+                      || (attr.name === 'style' && attr.value.includes('url('));
+      if (fetches && attr.value.includes(host)) found.push(`${el.tagName} ${attr.name}=${attr.value.slice(0, 80)}`);
     }
   }
   return found;

@@ -225,3 +225,120 @@ def test_a_bad_upload_is_refused_clearly(upload, error, message):
 
     with pytest.raises(error, match=message):
         worksheet_from_upload(upload)
+
+
+# -- provenance: where the worksheet on the page came from --------------------------------------------------
+def origin(at: AppTest) -> str:
+    """The provenance line under the title, as read (bold marks left out)."""
+    captions = [shown(c.value).replace("**", "") for c in at.caption]
+    lines = [c for c in captions if c.startswith(("Saved revision", "From a link", "Bundled sample",
+                                                  "Opened from the file", "A new worksheet"))]
+    assert len(lines) == 1, captions
+    return lines[0]
+
+
+def test_the_default_page_says_it_is_a_bundled_sample_and_an_edit_says_edited_since(db):
+    at = page()
+    assert origin(at) == f"Bundled sample ({DEFAULT}): not a saved revision."
+    at.text_input(key="title_input").set_value("Glycol heater, my version").run()
+    assert origin(at) == (f"Bundled sample ({DEFAULT}): not a saved revision. "
+                          "Edited since: what is on the page now is not saved.")
+
+
+def test_a_saved_revision_link_says_its_id_date_and_who_saved_it(db):
+    worksheet = _sample(SAMPLES[0])
+    with WorksheetStore(db) as store:
+        saved = store.save(worksheet, saved_by="ana.lima@plant.example")
+    at = page(ws=saved.id)
+    no_traceback(at)
+    assert origin(at) == (f"Saved revision `{saved.id}`, saved {saved.saved_at:%Y-%m-%d %H:%M} UTC "
+                          "by ana.lima@plant.example.")
+
+
+def test_a_sheet_link_says_it_is_not_a_saved_revision_unless_its_content_is_saved(db):
+    worksheet = _sample(SAMPLES[0])
+    at = page(sheet=encode_sheet(worksheet))
+    assert origin(at) == ("From a link that carries the worksheet: not a saved revision; content as carried by "
+                          "the link; no saved revision on this server has this content.")
+    with WorksheetStore(db) as store:
+        saved = store.save(worksheet, saved_by="bo")
+    at = page(sheet=encode_sheet(worksheet))
+    assert origin(at) == ("From a link that carries the worksheet: not a saved revision; content as carried by "
+                          f"the link. Its content is identical to saved revision `{saved.id}` "
+                          f"(saved {saved.saved_at:%Y-%m-%d %H:%M} UTC by bo).")
+    edited_by_hand = worksheet.model_copy(update={"title": worksheet.title + " (approved)"})  # a link edited
+    at = page(sheet=encode_sheet(edited_by_hand))
+    assert "no saved revision on this server has this content" in origin(at)
+    assert at.session_state[KEY].worksheet == edited_by_hand
+
+
+def test_after_a_save_the_page_says_saved_revision(db):
+    at = page()
+    at.button(key="share_save").click().run()
+    rev_id = revision_id(at.session_state[KEY].worksheet)
+    assert origin(at).startswith(f"Saved revision `{rev_id}`, saved ")
+    assert " by " not in origin(at)  # no login: nobody is recorded
+    at.button(key="new_worksheet").click().run()
+    assert origin(at) == "A new worksheet: not saved yet."
+
+
+def test_a_revision_whose_record_was_edited_is_refused_on_the_page(db):
+    import sqlalchemy as sa
+
+    with WorksheetStore(db) as store:
+        saved = store.save(_sample(SAMPLES[0]), saved_by="ana")
+    engine = sa.create_engine(db)
+    with engine.begin() as conn:
+        conn.execute(sa.text("UPDATE heatbalance_revisions SET saved_by = 'the plant manager'"))
+    engine.dispose()
+    at = page(ws=saved.id)
+    no_traceback(at)
+    assert f"the record of saved worksheet {saved.id}" in errors(at) and "has been altered" in errors(at)
+    assert origin(at) == f"Bundled sample ({DEFAULT}): not a saved revision."  # not shown as the revision
+    assert "the plant manager" not in "\n".join(shown(m.value) for m in [*at.markdown, *at.caption])
+
+
+# -- who saved it: only with a login configured ---------------------------------------------------------------
+def _logged_in(monkeypatch, info: dict) -> None:
+    """The page as with a login configured (``st.user`` as Streamlit gives it: ``is_logged_in`` only then)."""
+    import webapp.sharing as sharing
+
+    monkeypatch.setattr(sharing, "_user_info", lambda: dict(info))
+
+
+def test_with_a_login_the_revision_records_the_users_email_and_the_list_shows_it(db, monkeypatch):
+    _logged_in(monkeypatch, {"is_logged_in": True, "email": "ana.lima@plant.example", "name": "Ana Lima"})
+    at = page()
+    assert "Saving as ana.lima@plant.example." in [shown(c.value) for c in at.caption]
+    at.button(key="share_save").click().run()
+    no_traceback(at)
+    rev_id = revision_id(at.session_state[KEY].worksheet)
+    with WorksheetStore(db) as store:
+        assert store.info(rev_id).saved_by == "ana.lima@plant.example"
+    assert any("(saved by ana.lima@plant.example)" in shown(m.value) for m in at.markdown)  # the revision list
+    assert origin(at).endswith("by ana.lima@plant.example.")
+
+
+def test_with_a_login_configured_and_nobody_logged_in_nothing_is_saved(db, monkeypatch):
+    user = {"is_logged_in": False}
+    _logged_in(monkeypatch, user)
+    at = page()
+    no_traceback(at)
+    assert at.button(key="share_save").disabled
+    assert "This server records who saves each revision: log in to save." in [shown(c.value) for c in at.caption]
+    user.update(is_logged_in=True, email="ana@plant.example")
+    at.run()
+    assert not at.button(key="share_save").disabled
+    user.clear()
+    user["is_logged_in"] = False  # logged out in another tab before the click: the save itself refuses
+    at.button(key="share_save").click().run()
+    no_traceback(at)
+    assert "Not saved: this server records who saves each revision; log in" in errors(at)
+    with WorksheetStore(db) as store:
+        assert store.count() == 0
+
+
+def test_without_a_login_the_saver_is_empty_and_nothing_about_logins_is_shown(db):
+    at = page()
+    assert at.button(key="share_save").disabled is False
+    assert not any("log in" in shown(c.value).lower() or "Saving as" in shown(c.value) for c in at.caption)

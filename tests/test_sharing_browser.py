@@ -55,6 +55,8 @@ def test_a_saved_sample_opens_from_its_link_with_the_engines_answer(server, page
     assert page.inner_text(ANSWER).strip() == answer_text(solve(worksheet).answer)
     assert worksheet.title in page.inner_text("h1")
     page.get_by_text(f"Opened saved revision {rev_id}.").wait_for()
+    provenance = page.inner_text(".st-key-provenance")  # where it came from, under the title
+    assert provenance.startswith(f"Saved revision {rev_id}, saved ") and provenance.endswith(" UTC.")
 
 
 def test_save_and_share_puts_the_link_in_the_address_bar_and_it_reopens(server, page):
@@ -63,6 +65,7 @@ def test_save_and_share_puts_the_link_in_the_address_bar_and_it_reopens(server, 
     page.goto(f"{url}/?sheet={sheet_link(worksheet).split('=', 1)[1]}")
     page.wait_for_selector(ANSWER)
     assert page.inner_text(ANSWER).strip() == answer_text(solve(worksheet).answer)
+    assert "not a saved revision; content as carried by the link" in page.inner_text(".st-key-provenance")
     page.get_by_role("button", name="Save and share").click()
     rev_id = revision_id(worksheet)
     page.wait_for_url(re.compile(rf"\?ws={rev_id}$"))

@@ -13,6 +13,7 @@ in :mod:`heatbalance.store`, :mod:`heatbalance.links` and :mod:`heatbalance.pres
 """
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Callable
 from urllib.parse import urlsplit, urlunsplit
 
@@ -22,13 +23,14 @@ from heatbalance.errors import HeatBalanceError, WorksheetFormatError
 from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link
 from heatbalance.results import Result
-from heatbalance.store import WorksheetStore, database_url
+from heatbalance.store import RevisionInfo, WorksheetStore, database_url
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
 from .common import plain
 
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
-           "PROBLEM", "BASE", "SAVED", "OPENED_FROM"]
+           "Origin", "note_origin", "origin_text", "render_origin", "saver", "PROBLEM", "BASE", "SAVED",
+           "OPENED_FROM", "ORIGIN"]
 
 # Session-state keys of this part (apart from widget keys).
 BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
@@ -36,6 +38,26 @@ SAVED = "hb_share_saved"  # RevisionInfo of the last save in this session
 PROBLEM = "hb_share_problem"  # message of the last refusal, shown in the panel
 NOTICE = "hb_share_notice"  # message of the last success, shown in the panel
 OPENED_FROM = "hb_share_opened_from"  # the query parameter the page was opened from
+ORIGIN = "hb_share_origin"  # where the worksheet on the page came from: an Origin
+NOT_SAVED_LINK = "not a saved revision; content as carried by the link"
+
+
+@dataclass(frozen=True)
+class Origin:
+    """Where the worksheet on the page came from, as it came.
+
+    ``kind``: ``revision`` (opened from, or saved as, a stored revision), ``link`` (a ``?sheet=`` link),
+    ``sample``, ``upload`` or ``new``. ``content_id`` is the worksheet's id as it came (an edit since
+    changes the id of what is on the page). ``revision`` is the stored record: the revision itself, or for
+    a link the saved revision with the same content (None when there is none). ``check`` says why a link
+    could not be compared with the store.
+    """
+
+    kind: str
+    content_id: str | None
+    name: str = ""
+    revision: RevisionInfo | None = None
+    check: str = ""
 
 
 @st.cache_resource(show_spinner=False)
@@ -65,7 +87,66 @@ def open_link(kind: str, value: str) -> tuple[Worksheet, str | None]:
     if kind == "sheet":
         return decode_sheet(value), None
     revision = get_store().open(value)
+    st.session_state[ORIGIN] = Origin("revision", revision.id, revision=revision)
     return revision.worksheet, revision.id
+
+
+def _content_id(worksheet: Worksheet) -> str | None:
+    try:
+        return revision_id(worksheet)
+    except HeatBalanceError:
+        return None
+
+
+def note_origin(kind: str, worksheet: Worksheet, name: str = "", revision: RevisionInfo | None = None) -> Origin:
+    """Record where the worksheet now on the page came from. A ``link``'s content is looked up in the
+    store by its id (its content's id): the saved revision it matches, if any."""
+    content_id, check = _content_id(worksheet), ""
+    if kind == "link" and content_id is not None:
+        try:
+            revision = get_store().info(content_id)
+        except HeatBalanceError as exc:
+            check = exc.message
+    origin = Origin(kind, content_id, name, revision, check)
+    st.session_state[ORIGIN] = origin
+    return origin
+
+
+def _saved(revision: RevisionInfo) -> str:
+    by = f" by {plain(revision.saved_by)}" if revision.saved_by else ""
+    return f"saved {revision.saved_at:%Y-%m-%d %H:%M} UTC{by}"
+
+
+def origin_text(origin: Origin, worksheet: Worksheet) -> str:
+    """Where the worksheet came from, in words (Markdown, user text escaped), and whether it was edited since."""
+    rev = origin.revision
+    if origin.kind == "revision" and rev is not None:
+        text = f"**Saved revision** `{rev.id}`, {_saved(rev)}."
+    elif origin.kind == "link":
+        text = f"**From a link that carries the worksheet:** {NOT_SAVED_LINK}"
+        if rev is not None:
+            text += f". Its content is identical to saved revision `{rev.id}` ({_saved(rev)})."
+        elif origin.check:
+            text += f" (it could not be compared with the saved revisions: {plain(origin.check)})."
+        else:
+            text += "; no saved revision on this server has this content."
+    elif origin.kind == "sample":
+        text = f"**Bundled sample** ({plain(origin.name)}): not a saved revision."
+    elif origin.kind == "upload":
+        text = f"**Opened from the file** {plain(origin.name)}: not a saved revision."
+    else:
+        text = "**A new worksheet**: not saved yet."
+    if _content_id(worksheet) != origin.content_id:
+        text += " **Edited since**: what is on the page now is not saved."
+    return text
+
+
+def render_origin(worksheet: Worksheet) -> None:
+    """One line under the title: where the worksheet came from (nothing when that is not recorded)."""
+    origin = st.session_state.get(ORIGIN)
+    if origin is not None:
+        with st.container(key="provenance"):
+            st.caption(origin_text(origin, worksheet))
 
 
 def worksheet_from_link() -> Worksheet | None:
@@ -87,6 +168,8 @@ def worksheet_from_link() -> Worksheet | None:
             st.session_state[PROBLEM] = message
             st.error(_plain(message), icon="🔗")
             return None
+        if rev_id is None:
+            note_origin("link", worksheet)
         st.session_state[BASE] = rev_id
         st.session_state[NOTICE] = (f"Opened saved revision {rev_id}." if rev_id
                                     else "Opened the worksheet carried by the link.")
@@ -112,15 +195,50 @@ def forget_revision() -> None:
             del st.query_params[kind]
 
 
+# --------------------------------------------------------------------------- who saves
+def _user_info() -> dict:
+    """``st.user`` as a dict: empty without a login configured (``is_logged_in`` exists only with one)."""
+    try:
+        return dict(st.user.to_dict())
+    except Exception:  # noqa: BLE001 - no script context (scripts, some tests): no login
+        return {}
+
+
+def login_configured() -> bool:
+    return "is_logged_in" in _user_info()
+
+
+def saver() -> str | None:
+    """Who saves: "" without a login configured (nothing is recorded); with one, the logged-in user's
+    e-mail (else name, else the provider's subject id); None when a login is configured and nobody is
+    logged in (the save is refused)."""
+    info = _user_info()
+    if "is_logged_in" not in info:
+        return ""
+    if not info.get("is_logged_in"):
+        return None
+    for claim in ("email", "name", "preferred_username", "sub"):
+        value = info.get(claim)
+        if isinstance(value, str) and value.strip():
+            return value.strip()
+    return None
+
+
 # --------------------------------------------------------------------------- callbacks
 def _on_save(worksheet: Worksheet) -> None:
     state = st.session_state
     state[PROBLEM] = state[NOTICE] = ""
+    who = saver()
+    if who is None:
+        state[PROBLEM] = ("Not saved: this server records who saves each revision; log in (with an account "
+                          "that gives an e-mail or a name) to save")
+        return
     try:
-        saved = get_store().save(worksheet, parent=state.get(BASE))
+        saved = get_store().save(worksheet, parent=state.get(BASE), saved_by=who)
     except HeatBalanceError as exc:
         state[PROBLEM] = f"Not saved: {exc.message}"
         return
+    state[ORIGIN] = Origin("revision", saved.id, revision=saved)
     state[SAVED], state[BASE] = saved, saved.id
     state[NOTICE] = f"Saved as revision {saved.id}."
     if "sheet" in st.query_params:
@@ -141,6 +259,7 @@ def _on_upload(replace: Callable[[Worksheet], None]) -> None:
         return
     replace(worksheet)
     forget_revision()
+    note_origin("upload", worksheet, upload.name)
     state[NOTICE] = f"Opened {upload.name}."
 
 
@@ -157,6 +276,8 @@ def _on_open_link(replace: Callable[[Worksheet], None]) -> None:
         return
     replace(worksheet)
     forget_revision()
+    if rev_id is None:  # a saved revision's origin is recorded by open_link
+        note_origin("link", worksheet)
     state[BASE] = rev_id
     if rev_id:
         st.query_params["ws"] = rev_id  # the address bar names what is on the page
@@ -189,9 +310,17 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
         return
     left, right = st.columns(2)
     with left:
+        who = saver()
         st.button("Save and share", key="share_save", on_click=_on_save, args=(worksheet,), type="primary",
+                  disabled=who is None,
                   help="Saves this worksheet as a revision that is never changed, and gives a link to it. "
-                       "Saving an edited worksheet makes a new revision; the old one stays.")
+                       "Saving an edited worksheet makes a new revision; the old one stays."
+                       + (" The revision records who saved it." if who else ""))
+        if who is None:
+            st.caption("This server records who saves each revision: log in to save.")
+            st.button("Log in", key="share_login", on_click=st.login)
+        elif who:
+            st.caption(f"Saving as {_plain(who)}.")
         based_on = state.get(BASE)
         if based_on and based_on == current_id:
             st.markdown("**Link to this saved revision** (opens exactly these inputs and this result):")
@@ -234,7 +363,7 @@ def render_history(rev_id: str, base: str) -> None:
     st.markdown("**Revisions** (newest first)")
     st.markdown("\n".join(
         f"- [`{r.id}`]({revision_link(r.id, base)}) {r.saved_at:%Y-%m-%d %H:%M} UTC — {_plain(r.title)}"
-        for r in chain))
+        + (f" (saved by {_plain(r.saved_by)})" if r.saved_by else "") for r in chain))
 
 
 def _plain(text: str) -> str:

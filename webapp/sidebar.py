@@ -20,13 +20,17 @@ _HOW = ("**How it works**  \n"
 def _on_sample_pick() -> None:
     path = sample_files().get(st.session_state.get("sample_picker"))
     if path is not None:
-        page_state().replace(load_sample(path))
+        worksheet = load_sample(path)
+        page_state().replace(worksheet)
         sharing.forget_revision()
+        sharing.note_origin("sample", worksheet, path.name)
 
 
 def _on_new_worksheet() -> None:
-    page_state().replace(grids.empty_worksheet())
+    worksheet = grids.empty_worksheet()
+    page_state().replace(worksheet)
     sharing.forget_revision()
+    sharing.note_origin("new", worksheet)
 
 
 def render_sidebar() -> None:
