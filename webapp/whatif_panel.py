@@ -368,7 +368,7 @@ def _cases_section(worksheet: Worksheet, system: str, set_worksheet) -> None:
                     st.warning(f"{len(refusals)} case(s) cannot be solved (empty columns):", icon=":material/block:")
                     st.markdown("\n".join(f"- {plain(name)}: {plain(_refusal(exc, system))}"
                                           for name, exc in refusals.items()))
-    with st.expander("Add or edit a case", expanded=not worksheet.cases):
+    with st.expander("Add or edit a case", expanded=True):
         _case_editor(worksheet, set_worksheet)
 
 
