@@ -453,6 +453,8 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
     for case in data.get("cases", []):
         for override in case.get("overrides", []):
             override["address"] = follow_rename(override["address"], item_address, new)
+    for tolerance in data.get("tolerances", []):
+        tolerance["address"] = follow_rename(tolerance["address"], item_address, new)
     for u in data.get("unknowns", []):
         if top in ("streams", "vessels") and len(path) == 1 and u.get("line") == old:
             u["line"] = new

@@ -85,6 +85,7 @@ class Result:
     # filled by the analyses (this module may not import them): one analyses.screening.Screening per vessel
     # with a reaction
     screening: list["Screening"] = field(default_factory=list)  # noqa: F821
+    uncertainty: object = None  # analyses.uncertainty.Uncertainty of the answer, when the sheet has tolerances
 
     @property
     def heat_si_unit(self) -> str:
@@ -104,6 +105,10 @@ def _plain(value, write_phrase):
     """Dataclasses, lists and dicts as plain data; a phrase as its text."""
     if isinstance(value, Phrase):
         return write_phrase(value)
+    if isinstance(value, BaseException):
+        return {"where": getattr(value, "where", ""), "message": write_phrase(getattr(value, "phrase", str(value)))}
+    if hasattr(value, "model_dump"):  # a worksheet model (a tolerance) as typed
+        return value.model_dump(mode="json", exclude_none=True)
     if is_dataclass(value):
         return {f.name: _plain(getattr(value, f.name), write_phrase) for f in fields(value)}
     if isinstance(value, (list, tuple)):

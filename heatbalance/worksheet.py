@@ -19,7 +19,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -282,6 +282,31 @@ class Case(_Model):
     notes: str = Field(default="", max_length=2000)
 
 
+class Tolerance(_Model):
+    """How sure an input is, by its address: ``± plus_minus`` (a unit of the input's kind; a temperature
+    difference for a temperature, e.g. ``"0.5 K"``; a plain number for a fraction) or ``± percent`` of its value.
+
+    ``distribution`` says what the ± means (GUM 4.3): ``rectangular`` (limits, e.g. an instrument's
+    specification: u = a/√3), ``normal`` (a is one standard uncertainty: u = a), ``95 %`` (a is an expanded
+    uncertainty at about 95 %, k = 2: u = a/2).
+    """
+
+    address: str = Field(min_length=1, max_length=500)
+    plus_minus: Quantity | float | None = None
+    percent: float | None = Field(default=None, ge=0.0, le=100.0)
+    distribution: Literal["rectangular", "normal", "95 %"] = "rectangular"
+    source: str = Field(default="", max_length=300)
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if (self.plus_minus is None) == (self.percent is None):
+            raise ValueError("give the tolerance as 'plus_minus' or as 'percent', one of them")
+        size = self.plus_minus.value if isinstance(self.plus_minus, Quantity) else self.plus_minus
+        if size is not None and size < 0:
+            raise ValueError(f"a tolerance is a ± half-width and cannot be negative ({size:g})")
+        return self
+
+
 class Worksheet(_Model):
     """A whole worksheet, version :data:`SCHEMA_VERSION`."""
 
@@ -298,6 +323,7 @@ class Worksheet(_Model):
     reactions: list[Reaction] = Field(default_factory=list, max_length=50)
     unknowns: list[Unknown] = Field(default_factory=list, max_length=10)
     cases: list[Case] = Field(default_factory=list, max_length=50)
+    tolerances: list[Tolerance] = Field(default_factory=list, max_length=500)
 
     @field_validator("schema_version")
     @classmethod
@@ -312,7 +338,8 @@ class Worksheet(_Model):
         terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
-                  ("material", [m.name for m in self.materials]), ("case", [c.name for c in self.cases])]
+                  ("material", [m.name for m in self.materials]), ("case", [c.name for c in self.cases]),
+                  ("tolerance address", [t.address for t in self.tolerances])]
         groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]
         for label, group in groups:
             repeated = sorted({n for n in group if group.count(n) > 1})

@@ -43,6 +43,14 @@ def analyse(problem, result):
 
 
 def solve_and_analyse(ws: Worksheet) -> Result:
-    """Build, solve and analyse a worksheet: what the page and the command line show (SI records)."""
+    """Build, solve and analyse a worksheet: what the page and the command line show (SI records).
+
+    With tolerances, the answer's uncertainty is propagated too (``result.uncertainty``).
+    """
     problem = build_problem(ws)
-    return analyse(problem, solve_problem(problem))
+    result = analyse(problem, solve_problem(problem))
+    if ws.tolerances:
+        from .uncertainty import propagate  # only sheets with tolerances pay for it
+
+        result.uncertainty = propagate(ws)
+    return result

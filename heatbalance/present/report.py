@@ -5,6 +5,8 @@ from ..results import SIGN_CONVENTION, Result
 from .screening import screening_report
 from .tables import contribution_rows
 from .text import answer_text, answer_unit, answer_value, format_heat, phrase_text
+from .uncertainty import contribution_rows as uncertainty_rows
+from .uncertainty import monte_carlo_text, uncertainty_text
 
 __all__ = ["format_result", "result_json"]
 
@@ -35,10 +37,26 @@ def format_result(result: Result, system: str = "SI") -> str:
     out += [f"  - {a}" for a in result.assumptions]
     out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
     out += ["warnings:"] + ([f"  ! {phrase_text(w, system)}" for w in result.warnings] or ["  (none)"])
+    if result.uncertainty is not None:
+        out += [""] + uncertainty_report(result.uncertainty, system, result.answer)
     if result.screening:
         out += [""] + screening_report(result.screening, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
     return "\n".join(out)
+
+
+def uncertainty_report(u, system: str, answer) -> list[str]:
+    """The answer ± U and its contributors, for the command line."""
+    rows = uncertainty_rows(u, system, answer)
+    out = ["UNCERTAINTY (GUM: linear propagation of the inputs' tolerances)",
+           f"  {answer.label} = {uncertainty_text(u, system, answer)}"]
+    if rows:
+        columns = [c for c in rows[0] if c not in ("address", "source")]
+        out += ["  " + line for line in _table(rows, columns).splitlines()]
+    out += [f"  note: {phrase_text(n, system)}" for n in u.notes]
+    if u.monte_carlo is not None:
+        out.append("  " + monte_carlo_text(u, system, answer))
+    return out
 
 
 def result_json(result: Result, system: str = "SI") -> dict:
@@ -47,4 +65,7 @@ def result_json(result: Result, system: str = "SI") -> dict:
     data["answer"].update(text=answer_text(result.answer, system), unit=answer_unit(result.answer, system),
                           value=answer_value(result.answer, system))
     data["units"] = system
+    if result.uncertainty is not None:
+        data["uncertainty"].update(expanded=result.uncertainty.expanded,
+                                   text=uncertainty_text(result.uncertainty, system, result.answer))
     return data

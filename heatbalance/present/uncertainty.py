@@ -1,0 +1,84 @@
+"""An output's uncertainty in a unit set: ``value ± U`` and the ranked contributions (reads analyses.uncertainty)."""
+from __future__ import annotations
+
+from ..address import label
+from ..analyses.uncertainty import Uncertainty
+from ..results import Answer
+from ..units import from_si
+from .text import UNIT_SETS, answer_unit, display_unit
+
+__all__ = ["uncertainty_unit", "uncertainty_text", "contribution_rows", "monte_carlo_text", "tolerance_text"]
+
+
+def uncertainty_unit(u: Uncertainty, system: str = "SI", answer: Answer | None = None) -> str:
+    """The answer's own unit (as on the answer), else the view's unit of the output's kind."""
+    if u.output == "answer" and answer is not None:
+        return answer_unit(answer, system)
+    return UNIT_SETS[system].get(u.kind, "")
+
+
+def _value(x: float, unit: str, kind: str) -> float:
+    return from_si(x, unit, kind) if unit else x
+
+
+def _difference(x: float, unit: str, kind: str) -> float:
+    """A difference (an uncertainty) in ``unit``: the offset of °C or °F cancels."""
+    return from_si(x, unit, kind) - from_si(0.0, unit, kind) if unit else x
+
+
+_DIFFERENCE_SHOWN = {"degC": "K", "°C": "K", "C": "K", "degF": "°F", "°F": "°F", "F": "°F"}
+
+
+def _number(x: float) -> str:
+    return f"{x:,.4g}" if abs(x) < 1e5 else f"{x:,.0f}"
+
+
+def uncertainty_text(u: Uncertainty, system: str = "SI", answer: Answer | None = None) -> str:
+    """``28,310 ± 2,370 kg/h (k = 2, about 95 %)``."""
+    unit = uncertainty_unit(u, system, answer)
+    value, expanded = _value(u.value, unit, u.kind), abs(_difference(u.expanded, unit, u.kind))
+    return (f"{_number(value)} ± {_number(expanded)} {display_unit(unit)}".rstrip() +
+            f" (k = {u.coverage:g}, about 95 %)")
+
+
+def tolerance_text(c) -> str:
+    """``± 0.5 K (rectangular)``, ``± 1.5 % (rectangular)``."""
+    t = c.tolerance
+    size = f"{t.percent:g} %" if t.percent is not None else \
+        (f"{t.plus_minus.value:g} {display_unit(t.plus_minus.unit)}" if hasattr(t.plus_minus, "unit")
+         else f"{t.plus_minus:g}")
+    return f"± {size} ({t.distribution})"
+
+
+def contribution_rows(u: Uncertainty, system: str = "SI", answer: Answer | None = None) -> list[dict]:
+    """One row per input, largest contribution first: the input as typed, its tolerance, u(x), its part."""
+    unit = uncertainty_unit(u, system, answer)
+    shown = display_unit(unit)
+    rows = []
+    for c in u.contributions:
+        rows.append({
+            "input": label(c.address), "address": c.address,
+            "value": f"{c.value:g} {display_unit(c.unit)}".rstrip(),
+            "tolerance": tolerance_text(c), "source": c.tolerance.source,
+            "u(input)": f"{c.standard:.3g} {_DIFFERENCE_SHOWN.get(c.unit, display_unit(c.unit))}".rstrip(),
+            f"contribution [{shown}]": _difference(c.contribution, unit, u.kind),
+            "share": f"{c.share:.1%}",
+            "note": "one-sided (a side cannot be solved)" if c.refused is not None else
+                    "non-linear over the tolerance" if c.nonlinear else "",
+        })
+    return rows
+
+
+def monte_carlo_text(u: Uncertainty, system: str = "SI", answer: Answer | None = None) -> str:
+    """The Monte Carlo check in words, beside the linear result."""
+    mc = u.monte_carlo
+    if mc is None:
+        return ""
+    unit = uncertainty_unit(u, system, answer)
+    if mc.solved < 2:
+        return f"Monte Carlo: {mc.solved} of {mc.draws:,} draws solved; no check possible."
+    low, high = (_value(x, unit, u.kind) for x in (mc.low, mc.high))
+    return (f"Monte Carlo ({mc.solved:,} of {mc.draws:,} draws solved): mean {_number(_value(mc.mean, unit, u.kind))}, "
+            f"standard deviation {_number(abs(_difference(mc.standard, unit, u.kind)))}, 95 % of draws between "
+            f"{_number(low)} and {_number(high)} {display_unit(unit)}; linear: u = "
+            f"{_number(abs(_difference(u.standard, unit, u.kind)))}".rstrip())

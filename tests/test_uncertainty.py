@@ -1,0 +1,126 @@
+"""How sure is the number (issue 15, part 1): GUM propagation of the inputs' tolerances, checked by hand.
+
+References: JCGM 100:2008 (GUM) 4.3.7 (rectangular: u = a/√3) and 5.1.2 (the law of propagation);
+water enthalpies and cp from IAPWS-IF97 via the independent ``iapws`` package.
+"""
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from iapws import IAPWS97
+
+from heatbalance import address as A
+from heatbalance.analyses import solve_and_analyse
+from heatbalance.analyses.uncertainty import propagate, suggested_tolerances
+from heatbalance.cli import main
+from heatbalance.errors import AddressError, InputError, WorksheetFormatError
+from heatbalance.present.uncertainty import contribution_rows, uncertainty_text
+from heatbalance.worksheet import load_worksheet, parse_worksheet
+
+P = 0.301325  # MPa: 2 barg
+
+
+def cooling_water(tolerances):
+    """10 kg/s of cooling water from 20 to 30 °C at 2 barg: what duty does it take? (our own scenario)"""
+    return parse_worksheet({
+        "streams": [{"name": "CW", "material": "water", "flow": "36 t/h", "pressure": "2 barg",
+                     "inlet": {"temperature": "20 degC"}, "outlet": {"temperature": "30 degC"}}],
+        "duties": [{"name": "Cooler"}], "unknowns": [{"kind": "duty", "term": "Cooler"}],
+        "tolerances": tolerances})
+
+
+TOLERANCES = [{"address": "streams[CW].flow", "percent": 1.0, "distribution": "normal"},
+              {"address": "streams[CW].inlet.temperature", "plus_minus": "0.5 K"},
+              {"address": "streams[CW].outlet.temperature", "plus_minus": "0.9 degF"}]  # = 0.5 K
+
+
+def test_the_cooling_water_duty_uncertainty_equals_the_analytic_propagation():
+    u = propagate(cooling_water(TOLERANCES))
+    # by hand (GUM 5.1.2): Q = m·(h2 − h1); ∂Q/∂m = h2 − h1; ∂Q/∂T1 = −m·cp(T1); ∂Q/∂T2 = m·cp(T2)
+    h1, h2 = IAPWS97(T=293.15, P=P), IAPWS97(T=303.15, P=P)
+    m = 10.0
+    u_m = 0.01 * m  # ±1 % given as one standard uncertainty
+    u_T = 0.5 / math.sqrt(3)  # ±0.5 K limits, rectangular (GUM 4.3.7)
+    parts = {"streams[CW].flow": (h2.h - h1.h) * 1e3 * u_m, "streams[CW].inlet.temperature": m * h1.cp * 1e3 * u_T,
+             "streams[CW].outlet.temperature": m * h2.cp * 1e3 * u_T}
+    expected = math.sqrt(sum(p * p for p in parts.values()))
+    assert u.value == pytest.approx(m * (h2.h - h1.h) * 1e3, rel=1e-5)
+    assert u.standard == pytest.approx(expected, rel=1e-3)
+    assert u.expanded == pytest.approx(2 * expected, rel=1e-3)
+    for c in u.contributions:
+        assert c.contribution == pytest.approx(parts[c.address], rel=1e-3), c.address
+    assert [c.address for c in u.contributions][-1] == "streams[CW].flow"  # ranked: the thermometers dominate
+    assert sum(c.share for c in u.contributions) == pytest.approx(1.0, rel=1e-9)
+
+
+def test_monte_carlo_agrees_with_the_linear_result_on_a_linear_case():
+    u = propagate(cooling_water(TOLERANCES), monte_carlo=4000)
+    mc = u.monte_carlo
+    assert mc.solved == 4000
+    # sampling error of a standard deviation from n draws: about s/√(2(n−1)) = 1.1 %; allow 4 of them
+    assert mc.standard == pytest.approx(u.standard, rel=0.045)
+    assert mc.mean == pytest.approx(u.value, abs=4 * u.standard / math.sqrt(4000))
+    assert mc.low < u.value - u.standard < u.value + u.standard < mc.high
+
+
+def test_the_report_writes_the_answer_with_its_expanded_uncertainty():
+    result = solve_and_analyse(cooling_water(TOLERANCES))
+    text = uncertainty_text(result.uncertainty, "SI", result.answer)
+    Q, U = result.uncertainty.value / 1e3, result.uncertainty.expanded / 1e3
+    assert text == f"{Q:,.4g} ± {U:,.4g} kW (k = 2, about 95 %)"
+    rows = contribution_rows(result.uncertainty, "US", result.answer)
+    assert rows[0]["tolerance"] in ("± 0.5 K (rectangular)", "± 0.9 °F (rectangular)")
+    assert rows[0]["contribution [Btu/h]"] == pytest.approx(result.uncertainty.contributions[0].contribution
+                                                            / 0.29307107, rel=1e-6)  # 1 Btu/h = 0.29307107 W
+
+
+@pytest.mark.parametrize("tolerance, error, message", [
+    ({"address": "streams[CW].flow", "percent": -1}, WorksheetFormatError, "greater than or equal to 0"),
+    ({"address": "streams[CW].flow", "plus_minus": "-1 t/h"}, WorksheetFormatError, "cannot be negative"),
+    ({"address": "streams[CW].inlet.temperature", "plus_minus": "0.5 kg"}, InputError,
+     r"^streams\[CW\]\.inlet\.temperature: tolerance 0.5 kg: unit 'kg' is not a temperature difference"),
+    ({"address": "streams[CW].flow", "plus_minus": "1 kW"}, InputError, r"^streams\[CW\]\.flow: tolerance 1 kW"),
+    ({"address": "duties[Cooler].value", "percent": 2}, InputError, r"^duties\[Cooler\]\.value: this is the unknown"),
+    ({"address": "streams[Nope].flow", "percent": 2}, AddressError, r"no stream called 'Nope'"),
+    ({"address": "streams[CW].material", "percent": 2}, AddressError, r"not a numeric input"),
+])
+def test_bad_tolerances_are_refused_with_their_address(tolerance, error, message):
+    with pytest.raises(error, match=message):
+        propagate(cooling_water([tolerance]))
+
+
+def test_the_screening_temperature_has_an_uncertainty_too():
+    ws = load_worksheet(open("sample_data/glycol_hydration_screening.json", "rb").read())
+    ws = ws.model_copy(update={"tolerances": suggested_tolerances(ws)})
+    u = propagate(ws, output="screening[R-7].MTSR")
+    assert u.kind == "temperature" and u.standard > 0
+    # the heat of reaction is computed from the equation (not an input), so the charges and the jacket dominate
+    assert u.contributions[0].address in {c.address for c in u.contributions}
+
+
+def test_suggested_tolerances_name_their_source_and_leave_out_the_unknown():
+    ws = load_worksheet(open("sample_data/steam_heater_glycol.json", "rb").read())
+    suggested = suggested_tolerances(ws)
+    assert "streams[Steam].flow" not in {t.address for t in suggested}  # the unknown
+    assert all("common practice" in t.source for t in suggested)
+    assert {t.address for t in suggested} >= {"streams[Glycol].flow", "streams[Glycol].inlet.temperature"}
+
+
+def test_a_rename_carries_the_tolerances():
+    ws = cooling_water(TOLERANCES)
+    renamed = A.rename(ws, "streams[CW]", "Cooling water")
+    assert [t.address for t in renamed.tolerances][0] == "streams[Cooling water].flow"
+    assert propagate(renamed).standard == pytest.approx(propagate(ws).standard, rel=1e-12)
+
+
+def test_the_cli_prints_the_uncertainty_and_its_json(tmp_path, capsys):
+    path = tmp_path / "cw.json"
+    path.write_text(cooling_water(TOLERANCES).model_dump_json())
+    assert main(["solve", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "UNCERTAINTY" in out and "Cooler = " in out and "± " in out and "(k = 2, about 95 %)" in out
+    assert main(["solve", str(path), "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["uncertainty"]["expanded"] == pytest.approx(2 * data["uncertainty"]["standard"])
