@@ -19,7 +19,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -307,12 +307,21 @@ class Tolerance(_Model):
         return self
 
 
+class SheetTags(_Model):
+    """Where the calculation belongs, for the printed sheet: site, job (project or work order), equipment tag."""
+
+    site: str = Field(default="", max_length=120)
+    job: str = Field(default="", max_length=120)
+    equipment: str = Field(default="", max_length=120)
+
+
 class Worksheet(_Model):
     """A whole worksheet, version :data:`SCHEMA_VERSION`."""
 
     schema_version: int = SCHEMA_VERSION
     title: str = Field(default="Untitled worksheet", max_length=200)
     notes: str = Field(default="", max_length=20_000)
+    tags: SheetTags = SheetTags()
     basis: Basis = Basis()
     materials: list[UserMaterial] = Field(default_factory=list, max_length=50)
     common_temperatures: list[CommonTemperature] = Field(default_factory=list, max_length=50)

@@ -39,16 +39,17 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
     return out.getvalue().encode("utf-8-sig")
 
 
-def _slug(title: str) -> str:
+def slug(title: str) -> str:
+    """A title as a file name stem: ``glycol_loop_heater_on_4_barg_steam``."""
     keep = "".join(c if c.isalnum() else "_" for c in title.strip().lower())
     return "_".join(part for part in keep.split("_") if part)[:60] or "worksheet"
 
 
 def worksheet_filename(worksheet: Worksheet) -> str:
     """``glycol_loop_heater_on_4_barg_steam.json``"""
-    return _slug(worksheet.title) + ".json"
+    return slug(worksheet.title) + ".json"
 
 
 def results_filename(worksheet: Worksheet) -> str:
     """``glycol_loop_heater_on_4_barg_steam_results.csv``"""
-    return _slug(worksheet.title) + "_results.csv"
+    return slug(worksheet.title) + "_results.csv"

@@ -27,7 +27,7 @@ def temperature_difference_text(dT: float, system: str = "SI") -> str:
 _dt = temperature_difference_text
 
 
-def screening_report(screenings: list[Screening], system: str = "SI") -> list[str]:
+def screening_report(screenings: list[Screening], system: str = "SI", caution: bool = True) -> list[str]:
     """Lines of text for the command line: the numbers, the class, the alarms and the caution.
 
     Parameters
@@ -36,6 +36,8 @@ def screening_report(screenings: list[Screening], system: str = "SI") -> list[st
         From ``Result.screening``
     system : str
         ``"SI"`` or ``"US"``: the display units
+    caution : bool
+        Write the caution (a document that shows it once elsewhere leaves it out here)
 
     Returns
     -------
@@ -45,7 +47,7 @@ def screening_report(screenings: list[Screening], system: str = "SI") -> list[st
     out: list[str] = []
     for s in screenings:
         title = f"THERMAL SCREENING  vessel {s.vessel} ({', '.join(s.reactions)})"
-        out += [title, "-" * len(title), f"  caution: {s.caution}"]
+        out += [title, "-" * len(title)] + ([f"  caution: {s.caution}"] if caution else [])
         for alarm in s.alarms:
             out.append(f"  !!! ALARM: {phrase_text(alarm, system)}")
         units = UNIT_SETS[system]

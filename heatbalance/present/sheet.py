@@ -1,0 +1,376 @@
+"""The calculation sheet: a printable, fileable PDF of one solved worksheet (reportlab, vector drawing).
+
+Title, site, job and equipment; revision id and its link; the date and the unit set; every input as typed with
+its tolerance; the sign convention; assumptions; property sources and library versions; each line's sensible
+and latent heat, the reaction, equipment and loss terms, the closing residual; the answer (± its uncertainty,
+with its contributors); warnings and the safety caution; the thermal screening; the energy waterfall; the
+sign-offs of the revision ("unchecked" where there are none). A header and "page n of N" on every page.
+
+reportlab was chosen over an HTML-to-PDF route because it is pure Python with no system libraries (the
+README's one ``pip install`` is enough), draws the figures as vectors, and its output is deterministic.
+User text is escaped before it reaches reportlab's paragraph markup: it is shown, never interpreted.
+"""
+from __future__ import annotations
+
+import io
+import os
+from dataclasses import dataclass, replace
+from datetime import datetime, timezone
+from xml.sax.saxutils import escape
+
+from reportlab.graphics.shapes import Drawing, Line, Rect, String
+from reportlab.lib import colors
+from reportlab.lib.pagesizes import A4
+from reportlab.lib.styles import ParagraphStyle, getSampleStyleSheet
+from reportlab.lib.units import mm
+from reportlab.pdfbase import pdfmetrics
+from reportlab.pdfbase.ttfonts import TTFont
+from reportlab.platypus import KeepTogether, Paragraph, SimpleDocTemplate, Spacer, Table, TableStyle
+
+from .. import address as addresses
+from ..reactor import CAUTION
+from ..results import SIGN_CONVENTION, Result
+from ..worksheet import Quantity, Worksheet
+from ..units import heat_kind
+from .exports import slug
+from .figures import CLOSING_COLOUR, HEAT_IN_COLOUR, HEAT_OUT_COLOUR, waterfall_steps
+from .screening import screening_report
+from .tables import contribution_rows
+from .text import UNIT_SETS, amount_text, answer_text, display_unit, format_heat, no_negative_zero, phrase_text
+from .uncertainty import contribution_rows as uncertainty_rows
+from .uncertainty import monte_carlo_text, tolerance_text, uncertainty_text
+
+__all__ = ["SignOff", "sheet_pdf_bytes", "sheet_filename", "UNCHECKED"]
+
+UNCHECKED = "Unchecked: no sign-off is recorded for this revision."
+ROLES = ("prepared", "checked", "approved")
+
+
+@dataclass(frozen=True)
+class SignOff:
+    """One sign-off of a revision: its role, who, when (UTC) and a comment (as recorded, never edited)."""
+
+    role: str
+    name: str
+    signed_at: datetime
+    comment: str = ""
+
+
+# --------------------------------------------------------------------------- fonts and text
+_FALLBACK = {"Δ": "Delta ", "Σ": "Sum ", "φ": "phi", "→": "->", "≥": ">=", "≤": "<=", "−": "-"}
+
+
+def _font() -> tuple[str, str]:
+    """A Unicode TrueType font: DejaVu Sans where the system has it, else reportlab's own Vera."""
+    if "Sheet" in pdfmetrics.getRegisteredFontNames():
+        return "Sheet", "Sheet-Bold"
+    import reportlab
+
+    system = "/usr/share/fonts/truetype/dejavu/"
+    bundled = os.path.join(os.path.dirname(reportlab.__file__), "fonts")
+    if os.path.exists(system + "DejaVuSans.ttf") and os.path.exists(system + "DejaVuSans-Bold.ttf"):
+        regular, bold = system + "DejaVuSans.ttf", system + "DejaVuSans-Bold.ttf"
+    else:
+        regular, bold = os.path.join(bundled, "Vera.ttf"), os.path.join(bundled, "VeraBd.ttf")
+    pdfmetrics.registerFont(TTFont("Sheet", regular))
+    pdfmetrics.registerFont(TTFont("Sheet-Bold", bold))
+    return "Sheet", "Sheet-Bold"
+
+
+def _plain(text) -> str:
+    """User or engine text made safe for a paragraph: escaped markup, glyphs the font lacks spelled out."""
+    face = pdfmetrics.getFont(_font()[0]).face
+    out = "".join(ch if ord(ch) in face.charToGlyph or ch in "\n\t" else _FALLBACK.get(ch, "?") for ch in str(text))
+    return escape(out)
+
+
+def _styles():
+    regular, bold = _font()
+    base = getSampleStyleSheet()
+    body = ParagraphStyle("body", parent=base["BodyText"], fontName=regular, fontSize=8.5, leading=10.5)
+    return {
+        "body": body,
+        "small": ParagraphStyle("small", parent=body, fontSize=7.5, leading=9),
+        "cell": ParagraphStyle("cell", parent=body, fontSize=7.5, leading=9),
+        "number": ParagraphStyle("number", parent=body, fontSize=7.5, leading=9, alignment=2),
+        "h1": ParagraphStyle("h1", parent=base["Heading1"], fontName=bold, fontSize=14, leading=17, spaceAfter=4),
+        "h2": ParagraphStyle("h2", parent=base["Heading2"], fontName=bold, fontSize=10.5, leading=13,
+                             spaceBefore=8, spaceAfter=3),
+        "answer": ParagraphStyle("answer", parent=body, fontName=bold, fontSize=12, leading=15),
+        "alarm": ParagraphStyle("alarm", parent=body, fontName=bold, textColor=colors.HexColor("#9b1c1c")),
+    }
+
+
+def _p(text, style) -> Paragraph:
+    return Paragraph(_plain(text).replace("\n", "<br/>"), style)
+
+
+def _table(rows: list[list], widths: list[float], styles, header: bool = True, numbers_from: int | None = None):
+    """A ruled table of plain-text cells; columns from ``numbers_from`` on are right-aligned numbers."""
+    def cell(c, column: int):
+        if isinstance(c, Paragraph):
+            return c
+        numeric = numbers_from is not None and column >= numbers_from
+        return _p(c, styles["number"] if numeric else styles["cell"])
+
+    cells = [[cell(c, j) if i or not header else _p(c, styles["cell"]) for j, c in enumerate(row)]
+             for i, row in enumerate(rows)]
+    table = Table(cells, colWidths=widths, repeatRows=1 if header else 0)
+    style = [("GRID", (0, 0), (-1, -1), 0.25, colors.HexColor("#9aa0a6")),
+             ("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 3),
+             ("RIGHTPADDING", (0, 0), (-1, -1), 3), ("TOPPADDING", (0, 0), (-1, -1), 1.5),
+             ("BOTTOMPADDING", (0, 0), (-1, -1), 1.5)]
+    if header:
+        style.append(("BACKGROUND", (0, 0), (-1, 0), colors.HexColor("#e8eaed")))
+    table.setStyle(TableStyle(style))
+    return table
+
+
+# --------------------------------------------------------------------------- sections
+def _identity(ws: Worksheet, revision: str, link: str, system: str, printed: datetime, styles) -> list:
+    tags = ws.tags
+    rows = [["Site", tags.site or "-", "Revision", revision or "not saved: no revision id"],
+            ["Job", tags.job or "-", "Link", link or "-"],
+            ["Equipment", tags.equipment or "-", "Printed", printed.strftime("%Y-%m-%d %H:%M UTC")],
+            ["Basis", ws.basis.kind + (f", {ws.basis.duration}" if ws.basis.duration else ""), "Units",
+             "SI (°C, kg, kW)" if system == "SI" else "US customary (°F, lb, Btu)"]]
+    width = 180 * mm
+    return [_p(ws.title, styles["h1"]), _table(rows, [22 * mm, 68 * mm, 20 * mm, width - 110 * mm], styles,
+                                               header=False)] + \
+        ([Spacer(1, 3), _p(ws.notes, styles["small"])] if ws.notes else [])
+
+
+def _answer(result: Result, system: str, styles) -> list:
+    out = [_p("Answer", styles["h2"])]
+    text = f"{result.answer.label} = {answer_text(result.answer, system)}"
+    if result.uncertainty is not None:
+        text = f"{result.answer.label} = {uncertainty_text(result.uncertainty, system, result.answer)}"
+    out.append(_p(text, styles["answer"]))
+    in_view = answer_text(replace(result.answer, typed_unit=None), system)
+    if in_view != answer_text(result.answer, system):  # typed in another unit than the view's: both
+        out.append(_p(f"= {in_view} (in the sheet's units; the answer is given in the unit typed for it)",
+                      styles["body"]))
+    out.append(_p(f"Closure residual: {format_heat(result.residual, result.basis, system)} (zero when the "
+                  "balance closes)", styles["body"]))
+    return out
+
+
+def _warnings(ws: Worksheet, result: Result, system: str, styles) -> list:
+    out = [_p("Warnings and cautions", styles["h2"])]
+    warnings = [phrase_text(w, system) for w in result.warnings]
+    alarms = [phrase_text(a, system) for s in result.screening for a in s.alarms]
+    out += [_p(f"ALARM: {a}", styles["alarm"]) for a in alarms]
+    out += [_p(f"• {w}", styles["body"]) for w in warnings] or [_p("No warnings.", styles["body"])]
+    if ws.vessels or ws.reactions:
+        out.append(_p(f"Safety: {CAUTION}", styles["alarm"]))
+    return out
+
+
+def _inputs(ws: Worksheet, styles) -> list:
+    tolerances = {t.address: t for t in ws.tolerances}
+    rows = [["input", "as typed", "tolerance", "address"]]
+    for entry in addresses.inputs(ws):
+        value = "? (the unknown)" if entry.is_unknown else _typed(entry.value)
+        tolerance = tolerances.get(entry.address)
+        rows.append([addresses.label(entry.address), value,
+                     tolerance_text(_Tol(tolerance)) if tolerance else "", entry.address])
+    materials = [[f"{s.name}", s.material + (f", mass fraction {s.mass_fraction:g}" if s.mass_fraction else "")]
+                 for s in ws.streams]
+    materials += [[f"{v.name} / {c.name}", c.material + (f", mass fraction {c.mass_fraction:g}" if c.mass_fraction
+                                                          else "")] for v in ws.vessels for c in v.charges]
+    materials += [[f"{v.name} equipment", v.equipment.material or f"heat capacity {v.equipment.heat_capacity}"]
+                  for v in ws.vessels if v.equipment]
+    materials += [[f"reaction {r.name}", r.equation or f"ΔH {r.enthalpy}"] for r in ws.reactions]
+    out = [_p("Inputs (as typed)", styles["h2"]), _table(rows, [52 * mm, 30 * mm, 38 * mm, 60 * mm], styles)]
+    if materials:
+        out += [Spacer(1, 4), _table([["line", "material / equation"], *materials], [60 * mm, 120 * mm], styles)]
+    return out
+
+
+@dataclass
+class _Tol:
+    """A tolerance alone, shaped for present.uncertainty.tolerance_text."""
+
+    tolerance: object
+
+
+def _typed(value) -> str:
+    if isinstance(value, Quantity):
+        return f"{value.value:g} {display_unit(value.unit)}"
+    return f"{value:g}" if value is not None else ""
+
+
+def _conventions(result: Result, styles) -> list:
+    out = [_p("Sign convention", styles["h2"]), _p(SIGN_CONVENTION, styles["body"]), _p("Assumptions", styles["h2"])]
+    out += [_p(f"• {a}", styles["body"]) for a in result.assumptions]
+    out.append(_p("Property data and versions", styles["h2"]))
+    out += [_p(f"• {name}: {source}", styles["body"]) for name, source in result.sources.items()]
+    out.append(_p("Libraries: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()), styles["body"]))
+    return out
+
+
+def _contributions(result: Result, system: str, styles) -> list:
+    rows = contribution_rows(result, system)
+    unit = display_unit(UNIT_SETS[system][heat_kind(result.basis)])
+    table = [["item", "type", "from / detail", "to", f"sensible absorbed [{unit}]", f"latent absorbed [{unit}]",
+              f"heat into process [{unit}]"]]
+    for row in rows:
+        heats = [v for k, v in row.items() if "[" in k]
+        table.append([row["item"], row["type"], row["from"], row["to"],
+                      *("" if v is None else no_negative_zero(f"{v:,.2f}") for v in heats)])
+    return [_p("Every contribution (heat into the process; a line that absorbs heat shows as −)", styles["h2"]),
+            _table(table, [24 * mm, 15 * mm, 44 * mm, 33 * mm, 21 * mm, 21 * mm, 22 * mm], styles, numbers_from=4)]
+
+
+def _uncertainty(result: Result, system: str, styles) -> list:
+    u = result.uncertainty
+    if u is None:
+        return []
+    rows = uncertainty_rows(u, system, result.answer)
+    heading = [c for c in rows[0] if c not in ("address",)] if rows else []
+    table = [heading] + [[r[c] if not isinstance(r[c], float) else amount_text(r[c]) for c in heading] for r in rows]
+    out = [_p("How sure is the answer (GUM, linear propagation)", styles["h2"]),
+           _p(uncertainty_text(u, system, result.answer), styles["body"])]
+    if rows:
+        table[0] = [h.replace("contribution", "part") for h in table[0]]
+        out.append(_table(table, [34 * mm, 18 * mm, 24 * mm, 42 * mm, 16 * mm, 18 * mm, 12 * mm, 16 * mm], styles))
+    out += [_p(f"• {phrase_text(n, system)}", styles["small"]) for n in u.notes]
+    if u.monte_carlo is not None:
+        out.append(_p(monte_carlo_text(u, system, result.answer), styles["small"]))
+    return out
+
+
+def _screening(result: Result, system: str, styles) -> list:
+    if not result.screening:
+        return []
+    lines = screening_report(result.screening, system, caution=False)  # the caution is shown once, above
+    return [_p("Thermal screening", styles["h2"])] + [_p(line, styles["small"]) for line in lines if line.strip()]
+
+
+def _waterfall(result: Result, system: str, styles) -> list:
+    """The energy waterfall drawn as vectors: bars from the running sum, labelled, closing at zero."""
+    steps = waterfall_steps(result, system)
+    width, height, left, bottom = 180 * mm, 70 * mm, 18 * mm, 14 * mm
+    running, spans = 0.0, []
+    for step in steps[:-1]:
+        spans.append((running, running + step["heat"], step))
+        running += step["heat"]
+    spans.append((0.0, steps[-1]["heat"], steps[-1]))
+    low = min(0.0, *(min(a, b) for a, b, _ in spans))
+    high = max(0.0, *(max(a, b) for a, b, _ in spans))
+    scale = (height - bottom - 8) / ((high - low) or 1.0)
+    drawing = Drawing(width, height)
+    bar = (width - left) / len(spans)
+
+    def y(v: float) -> float:
+        return bottom + (v - low) * scale
+
+    drawing.add(Line(left, y(0), width, y(0), strokeColor=colors.black, strokeWidth=0.6))
+    regular = _font()[0]
+    for i, (a, b, step) in enumerate(spans):
+        colour = CLOSING_COLOUR if i == len(spans) - 1 else HEAT_IN_COLOUR if b >= a else HEAT_OUT_COLOUR
+        x = left + i * bar + bar * 0.15
+        drawing.add(Rect(x, min(y(a), y(b)), bar * 0.7, max(abs(y(b) - y(a)), 0.5),
+                         fillColor=colors.HexColor(colour), strokeColor=None))
+        name = _plain(step["label"])[:18]
+        drawing.add(String(x, 2, name, fontName=regular, fontSize=6))
+        drawing.add(String(x, max(y(a), y(b)) + 1.5, no_negative_zero(amount_text(step["heat"])), fontName=regular,
+                           fontSize=6))
+    unit = display_unit(UNIT_SETS[system][heat_kind(result.basis)])
+    drawing.add(String(0, height - 6, f"[{unit}]", fontName=regular, fontSize=7))
+    return [KeepTogether([_p("Energy waterfall (heat into the process; the sum closes at zero)", styles["h2"]),
+                          drawing])]
+
+
+def _cases(ws: Worksheet, system: str, styles) -> list:
+    """The worksheet's named cases side by side (what if), when it has any."""
+    if not ws.cases:
+        return []
+    from ..analyses.cases import run_cases
+    from .whatif import case_table
+
+    frame = run_cases(ws)
+    table = case_table(frame, system)
+    names = list(frame.attrs["cases"])
+    rows = [["output", *names]] + [[index, *(amount_text(table.loc[index, n]) for n in names)] for index in table.index]
+    width = 180 * mm
+    out = [_p("Cases (what if)", styles["h2"]),
+           _table(rows, [52 * mm] + [(width - 52 * mm) / len(names)] * len(names), styles, numbers_from=1)]
+    for case in ws.cases:
+        overrides = "; ".join(f"{addresses.label(o.address)} = {_typed(o.value)}" for o in case.overrides)
+        out.append(_p(f"{case.name}: {overrides}" + (f" ({case.notes})" if case.notes else ""), styles["small"]))
+    for name, exc in frame.attrs["refusals"].items():
+        out.append(_p(f"{name}: not solved: {exc.where}: {phrase_text(exc.phrase, system)}", styles["alarm"]))
+    return out
+
+
+def _signoffs(signoffs: list[SignOff], styles) -> list:
+    out = [_p("Sign-off", styles["h2"])]
+    if not signoffs:
+        out.append(_p(UNCHECKED, styles["alarm"]))
+    rows = [["role", "name", "date (UTC)", "comment"]]
+    by_role = {role: [s for s in signoffs if s.role == role] for role in ROLES}
+    for role in ROLES:
+        for s in by_role[role] or [None]:
+            rows.append([role, s.name if s else "", s.signed_at.strftime("%Y-%m-%d %H:%M") if s else "",
+                         s.comment if s else ""])
+    out.append(_table(rows, [22 * mm, 45 * mm, 30 * mm, 83 * mm], styles))
+    return out
+
+
+# --------------------------------------------------------------------------- the document
+def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision: str = "", link: str = "",
+                    signoffs: list[SignOff] | None = None, printed: datetime | None = None) -> bytes:
+    """The calculation sheet of a solved worksheet as PDF bytes (A4)."""
+    styles = _styles()
+    printed = printed or datetime.now(timezone.utc)
+    story = []
+    for section in (_identity(ws, revision, link, system, printed, styles), _answer(result, system, styles),
+                    _warnings(ws, result, system, styles), _inputs(ws, styles), _contributions(result, system, styles),
+                    _uncertainty(result, system, styles), _cases(ws, system, styles), _screening(result, system, styles),
+                    _waterfall(result, system, styles), _conventions(result, styles),
+                    _signoffs(signoffs or [], styles)):
+        story += section
+    buffer = io.BytesIO()
+    header = _plain(f"{ws.title} | {ws.tags.job or 'no job'} | {ws.tags.equipment or 'no equipment tag'} | "
+                    f"revision {revision or 'not saved'}")
+    document = SimpleDocTemplate(buffer, pagesize=A4, leftMargin=15 * mm, rightMargin=15 * mm, topMargin=18 * mm,
+                                 bottomMargin=15 * mm, title=ws.title, author="heat-balance worksheet",
+                                 subject=f"calculation sheet, revision {revision or 'not saved'}")
+    document.build(story, canvasmaker=_numbered(header))
+    return buffer.getvalue()
+
+
+def _numbered(header: str):
+    """A canvas that writes the header and 'page n of N' on every page (N known once all are laid out)."""
+    from reportlab.pdfgen.canvas import Canvas
+
+    class NumberedCanvas(Canvas):
+        def __init__(self, *args, **kwargs):
+            super().__init__(*args, **kwargs)
+            self._pages = []
+
+        def showPage(self):
+            self._pages.append(dict(self.__dict__))
+            self._startPage()
+
+        def save(self):
+            total = len(self._pages)
+            for state in self._pages:
+                self.__dict__.update(state)
+                regular = _font()[0]
+                self.setFont(regular, 7)
+                self.setFillColor(colors.HexColor("#5f6368"))
+                self.drawString(15 * mm, A4[1] - 11 * mm, header[:150])
+                self.drawRightString(A4[0] - 15 * mm, 8 * mm, f"page {self._pageNumber} of {total}")
+                self.line(15 * mm, A4[1] - 12.5 * mm, A4[0] - 15 * mm, A4[1] - 12.5 * mm)
+                super().showPage()
+            super().save()
+
+    return NumberedCanvas
+
+
+def sheet_filename(ws: Worksheet, revision: str = "") -> str:
+    """``toluene_overhead_condenser_rev_1a2b3c.pdf``"""
+    stem = slug(ws.title)
+    return f"{stem}_rev_{revision[:8]}.pdf" if revision else f"{stem}_unsaved.pdf"
