@@ -44,6 +44,11 @@ def _idle(page) -> None:
     page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden")
 
 
+def _wait_for_value(page, widget: str, value: str) -> None:
+    page.wait_for_function("([w, v]) => { const e = document.querySelector(`.st-key-${w} input`); "
+                           "return e !== null && e.value === v; }", arg=[widget, value])
+
+
 def _set_number(page, widget: str, text: str) -> None:
     field = page.locator(f".st-key-{widget} input")
     field.fill(text)
@@ -60,7 +65,7 @@ def test_a_sweep_draws_its_chart_and_its_csv_has_the_swept_values(page, output_d
     ws = load_worksheet(SAMPLE.read_bytes())
     page.locator(PANEL).scroll_into_view_if_needed()
     # the default: the first input that is not the unknown, from its typed value (12 t/h) ± half
-    page.wait_for_function("() => document.querySelector('.st-key-whatif_unit_0 input').value === 't/h'")
+    _wait_for_value(page, "whatif_unit_0", "t/h")
     _set_number(page, "whatif_from_0", "4")
     _set_number(page, "whatif_to_0", "16")
     _set_number(page, "whatif_count_0", "7")
@@ -97,13 +102,13 @@ def test_a_fifty_by_fifty_grid_draws_its_heat_map(page, output_dir):
     """The issue's 50 × 50 grid on the sample: drawn on the page (the time is printed, not asserted)."""
     page.locator(PANEL).scroll_into_view_if_needed()
     page.locator(".st-key-whatif_axis_0").click()
-    page.get_by_role("option", name="Glycol outlet temperature").click()
-    page.wait_for_function("() => document.querySelector('.st-key-whatif_unit_0 input').value === '°C'")
+    page.get_by_role("option", name="Glycol outlet temperature", exact=True).click()
+    _wait_for_value(page, "whatif_unit_0", "°C")
     _set_number(page, "whatif_from_0", "20")
     _set_number(page, "whatif_to_0", "100")
     _set_number(page, "whatif_count_0", "50")
     page.locator(".st-key-whatif_axis_1").click()
-    page.get_by_role("option", name="Glycol flow").click()
+    page.get_by_role("option", name="Glycol flow", exact=True).click()
     page.wait_for_selector(".st-key-whatif_count_1 input")
     _set_number(page, "whatif_count_1", "50")
     run = page.locator(".st-key-whatif_run button")
