@@ -104,7 +104,7 @@ def _open(args) -> int:
     return 0
 
 
-def _sheet(source: str):
+def _worksheet_of(source: str):
     """A worksheet from a file, else from a revision id or a share link."""
     return _load(source) if os.path.exists(source) else _opened(source)
 
@@ -161,7 +161,7 @@ def _sweep(args) -> int:
     from .analyses.sweep import sweep
     from .present.whatif import refusal_rows, sweep_csv_bytes, sweep_table
 
-    frame = sweep(_sheet(args.worksheet), [parse_vary(v) for v in args.vary], args.output or None)
+    frame = sweep(_worksheet_of(args.worksheet), [parse_vary(v) for v in args.vary], args.output or None)
     _print_frame(sweep_table(frame, args.units), args, sweep_csv_bytes(frame, args.units))
     if not (args.json or args.csv):
         for row in refusal_rows(frame, args.units):
@@ -175,7 +175,7 @@ def _cases(args) -> int:
     from .analyses.cases import AS_TYPED, run_cases
     from .present.whatif import case_table
 
-    frame = run_cases(_sheet(args.worksheet), args.base or AS_TYPED, args.output or None)
+    frame = run_cases(_worksheet_of(args.worksheet), args.base or AS_TYPED, args.output or None)
     table = case_table(frame, args.units)
     buffer = io.StringIO()
     table.to_csv(buffer, lineterminator="\n")
@@ -189,7 +189,47 @@ def _cases(args) -> int:
 def _history(args) -> int:
     with _open_store() as store:
         for rev in store.history(args.id):
-            print(f"{rev.id}  {rev.saved_at:%Y-%m-%d %H:%M:%S} UTC  {rev.title}")
+            by = f"  saved by {rev.saved_by}" if rev.saved_by else ""
+            print(f"{rev.id}  {rev.saved_at:%Y-%m-%d %H:%M:%S} UTC  {rev.title}{by}")
+    return 0
+
+
+def _sheet(args) -> int:
+    """The calculation sheet as PDF: a saved revision (with its sign-offs) or an unsaved file ("unchecked")."""
+    from .links import parse_link, revision_link
+    from .present.sheet import sheet_filename, sheet_pdf_bytes
+
+    revision, signoffs = "", []
+    if os.path.exists(args.source):
+        worksheet = _load(args.source)
+    else:
+        kind, value = parse_link(args.source)
+        if kind == "sheet":
+            worksheet = _opened(args.source)
+        else:
+            with _open_store() as store:
+                worksheet, revision, signoffs = store.open(value).worksheet, value, store.signoffs(value)
+    link = revision_link(revision, os.environ.get("HEATBALANCE_BASE_URL", "")) if revision else ""
+    pdf = sheet_pdf_bytes(worksheet, solve_and_analyse(worksheet), args.units, revision, link, signoffs)
+    path = args.output or sheet_filename(worksheet, revision)
+    try:
+        with open(path, "wb") as handle:
+            handle.write(pdf)
+    except OSError as exc:
+        raise _FileError(f"cannot write it ({exc.strerror or exc})", path) from None
+    print(path)
+    return 0
+
+
+def _sign(args) -> int:
+    from .links import parse_link
+
+    kind, value = parse_link(args.id)
+    if kind != "ws":
+        raise HeatBalanceError("only a saved revision can be signed: save the worksheet, then sign its id", "id")
+    with _open_store() as store:
+        signed = store.sign(value, args.role, args.name, args.comment or "")
+    print(f"{signed.role} by {signed.name}, {signed.signed_at:%Y-%m-%d %H:%M:%S} UTC, revision {signed.revision}")
     return 0
 
 
@@ -242,6 +282,18 @@ def _parser() -> argparse.ArgumentParser:
         formats.add_argument("--csv", action="store_true", help="print the table as CSV")
         command.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
         command.set_defaults(handler=handler)
+    sheet = commands.add_parser("sheet", help="write the calculation sheet (PDF) of a file or a saved revision"
+                                + store_help)
+    sheet.add_argument("source", help="a worksheet .json file, a revision id or a share link")
+    sheet.add_argument("-o", "--output", help="the PDF file to write (default: named after the title and revision)")
+    sheet.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
+    sheet.set_defaults(handler=_sheet)
+    sign = commands.add_parser("sign", help="record a sign-off of a saved revision (never changes it)" + store_help)
+    sign.add_argument("id", help="a revision id (or its ?ws= link)")
+    sign.add_argument("--role", required=True, choices=["prepared", "checked", "approved"])
+    sign.add_argument("--name", required=True, help="who signs")
+    sign.add_argument("--comment", help="a comment kept with the sign-off")
+    sign.set_defaults(handler=_sign)
     history = commands.add_parser("history", help="list a revision and its ancestors, newest first" + store_help)
     history.add_argument("id", help="a revision id")
     history.set_defaults(handler=_history)

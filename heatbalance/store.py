@@ -52,7 +52,8 @@ from .errors import HeatBalanceError
 from .links import ID_LENGTH, LinkError, canonical_json, check_id
 from .worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-__all__ = ["StoreError", "RevisionNotFoundError", "RevisionInfo", "Revision", "WorksheetStore", "open_store",
+__all__ = ["StoreError", "RevisionNotFoundError", "RevisionInfo", "Revision", "SignOff", "ROLES", "WorksheetStore",
+           "open_store",
            "default_database_path", "database_url", "MAX_HISTORY", "ENV_DB", "ENV_DATABASE_URL",
            "LinkError"]  # LinkError: a malformed id, refused by the store's methods too
 
@@ -84,6 +85,20 @@ store_info = sa.Table(
     sa.Column("value", sa.String(200), nullable=False),
 )
 _parent_index = sa.Index("heatbalance_revisions_parent", revisions.c.parent_id)
+signoffs = sa.Table(  # added to format 2 as a new table: a program that does not know it leaves it alone
+    "heatbalance_signoffs", _metadata,
+    sa.Column("id", sa.String(32), primary_key=True),  # the first 24 hex digits of record_sha256
+    sa.Column("revision_id", sa.String(32), nullable=False),
+    sa.Column("role", sa.String(20), nullable=False),
+    sa.Column("name", sa.String(MAX_SAVED_BY), nullable=False),
+    sa.Column("signed_at", sa.String(40), nullable=False),  # ISO 8601, UTC, microseconds
+    sa.Column("comment", sa.Text, nullable=False),
+    sa.Column("record_sha256", sa.String(64), nullable=False),
+)
+_signoff_index = sa.Index("heatbalance_signoffs_revision", signoffs.c.revision_id)
+ROLES = ("prepared", "checked", "approved")
+MAX_COMMENT = 2000  # characters of a sign-off's comment
+_SIGNOFF = ("revision_id", "role", "name", "signed_at", "comment")
 
 
 class StoreError(HeatBalanceError, RuntimeError):
@@ -103,6 +118,21 @@ class RevisionInfo:
     title: str
     saved_at: datetime
     saved_by: str = ""
+
+
+@dataclass(frozen=True)
+class SignOff:
+    """A sign-off of one saved revision: its role (prepared, checked, approved), who, when (UTC), a comment.
+
+    Stored as its own record, only ever inserted: it never alters the revision, and no method changes or
+    removes it. An edit of the worksheet is a new revision, with no sign-offs.
+    """
+
+    revision: str
+    role: str
+    name: str
+    signed_at: datetime
+    comment: str = ""
 
 
 @dataclass(frozen=True)
@@ -228,6 +258,8 @@ class WorksheetStore:
         """Check an existing store (reading only), create the tables of a new one, or migrate format 1."""
         statements = [sa.schema.CreateTable(table, if_not_exists=True) for table in (revisions, store_info)]
         statements.append(sa.schema.CreateIndex(_parent_index, if_not_exists=True))
+        signoff_statements = [sa.schema.CreateTable(signoffs, if_not_exists=True),
+                              sa.schema.CreateIndex(_signoff_index, if_not_exists=True)]
         for attempt in range(5):
             try:
                 with self._engine.connect() as conn:
@@ -246,6 +278,12 @@ class WorksheetStore:
                 if found != STORE_FORMAT:
                     raise StoreError(f"{self.where} holds worksheet store format {found!r}; this program reads "
                                      f"format {STORE_FORMAT}", "store")
+                with self._engine.connect() as conn:
+                    has_signoffs = sa.inspect(conn).has_table(signoffs.name)
+                if not has_signoffs:  # a format-2 store from before sign-offs: add their table
+                    with self._engine.begin() as conn:
+                        for statement in signoff_statements:
+                            conn.execute(statement)
                 if self.dialect == "sqlite":
                     self._use_wal()
                 return
@@ -410,6 +448,51 @@ class WorksheetStore:
         except sa_exc.SQLAlchemyError as exc:
             raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
 
+    def sign(self, rev_id: str, role: str, name: str, comment: str = "") -> SignOff:
+        """Record a sign-off of a saved revision (never changing the revision); return it as stored.
+
+        Refuses an unknown revision, a role other than :data:`ROLES`, an empty name, a comment over
+        :data:`MAX_COMMENT` characters.
+        """
+        rev_id = check_id(rev_id)
+        if self.info(rev_id) is None:
+            raise RevisionNotFoundError(f"no saved worksheet has the id {rev_id} in this store: save it first, then "
+                                        "sign the saved revision", "ws")
+        if role not in ROLES:
+            raise StoreError(f"a sign-off's role is one of {', '.join(ROLES)}, not {role!r}", "role")
+        name = " ".join(str(name or "").split())[:MAX_SAVED_BY]
+        if not name:
+            raise StoreError("a sign-off needs the name of who signs", "name")
+        if not isinstance(comment, str) or len(comment) > MAX_COMMENT:
+            raise StoreError(f"a sign-off's comment is text of at most {MAX_COMMENT:,} characters", "comment")
+        row = dict(revision_id=rev_id, role=role, name=name, signed_at=_now(), comment=comment)
+        row["record_sha256"] = _signoff_digest(row)
+        row["id"] = row["record_sha256"][:ID_LENGTH]
+        try:
+            with self._engine.begin() as conn:
+                conn.execute(self._insert(signoffs).values(**row).on_conflict_do_nothing(index_elements=["id"]))
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "sign") from None
+        return _signoff(row)
+
+    def signoffs(self, rev_id: str) -> list[SignOff]:
+        """The sign-offs of a revision, oldest first, each checked against its record digest."""
+        rev_id = check_id(rev_id)
+        query = sa.select(signoffs).where(signoffs.c.revision_id == rev_id).order_by(signoffs.c.signed_at,
+                                                                                      signoffs.c.id)
+        try:
+            with self._engine.connect() as conn:
+                rows = conn.execute(query).all()
+        except sa_exc.SQLAlchemyError as exc:
+            raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "ws") from None
+        out = []
+        for row in rows:
+            if _signoff_digest(row._mapping) != row.record_sha256 or not row.record_sha256.startswith(row.id):
+                raise StoreError(f"a sign-off of revision {rev_id} has been altered in the database (its record no "
+                                 "longer matches its digest); the sign-offs are not shown", "ws")
+            out.append(_signoff(row._mapping))
+        return out
+
     def count(self) -> int:
         """How many revisions the store holds."""
         try:
@@ -417,6 +500,17 @@ class WorksheetStore:
                 return conn.execute(sa.select(sa.func.count()).select_from(revisions)).scalar_one()
         except sa_exc.SQLAlchemyError as exc:
             raise StoreError(_describe_db_error(exc, self.where, self.busy_timeout), "store") from None
+
+
+def _signoff_digest(row) -> str:
+    """SHA-256 (hex) of a sign-off's record (revision, role, name, time, comment) as sorted, compact JSON."""
+    text = json.dumps({k: row[k] for k in _SIGNOFF}, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def _signoff(row) -> SignOff:
+    return SignOff(row["revision_id"], row["role"], row["name"], datetime.fromisoformat(row["signed_at"]),
+                   row["comment"])
 
 
 def _sqlite_pragmas(dbapi_connection, _record) -> None:

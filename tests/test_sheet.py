@@ -15,10 +15,11 @@ import pytest
 
 from heatbalance import address as A
 from heatbalance.analyses import solve_and_analyse
-from heatbalance.present.sheet import UNCHECKED, SignOff, sheet_filename, sheet_pdf_bytes
+from heatbalance.present.sheet import UNCHECKED, sheet_filename, sheet_pdf_bytes
 from heatbalance.present.text import answer_text
 from heatbalance.present.uncertainty import uncertainty_text
 from heatbalance.reactor import CAUTION
+from heatbalance.store import SignOff
 from heatbalance.worksheet import Quantity, load_worksheet, parse_worksheet
 
 CONDENSER = "sample_data/solvent_condenser_cooling_water.json"
@@ -79,8 +80,8 @@ def test_the_uncertainty_and_the_cases_are_on_the_sheet():
 
 def test_sign_offs_are_printed_with_their_names_and_dates():
     ws = sample(CONDENSER)
-    signed = [SignOff("prepared", "A. Engineer", datetime(2026, 12, 1, 9, 30, tzinfo=timezone.utc), "first issue"),
-              SignOff("checked", "B. Checker", datetime(2026, 12, 2, 14, 0, tzinfo=timezone.utc), "agreed")]
+    signed = [SignOff(REVISION, "prepared", "A. Engineer", datetime(2026, 12, 1, 9, 30, tzinfo=timezone.utc), "first issue"),
+              SignOff(REVISION, "checked", "B. Checker", datetime(2026, 12, 2, 14, 0, tzinfo=timezone.utc), "agreed")]
     text = text_of(sheet_pdf_bytes(ws, solve_and_analyse(ws), "SI", revision=REVISION, signoffs=signed))
     assert "A. Engineer" in text and "2026-12-01 09:30" in text and "B. Checker" in text and "agreed" in text
     assert UNCHECKED not in text
@@ -113,3 +114,22 @@ def test_the_file_name_says_the_revision():
     ws = sample(CONDENSER)
     assert sheet_filename(ws, REVISION) == "toluene_overhead_condenser_cooling_water_demand_rev_01234567.pdf"
     assert sheet_filename(ws).endswith("_unsaved.pdf")
+
+
+def test_the_cli_writes_the_sheet_of_a_signed_revision(tmp_path, monkeypatch, capsys):
+    from heatbalance.cli import main
+
+    monkeypatch.setenv("HEATBALANCE_DB", str(tmp_path / "store.sqlite3"))
+    monkeypatch.delenv("HEATBALANCE_DATABASE_URL", raising=False)
+    assert main(["save", CONDENSER]) == 0
+    rev = capsys.readouterr().out.strip()
+    assert main(["sign", rev, "--role", "checked", "--name", "B. Checker", "--comment", "agreed"]) == 0
+    assert capsys.readouterr().out.startswith(f"checked by B. Checker, ")
+    out = tmp_path / "sheet.pdf"
+    assert main(["sheet", rev, "-o", str(out), "--units", "US"]) == 0
+    text = text_of(out.read_bytes())
+    assert rev in text and "B. Checker" in text and "agreed" in text and UNCHECKED not in text
+    assert main(["sheet", CONDENSER, "-o", str(tmp_path / "unsaved.pdf")]) == 0
+    assert UNCHECKED in text_of((tmp_path / "unsaved.pdf").read_bytes())
+    assert main(["sign", "0" * 24, "--role", "checked", "--name", "X"]) == 1
+    assert capsys.readouterr().err.startswith(f"error: ws: no saved worksheet has the id {'0' * 24}")

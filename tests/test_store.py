@@ -58,7 +58,8 @@ def _empty_postgres(url: str) -> None:
 
     engine = sa.create_engine(url)
     with engine.begin() as conn:
-        conn.execute(sa.text("DROP TABLE IF EXISTS heatbalance_revisions, heatbalance_store_info"))
+        conn.execute(sa.text("DROP TABLE IF EXISTS heatbalance_revisions, heatbalance_store_info, "
+                             "heatbalance_signoffs"))
     engine.dispose()
 
 
@@ -515,3 +516,60 @@ def test_cli_unreadable_database_is_one_line_and_untouched(monkeypatch, tmp_path
     err = capsys.readouterr().err
     assert err.startswith("error: store: ") and "is not a readable worksheet database" in err
     assert _file_digest(bad) == before
+
+
+# -- sign-offs (issue 15) -------------------------------------------------------------------------------------
+def _store_url(store) -> str:
+    return store.url.render_as_string(hide_password=False)
+
+
+def test_sign_offs_survive_a_reopen_and_a_new_revision_has_none(store):
+    from heatbalance.store import SignOff
+
+    first = store.save(_sample(SAMPLES[0]))
+    prepared = store.sign(first.id, "prepared", "A.  Engineer", "first issue")
+    checked = store.sign(first.id, "checked", "B. Checker", "agreed, see note 3")
+    assert isinstance(prepared, SignOff) and prepared.name == "A. Engineer" and prepared.revision == first.id
+    with WorksheetStore(_store_url(store)) as again:
+        stored = again.signoffs(first.id)
+    assert [(s.role, s.name, s.comment) for s in stored] == [("prepared", "A. Engineer", "first issue"),
+                                                             ("checked", "B. Checker", "agreed, see note 3")]
+    assert stored[0].signed_at <= stored[1].signed_at and stored[1].signed_at == checked.signed_at
+    edited = store.save(_sample(SAMPLES[0]).model_copy(update={"title": "edited"}), parent=first.id)
+    assert store.signoffs(edited.id) == []  # an edit is a new revision: unchecked
+    assert store.open(first.id).worksheet == _sample(SAMPLES[0])  # signing never altered the revision
+
+
+@pytest.mark.parametrize("rev, role, name, comment, where, message", [
+    ("0" * 24, "checked", "B", "", "ws", "no saved worksheet has the id 000000000000000000000000"),
+    (None, "reviewed", "B", "", "role", "one of prepared, checked, approved"),
+    (None, "checked", "  ", "", "name", "needs the name"),
+    (None, "checked", "B", "x" * 2001, "comment", "at most 2,000 characters"),
+])
+def test_bad_sign_offs_are_refused_with_where(store, rev, role, name, comment, where, message):
+    saved = store.save(_sample(SAMPLES[0]))
+    with pytest.raises(StoreError, match=message) as refusal:
+        store.sign(rev or saved.id, role, name, comment)
+    assert refusal.value.where == where
+    assert store.signoffs(saved.id) == []
+
+
+def test_a_sign_off_cannot_be_edited_through_any_api_and_an_edit_in_the_database_is_caught(store):
+    assert not [name for name in dir(store) if not name.startswith("_") and
+                any(word in name for word in ("update", "delete", "edit", "remove", "unsign", "replace"))]
+    saved = store.save(_sample(SAMPLES[0]))
+    store.sign(saved.id, "approved", "C. Approver")
+    _sql(_store_url(store), "UPDATE heatbalance_signoffs SET name = 'someone else'")
+    with pytest.raises(StoreError, match="has been altered in the database"):
+        store.signoffs(saved.id)
+
+
+def test_a_store_from_before_sign_offs_gains_their_table_and_keeps_its_revisions(tmp_path):
+    url = f"sqlite:///{tmp_path / 'old.sqlite3'}"
+    with WorksheetStore(url) as s:
+        saved = s.save(_sample(SAMPLES[0]))
+    _sql(url, "DROP TABLE heatbalance_signoffs")
+    with WorksheetStore(url) as s:
+        assert s.open(saved.id).worksheet == _sample(SAMPLES[0]) and s.signoffs(saved.id) == []
+        s.sign(saved.id, "checked", "B. Checker")
+        assert len(s.signoffs(saved.id)) == 1

@@ -40,20 +40,10 @@ from .text import UNIT_SETS, amount_text, answer_text, display_unit, format_heat
 from .uncertainty import contribution_rows as uncertainty_rows
 from .uncertainty import monte_carlo_text, tolerance_text, uncertainty_text
 
-__all__ = ["SignOff", "sheet_pdf_bytes", "sheet_filename", "UNCHECKED"]
+__all__ = ["sheet_pdf_bytes", "sheet_filename", "UNCHECKED"]
 
 UNCHECKED = "Unchecked: no sign-off is recorded for this revision."
 ROLES = ("prepared", "checked", "approved")
-
-
-@dataclass(frozen=True)
-class SignOff:
-    """One sign-off of a revision: its role, who, when (UTC) and a comment (as recorded, never edited)."""
-
-    role: str
-    name: str
-    signed_at: datetime
-    comment: str = ""
 
 
 # --------------------------------------------------------------------------- fonts and text
@@ -304,7 +294,7 @@ def _cases(ws: Worksheet, system: str, styles) -> list:
     return out
 
 
-def _signoffs(signoffs: list[SignOff], styles) -> list:
+def _signoffs(signoffs: list, styles) -> list:
     out = [_p("Sign-off", styles["h2"])]
     if not signoffs:
         out.append(_p(UNCHECKED, styles["alarm"]))
@@ -320,8 +310,12 @@ def _signoffs(signoffs: list[SignOff], styles) -> list:
 
 # --------------------------------------------------------------------------- the document
 def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision: str = "", link: str = "",
-                    signoffs: list[SignOff] | None = None, printed: datetime | None = None) -> bytes:
-    """The calculation sheet of a solved worksheet as PDF bytes (A4)."""
+                    signoffs: list | None = None, printed: datetime | None = None) -> bytes:
+    """The calculation sheet of a solved worksheet as PDF bytes (A4).
+
+    ``signoffs``: the revision's sign-offs, records with ``role``, ``name``, ``signed_at`` and ``comment``
+    (:class:`heatbalance.store.SignOff`); none prints "unchecked".
+    """
     styles = _styles()
     printed = printed or datetime.now(timezone.utc)
     story = []
