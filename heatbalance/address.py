@@ -437,7 +437,11 @@ def rename(ws: Worksheet, address: str, new_name: str) -> Worksheet:
     data = ws.model_dump(mode="json", exclude_none=True)
     holder = data
     for name, key in steps[:-1]:
-        holder = holder[name] if key is None else next(x for x in holder[name] if x["name"] == key)
+        found = holder.get(name) if key is None else next((x for x in holder.get(name, []) if x["name"] == key), None)
+        if not isinstance(found, dict):
+            raise AddressError(f"'{address}' names nothing in this worksheet (no {name} {key or ''})".rstrip(")")
+                               + ")", address)
+        holder = found
     items = holder.get(collection, [])
     if not any(x["name"] == old_name for x in items):
         raise AddressError(f"no {collection.rstrip('s')} called '{old_name}'", address)

@@ -232,3 +232,12 @@ def test_addresses_survive_a_share_link_and_the_store(path, tmp_path):
     for other in (reopened, saved):
         assert [(i.address, i.value) for i in A.inputs(other)] == [(i.address, i.value) for i in A.inputs(ws)]
         assert A.unknown_address(other.unknowns[0]) == A.unknown_address(ws.unknowns[0])
+
+
+def test_renaming_an_item_that_does_not_exist_is_refused_at_its_address():
+    ws = sample("sample_data/batch_reactor_exotherm.json")
+    with pytest.raises(AddressError) as refusal:
+        A.rename(ws, "vessels[R-9].charges[Batch]", "X")
+    assert refusal.value.where == "vessels[R-9].charges[Batch]"
+    with pytest.raises(AddressError, match="no stream called 'Nope'"):
+        A.rename(ws, "streams[Nope]", "X")
