@@ -15,7 +15,8 @@ import pytest
 from heatbalance import address as A
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.analyses.cases import AS_TYPED, run_cases
-from heatbalance.analyses.sweep import MAX_POINTS, REASON, REFUSED_AT, Axis, axis_values, output_names, sweep
+from heatbalance.analyses.sweep import (MAX_POINTS, REASON, REFUSED_AT, WARNINGS, Axis, axis_values, output_names,
+                                       sweep)
 from heatbalance.cli import main
 from heatbalance.errors import AddressError, HeatBalanceError, InputError
 from heatbalance.links import decode_sheet, parse_link, sheet_link
@@ -123,6 +124,17 @@ def test_a_sweep_crossing_a_phase_change_reports_each_point():
     assert fractions[0] > fractions[1] > 0 and math.isnan(fractions[2])  # 9 barg: no vapour, a plain temperature
 
 
+def test_each_point_reports_its_warnings():
+    """Steam let down from 15 barg: each point says the steam condenses (a phase change); the glycol heated past
+    its validated range says so too (a validity limit crossed along the sweep)."""
+    frame = sweep(sample(GLYCOL), [Axis("streams[Glycol].outlet.temperature", (40, 95), "degC")])
+    texts = [" ".join(p.text for p in phrases) for phrases in frame[WARNINGS]]
+    assert all("Steam changes phase" in t for t in texts)
+    expected = [solve_and_analyse(A.with_value(sample(GLYCOL), "streams[Glycol].outlet.temperature", (v, "degC")))
+                .warnings for v in (40, 95)]
+    assert [[p.text for p in w] for w in frame[WARNINGS]] == [[p.text for p in w] for w in expected]
+
+
 def test_outputs_are_named_and_checked():
     names = output_names(build_problem(sample(REACTOR)))
     assert {"answer", "residual", "lines[R-7 / Water].heat", "terms[Hydration].heat", "screening[R-7].MTSR",
@@ -144,7 +156,7 @@ def test_the_sweep_table_and_csv_are_in_the_view_units_and_the_answer_in_its_typ
                   ["answer", "lines[Glycol].heat"])
     table = sweep_table(frame, "US")
     assert list(table.columns) == ["Glycol outlet temperature [°C]", "Steam flow [kg/h]",
-                                   "Glycol: heat absorbed [Btu/h]", REFUSED_AT, REASON]
+                                   "Glycol: heat absorbed [Btu/h]", REFUSED_AT, REASON, WARNINGS]
     assert table["Steam flow [kg/h]"][0] == pytest.approx(sample_answer(GLYCOL) * 3600, rel=1e-9)
     rows = list(csv.DictReader(io.StringIO(sweep_csv_bytes(frame, "SI").decode("utf-8-sig"))))
     assert float(rows[1]["Glycol outlet temperature [°C]"]) == 60.0

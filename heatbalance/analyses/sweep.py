@@ -27,11 +27,13 @@ from ..units import check_unit, heat_kind, kind_of
 from ..worksheet import Quantity, Worksheet
 from . import analyse
 
-__all__ = ["Axis", "axis_values", "sweep", "output_names", "answer_field", "MAX_POINTS", "REFUSED_AT", "REASON"]
+__all__ = ["Axis", "axis_values", "sweep", "output_names", "answer_field", "MAX_POINTS", "REFUSED_AT", "REASON",
+           "WARNINGS"]
 
 MAX_POINTS = 100_000  # a sweep of more points is refused
 REFUSED_AT = "refused at"  # column: the address at fault at a refused point ("" when solved)
 REASON = "reason"  # column: the refusal (a HeatBalanceError) at a refused point, else None
+WARNINGS = "warnings"  # column: the point's warnings (Phrases: a phase change, extrapolated data...), else []
 
 
 @dataclass(frozen=True)
@@ -260,7 +262,8 @@ def sweep(ws: Worksheet, axes: list[Axis], outputs: list[str] | None = None, pro
     Returns
     -------
     pandas.DataFrame
-        One row per point: the axes (in their units), the outputs (SI), ``refused at`` and ``reason``.
+        One row per point: the axes (in their units), the outputs (SI), ``refused at``, ``reason`` and the
+        point's ``warnings`` (a phase change, data used beyond their validated range, a temperature cross).
         ``frame.attrs["units"]`` maps each axis column to its unit, ``frame.attrs["kinds"]`` each output to
         its kind.
 
@@ -293,7 +296,7 @@ def sweep(ws: Worksheet, axes: list[Axis], outputs: list[str] | None = None, pro
         rows.append(run.point(values, outputs))
         if progress is not None and (i % 50 == 49 or i == total - 1):
             progress(i + 1, total)
-    frame = pd.DataFrame(rows, columns=[a.column for a in axes] + outputs + [REFUSED_AT, REASON])
+    frame = pd.DataFrame(rows, columns=[a.column for a in axes] + outputs + [REFUSED_AT, REASON, WARNINGS])
     frame.attrs["units"] = {a.column: a.unit for a in axes}
     frame.attrs["kinds"] = {name: known[name] for name in outputs}
     frame.attrs["basis"] = problem.basis
@@ -312,11 +315,12 @@ class _FastRun:
         self.temperatures = dict(problem.temperatures)
 
     def point(self, values: tuple[float, ...], outputs: list[str]) -> list:
+        """``[*values, *outputs, refused at, reason, warnings]`` of one point."""
         try:
             result, screenings = self._solve(values)
         except HeatBalanceError as exc:
-            return [*values, *[math.nan] * len(outputs), exc.where or "worksheet", exc]
-        return [*values, *_collect(result, screenings, outputs).values(), "", None]
+            return [*values, *[math.nan] * len(outputs), exc.where or "worksheet", exc, []]
+        return [*values, *_collect(result, screenings, outputs).values(), "", None, result.warnings]
 
     def _solve(self, values):
         if self.fast:

@@ -226,7 +226,8 @@ def _entry(ws: Worksheet, tolerance: Tolerance, unknown: str) -> tuple[float, st
 def _evaluate(run: _FastRun, values: list[float], output: str):
     """The output at these input values (SI), or the refusal."""
     row = run.point(tuple(values), [output])
-    return row[-1] if row[-1] is not None else row[len(values)]
+    reason = row[len(values) + 2]
+    return reason if reason is not None else row[len(values)]
 
 
 def _contribution(ws, tolerance, entry, i, axes, kinds, entries, output, base) -> Contribution:

@@ -8,10 +8,10 @@ import pandas as pd
 import plotly.graph_objects as go
 
 from ..address import label as address_label
-from ..analyses.sweep import REASON, REFUSED_AT
+from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
 from ..errors import HeatBalanceError
 from ..units import check_unit, from_si
-from .text import UNIT_SETS, display_unit, error_text
+from .text import UNIT_SETS, display_unit, error_text, phrase_text
 
 __all__ = ["output_label", "output_unit", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
            "refusal_rows"]
@@ -69,6 +69,8 @@ def sweep_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
         out[header] = _convert(frame[name], kind, unit)
     out[REFUSED_AT] = frame[REFUSED_AT]
     out[REASON] = frame[REASON].map(lambda exc: "" if exc is None else error_text(exc, system))
+    if WARNINGS in frame:
+        out[WARNINGS] = frame[WARNINGS].map(lambda phrases: " ".join(phrase_text(p, system) for p in phrases))
     return pd.DataFrame(out)
 
 
