@@ -1,4 +1,5 @@
-"""The answer box: what is solved for, the answer in the unit typed for it, warnings, the one caution."""
+"""The answer box: what is solved for, the answer in the unit typed for it (± its uncertainty when the inputs
+have tolerances), warnings, the one caution."""
 from __future__ import annotations
 
 import dataclasses
@@ -8,6 +9,7 @@ import streamlit as st
 from heatbalance import address
 from heatbalance.errors import HeatBalanceError
 from heatbalance.present.text import answer_text, error_text, phrase_text
+from heatbalance.present.uncertainty import uncertainty_text
 from heatbalance.reactor import CAUTION
 from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
@@ -26,7 +28,14 @@ def render_header(worksheet: Worksheet) -> None:
 def _on_unknown_pick(choices: dict[str, str]) -> None:
     new = choices.get(st.session_state.get("unknown_picker"))
     if new is not None:
-        page_state().pick_unknown(new)
+        state = page_state()
+        state.pick_unknown(new)
+        kept = [t for t in state.worksheet.tolerances if t.address != new]
+        if len(kept) != len(state.worksheet.tolerances):  # the unknown is solved for: it has no tolerance
+            state.set_worksheet(state.worksheet.model_copy(update={"tolerances": kept}))
+            st.session_state["uncert_notice"] = (f"The tolerance on {address.label(new)} was removed: it is now "
+                                                 "the unknown, solved for.")
+            st.session_state.pop("uncert_refusal", None)
 
 
 def _render_unknown_picker(worksheet: Worksheet, blocked: bool) -> None:
@@ -61,6 +70,11 @@ def _render_answer_value(result: Result, system: str) -> None:
     in_view = answer_text(dataclasses.replace(answer, typed_unit=None), system)
     if in_view != shown:  # typed in another unit than the view's: show both
         st.caption(f"= {plain(in_view)}")
+    if getattr(result, "uncertainty", None) is not None:  # the sheet has tolerances: value ± U
+        with st.container(key="answer_uncertainty"):
+            st.markdown(f"**{plain(uncertainty_text(result.uncertainty, system, answer))}**",
+                        help="From the inputs' tolerances (GUM, inputs uncorrelated); the contributors are "
+                             "listed under \"How sure is the answer\".")
 
 
 def _render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None, system: str) -> None:
