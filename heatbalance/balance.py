@@ -20,7 +20,6 @@ from dataclasses import dataclass
 from scipy.optimize import brentq
 
 from .address import item
-from .address import label as address_label
 from .errors import HeatBalanceError, InputError, NoSolutionError
 from .materials import get_material
 from .messages import Measure, Phrase
@@ -170,8 +169,16 @@ def _solve_temperature(p: Problem) -> float | None:
             else:
                 fixed += sign * ln.amount * evaluate_state(ln.material, state, temps, {}).h
 
+    for material, state, _ in moving:  # checked once here, so the residual below need not check again
+        if state.plateau is None and hasattr(material, "check_pressure"):
+            material.check_pressure(state.P, state.pressure_address)
+    plain = [(material.enthalpy, state.P, weight) for material, state, weight in moving if state.plateau is None]
+    fast = not equipment_dep and len(plain) == len(moving)
+
     def residual(T: float, side: float | None = None) -> float:
         temps[var] = T
+        if side is None and fast:  # off every plateau, inside every material's range (the bracket's bounds)
+            return fixed + sum(weight * enthalpy(T, P) for enthalpy, P, weight in plain)
         sides = {var: side} if side is not None else {}
         value = fixed + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
@@ -331,7 +338,7 @@ def _answer(p: Problem, fraction: float | None) -> Answer:
     plateau = None
     if fraction is not None:
         plateau = next(tr.kind for tr in _transitions_on(p, p.unknown_target) if abs(tr.T - value_si) < T_TOL)
-    return Answer(p.unknown_address, address_label(p.unknown_address), kind, si_kind, value_si,
+    return Answer(p.unknown_address, p.unknown_label, kind, si_kind, value_si,
                   p.unknown_typed_unit, fraction, plateau)
 
 

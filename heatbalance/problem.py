@@ -13,6 +13,7 @@ from functools import cached_property
 
 from .address import get as get_input
 from .address import item, unknown_address
+from .address import label as address_label
 from .errors import InputError
 from .materials import get_material
 from .messages import Measure, Phrase
@@ -132,6 +133,7 @@ class Problem:
     unknown_target: object  # a Line, a HeatTerm, or a temperature variable key
     unknown_address: str
     unknown_typed_unit: str | None = None  # the unit typed in the unknown's field (None: none typed)
+    unknown_label: str = ""  # the unknown's field in words
     vessels: list[str] = field(default_factory=list)
     screening: dict[str, ScreeningInputs] = field(default_factory=dict)  # vessel -> its inputs
     warnings: list[Phrase] = field(default_factory=list)
@@ -150,17 +152,18 @@ def typed_si(value: float, unit: str, kind: str, where: str) -> float:
     return to_si(value, unit, kind, where)
 
 
-def basis_si(q: Quantity, role: str, basis: str, duration: float | None, where: str) -> tuple[float, bool]:
-    """A quantity of a role (``amount``, ``heat``, ``moles``) on a basis, in SI, and whether a rate was applied
-    over the batch duration (continuous: rates only; batch: a total, or a rate times the duration)."""
+def basis_si(value: float, unit: str, role: str, basis: str, duration: float | None,
+             where: str) -> tuple[float, bool]:
+    """A typed value of a role (``amount``, ``heat``, ``moles``) on a basis, in SI, and whether a rate was
+    applied over the batch duration (continuous: rates only; batch: a total, or a rate times the duration)."""
     kinds = basis_kinds(role, basis)
-    kind = kinds[0] if len(kinds) == 1 else kind_of(q.unit, kinds, where)
-    value = _si(q, kind, where)
+    kind = kinds[0] if len(kinds) == 1 else kind_of(unit, kinds, where)
+    si = to_si(value, unit, kind, where)
     if basis == "batch" and kind == kinds[1]:
         if duration is None:
-            raise InputError(f"{q} is a rate; a batch worksheet needs a duration to apply it", where)
-        return value * duration, True
-    return value, False
+            raise InputError(f"{value:g} {unit} is a rate; a batch worksheet needs a duration to apply it", where)
+        return si * duration, True
+    return si, False
 
 
 class _Builder:
@@ -188,7 +191,7 @@ class _Builder:
     # -- quantities on the basis
     def basis_value(self, q: Quantity, role: str, where: str) -> float:
         """A total (batch) or a rate (continuous); a rate in batch is applied over the duration."""
-        value, over_duration = basis_si(q, role, self.basis, self.duration, where)
+        value, over_duration = basis_si(q.value, q.unit, role, self.basis, self.duration, where)
         if over_duration:
             self.assumptions.append(f"{where}: {q} applied over the batch duration {self.ws.basis.duration}.")
         return value
@@ -290,7 +293,7 @@ class _Builder:
         typed = get_input(ws, address)
         return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_addresses,
                        self.unknown, target, address, typed.unit if isinstance(typed, Quantity) else None,
-                       [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration)
+                       address_label(address), [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration)
 
     def _stream(self, s) -> Line:
         where = item("streams", s.name)

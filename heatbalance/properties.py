@@ -118,6 +118,7 @@ class CoolPropFluid(Material):
     def __init__(self, name: str, fluid: str, backend: str = "HEOS"):
         self.name, self.fluid, self.backend = name, fluid, backend
         self._local = _ThreadLocalState(backend, fluid, None)
+        self._transitions: dict[float, list[Transition]] = {}
         probe = CP.AbstractState("HEOS", fluid)
         self.t_min = max(probe.Ttriple(), probe.Tmin()) if backend == "HEOS" else 273.15
         self.t_max = probe.Tmax() if backend == "HEOS" else 1073.15
@@ -140,9 +141,14 @@ class CoolPropFluid(Material):
         return "supercritical fluid" if P >= self.p_critical else super().phase_name(T, P)
 
     def transitions(self, P: float) -> list[Transition]:
-        if not self.p_triple < P < self.p_critical:
-            return []  # supercritical, or below the triple point (sublimation is not modelled)
-        return [_saturation(self, P)]
+        """The boiling transition at P (kept per pressure: a solve asks many times; do not modify the list)."""
+        found = self._transitions.get(P)
+        if found is None:
+            # supercritical, or below the triple point (sublimation is not modelled): no transition
+            found = [_saturation(self, P)] if self.p_triple < P < self.p_critical else []
+            if len(self._transitions) < 4096:
+                self._transitions[P] = found
+        return found
 
     def enthalpy(self, T: float, P: float) -> float:
         EVALUATIONS.count += 1

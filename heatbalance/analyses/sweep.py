@@ -159,14 +159,11 @@ class _FastSetter:
             return self._screening(steps[0][1], field)
         return None
 
-    def _quantity(self, value: float) -> Quantity:
-        return Quantity(value=value, unit=self.axis.unit)
-
     def _amount(self, line):
         role = "amount"
 
         def apply(value: float) -> None:
-            si, _ = basis_si(self._quantity(value), role, self.p.basis, self.p.duration, self.axis.address)
+            si, _ = basis_si(value, self.axis.unit, role, self.p.basis, self.p.duration, self.axis.address)
             if si < 0:
                 raise InputError(f"a mass or flow cannot be negative ({value:g} {self.axis.unit})", self.axis.address)
             line.amount = si
@@ -179,7 +176,7 @@ class _FastSetter:
 
     def _heat(self, term, is_loss: bool):
         def apply(value: float) -> None:
-            si, _ = basis_si(self._quantity(value), "heat", self.p.basis, self.p.duration, self.axis.address)
+            si, _ = basis_si(value, self.axis.unit, "heat", self.p.basis, self.p.duration, self.axis.address)
             if is_loss and si < 0:
                 raise InputError(f"enter a loss as a positive amount of heat leaving ({value:g} {self.axis.unit})",
                                  self.axis.address)
