@@ -126,7 +126,7 @@ def _sheet_section(worksheet: Worksheet, result: Result | None, system: str, rev
                        mime="application/pdf", key=key("pdf"), on_click="ignore", icon=":material/picture_as_pdf:",
                        type="primary")
     if rev_id:
-        st.caption(f"Saved revision `{rev_id}`, with its link and its sign-offs "
+        st.caption(f"Printed with revision `{rev_id}`, its link and its sign-offs "
                    f"({len(signoffs) or 'none: printed unchecked'}); every input with its tolerance, the answer "
                    "± its uncertainty, the contributions, the waterfall and the conventions; in the view's units.")
     else:
