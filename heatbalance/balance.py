@@ -17,8 +17,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from scipy.optimize import brentq
-
 from .address import item
 from .errors import HeatBalanceError, InputError, NoSolutionError
 from .materials import get_material
@@ -222,6 +220,8 @@ def _transitions_on(p: Problem, var: str) -> list[Transition]:
 
 def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, float]) -> float:
     """Brent's method on one single-phase segment; its ends take the residual of the segment's side."""
+    from scipy.optimize import brentq  # imported at the first temperature solve (costs a part of a second)
+
     ends = dict((left, right))
 
     def on_segment(T: float) -> float:

@@ -9,17 +9,35 @@ import re
 import stat
 import sys
 
-from .analyses import solve_and_analyse
 from .errors import HeatBalanceError
-from .materials import catalogue
-from .present.report import format_result, result_json
-from .present.text import error_text
-from .worksheet import MAX_DOCUMENT_BYTES, dump_worksheet, load_worksheet
+
+# The command line imports, per command, only what that command needs (start-up time; see DEVELOPERS.md).
+MAX_DOCUMENT_BYTES = 1_000_000  # = worksheet.MAX_DOCUMENT_BYTES (checked by a test), without importing the model
 
 __all__ = ["main"]
 
 
+def solve_and_analyse(worksheet):
+    from .analyses import solve_and_analyse as run
+
+    return run(worksheet)
+
+
+def error_text(error, units: str) -> str:
+    from .present.text import error_text as words
+
+    return words(error, units)
+
+
+def load_worksheet(data, source: str = "file"):
+    from .worksheet import load_worksheet as load
+
+    return load(data, source)
+
+
 def _print_result(result, args) -> None:
+    from .present.report import format_result, result_json
+
     if args.json:
         print(json.dumps(result_json(result, args.units), indent=2, ensure_ascii=False))
     else:
@@ -62,6 +80,8 @@ def _solve(args) -> int:
 
 
 def _materials(args) -> int:
+    from .materials import catalogue
+
     for info in catalogue():
         print(f"{info.name:40s} {info.group:32s} {info.data}")
     return 0
@@ -100,6 +120,8 @@ def _open(args) -> int:
     if args.solve:
         _print_result(solve_and_analyse(worksheet), args)
     else:
+        from .worksheet import dump_worksheet
+
         print(dump_worksheet(worksheet))
     return 0
 

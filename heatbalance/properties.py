@@ -17,14 +17,31 @@ import threading
 from dataclasses import dataclass
 from functools import lru_cache
 
-import CoolProp
-import CoolProp.CoolProp as CP
+from types import SimpleNamespace
 
 from .errors import InputError, PropertyRangeError
 from .messages import Measure, Phrase
 
 __all__ = ["Transition", "Material", "CoolPropFluid", "IncompressibleSolution", "TabulatedMaterial",
            "Phase", "EVALUATIONS", "property_library_versions"]
+
+
+_LIBRARY = SimpleNamespace(module=None)
+
+
+def _cp():
+    """CoolProp's low-level module, imported on first use (a command that needs no properties never pays for it)."""
+    if _LIBRARY.module is None:
+        import CoolProp.CoolProp as coolprop
+
+        _LIBRARY.module = coolprop
+    return _LIBRARY.module
+
+
+def _version() -> str:
+    import CoolProp
+
+    return CoolProp.__version__
 
 
 class _Counter:
@@ -98,12 +115,12 @@ _UPPER_PHASE = {"boiling": "vapour", "melting": "liquid"}
 
 def property_library_versions() -> dict[str, str]:
     """Versions of the property libraries behind the results."""
-    return {"CoolProp": CoolProp.__version__}
+    return {"CoolProp": _version()}
 
 
 class _ThreadLocalState(threading.local):
     def __init__(self, backend: str, fluid: str, fraction: float | None):
-        self.state = CP.AbstractState(backend, fluid)
+        self.state = _cp().AbstractState(backend, fluid)
         if fraction is not None:
             self.state.set_mass_fractions([fraction])
 
@@ -119,6 +136,8 @@ class CoolPropFluid(Material):
         self.name, self.fluid, self.backend = name, fluid, backend
         self._local = _ThreadLocalState(backend, fluid, None)
         self._transitions: dict[float, list[Transition]] = {}
+        CP = _cp()
+        self._PT = CP.PT_INPUTS
         probe = CP.AbstractState("HEOS", fluid)
         self.t_min = max(probe.Ttriple(), probe.Tmin()) if backend == "HEOS" else 273.15
         self.t_max = probe.Tmax() if backend == "HEOS" else 1073.15
@@ -128,9 +147,9 @@ class CoolPropFluid(Material):
         # IF97 has no data below the triple-point pressure (611.657 Pa); HEOS gases go lower.
         self.p_min = self.p_triple if backend == "IF97" else 0.0
         label = "IAPWS-IF97" if backend == "IF97" else "Helmholtz equation of state"
-        self.source = f"CoolProp {CoolProp.__version__}, {backend} backend ({label})"
+        self.source = f"CoolProp {_version()}, {backend} backend ({label})"
 
-    def _state(self) -> CP.AbstractState:
+    def _state(self):
         return self._local.state
 
     def check_pressure(self, P: float, where: str = "") -> None:
@@ -154,7 +173,7 @@ class CoolPropFluid(Material):
         EVALUATIONS.count += 1
         state = self._state()
         try:
-            state.update(CP.PT_INPUTS, P, T)
+            state.update(self._PT, P, T)
             return state.hmass()
         except (ValueError, IndexError) as exc:
             if not self.p_triple < P < self.p_critical:
@@ -169,6 +188,7 @@ class CoolPropFluid(Material):
 
 @lru_cache(maxsize=4096)
 def _saturation_cached(fluid: str, backend: str, P: float) -> tuple[float, float, float]:
+    CP = _cp()
     state = CP.AbstractState(backend, fluid)
     state.update(CP.PQ_INPUTS, P, 0.0)
     T, h_liquid = state.T(), state.hmass()
@@ -195,17 +215,18 @@ class IncompressibleSolution(Material):
         self._local = _ThreadLocalState("INCOMP", code, fraction)
         state = self._local.state
         try:
-            t_freeze = CP.PropsSI("T_freeze", "T", 293.15, "P", 101325.0, f"INCOMP::{code}[{fraction}]")
+            t_freeze = _cp().PropsSI("T_freeze", "T", 293.15, "P", 101325.0, f"INCOMP::{code}[{fraction}]")
         except ValueError:
             t_freeze = state.Tmin()
         self.t_min = max(state.Tmin(), t_freeze)
         self.t_max = state.Tmax()
-        self.source = f"CoolProp {CoolProp.__version__}, incompressible solution {code} (mass-fraction fit)"
+        self.source = f"CoolProp {_version()}, incompressible solution {code} (mass-fraction fit)"
+        self._PT = _cp().PT_INPUTS
 
     def enthalpy(self, T: float, P: float) -> float:
         EVALUATIONS.count += 1
         state = self._local.state
-        state.update(CP.PT_INPUTS, P, T)
+        state.update(self._PT, P, T)
         return state.hmass()
 
 

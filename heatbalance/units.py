@@ -13,25 +13,37 @@ import math
 import re
 from functools import lru_cache
 
-import pint
-
 from .errors import InputError, UnitError
 
 __all__ = [
-    "ureg", "Q_", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
+    "registry", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
     "basis_kinds", "heat_kind",
 ]
 
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=True)
-# kcal as plant heat duties use it: the International Table calorie (1 kcal/h = 1.163 W), not pint's
-# thermochemical default.
-ureg.define("kcal = 1000 * international_calorie")
-ureg.define("MMBtu = 1e6 * Btu")
-ureg.define("lbmol = 453.59237 * mol = pound_mole")  # exact: a pound of substance in grams-per-mole
-ureg.define("MBtu = 1e3 * Btu")
-ureg.define("TR = ton_of_refrigeration")
-ureg.define("tonne_per_hour = tonne / hour = tph")
-Q_ = ureg.Quantity
+@lru_cache(maxsize=1)
+def registry():
+    """The one unit registry, built on first use (building it costs a noticeable part of a second)."""
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, case_sensitive=True)
+    # kcal as plant heat duties use it: the International Table calorie (1 kcal/h = 1.163 W), not pint's
+    # thermochemical default.
+    ureg.define("kcal = 1000 * international_calorie")
+    ureg.define("MMBtu = 1e6 * Btu")
+    ureg.define("lbmol = 453.59237 * mol = pound_mole")  # exact: a pound of substance in grams-per-mole
+    ureg.define("MBtu = 1e3 * Btu")
+    ureg.define("TR = ton_of_refrigeration")
+    ureg.define("tonne_per_hour = tonne / hour = tph")
+    return ureg
+
+
+def __getattr__(name: str):
+    """``units.ureg`` and ``units.Q_``: the registry and its Quantity, built on first use."""
+    if name == "ureg":
+        return registry()
+    if name == "Q_":
+        return registry().Quantity
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 ATMOSPHERE = 101325.0  # Pa, standard atmosphere (ISO 2533): the reference of every gauge pressure
 
@@ -96,11 +108,11 @@ def _normalise(unit: str) -> str:
 
 
 @lru_cache(maxsize=512)
-def _unit(text: str) -> pint.Unit:
-    return ureg.parse_units(text)
+def _unit(text: str):
+    return registry().parse_units(text)
 
 
-def _parse(unit: str, kind: str, where: str) -> tuple[pint.Unit, float]:
+def _parse(unit: str, kind: str, where: str) -> tuple:
     """Return (pint unit, offset in Pa for gauge pressures) for a unit typed for ``kind``."""
     text = unit.strip()
     offset = 0.0
@@ -138,7 +150,7 @@ def kind_of(unit: str, candidates: tuple[str, ...], where: str = "") -> str:
     raise UnitError(unit, expected, where)
 
 
-def _describe(unit: pint.Unit) -> str:
+def _describe(unit) -> str:
     dims = unit.dimensionality
     for kind, (si, words) in KINDS.items():
         if _unit(si).dimensionality == dims:
@@ -207,8 +219,9 @@ def _affine(unit: str, kind: str) -> tuple[float, float]:
     check_unit(unit, kind)
     parsed, gauge = _parse(unit, kind, "")
     si_unit = KINDS[kind][0]
-    offset = Q_(0.0, parsed).to(si_unit).magnitude
-    scale = Q_(1.0, parsed).to(si_unit).magnitude - offset
+    quantity = registry().Quantity
+    offset = quantity(0.0, parsed).to(si_unit).magnitude
+    scale = quantity(1.0, parsed).to(si_unit).magnitude - offset
     return float(scale), float(offset + gauge)
 
 

@@ -124,3 +124,22 @@ def test_save_refuses_a_parent_that_is_not_stored(tmp_path, capsys, monkeypatch)
     assert main(["save", FLASH]) == 0
     first = capsys.readouterr().out.strip()
     assert main(["save", HEATER, "--parent", first]) == 0
+
+
+def test_the_command_lines_size_limit_is_the_loaders():
+    from heatbalance import cli, worksheet
+
+    assert cli.MAX_DOCUMENT_BYTES == worksheet.MAX_DOCUMENT_BYTES
+
+
+@pytest.mark.parametrize("command, absent", [
+    (["materials"], {"CoolProp", "scipy.optimize", "plotly", "pandas", "sqlalchemy", "pint", "chemicals"}),
+    (["solve", FLASH], {"plotly", "sqlalchemy", "pandas", "chemicals", "reportlab"}),  # pint loads uncertainties
+])
+def test_a_command_imports_only_what_it_needs(command, absent):
+    """Start-up time (issue 16): what a command does not use is never imported."""
+    probe = ("import sys, runpy; sys.argv = ['heatbalance', *%r]\n"
+             "try:\n    runpy.run_module('heatbalance', run_name='__main__')\nexcept SystemExit:\n    pass\n"
+             "print(sorted(m for m in %r if m in sys.modules))" % (command, sorted(absent)))
+    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True)
+    assert done.stdout.strip().splitlines()[-1] == "[]", done.stdout[-500:] + done.stderr[-500:]

@@ -3,8 +3,6 @@ from __future__ import annotations
 
 from html import escape
 
-import plotly.graph_objects as go
-
 from ..analyses.screening import Screening
 from ..messages import Measure
 from ..reactor import CAUTION
@@ -93,6 +91,8 @@ def screening_figure(screening: Screening, system: str = "SI"):
         Bars in the order T_process, MTSR, MTT, T_D24 (those known); MTSR red and "ALARM" in
         the title when it reaches MTT or T_D24; the caution written under the plot.
     """
+    import plotly.graph_objects as go  # only a figure needs plotly (the command line's report does not)
+
     unit = UNIT_SETS[system]["temperature"]
 
     def shown(T: float) -> float:

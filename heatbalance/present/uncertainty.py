@@ -1,11 +1,15 @@
 """An output's uncertainty in a unit set: ``value ± U`` and the ranked contributions (reads analyses.uncertainty)."""
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from ..address import label
-from ..analyses.uncertainty import Uncertainty
 from ..results import Answer
 from ..units import from_si
 from .text import UNIT_SETS, answer_unit, display_unit
+
+if TYPE_CHECKING:  # the analysis (numpy, uncertainties) is loaded only when a sheet has tolerances
+    from ..analyses.uncertainty import Uncertainty
 
 __all__ = ["uncertainty_unit", "uncertainty_text", "contribution_rows", "monte_carlo_text", "tolerance_text"]
 
