@@ -36,7 +36,7 @@ __all__ = ["Input", "item", "parse", "inputs", "get", "with_value", "unknown_add
 
 FRACTION = "fraction"  # the kind of a plain number between 0 and 1
 _COLLECTIONS = {"streams", "vessels", "charges", "duties", "losses", "reactions", "common_temperatures",
-                "materials", "phases"}
+                "materials", "phases", "exchangers", "utilities"}
 _STATE_ENDS = ("inlet", "outlet", "initial", "final")
 _STEP = re.compile(r"(\w+)(?:\[((?:[^\]\\]|\\.)*)\])?")
 
@@ -148,6 +148,17 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "materials[].phases[].cp": ("specific_heat",),
     "materials[].phases[].up_to": ("temperature",),
     "materials[].phases[].latent_heat": ("specific_energy",),
+    "exchangers[].minimum_approach": ("temperature_difference",),
+    "exchangers[].U": ("heat_transfer_coefficient",),
+    "exchangers[].area": ("area",),
+    "exchangers[].UA": ("thermal_conductance",),
+    "utilities[].pressure": ("pressure",),
+    "utilities[].superheat": ("temperature_difference",),
+    "utilities[].condensate_temperature": ("temperature",),
+    "utilities[].supply_temperature": ("temperature",),
+    "utilities[].return_limit": ("temperature",),
+    "utilities[].mass_fraction": (FRACTION,),
+    "operating_hours": ("duration",),
 }
 _STATE_KINDS = {"temperature": ("temperature",), "pressure": ("pressure",), "vapour_fraction": (FRACTION,),
                 "solid_fraction": (FRACTION,)}
@@ -258,6 +269,14 @@ def inputs(ws: Worksheet) -> list[Input]:
     for r in ws.reactions:
         for name in ("enthalpy", "amount", "conversion", "molar_mass"):
             add(item("reactions", r.name, name), getattr(r, name))
+    for e in ws.exchangers:
+        for name in ("minimum_approach", "U", "area", "UA"):
+            add(item("exchangers", e.name, name), getattr(e, name))
+    for u in ws.utilities:
+        for name in ("pressure", "superheat", "condensate_temperature", "supply_temperature", "return_limit",
+                     "mass_fraction"):
+            add(item("utilities", u.name, name), getattr(u, name))
+    add("operating_hours", ws.operating_hours)
     return out
 
 
@@ -426,7 +445,8 @@ def with_unknown(ws: Worksheet, address: str, old_value=None) -> Worksheet:
 def rename(ws: Worksheet, address: str, new_name: str) -> Worksheet:
     """A copy with the item at ``address`` (``streams[Steam]``) renamed; references follow it.
 
-    The unknown, a reaction's ``vessel`` and states that name a shared temperature are updated.
+    The unknown, a reaction's ``vessel``, states that name a shared temperature, an exchanger's hot and cold
+    lines and a utility's material are updated.
     A name already used in the same list is refused.
     """
     steps = parse(address)
@@ -479,7 +499,14 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
         for state in states:
             if state.get("common") == old:
                 state["common"] = new
+    if path == ["streams"]:
+        for exchanger in data.get("exchangers", []):
+            for side in ("hot", "cold"):
+                exchanger[side] = [new if name == old else name for name in exchanger.get(side, [])]
     if path == ["materials"]:
+        for utility in data.get("utilities", []):
+            if utility.get("material") == old:
+                utility["material"] = new
         lines = data.get("streams", []) + [c for v in data.get("vessels", []) for c in v["charges"]]
         lines += [v["equipment"] for v in data.get("vessels", []) if v.get("equipment")]
         for line in lines:

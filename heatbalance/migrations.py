@@ -34,7 +34,8 @@ CURRENT_VERSION = 1
 
 #: Keys a worksheet of version 0 or 1 may have (with the model's fields): a document with none is not a worksheet.
 _WORKSHEET_KEYS = {"schema_version", "title", "notes", "basis", "materials", "common_temperatures",
-                   "streams", "vessels", "duties", "losses", "reactions", "unknowns", "unknown", "cases", "tolerances", "tags"}
+                   "streams", "vessels", "duties", "losses", "reactions", "unknowns", "unknown", "cases", "tolerances", "tags",
+                   "exchangers", "utilities", "operating_hours", "currency"}
 #: Keys of a solved result (``solve --json``): a common mix-up with a worksheet file.
 _RESULT_KEYS = {"answer", "lines", "terms", "residual"}
 

@@ -22,7 +22,8 @@ from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
-__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "Problem",
+__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
+           "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
            "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
@@ -118,6 +119,55 @@ class ScreeningInputs:
     jacket: JacketInputs | None = None
 
 
+#: K: the minimum approach when none is entered: about 10 K for shell-and-tube liquid service (common practice,
+#: no source; 3–5 K for plate exchangers, 20 K or more where one side is a gas; sites set their own)
+DEFAULT_MINIMUM_APPROACH = 10.0
+
+
+@dataclass
+class ExchangerInputs:
+    """An exchanger in SI: its hot and cold lines (by name), arrangement, minimum approach [K], U [W/(m²·K)],
+    area [m²], UA [W/K] (``None`` where not entered)."""
+
+    name: str
+    hot: list[str]
+    cold: list[str]
+    arrangement: str
+    shells: int
+    minimum_approach: float
+    approach_entered: bool
+    U: float | None = None
+    area: float | None = None
+    UA: float | None = None
+    utility_side: str | None = None
+
+    @property
+    def address(self) -> str:
+        return item("exchangers", self.name)
+
+
+@dataclass
+class UtilityInputs:
+    """A site utility in SI (K, Pa absolute); prices and CO2 factors as entered (currency per GJ/MWh/t, kg/GJ)."""
+
+    name: str
+    kind: str
+    material: Material | None = None
+    P: float | None = None  # Pa absolute (steam; the coolant's pressure)
+    superheat: float = 0.0  # K above saturation
+    condensate_T: float | None = None  # K (None: saturated)
+    supply_T: float | None = None
+    return_T: float | None = None
+    price: float = 0.0
+    per: str = "GJ"
+    co2_kg_per_GJ: float = 0.0
+    source: str = "site value"
+
+    @property
+    def address(self) -> str:
+        return item("utilities", self.name)
+
+
 @dataclass
 class Problem:
     """A worksheet in plain SI numbers."""
@@ -139,6 +189,10 @@ class Problem:
     warnings: list[Phrase] = field(default_factory=list)
     assumptions: list[str] = field(default_factory=list)
     duration: float | None = None  # s, the batch duration a rate is applied over
+    exchangers: list[ExchangerInputs] = field(default_factory=list)
+    utilities: list[UtilityInputs] = field(default_factory=list)
+    operating_hours: float | None = None  # s per year
+    currency: str = "EUR"
 
 
 # --------------------------------------------------------------------------- building
@@ -291,9 +345,83 @@ class _Builder:
         target, address = self._target(lines, terms, unknown_var)
         screening = {v.name: self._screening(v) for v in ws.vessels}
         typed = get_input(ws, address)
+        hours = None
+        if ws.operating_hours is not None:
+            hours = _si(ws.operating_hours, "duration", "operating_hours")
+            if not 0 < hours <= 366 * 86400:
+                raise InputError(f"operating hours are per year: more than 0 and at most 8784 h, not "
+                                 f"{ws.operating_hours}", "operating_hours")
         return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_addresses,
                        self.unknown, target, address, typed.unit if isinstance(typed, Quantity) else None,
-                       address_label(address), [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration)
+                       address_label(address), [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration,
+                       exchangers=[self._exchanger(e) for e in ws.exchangers],
+                       utilities=[self._utility(u) for u in ws.utilities], operating_hours=hours,
+                       currency=ws.currency)
+
+    def _exchanger(self, e) -> ExchangerInputs:
+        where = item("exchangers", e.name)
+        if self.basis != "continuous":
+            raise InputError("an exchanger is checked on a continuous basis (flows and powers); this worksheet is "
+                             "a batch", where)
+        streams = [s.name for s in self.ws.streams]
+        for side in ("hot", "cold"):
+            for name in getattr(e, side):
+                if name not in streams:
+                    raise InputError(f"no stream called '{name}' (there are: {', '.join(streams) or 'none'})",
+                                     f"{where}.{side}")
+
+        def positive(q: Quantity | None, kind: str, name: str) -> float | None:
+            if q is None:
+                return None
+            value = _si(q, kind, f"{where}.{name}")
+            if not value > 0:
+                raise InputError(f"{name} must be positive, not {q}", f"{where}.{name}")
+            return value
+
+        approach = DEFAULT_MINIMUM_APPROACH
+        if e.minimum_approach is not None:
+            approach = _si(e.minimum_approach, "temperature_difference", f"{where}.minimum_approach")
+            if approach < 0:
+                raise InputError(f"a minimum approach cannot be negative ({e.minimum_approach})",
+                                 f"{where}.minimum_approach")
+        U, area, UA = (positive(e.U, "heat_transfer_coefficient", "U"), positive(e.area, "area", "area"),
+                       positive(e.UA, "thermal_conductance", "UA"))
+        if UA is None and U is not None and area is not None:
+            UA = U * area
+        return ExchangerInputs(e.name, list(e.hot), list(e.cold), e.arrangement, e.shells, approach,
+                               e.minimum_approach is not None, U, area, UA, e.utility_side)
+
+    def _utility(self, u) -> UtilityInputs:
+        where = item("utilities", u.name)
+
+        def temperature(name: str) -> float | None:
+            q = getattr(u, name)
+            return None if q is None else _si(q, "temperature", f"{where}.{name}")
+
+        out = UtilityInputs(u.name, u.kind, price=u.price, per=u.per, co2_kg_per_GJ=u.co2_kg_per_GJ, source=u.source)
+        if u.pressure is not None:
+            out.P = _si(u.pressure, "pressure", f"{where}.pressure")
+        if u.superheat is not None:
+            out.superheat = _si(u.superheat, "temperature_difference", f"{where}.superheat")
+            if out.superheat < 0:
+                raise InputError(f"superheat cannot be negative ({u.superheat})", f"{where}.superheat")
+        out.condensate_T, out.supply_T, out.return_T = (temperature("condensate_temperature"),
+                                                        temperature("supply_temperature"), temperature("return_limit"))
+        if u.kind in ("steam", "cooling water", "chilled water"):
+            out.material = self.material("water", None, f"{where}.kind")
+        elif u.material is not None:
+            out.material = self.material(u.material, u.mass_fraction, f"{where}.material")
+        if out.P is None and out.material is not None:
+            out.P = 101325.0 + 3e5  # a coolant or oil loop at 3 barg (its enthalpy hardly depends on it)
+        cold = u.kind in ("cooling water", "chilled water", "brine")
+        if out.supply_T is not None and out.return_T is not None:
+            if cold and not out.return_T > out.supply_T:
+                raise InputError(f"a coolant's return limit must be warmer than its supply ({u.return_limit} vs "
+                                 f"{u.supply_temperature})", f"{where}.return_limit")
+            if u.kind == "hot oil" and not out.return_T < out.supply_T:
+                raise InputError(f"a hot oil's return limit must be colder than its supply ({u.return_limit} vs "
+                                 f"{u.supply_temperature})", f"{where}.return_limit")
+        return out
 
     def _stream(self, s) -> Line:
         where = item("streams", s.name)

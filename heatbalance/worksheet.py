@@ -19,7 +19,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -315,6 +315,85 @@ class SheetTags(_Model):
     equipment: str = Field(default="", max_length=120)
 
 
+ARRANGEMENTS = ("counter-current", "co-current", "shell-and-tube 1-2", "shell-and-tube N shells", "cross-flow")
+UTILITY_KINDS = ("steam", "cooling water", "chilled water", "brine", "hot oil", "electric")
+
+
+class Exchanger(_Model):
+    """A heat exchanger pairing lines of the balance: its ``hot`` side gives heat to its ``cold`` side.
+
+    ``hot``/``cold`` name streams (a utility line and one or more process lines). ``arrangement`` is one of
+    :data:`ARRANGEMENTS` (``shells``: the number of shell passes for ``shell-and-tube N shells``).
+    ``minimum_approach``: the smallest acceptable temperature difference anywhere inside (default 10 K,
+    common practice for shell-and-tube liquid service, no source). An existing unit: ``UA``, or ``U``
+    and ``area`` (rating); ``U`` alone gives the area needed (design). ``utility_side`` (``hot`` or
+    ``cold``) names the side that is a utility: the utility table then offers each site utility for the
+    other side's duty.
+    """
+
+    name: str = Field(min_length=1, max_length=80)
+    hot: list[str] = Field(min_length=1, max_length=20)
+    cold: list[str] = Field(min_length=1, max_length=20)
+    arrangement: Literal[ARRANGEMENTS] = "counter-current"  # type: ignore[valid-type]
+    shells: int = Field(default=1, ge=1, le=12)
+    minimum_approach: Quantity | None = None
+    U: Quantity | None = None
+    area: Quantity | None = None
+    UA: Quantity | None = None
+    utility_side: Literal["hot", "cold"] | None = None
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if self.UA is not None and (self.U is not None or self.area is not None):
+            raise ValueError("give the exchanger's 'UA', or its 'U' (and 'area'), not both")
+        if self.area is not None and self.U is None:
+            raise ValueError("an exchanger's 'area' needs its 'U' (or give 'UA')")
+        both = set(self.hot) & set(self.cold)
+        if both:
+            raise ValueError(f"a line is on one side only; on both: {', '.join(sorted(both))}")
+        return self
+
+
+class Utility(_Model):
+    """A site utility: how a duty could be met, and what it costs (site data, with its source).
+
+    ``kind`` is one of :data:`UTILITY_KINDS`. Steam: ``pressure`` (gauge), optional ``superheat`` (a
+    temperature difference above saturation), ``condensate_temperature`` (default: leaves saturated).
+    Cooling water, chilled water, brine: ``supply_temperature`` and ``return_limit`` (the warmest return);
+    hot oil: ``supply_temperature`` and ``return_limit`` (the coldest return); brine and hot oil name their
+    ``material`` (a catalogue material or one defined in the worksheet). Electric heating: no temperatures.
+    ``price`` in the worksheet's currency ``per`` GJ delivered, MWh delivered, or tonne of utility;
+    ``co2_kg_per_GJ``: kg of CO2 per GJ delivered. ``source``: where the price and factor come from.
+    """
+
+    name: str = Field(min_length=1, max_length=80)
+    kind: Literal[UTILITY_KINDS]  # type: ignore[valid-type]
+    pressure: Quantity | None = None
+    superheat: Quantity | None = None
+    condensate_temperature: Quantity | None = None
+    supply_temperature: Quantity | None = None
+    return_limit: Quantity | None = None
+    material: str | None = Field(default=None, max_length=80)
+    mass_fraction: float | None = Field(default=None, ge=0.0, le=1.0)
+    price: float = Field(default=0.0, ge=0.0, le=1e9)
+    per: Literal["GJ", "MWh", "t"] = "GJ"
+    co2_kg_per_GJ: float = Field(default=0.0, ge=0.0, le=1e6)
+    source: str = Field(default="site value", max_length=300)
+
+    @model_validator(mode="after")
+    def _fields_of_kind(self):
+        needs = {"steam": ("pressure",), "cooling water": ("supply_temperature", "return_limit"),
+                 "chilled water": ("supply_temperature", "return_limit"),
+                 "brine": ("supply_temperature", "return_limit", "material"),
+                 "hot oil": ("supply_temperature", "return_limit", "material"), "electric": ()}[self.kind]
+        missing = [n for n in needs if getattr(self, n) is None]
+        if missing:
+            raise ValueError(f"a {self.kind} utility needs {', '.join(repr(m) for m in missing)}")
+        if self.kind == "electric" and self.per == "t":
+            raise ValueError("electric heating is priced per GJ or per MWh, not per tonne")
+        return self
+
+
 class Worksheet(_Model):
     """A whole worksheet, version :data:`SCHEMA_VERSION`."""
 
@@ -333,6 +412,10 @@ class Worksheet(_Model):
     unknowns: list[Unknown] = Field(default_factory=list, max_length=10)
     cases: list[Case] = Field(default_factory=list, max_length=50)
     tolerances: list[Tolerance] = Field(default_factory=list, max_length=500)
+    exchangers: list[Exchanger] = Field(default_factory=list, max_length=50)
+    utilities: list[Utility] = Field(default_factory=list, max_length=50)
+    operating_hours: Quantity | None = None  # per year, for the annual cost and CO2 of utilities
+    currency: str = Field(default="EUR", min_length=1, max_length=8)
 
     @field_validator("schema_version")
     @classmethod
@@ -348,7 +431,8 @@ class Worksheet(_Model):
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
                   ("material", [m.name for m in self.materials]), ("case", [c.name for c in self.cases]),
-                  ("tolerance address", [t.address for t in self.tolerances])]
+                  ("tolerance address", [t.address for t in self.tolerances]),
+                  ("exchanger", [e.name for e in self.exchangers]), ("utility", [u.name for u in self.utilities])]
         groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]
         for label, group in groups:
             repeated = sorted({n for n in group if group.count(n) > 1})

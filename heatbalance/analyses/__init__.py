@@ -1,4 +1,4 @@
-"""Analyses that run on a solved balance (SI only): the thermal screening today.
+"""Analyses that run on a solved balance (SI only): thermal screening, exchanger check, utilities.
 
 Each takes the solved :class:`~heatbalance.problem.Problem` and
 :class:`~heatbalance.results.Result` and returns typed SI records; the solver never imports them.
@@ -12,9 +12,12 @@ from ..errors import NoSolutionError
 from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
+from .exchangers import ExchangerCheck, check_exchangers
 from .screening import JacketTime, Screening, screen
+from .utilities import UtilityTable, utility_tables
 
-__all__ = ["JacketTime", "Screening", "screen", "analyse", "solve_and_analyse"]
+__all__ = ["JacketTime", "Screening", "screen", "ExchangerCheck", "check_exchangers", "UtilityTable",
+           "utility_tables", "analyse", "solve_and_analyse"]
 
 
 def _finite_numbers(record) -> bool:
@@ -39,6 +42,14 @@ def analyse(problem, result):
             raise NoSolutionError("the thermal screening gives a number that is not finite (e.g. a jacket so small "
                                   "that the time is beyond any scale): check the screening inputs",
                                   item("vessels", s.vessel, "screening"))
+    result.exchangers = check_exchangers(problem, result)
+    result.utilities = utility_tables(problem, result)
+    for records, where in ((result.exchangers, lambda r: r.address), (result.utilities, lambda r: r.demand.address)):
+        for record in records:
+            if not _finite_numbers(record):
+                raise NoSolutionError("the exchanger or utility check gives a number that is not finite: check its "
+                                      "inputs", where(record))
+    result.warnings = list(result.warnings) + [w for c in result.exchangers for w in c.warnings]
     return result
 
 

@@ -1,0 +1,232 @@
+"""Which utility, and what does it cost? Utility flows, feasibility, cost and CO2 for each duty (SI).
+
+A *duty* to meet is a heater or cooler duty term of the balance, or the process side of an exchanger whose
+``utility_side`` is set. For each site utility of the right sense (hot utilities for heating, cold ones for
+cooling) the flow is the duty divided by the heat one kilogram gives or takes, from the utility's own
+property data at its pressure (water: IAPWS-IF97 through CoolProp):
+
+* steam: h(T_sat + superheat, P) − h(condensate), the condensate saturated liquid at P or subcooled to its
+  temperature; the flash fraction of that condensate let down to the atmosphere is reported,
+  x = (h_condensate − h_f,atm) / h_fg,atm (recovered or lost is the site's choice);
+* cooling water, chilled water, brine: h(T_return) − h(T_supply), the return the warmer of the limit and
+  what the process allows (counter-current: the return meets the process's hot end, so
+  T_return ≤ T_process,hot − ΔT_min);
+* hot oil: h(T_supply) − h(T_return), the return no colder than T_process,cold + ΔT_min;
+* electric heating: the duty itself (resistive, efficiency 1, stated).
+
+Feasibility is checked at the ends and at the condensing temperature (counter-current): steam must
+condense at least ΔT_min above the process's hottest temperature and its condensate leave at least ΔT_min
+above the process's coldest; a coolant's supply must be at least ΔT_min below the process's coldest
+temperature (cooling water cannot cool below its supply plus the approach); a hot oil's supply ΔT_min above
+the hottest. An infeasible utility is kept with its refusal (an :class:`~heatbalance.errors.InputError`
+at the utility's field), never dropped silently. The exchanger check (:mod:`.exchangers`) draws the full
+curves; this table is a first choice.
+
+Cost per hour = price × (GJ or MWh delivered per hour, or tonnes of utility per hour); per year × the
+operating hours; CO2 per year = factor [kg/GJ] × GJ per year.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..errors import HeatBalanceError, InputError
+from ..address import item
+from ..messages import Measure, Phrase
+from ..problem import DEFAULT_MINIMUM_APPROACH, Problem, UtilityInputs
+from ..results import Result
+from ..units import ATMOSPHERE
+
+__all__ = ["Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
+           "COLD_KINDS", "ELECTRIC_NOTE"]
+
+HOT_KINDS = ("steam", "hot oil", "electric")
+COLD_KINDS = ("cooling water", "chilled water", "brine")
+ELECTRIC_NOTE = "resistive heating, efficiency 1; element surface temperature not checked"
+_GJ = 1e9
+_MWh = 3.6e9
+
+
+@dataclass
+class Demand:
+    """A duty to meet (W, > 0) in a sense (``heating`` or ``cooling``) over a process temperature range (K)."""
+
+    label: str
+    address: str  # the duty term's or the exchanger's
+    sense: str
+    duty: float
+    T_cold: float  # the process's coldest temperature (its inlet when heated, its outlet when cooled)
+    T_hot: float
+    minimum_approach: float = DEFAULT_MINIMUM_APPROACH
+    current: str = ""  # the utility line(s) of an exchanger, as the balance has them
+
+
+@dataclass
+class UtilityOption:
+    """One utility for one duty: its flow (kg/s; None for electric), cost and CO2, or why it cannot."""
+
+    utility: str
+    kind: str
+    feasible: bool
+    flow: float | None = None  # kg/s
+    per_kg: float | None = None  # J/kg delivered per kg of utility
+    supply_T: float | None = None  # K (steam: its saturation temperature)
+    return_T: float | None = None  # K (steam: the condensate's)
+    flash_fraction: float | None = None  # of the condensate let down to the atmosphere
+    cost_per_hour: float | None = None  # currency
+    cost_per_year: float | None = None
+    co2_per_year: float | None = None  # kg
+    refusal: HeatBalanceError | None = None
+    source: str = ""
+    notes: list[str] = field(default_factory=list)
+
+
+@dataclass
+class UtilityTable:
+    """Every site utility of the right sense for one demand, side by side."""
+
+    demand: Demand
+    options: list[UtilityOption]
+    currency: str
+    operating_hours: float | None  # s per year
+
+
+def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | None]:
+    """(J/kg, T_sat, T_condensate, flash fraction)."""
+    water = u.material
+    boiling = water.transitions(u.P)
+    if not boiling:
+        raise InputError(Phrase("steam at {P} has no condensing plateau (supercritical)",
+                                {"P": Measure(u.P, "pressure")}), f"{u.address}.pressure")
+    tr = boiling[0]
+    h_in = tr.h_upper if u.superheat == 0 else water.enthalpy(tr.T + u.superheat, u.P)
+    if u.condensate_T is None:
+        T_out, h_out = tr.T, tr.h_lower
+    else:
+        if u.condensate_T >= tr.T:
+            raise InputError(Phrase("condensate at {T} is not below the saturation temperature {Ts} at {P}",
+                                    {"T": Measure(u.condensate_T, "temperature", 1), "Ts": Measure(tr.T, "temperature", 1),
+                                     "P": Measure(u.P, "pressure")}), f"{u.address}.condensate_temperature")
+        T_out, h_out = u.condensate_T, water.enthalpy(u.condensate_T, u.P)
+    if tr.T < d.T_hot + d.minimum_approach:
+        raise InputError(Phrase(
+            "steam at {P} condenses at {Ts}: it cannot heat the process to {T} with a {dT} approach (it would need "
+            "to condense at {need} or above: a higher steam pressure)",
+            {"P": Measure(u.P, "pressure"), "Ts": Measure(tr.T, "temperature", 1), "T": Measure(d.T_hot, "temperature", 1),
+             "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1),
+             "need": Measure(d.T_hot + d.minimum_approach, "temperature", 1)}), f"{u.address}.pressure")
+    if T_out < d.T_cold + d.minimum_approach:
+        raise InputError(Phrase(
+            "condensate subcooled to {T} meets the process's cold end at {Tp}: less than the {dT} approach; raise the "
+            "condensate temperature", {"T": Measure(T_out, "temperature", 1), "Tp": Measure(d.T_cold, "temperature", 1),
+                                       "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}),
+            f"{u.address}.condensate_temperature")
+    atm = water.transitions(ATMOSPHERE)[0]
+    flash = max(0.0, (h_out - atm.h_lower) / atm.latent)
+    return h_in - h_out, tr.T, T_out, flash
+
+
+def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
+    """(J/kg, supply T, return T) of a coolant or a hot oil."""
+    m, where = u.material, u.address
+    if u.kind in COLD_KINDS:
+        if u.supply_T > d.T_cold - d.minimum_approach:
+            raise InputError(Phrase(
+                "{name} is supplied at {Ts}: it cannot cool the process below {limit} (supply + the {dT} approach), "
+                "and the process must reach {T}", {"name": u.kind, "Ts": Measure(u.supply_T, "temperature", 1),
+                                                   "limit": Measure(u.supply_T + d.minimum_approach, "temperature", 1),
+                                                   "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1),
+                                                   "T": Measure(d.T_cold, "temperature", 1)}), f"{where}.supply_temperature")
+        T_return = min(u.return_T, d.T_hot - d.minimum_approach)
+        supply, ret = u.supply_T, T_return
+        per_kg = m.enthalpy(ret, u.P) - m.enthalpy(supply, u.P)
+    else:
+        if u.supply_T < d.T_hot + d.minimum_approach:
+            raise InputError(Phrase(
+                "hot oil supplied at {Ts} cannot heat the process to {T} with a {dT} approach",
+                {"Ts": Measure(u.supply_T, "temperature", 1), "T": Measure(d.T_hot, "temperature", 1),
+                 "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}), f"{where}.supply_temperature")
+        supply, ret = u.supply_T, max(u.return_T, d.T_cold + d.minimum_approach)
+        per_kg = m.enthalpy(supply, u.P) - m.enthalpy(ret, u.P)
+    if per_kg <= 0:
+        raise InputError(Phrase("{name}: the approach leaves no temperature range between supply {Ts} and return {Tr}",
+                                {"name": u.name, "Ts": Measure(supply, "temperature", 1),
+                                 "Tr": Measure(ret, "temperature", 1)}), f"{where}.return_limit")
+    for T in (supply, ret):
+        m.check_range(T, f"{where}.supply_temperature")
+    return per_kg, supply, ret
+
+
+def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = None) -> UtilityOption:
+    """The flow, cost and CO2 of one utility for one demand; raises the refusal when it cannot meet it."""
+    option = UtilityOption(u.name, u.kind, True, source=u.source)
+    if u.kind == "steam":
+        option.per_kg, option.supply_T, option.return_T, option.flash_fraction = _steam(u, d)
+    elif u.kind == "electric":
+        option.notes.append(ELECTRIC_NOTE)
+    else:
+        option.per_kg, option.supply_T, option.return_T = _sensible(u, d)
+    if option.per_kg is not None:
+        option.flow = d.duty / option.per_kg
+    per_hour_GJ = d.duty * 3600.0 / _GJ
+    if u.per == "GJ":
+        option.cost_per_hour = u.price * per_hour_GJ
+    elif u.per == "MWh":
+        option.cost_per_hour = u.price * d.duty * 3600.0 / _MWh
+    else:
+        if option.flow is None:
+            raise InputError("electric heating is priced per GJ or per MWh, not per tonne", f"{u.address}.per")
+        option.cost_per_hour = u.price * option.flow * 3600.0 / 1000.0
+    if operating_hours is not None:
+        hours = operating_hours / 3600.0
+        option.cost_per_year = option.cost_per_hour * hours
+        option.co2_per_year = u.co2_kg_per_GJ * per_hour_GJ * hours
+    return option
+
+
+def _option_or_refusal(u: UtilityInputs, d: Demand, hours: float | None) -> UtilityOption:
+    try:
+        return utility_option(u, d, hours)
+    except HeatBalanceError as exc:
+        return UtilityOption(u.name, u.kind, False, refusal=exc, source=u.source)
+
+
+def demands(problem: Problem, result: Result) -> list[Demand]:
+    """The duties to meet: each heater or cooler duty term, each exchanger with a utility side."""
+    out = []
+    takers = [ln for ln in result.lines if ln.total > 0]
+    givers = [ln for ln in result.lines if ln.total < 0]
+    for term in result.terms:
+        if term.kind != "duty" or term.heat == 0:
+            continue
+        lines = takers if term.heat > 0 else givers
+        if not lines:
+            continue
+        temps = [T for ln in lines for T in (ln.initial_T, ln.final_T)]
+        address = item("duties", term.name, "value")
+        out.append(Demand(f"duty {term.name}", address, "heating" if term.heat > 0 else "cooling", abs(term.heat),
+                          min(temps), max(temps)))
+    checks = {c.name: c for c in getattr(result, "exchangers", [])}
+    for e in problem.exchangers:
+        if e.utility_side is None or e.name not in checks:
+            continue
+        process = e.cold if e.utility_side == "hot" else e.hot
+        lines = [ln for ln in result.lines if ln.kind == "stream" and ln.name in process]
+        temps = [T for ln in lines for T in (ln.initial_T, ln.final_T)]
+        utility = e.hot if e.utility_side == "hot" else e.cold
+        out.append(Demand(f"exchanger {e.name}", e.address,
+                          "heating" if e.utility_side == "hot" else "cooling", checks[e.name].duty,
+                          min(temps), max(temps), e.minimum_approach, ", ".join(utility)))
+    return out
+
+
+def utility_tables(problem: Problem, result: Result) -> list[UtilityTable]:
+    """For each demand, every site utility of its sense with its flow, cost and CO2, or its refusal."""
+    if not problem.utilities:
+        return []
+    tables = []
+    for d in demands(problem, result):
+        kinds = HOT_KINDS if d.sense == "heating" else COLD_KINDS
+        options = [_option_or_refusal(u, d, problem.operating_hours) for u in problem.utilities if u.kind in kinds]
+        tables.append(UtilityTable(d, options, problem.currency, problem.operating_hours))
+    return tables
+
