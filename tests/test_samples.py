@@ -21,7 +21,9 @@ REGRESSION = {  # own output, regression only
     "ice_melting_tank.json": "0 °C, 43.2% still solid",
     "solvent_condenser_cooling_water.json": "28.31 t/h",
     "steam_heater_glycol.json": "745.6 kg/h",
-    "us_water_heater_duty.json": "3.202 MMBtu/h",  # typed in MMBtu/h: answered in MMBtu/h on the SI view too
+    "us_water_heater_duty.json": "3.202 MMBtu/h",
+    "steam_heater_subcooled_condensate.json": "2,515 kg/h",
+    "methanol_condenser_cooling_water.json": "31.51 t/h",  # typed in MMBtu/h: answered in MMBtu/h on the SI view too
 }
 
 

@@ -187,7 +187,7 @@ class LinePath:
         boil = next((t for t in self.material.transitions(self.P) if t.kind == "boiling"), None)
         if boil is not None and T_mid > boil.T:
             return "desuperheating" if giving else "superheating"
-        if boil is not None and giving and self.T_high > boil.T + T_TOL:
+        if boil is not None and giving and self.T_high > boil.T - T_TOL:
             return "subcooling"
         return "cooling" if giving else "heating"
 

@@ -35,8 +35,9 @@ from ..messages import Measure, Phrase
 from ..problem import DEFAULT_MINIMUM_APPROACH, Problem, UtilityInputs
 from ..results import Result
 from ..units import ATMOSPHERE
+from ..worksheet import Utility
 
-__all__ = ["Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
+__all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
            "COLD_KINDS", "ELECTRIC_NOTE"]
 
 HOT_KINDS = ("steam", "hot oil", "electric")
@@ -44,6 +45,29 @@ COLD_KINDS = ("cooling water", "chilled water", "brine")
 ELECTRIC_NOTE = "resistive heating, efficiency 1; element surface temperature not checked"
 _GJ = 1e9
 _MWh = 3.6e9
+_DEMO = "demo value of our own invention, not a site's: replace with your site's"
+
+#: A site utility list of our own invention, for the demo and the samples (prices in EUR, CO2 in kg/GJ delivered)
+DEMO_UTILITIES: list[dict] = [
+    {"name": "LP steam 4 barg", "kind": "steam", "pressure": "4 barg", "price": 28.0, "per": "t",
+     "co2_kg_per_GJ": 70.0, "source": _DEMO},
+    {"name": "MP steam 12 barg", "kind": "steam", "pressure": "12 barg", "superheat": "20 K", "price": 32.0, "per": "t",
+     "co2_kg_per_GJ": 72.0, "source": _DEMO},
+    {"name": "Cooling water", "kind": "cooling water", "supply_temperature": "27 degC", "return_limit": "40 degC",
+     "price": 0.05, "per": "t", "co2_kg_per_GJ": 1.5, "source": _DEMO},
+    {"name": "Chilled water", "kind": "chilled water", "supply_temperature": "6 degC", "return_limit": "14 degC",
+     "price": 12.0, "per": "GJ", "co2_kg_per_GJ": 25.0, "source": _DEMO},
+    {"name": "Brine -15 °C", "kind": "brine", "material": "calcium chloride brine", "mass_fraction": 0.25,
+     "supply_temperature": "-15 degC", "return_limit": "-5 degC", "price": 30.0, "per": "GJ", "co2_kg_per_GJ": 60.0,
+     "source": _DEMO},
+    {"name": "Electric heating", "kind": "electric", "price": 120.0, "per": "MWh", "co2_kg_per_GJ": 65.0,
+     "source": _DEMO},
+]
+
+
+def demo_utilities():
+    """The demo site list (:data:`DEMO_UTILITIES`) as worksheet models."""
+    return [Utility.model_validate(u) for u in DEMO_UTILITIES]
 
 
 @dataclass

@@ -1,0 +1,170 @@
+"""Which utility, and what does it cost (issue 11): flows cross-checked with IAPWS-IF97 (iapws, independent of
+CoolProp), feasibility refused with the reason and the address, cost and CO2 arithmetic by hand."""
+from __future__ import annotations
+
+import pytest
+from iapws import IAPWS97
+
+from heatbalance.address import inputs, rename
+from heatbalance.analyses import solve_and_analyse
+from heatbalance.analyses.utilities import DEMO_UTILITIES, Demand, demo_utilities, utility_option
+from heatbalance.errors import InputError
+from heatbalance.problem import build_problem
+from heatbalance.worksheet import dump_worksheet, load_worksheet, parse_worksheet
+
+C0 = 273.15
+ATM = 0.101325  # MPa
+
+
+def _heater(utilities, hours="8000 h", **more):
+    """Our scenario: 36 t/h of water heated 20 -> 80 °C by a heater duty (the unknown)."""
+    doc = {"streams": [{"name": "Water", "material": "water", "flow": "36 t/h", "pressure": "3 barg",
+                        "inlet": {"temperature": "20 degC"}, "outlet": {"temperature": "80 degC"}}],
+           "duties": [{"name": "Heater"}], "unknowns": [{"kind": "duty", "term": "Heater"}],
+           "utilities": utilities, "operating_hours": hours}
+    doc.update(more)
+    return doc
+
+
+def _cooler(utilities, outlet="45 degC", hours="8000 h"):
+    """Our scenario: 10 t/h of water cooled 90 °C -> outlet by a cooler duty."""
+    return {"streams": [{"name": "Hot water", "material": "water", "flow": "10 t/h", "pressure": "3 barg",
+                         "inlet": {"temperature": "90 degC"}, "outlet": {"temperature": outlet}}],
+            "duties": [{"name": "Cooler"}], "unknowns": [{"kind": "duty", "term": "Cooler"}],
+            "utilities": utilities, "operating_hours": hours}
+
+
+def test_steam_flow_with_subcooled_condensate_matches_iapws():
+    steam = {"name": "LP", "kind": "steam", "pressure": "4 barg", "condensate_temperature": "120 degC",
+             "price": 28, "per": "t", "co2_kg_per_GJ": 70}
+    result = solve_and_analyse(parse_worksheet(_heater([steam])))
+    (table,) = result.utilities
+    (option,) = table.options
+    assert option.feasible
+    P = 0.4 + ATM  # MPa absolute
+    per_kg = (IAPWS97(P=P, x=1).h - IAPWS97(P=P, T=120 + C0).h) * 1e3  # IAPWS-IF97 via iapws, J/kg
+    assert option.per_kg == pytest.approx(per_kg, rel=2e-5)
+    duty = result.answer.value_si
+    assert option.flow == pytest.approx(duty / per_kg, rel=2e-5)
+    assert option.supply_T == pytest.approx(IAPWS97(P=P, x=0).T, abs=0.01)
+    # flash of the 120 °C condensate let down to the atmosphere: (h - h_f) / h_fg at 1.01325 bar, iapws
+    h_f, h_g = IAPWS97(P=ATM, x=0).h, IAPWS97(P=ATM, x=1).h
+    flash = (IAPWS97(P=P, T=120 + C0).h - h_f) / (h_g - h_f)
+    assert option.flash_fraction == pytest.approx(flash, rel=1e-3)
+    # cost by hand: t/h × price; per year × 8000 h; CO2 = 70 kg/GJ × GJ/h × 8000 h
+    t_per_h = option.flow * 3.6
+    assert option.cost_per_hour == pytest.approx(t_per_h * 28, rel=1e-12)
+    assert option.cost_per_year == pytest.approx(t_per_h * 28 * 8000, rel=1e-12)
+    assert option.co2_per_year == pytest.approx(70 * duty * 3600 / 1e9 * 8000, rel=1e-12)
+
+
+def test_superheated_steam_adds_its_superheat():
+    steam = {"name": "MP", "kind": "steam", "pressure": "12 barg", "superheat": "20 K"}
+    option = solve_and_analyse(parse_worksheet(_heater([steam]))).utilities[0].options[0]
+    P = 1.2 + ATM
+    T_sat = IAPWS97(P=P, x=1).T
+    per_kg = (IAPWS97(P=P, T=T_sat + 20).h - IAPWS97(P=P, x=0).h) * 1e3  # saturated condensate, iapws
+    assert option.per_kg == pytest.approx(per_kg, rel=5e-5)
+
+
+def test_cooling_water_flow_from_if97_between_supply_and_return_limit():
+    cw = {"name": "CW", "kind": "cooling water", "supply_temperature": "27 degC", "return_limit": "40 degC",
+          "price": 0.05, "per": "t", "co2_kg_per_GJ": 1.5}
+    result = solve_and_analyse(parse_worksheet(_cooler([cw])))
+    option = result.utilities[0].options[0]
+    P = 0.3 + ATM  # the coolant's loop pressure, 3 barg (stated in problem.py)
+    per_kg = (IAPWS97(P=P, T=40 + C0).h - IAPWS97(P=P, T=27 + C0).h) * 1e3
+    duty = -result.answer.value_si
+    assert option.return_T == pytest.approx(40 + C0)
+    assert option.flow == pytest.approx(duty / per_kg, rel=2e-5)
+    assert option.cost_per_hour == pytest.approx(option.flow * 3.6 * 0.05, rel=1e-12)  # by hand: t/h × price
+
+
+def test_cooling_water_cannot_cool_below_supply_plus_approach():
+    cw = {"name": "CW", "kind": "cooling water", "supply_temperature": "27 degC", "return_limit": "40 degC"}
+    option = solve_and_analyse(parse_worksheet(_cooler([cw], outlet="30 degC"))).utilities[0].options[0]
+    assert not option.feasible and option.flow is None and option.cost_per_hour is None
+    assert option.refusal.where == "utilities[CW].supply_temperature"
+    assert "cannot cool the process below 37.0 °C" in option.refusal.message
+
+
+def test_steam_too_cold_for_the_target_refused_with_the_pressure():
+    steam = {"name": "Low", "kind": "steam", "pressure": "0.2 barg"}  # condenses near 105 °C
+    doc = _heater([steam])
+    doc["streams"][0]["outlet"] = {"temperature": "100 degC"}
+    option = solve_and_analyse(parse_worksheet(doc)).utilities[0].options[0]
+    assert not option.feasible
+    assert option.refusal.where == "utilities[Low].pressure"
+    assert "higher steam pressure" in option.refusal.message
+    with pytest.raises(InputError) as info:  # called directly, the refusal is raised
+        problem = build_problem(parse_worksheet(doc))
+        utility_option(problem.utilities[0], Demand("duty", "duties[Heater].value", "heating", 1e5, 293.15, 373.15))
+    assert info.value.where == "utilities[Low].pressure"
+
+
+def test_per_GJ_and_per_MWh_prices_by_hand():
+    electric = {"name": "E", "kind": "electric", "price": 120, "per": "MWh", "co2_kg_per_GJ": 65}
+    chilled = {"name": "CHW", "kind": "chilled water", "supply_temperature": "6 degC", "return_limit": "14 degC",
+               "price": 12, "per": "GJ"}
+    heat = solve_and_analyse(parse_worksheet(_heater([electric])))
+    duty = heat.answer.value_si  # W
+    option = heat.utilities[0].options[0]
+    assert option.flow is None and option.cost_per_hour == pytest.approx(duty / 1e6 * 120, rel=1e-12)  # MW × €/MWh
+    assert option.co2_per_year == pytest.approx(65 * duty * 3600e-9 * 8000, rel=1e-12)
+    cool = solve_and_analyse(parse_worksheet(_cooler([chilled])))
+    assert cool.utilities[0].options[0].cost_per_hour == pytest.approx(-cool.answer.value_si * 3600e-9 * 12, rel=1e-12)
+
+
+def test_without_operating_hours_no_annual_figures():
+    cw = {"name": "CW", "kind": "cooling water", "supply_temperature": "27 degC", "return_limit": "40 degC"}
+    doc = _cooler([cw])
+    del doc["operating_hours"]
+    option = solve_and_analyse(parse_worksheet(doc)).utilities[0].options[0]
+    assert option.cost_per_hour is not None and option.cost_per_year is None and option.co2_per_year is None
+
+
+def test_hot_utilities_for_heating_cold_for_cooling():
+    result = solve_and_analyse(parse_worksheet(_heater(DEMO_UTILITIES)))
+    assert [o.kind for o in result.utilities[0].options] == ["steam", "steam", "electric"]
+    result = solve_and_analyse(parse_worksheet(_cooler(DEMO_UTILITIES)))
+    assert [o.kind for o in result.utilities[0].options] == ["cooling water", "chilled water", "brine"]
+    assert all(o.feasible for o in result.utilities[0].options)
+
+
+@pytest.mark.parametrize("utility, where", [
+    ({"name": "CW", "kind": "cooling water", "supply_temperature": "40 degC", "return_limit": "30 degC"},
+     "utilities[CW].return_limit"),
+    ({"name": "S", "kind": "steam", "pressure": "4 barg", "superheat": "-5 K"}, "utilities[S].superheat"),
+    ({"name": "S", "kind": "steam", "pressure": "4 barg", "condensate_temperature": "160 degC"},
+     "utilities[S].condensate_temperature"),
+])
+def test_bad_utility_inputs_refused_at_their_address(utility, where):
+    try:
+        result = solve_and_analyse(parse_worksheet(_heater([utility])))
+    except InputError as exc:
+        assert exc.where == where
+        return
+    (option,) = result.utilities[0].options
+    assert not option.feasible and option.refusal.where == where
+
+
+def test_utilities_stored_addressable_and_material_renames_follow():
+    doc = _cooler(DEMO_UTILITIES)
+    ws = parse_worksheet(doc)
+    assert load_worksheet(dump_worksheet(ws)) == ws
+    assert [u.name for u in demo_utilities()] == [u.name for u in ws.utilities]
+    addresses = {i.address for i in inputs(ws)}
+    assert {"utilities[Cooling water].supply_temperature", "utilities[LP steam 4 barg].pressure",
+            "operating_hours"} <= addresses
+    doc["materials"] = [{"name": "my brine", "phases": [{"name": "liquid", "cp": "3 kJ/(kg*K)"}],
+                         "min_temperature": "-40 degC", "max_temperature": "60 degC", "source": "test"}]
+    doc["utilities"] = [{"name": "B", "kind": "brine", "material": "my brine", "supply_temperature": "-10 degC",
+                         "return_limit": "0 degC"}]
+    renamed = rename(parse_worksheet(doc), "materials[my brine]", "glycol brine")
+    assert renamed.utilities[0].material == "glycol brine"
+
+
+def test_operating_hours_beyond_a_year_refused():
+    with pytest.raises(InputError) as info:
+        solve_and_analyse(parse_worksheet(_cooler([], hours="9000 h")))
+    assert info.value.where == "operating_hours"
