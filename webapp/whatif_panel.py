@@ -295,6 +295,20 @@ def _chart_frame(frame: pd.DataFrame, chosen: str, system: str) -> pd.DataFrame:
     return part
 
 
+def _drawn(kept: dict, system: str, chosen: str):
+    """The figure, table and CSV of a kept sweep in a unit set, made once (the page reruns on every click)."""
+    drawn = kept.setdefault("drawn", {})
+    if (system, chosen) not in drawn:
+        frame = kept["frame"]
+        figure = sweep_figure(_chart_frame(frame, chosen, system), system, chosen)
+        labels = [address.label(a) for a in frame.attrs["units"]]
+        labels += [output_label(n, frame) for n in frame.attrs["kinds"]]
+        plotly_safe(figure, labels)
+        drawn.clear()  # one view at a time is enough
+        drawn[(system, chosen)] = (figure, sweep_table(frame, system), sweep_csv_bytes(frame, system))
+    return drawn[(system, chosen)]
+
+
 def _draw_sweep(worksheet: Worksheet, system: str) -> None:
     kept = st.session_state.get(key("result"))
     if kept is None:
@@ -312,9 +326,7 @@ def _draw_sweep(worksheet: Worksheet, system: str) -> None:
     if len(outputs) > 1:
         st.selectbox("Chart", outputs, key=key("chart_output"), format_func=lambda n: output_label(n, frame))
     chosen = st.session_state[key("chart_output")]
-    figure = sweep_figure(_chart_frame(frame, chosen, system), system, chosen)
-    labels = [address.label(a) for a in frame.attrs["units"]] + [output_label(n, frame) for n in outputs]
-    plotly_safe(figure, labels)
+    figure, table, csv = _drawn(kept, system, chosen)
     with st.container(key="whatif_chart"):
         st.plotly_chart(figure, key=key("figure"), width="stretch")
     if refused:
@@ -324,11 +336,10 @@ def _draw_sweep(worksheet: Worksheet, system: str) -> None:
             st.warning(f"{refused:,} of {len(frame):,} points were refused: gaps in the chart{more}.",
                        icon=":material/block:")
             st.markdown("\n".join(f"- {plain(r)}" for r in rows[:LISTED_REFUSALS]))
-    table = sweep_table(frame, system)
     numbers = {c: st.column_config.NumberColumn(format=_NUMBER) for c in table.columns
                if pd.api.types.is_float_dtype(table[c])}
     st.dataframe(table, key=key("table"), hide_index=True, column_config=numbers)
-    st.download_button("Download the table (CSV)", sweep_csv_bytes(frame, system), file_name="what-if-sweep.csv",
+    st.download_button("Download the table (CSV)", csv, file_name="what-if-sweep.csv",
                        mime="text/csv", key=key("csv"), on_click="ignore", icon=":material/download:")
 
 
