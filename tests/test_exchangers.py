@@ -315,3 +315,28 @@ def test_exchanger_samples(name):
     assert not [w for w in result.warnings if w.address.startswith("exchangers")]
     (table,) = result.utilities
     assert table.options and all(o.feasible for o in table.options)
+
+
+# --------------------------------------------------------------------------- presentation: report, JSON, chart
+def test_report_json_and_chart_carry_the_same_numbers():
+    import json
+
+    from heatbalance.present.exchangers import tq_figure, utility_rows, zone_rows
+    from heatbalance.present.report import format_result, result_json
+
+    with open("sample_data/methanol_condenser_cooling_water.json", encoding="utf-8") as handle:
+        result = solve_and_analyse(load_worksheet(handle.read()))
+    check = result.exchangers[0]
+    text = format_result(result)
+    assert "EXCHANGER E-301" in text and "UTILITIES for exchanger E-301" in text
+    assert f"UA required: {check.UA_required / 1e3:,.4g} kW/K" in text
+    data = json.loads(json.dumps(result_json(result)))
+    assert data["exchangers"][0]["UA_required"] == check.UA_required
+    assert data["utilities"][0]["options"][0]["flow"] == result.utilities[0].options[0].flow
+    assert [r["hot side"] for r in zone_rows(check)] == ["subcooling", "condensing"]
+    us = utility_rows(result.utilities[0], "US")[0]
+    assert us["flow [lb/h]"] == pytest.approx(result.utilities[0].options[0].flow * 3600 / 0.45359237)
+    fig = tq_figure(check)
+    assert [t.name.split(":")[0] for t in fig.data] == ["hot side", "cold side", "pinch"]
+    assert max(fig.data[0].y) == pytest.approx(check.hot_curve[-1][1] - C0)
+    assert len(fig.layout.shapes) == len(check.zones)

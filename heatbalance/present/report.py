@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from ..results import SIGN_CONVENTION, Result
+from .exchangers import exchanger_report
 from .screening import screening_report
 from .tables import contribution_rows
 from .text import answer_text, answer_unit, answer_value, format_heat, phrase_text
@@ -41,6 +42,8 @@ def format_result(result: Result, system: str = "SI") -> str:
         out += [""] + uncertainty_report(result.uncertainty, system, result.answer)
     if result.screening:
         out += [""] + screening_report(result.screening, system)
+    if result.exchangers or result.utilities:
+        out += [""] + exchanger_report(result, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
     return "\n".join(out)
 
