@@ -372,3 +372,21 @@ def test_with_a_login_the_logged_in_user_signs_and_nobody_logged_in_cannot(db, m
     at.run()
     assert at.button(key="filing_sign").disabled
     assert "This server records who signs: log in to sign." in captions(at)
+
+
+def test_user_text_in_sources_and_sign_offs_is_plain_text(db):
+    ws = sample(CONDENSER)
+    at = page(ws)
+    hostile = "[meter](http://e.invalid) <b>x</b> :red[y]"
+    set_tolerance(at, FLOW, "2 %", source=hostile)
+    assert next(t for t in held(at).tolerances if t.address == FLOW).source == hostile  # kept as typed
+    listed = [m.value for m in at.markdown if "meter" in m.value]
+    assert listed and all("](http" not in m and "<b>" not in m and ":red[" not in m for m in listed)  # escaped
+    assert any(hostile in shown(m) for m in listed)  # and read as typed
+    at.button(key="share_save").click().run()
+    at.text_input(key="filing_name").input("<i>Eve</i> [x](http://e.invalid)")
+    at.button(key="filing_sign").click().run()
+    no_exception(at)
+    notice = [s.value for s in at.success if "Signed revision" in s.value]
+    assert notice and "<i>" not in notice[0] and "](http" not in notice[0]
+    assert list(table_with(at, "signed (UTC)")["name"]) == ["<i>Eve</i> [x](http://e.invalid)"]  # a text-only table

@@ -187,7 +187,7 @@ def render_uncertainty_panel(worksheet: Worksheet, result: Result | None, system
         st.caption("Each input may carry a tolerance; the answer's uncertainty is propagated from them "
                    "(GUM, inputs taken as uncorrelated) and shown beside the answer as value ± U (k = 2, "
                    "about 95 %).")
-        left, right = st.columns([3, 2], gap="large")
+        left, right = st.columns(2, gap="large")
         with left, st.container(key="uncert_result_box"):
             _result_section(worksheet, result, system)
         with right, st.container(key="uncert_editor_box"):
@@ -268,17 +268,20 @@ def _editor_section(worksheet: Worksheet, system: str, set_worksheet) -> None:
         if not worksheet.tolerances:
             st.caption("None yet.")
         for j, t in enumerate(worksheet.tolerances):
-            c1, c2 = st.columns([5, 1], vertical_alignment="center")
+            c1, c2 = st.columns([9, 1], vertical_alignment="center")
             source = f" — {t.source}" if t.source else " — no source given"
             c1.markdown(plain(f"{_label(t.address)}: {tolerance_size_text(t)} ({t.distribution}){source}"))
-            c2.button("Remove", key=key(f"remove_{j}"), on_click=_remove, args=(j, set_worksheet))
+            c2.button("", key=key(f"remove_{j}"), on_click=_remove, args=(j, set_worksheet),
+                      icon=":material/delete:", help=f"Remove the tolerance on {_label(t.address)}")
     b1, b2 = st.columns(2)
     b1.button("Fill in suggested tolerances", key=key("suggest"), on_click=_suggest, args=(set_worksheet,),
+              width="stretch",
               help="Adds common-practice tolerances (flow meter ±1.5 %, thermometer ±0.5 K, tabulated cp ±2 %, "
                    "heat of reaction ±5 %, …) to the inputs that have none. They are rules of thumb, not your "
                    "instruments' data: each says so in its source; edit or remove them.")
     if worksheet.tolerances:
-        b2.button("Remove all tolerances", key=key("remove_all"), on_click=_remove_all, args=(set_worksheet,))
+        b2.button("Remove all tolerances", key=key("remove_all"), on_click=_remove_all, args=(set_worksheet,),
+                  width="stretch")
     candidates = {i.address: i for i in _candidates(worksheet)}
     if not candidates:
         return
