@@ -162,7 +162,7 @@ def tq_figure(check, system: str = "SI"):
     for i, z in enumerate(check.zones):
         fig.add_vrect(x0=x(z.x_start), x1=x(z.x_end), fillcolor=_ZONE_FILLS[i % 2], line_width=0, layer="below",
                       annotation_text=escape(f"{z.index}: {z.hot_service} / {z.cold_service}", quote=False),
-                      annotation_position="top left", annotation_font_size=10)
+                      annotation_position="top left" if i % 2 == 0 else "bottom left", annotation_font_size=10)
     names = (("hot side: " + ", ".join(check.hot), check.hot_curve, HOT_COLOUR),
              ("cold side: " + ", ".join(check.cold), check.cold_curve, COLD_COLOUR))
     for name, points, colour in names:
