@@ -15,6 +15,7 @@ from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
 
 from .common import page_state, plain
+from .uncertainty_panel import key as uncertainty_key
 
 __all__ = ["render_header", "render_answer", "refusal_place"]
 
@@ -33,9 +34,9 @@ def _on_unknown_pick(choices: dict[str, str]) -> None:
         kept = [t for t in state.worksheet.tolerances if t.address != new]
         if len(kept) != len(state.worksheet.tolerances):  # the unknown is solved for: it has no tolerance
             state.set_worksheet(state.worksheet.model_copy(update={"tolerances": kept}))
-            st.session_state["uncert_notice"] = (f"The tolerance on {address.label(new)} was removed: it is now "
-                                                 "the unknown, solved for.")
-            st.session_state.pop("uncert_refusal", None)
+            st.session_state[uncertainty_key("notice")] = (
+                f"The tolerance on {address.label(new)} was removed: it is now the unknown, solved for.")
+            st.session_state.pop(uncertainty_key("refusal"), None)
 
 
 def _render_unknown_picker(worksheet: Worksheet, blocked: bool) -> None:
