@@ -206,6 +206,8 @@ def _result_section(worksheet: Worksheet, result: Result | None, system: str) ->
     st.markdown(f"**Answer with its uncertainty:** {plain(uncertainty_text(u, system, result.answer))}")
     rows = contribution_rows(u, system, result.answer)
     table = pd.DataFrame(rows).drop(columns=["address"]).rename(columns={"input": "input (largest first)"})
+    first = ["input (largest first)", "share"] + [c for c in table.columns if c.startswith("contribution")]
+    table = table[first + [c for c in table.columns if c not in first]]  # what matters most, in view
     numbers = {c: st.column_config.NumberColumn(format="%.4g") for c in table.columns if c.startswith("contribution")}
     st.dataframe(table, key=key("contributions"), hide_index=True, column_config=numbers)
     if u.notes:
