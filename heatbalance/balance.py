@@ -286,7 +286,10 @@ def solve(ws: Worksheet) -> Result:
 
 def solve_problem(p: Problem) -> Result:
     """Solve a built problem (it is changed: the unknown takes its value)."""
-    fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
+    try:
+        fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
+    except HeatBalanceError as exc:  # a property refusal met while searching (no field of its own): the unknown's
+        raise exc.located(p.unknown_address)
     return _result(p, fraction)
 
 

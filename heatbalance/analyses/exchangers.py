@@ -46,7 +46,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..balance import T_TOL, evaluate_state
-from ..errors import NoSolutionError
+from ..errors import HeatBalanceError, NoSolutionError
 from ..messages import Measure, Phrase
 from ..problem import ExchangerInputs, Line, Problem
 from ..properties import Material
@@ -441,18 +441,24 @@ def check_exchanger(problem: Problem, result: Result, e: ExchangerInputs) -> Exc
                           _service(cold_paths, cold.T(mid), cold_flat, False), Th_in, Th_out,
                           Tc_in, Tc_out, F, lmtd if math.isfinite(lmtd) else 0.0, UA))
     UA_req = None if dT_min <= 0 or any(z.UA is None for z in zones) else sum(z.UA for z in zones)
+    if not Q > 0:
+        raise NoSolutionError(Phrase("{exchanger} exchanges no heat in this balance", {"exchanger": e.name}),
+                              e.address)
     check = ExchangerCheck(
         e.name, e.address, e.arrangement, e.shells, list(e.hot), list(e.cold), Q, Q_hot, hot.points, cold.points,
         zones, dT_min, x_min, Th_min, Tc_min, e.minimum_approach,
         "entered" if e.approach_entered else APPROACH_SOURCE, UA_req,
-        None if UA_req is None else Q / UA_req, U=e.U, UA_given=e.UA, warnings=warnings, notes=notes,
+        Q / UA_req if UA_req else None, U=e.U, UA_given=e.UA, warnings=warnings, notes=notes,
         sources=["T–Q paths: the lines' own property data (see the sheet's sources)",
                  "LMTD, F, ε-NTU: Incropera et al. ch. 11; Fakheri (2003) and Kays & London via ht "
                  + ht.__version__])
     if UA_req is not None and e.U is not None:
         check.area_required = UA_req / e.U
     if e.UA is not None:
-        check.rating = _rate(problem, result, e, check, warnings, notes)
+        try:
+            check.rating = _rate(problem, result, e, check, warnings, notes)
+        except HeatBalanceError as exc:  # e.g. a line extended past its outlet beyond its property data
+            raise exc.located(f"{e.address}.UA")
     return check
 
 
@@ -518,17 +524,30 @@ def _rate(problem: Problem, result: Result, e: ExchangerInputs, check: Exchanger
         return sum(r[3] for r in rows)
 
     q_top = min(Qh_max, Qc_max)
-    if gap(q_top) <= 0:
-        q_top = brentq(gap, 1e-9 * q_top, q_top, xtol=1e-9 * q_top, rtol=1e-12)
-    q_hi = q_top * (1 - 1e-7)
-    if UA_of(q_hi) <= e.UA:
-        q = q_hi
-    else:
-        q = brentq(lambda x: UA_of(x) - e.UA, 1e-9 * q_top, q_hi, xtol=1e-9 * q_top, rtol=1e-12, maxiter=200)
+    low = 1e-9 * q_top
+    if not q_top > 0 or gap(low) <= 0:
+        raise NoSolutionError(Phrase("{exchanger} cannot be rated: its hot inlet ({Th}) is not hotter than its cold "
+                                     "inlet ({Tc})", {"exchanger": e.name, "Th": Measure(hr.initial_T, "temperature", 1),
+                                                      "Tc": Measure(cr.initial_T, "temperature", 1)}), f"{e.address}.hot")
+    try:
+        if gap(q_top) <= 0:
+            q_top = brentq(gap, low, q_top, xtol=1e-9 * q_top, rtol=1e-12)
+        q_hi = q_top * (1 - 1e-7)
+        if UA_of(q_hi) <= e.UA:
+            q = q_hi
+        elif UA_of(low) >= e.UA:
+            q = low
+        else:
+            q = brentq(lambda x: UA_of(x) - e.UA, low, q_hi, xtol=1e-9 * q_top, rtol=1e-12, maxiter=200)
+    except (ValueError, RuntimeError) as exc:  # no bracket or no convergence: said, never a bare error
+        raise NoSolutionError(f"{e.name} could not be rated with this UA ({exc.__class__.__name__}): check its UA and "
+                              "the temperatures of its lines", f"{e.address}.UA") from None
     hot, cold, _ = curves(q)
     T_hot_out = hot.T(0.0, True)
     T_cold_out = cold.T(0.0 if co else q, not co)
-    ratio = q / check.duty
+    ratio = q / check.duty if check.duty > 0 else math.inf
+    if not math.isfinite(ratio):
+        raise NoSolutionError(f"{e.name} exchanges no heat in this balance: nothing to rate", f"{e.address}.UA")
     values = {"exchanger": e.name, "q": Measure(q, "power"), "duty": Measure(check.duty, "power"),
               "share": f"{ratio:.1%}", "Th": Measure(T_hot_out, "temperature", 1),
               "Tc": Measure(T_cold_out, "temperature", 1)}
@@ -543,8 +562,14 @@ def _rate(problem: Problem, result: Result, e: ExchangerInputs, check: Exchanger
 
 
 def check_exchangers(problem: Problem, result: Result) -> list[ExchangerCheck]:
-    """Every exchanger of the worksheet checked on the solved balance."""
-    return [check_exchanger(problem, result, e) for e in problem.exchangers]
+    """Every exchanger of the worksheet checked on the solved balance (a refusal names the exchanger at least)."""
+    checks = []
+    for e in problem.exchangers:
+        try:
+            checks.append(check_exchanger(problem, result, e))
+        except HeatBalanceError as exc:
+            raise exc.located(e.address)
+    return checks
 
 
 

@@ -122,7 +122,8 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
         raise InputError(Phrase("steam at {P} has no condensing plateau (supercritical)",
                                 {"P": Measure(u.P, "pressure")}), f"{u.address}.pressure")
     tr = boiling[0]
-    h_in = tr.h_upper if u.superheat == 0 else water.enthalpy(tr.T + u.superheat, u.P)
+    # a superheat below a millikelvin is saturated vapour (the property call there may land on either side)
+    h_in = tr.h_upper if u.superheat < 1e-3 else max(_h(u, tr.T + u.superheat, "superheat"), tr.h_upper)
     if u.condensate_T is None:
         T_out, h_out = tr.T, tr.h_lower
     else:
@@ -130,7 +131,7 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
             raise InputError(Phrase("condensate at {T} is not below the saturation temperature {Ts} at {P}",
                                     {"T": Measure(u.condensate_T, "temperature", 1), "Ts": Measure(tr.T, "temperature", 1),
                                      "P": Measure(u.P, "pressure")}), f"{u.address}.condensate_temperature")
-        T_out, h_out = u.condensate_T, water.enthalpy(u.condensate_T, u.P)
+        T_out, h_out = u.condensate_T, _h(u, u.condensate_T, "condensate_temperature")
     if tr.T < d.T_hot + d.minimum_approach:
         raise InputError(Phrase(
             "steam at {P} condenses at {Ts}: it cannot heat the process to {T} with a {dT} approach (it would need "
@@ -151,7 +152,7 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
 
 def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
     """(J/kg, supply T, return T) of a coolant or a hot oil."""
-    m, where = u.material, u.address
+    where = u.address
     if u.kind in COLD_KINDS:
         if u.supply_T > d.T_cold - d.minimum_approach:
             raise InputError(Phrase(
@@ -162,7 +163,7 @@ def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
                                                    "T": Measure(d.T_cold, "temperature", 1)}), f"{where}.supply_temperature")
         T_return = min(u.return_T, d.T_hot - d.minimum_approach)
         supply, ret = u.supply_T, T_return
-        per_kg = m.enthalpy(ret, u.P) - m.enthalpy(supply, u.P)
+        per_kg = _h(u, ret, "return_limit") - _h(u, supply, "supply_temperature")
     else:
         if u.supply_T < d.T_hot + d.minimum_approach:
             raise InputError(Phrase(
@@ -170,14 +171,24 @@ def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
                 {"Ts": Measure(u.supply_T, "temperature", 1), "T": Measure(d.T_hot, "temperature", 1),
                  "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}), f"{where}.supply_temperature")
         supply, ret = u.supply_T, max(u.return_T, d.T_cold + d.minimum_approach)
-        per_kg = m.enthalpy(supply, u.P) - m.enthalpy(ret, u.P)
+        per_kg = _h(u, supply, "supply_temperature") - _h(u, ret, "return_limit")
     if per_kg <= 0:
         raise InputError(Phrase("{name}: the approach leaves no temperature range between supply {Ts} and return {Tr}",
                                 {"name": u.name, "Ts": Measure(supply, "temperature", 1),
                                  "Tr": Measure(ret, "temperature", 1)}), f"{where}.return_limit")
-    for T in (supply, ret):
-        m.check_range(T, f"{where}.supply_temperature")
     return per_kg, supply, ret
+
+
+def _h(u: UtilityInputs, T: float, field: str) -> float:
+    """The utility's specific enthalpy at T, its range checked first; any property refusal at its field."""
+    where = f"{u.address}.{field}"
+    u.material.check_range(T, where)
+    try:
+        return u.material.enthalpy(T, u.P)
+    except HeatBalanceError as exc:
+        raise exc.located(where)
+    except ValueError as exc:  # the property library's own words, kept
+        raise InputError(f"no property data for {u.material.name} at this temperature ({exc})", where) from None
 
 
 def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = None) -> UtilityOption:
@@ -190,6 +201,9 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
     else:
         option.per_kg, option.supply_T, option.return_T = _sensible(u, d)
     if option.per_kg is not None:
+        if not option.per_kg > 0:
+            raise InputError(f"{u.name} gives no heat per kilogram between its supply and return states",
+                             u.address)
         option.flow = d.duty / option.per_kg
     per_hour_GJ = d.duty * 3600.0 / _GJ
     if u.per == "GJ":
@@ -211,6 +225,7 @@ def _option_or_refusal(u: UtilityInputs, d: Demand, hours: float | None) -> Util
     try:
         return utility_option(u, d, hours)
     except HeatBalanceError as exc:
+        exc.located(u.address)
         return UtilityOption(u.name, u.kind, False, refusal=exc, source=u.source)
 
 
