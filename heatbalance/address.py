@@ -438,7 +438,9 @@ def with_unknown(ws: Worksheet, address: str, old_value=None) -> Worksheet:
             ws = with_value(ws, old.rpartition(".")[0] + "." + field, fraction)
         else:
             ws = with_value(ws, old, old_value)
-    return ws.model_copy(update={"unknowns": [new]})
+    # the unknown is solved for: a tolerance it had as an input no longer applies
+    tolerances = [t for t in ws.tolerances if t.address != address]
+    return ws.model_copy(update={"unknowns": [new], "tolerances": tolerances})
 
 
 # --------------------------------------------------------------------------- renames

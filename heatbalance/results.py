@@ -86,6 +86,7 @@ class Result:
     # with a reaction
     screening: list["Screening"] = field(default_factory=list)  # noqa: F821
     uncertainty: object = None  # analyses.uncertainty.Uncertainty of the answer, when the sheet has tolerances
+    uncertainty_error: object = None  # the refusal that kept the uncertainty from being given (also a warning)
     exchangers: list = field(default_factory=list)  # analyses.exchangers.ExchangerCheck, one per exchanger
     utilities: list = field(default_factory=list)  # analyses.utilities.UtilityTable, one per duty to meet
 

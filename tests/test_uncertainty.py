@@ -17,7 +17,7 @@ from heatbalance.analyses.uncertainty import propagate, suggested_tolerances
 from heatbalance.cli import main
 from heatbalance.errors import AddressError, InputError, WorksheetFormatError
 from heatbalance.present.uncertainty import contribution_rows, uncertainty_text
-from heatbalance.worksheet import load_worksheet, parse_worksheet
+from heatbalance.worksheet import Quantity, load_worksheet, parse_worksheet
 
 P = 0.301325  # MPa: 2 barg
 
@@ -124,3 +124,30 @@ def test_the_cli_prints_the_uncertainty_and_its_json(tmp_path, capsys):
     assert main(["solve", str(path), "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert data["uncertainty"]["expanded"] == pytest.approx(2 * data["uncertainty"]["standard"])
+
+
+def test_a_tolerance_that_cannot_be_used_keeps_the_answer_and_says_so():
+    ws = cooling_water([{"address": "streams[CW].inlet.temperature", "plus_minus": "0.5 kg"}])
+    result = solve_and_analyse(ws)
+    assert result.uncertainty is None and result.answer.value_si > 0
+    assert result.uncertainty_error.where == "streams[CW].inlet.temperature"
+    assert any("uncertainty cannot be given" in w.text and w.address == "streams[CW].inlet.temperature"
+               for w in result.warnings)
+
+
+def test_making_an_input_the_unknown_drops_its_tolerance():
+    ws = cooling_water(TOLERANCES)
+    switched = A.with_unknown(ws, "streams[CW].flow", Quantity(value=1000, unit="kW"))
+    assert "streams[CW].flow" not in {t.address for t in switched.tolerances}
+    assert len(switched.tolerances) == 2
+
+
+def test_check_tolerance_refuses_without_solving():
+    from heatbalance.analyses.uncertainty import check_tolerance
+    from heatbalance.worksheet import Tolerance
+
+    ws = cooling_water([])
+    assert check_tolerance(ws, Tolerance(address="streams[CW].outlet.temperature", plus_minus="0.9 degF")) == \
+        pytest.approx(0.5)  # 0.9 °F = 0.5 K, in the °C typed there
+    with pytest.raises(InputError, match="this is the unknown"):
+        check_tolerance(ws, Tolerance(address="duties[Cooler].value", percent=2))

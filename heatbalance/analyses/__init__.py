@@ -8,7 +8,8 @@ from dataclasses import fields, is_dataclass
 
 from ..address import item
 from ..balance import solve_problem
-from ..errors import NoSolutionError
+from ..errors import HeatBalanceError, NoSolutionError
+from ..messages import Phrase
 from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
@@ -63,5 +64,11 @@ def solve_and_analyse(ws: Worksheet) -> Result:
     if ws.tolerances:
         from .uncertainty import propagate  # only sheets with tolerances pay for it
 
-        result.uncertainty = propagate(ws)
+        try:
+            result.uncertainty = propagate(ws)
+        except HeatBalanceError as exc:  # the answer stands; that its uncertainty is missing is said loudly
+            result.uncertainty_error = exc
+            result.warnings = list(result.warnings) + [Phrase(
+                "The answer's uncertainty cannot be given ({where}): {reason} Fix or remove that tolerance.",
+                {"where": exc.where, "reason": exc.phrase.text}, address=exc.where)]
     return result

@@ -30,7 +30,7 @@ from ..worksheet import Quantity, Tolerance, Worksheet
 from .sweep import Axis, _FastRun, output_names
 
 __all__ = ["COVERAGE_FACTOR", "DEFAULT_TOLERANCES", "Contribution", "MonteCarlo", "Uncertainty", "propagate",
-           "suggested_tolerances", "standard_uncertainty"]
+           "suggested_tolerances", "standard_uncertainty", "check_tolerance"]
 
 COVERAGE_FACTOR = 2.0  # k for the expanded uncertainty, about 95 % for a normal output (GUM 6.2)
 _DIVISORS = {"rectangular": math.sqrt(3.0), "normal": 1.0, "95 %": 2.0}  # a / u (GUM 4.3.7, 4.3.3)
@@ -149,6 +149,13 @@ def _half_width(tolerance: Tolerance, typed, kinds: tuple[str, ...]) -> float:
 def standard_uncertainty(tolerance: Tolerance, half_width: float) -> float:
     """u(x) = a / divisor of the distribution (GUM 4.3.7 rectangular √3; normal 1; 95 % 2)."""
     return half_width / _DIVISORS[tolerance.distribution]
+
+
+def check_tolerance(ws: Worksheet, tolerance: Tolerance) -> float:
+    """Refuse a tolerance the worksheet cannot use (at its address), without solving; return its ± half-width
+    in the input's typed unit."""
+    unknown = unknown_address(ws.unknowns[0]) if len(ws.unknowns) == 1 else ""
+    return _entry(ws, tolerance, unknown)[2]
 
 
 # --------------------------------------------------------------------------- propagation
