@@ -219,10 +219,12 @@ def test_a_tolerance_on_the_unknown_is_refused_with_its_address():
     with pytest.raises(InputError, match="this is the unknown") as caught:
         checked_tolerance(ws, tolerance)
     assert caught.value.where == UNKNOWN
-    # a file arriving with one: the answer is refused there, and the panel points at the tolerance to remove
+    # a file arriving with one: the answer stands, its uncertainty is refused there (a warning), and the panel
+    # points at the tolerance to remove
     at = page(ws.model_copy(update={"tolerances": [*ws.tolerances, tolerance]}))
     no_exception(at)
-    assert f"A tolerance stops the answer: {UNKNOWN}: this is the unknown" in errors(at)
+    assert at.session_state[KEY].result is not None
+    assert f"A tolerance stops the uncertainty: {UNKNOWN}: this is the unknown" in errors(at)
     at.button(key=f"uncert_remove_{len(ws.tolerances)}").click().run()
     assert held(at).tolerances == ws.tolerances
     assert answer_uncertainty(at) == uncertainty_text(propagate(ws), "SI", at.session_state[KEY].result.answer)

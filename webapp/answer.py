@@ -30,10 +30,9 @@ def _on_unknown_pick(choices: dict[str, str]) -> None:
     new = choices.get(st.session_state.get("unknown_picker"))
     if new is not None:
         state = page_state()
-        state.pick_unknown(new)
-        kept = [t for t in state.worksheet.tolerances if t.address != new]
-        if len(kept) != len(state.worksheet.tolerances):  # the unknown is solved for: it has no tolerance
-            state.set_worksheet(state.worksheet.model_copy(update={"tolerances": kept}))
+        had = any(t.address == new for t in state.worksheet.tolerances)
+        state.pick_unknown(new)  # the engine drops a tolerance the new unknown had (it is solved for)
+        if had:
             st.session_state[uncertainty_key("notice")] = (
                 f"The tolerance on {address.label(new)} was removed: it is now the unknown, solved for.")
             st.session_state.pop(uncertainty_key("refusal"), None)

@@ -201,7 +201,7 @@ def _result_section(worksheet: Worksheet, result: Result | None, system: str) ->
                 "on the right, or fill in the suggested ones.", icon=":material/info:")
         return
     if u is None:
-        _refusal_of_sheet(worksheet, system)
+        _refusal_of_sheet(worksheet, result, system)
         return
     st.markdown(f"**Answer with its uncertainty:** {plain(uncertainty_text(u, system, result.answer))}")
     rows = contribution_rows(u, system, result.answer)
@@ -215,13 +215,13 @@ def _result_section(worksheet: Worksheet, result: Result | None, system: str) ->
     _monte_carlo_section(worksheet, result, system)
 
 
-def _refusal_of_sheet(worksheet: Worksheet, system: str) -> None:
-    """The sheet does not solve: say whether a tolerance is the reason (it is listed on the right to fix)."""
-    error = page_state().error
+def _refusal_of_sheet(worksheet: Worksheet, result: Result | None, system: str) -> None:
+    """No uncertainty: a tolerance the engine cannot use (the answer stands, its ± is missing), or no answer."""
+    error = getattr(result, "uncertainty_error", None) if result is not None else page_state().error
     held = {t.address for t in worksheet.tolerances}
     if error is not None and (error.where in held or error.where == "tolerances"):
-        st.error(f"A tolerance stops the answer: {plain(_located(error, system))}. Change or remove it on the "
-                 "right.", icon=":material/error:")
+        st.error(f"A tolerance stops the uncertainty: {plain(_located(error, system))}. Change or remove it on "
+                 "the right.", icon=":material/error:")
     else:
         st.caption("The uncertainty is shown once the balance solves.")
 
