@@ -134,7 +134,7 @@ def test_the_command_lines_size_limit_is_the_loaders():
 
 @pytest.mark.parametrize("command, absent", [
     (["materials"], {"CoolProp", "scipy.optimize", "plotly", "pandas", "sqlalchemy", "pint", "chemicals"}),
-    (["solve", FLASH], {"plotly", "sqlalchemy", "pandas", "chemicals", "reportlab"}),  # pint loads uncertainties
+    (["solve", FLASH], {"plotly", "sqlalchemy", "pandas", "chemicals", "reportlab", "ht"}),  # pint loads uncertainties
 ])
 def test_a_command_imports_only_what_it_needs(command, absent):
     """Start-up time (issue 16): what a command does not use is never imported."""

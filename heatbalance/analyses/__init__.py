@@ -13,12 +13,20 @@ from ..messages import Phrase
 from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
-from .exchangers import ExchangerCheck, check_exchangers
 from .screening import JacketTime, Screening, screen
 from .utilities import UtilityTable, utility_tables
 
 __all__ = ["JacketTime", "Screening", "screen", "ExchangerCheck", "check_exchangers", "UtilityTable",
            "utility_tables", "analyse", "solve_and_analyse"]
+
+
+def __getattr__(name: str):
+    """The exchanger check loads ``ht`` (and scipy's linear algebra): only a sheet with exchangers pays for it."""
+    if name in ("ExchangerCheck", "check_exchangers"):
+        from . import exchangers
+
+        return getattr(exchangers, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def _finite_numbers(record) -> bool:
@@ -43,7 +51,12 @@ def analyse(problem, result):
             raise NoSolutionError("the thermal screening gives a number that is not finite (e.g. a jacket so small "
                                   "that the time is beyond any scale): check the screening inputs",
                                   item("vessels", s.vessel, "screening"))
-    result.exchangers = check_exchangers(problem, result)
+    if problem.exchangers:
+        from .exchangers import check_exchangers
+
+        result.exchangers = check_exchangers(problem, result)
+    else:
+        result.exchangers = []
     result.utilities = utility_tables(problem, result)
     for records, where in ((result.exchangers, lambda r: r.address), (result.utilities, lambda r: r.demand.address)):
         for record in records:
