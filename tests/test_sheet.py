@@ -133,3 +133,13 @@ def test_the_cli_writes_the_sheet_of_a_signed_revision(tmp_path, monkeypatch, ca
     assert UNCHECKED in text_of((tmp_path / "unsaved.pdf").read_bytes())
     assert main(["sign", "0" * 24, "--role", "checked", "--name", "X"]) == 1
     assert capsys.readouterr().err.startswith(f"error: ws: no saved worksheet has the id {'0' * 24}")
+
+
+def test_an_exchanger_sheet_carries_its_check_its_t_q_chart_and_the_utilities():
+    ws = sample("sample_data/steam_heater_subcooled_condensate.json")
+    result = solve_and_analyse(ws)
+    text = text_of(sheet_pdf_bytes(ws, result, "SI"))
+    check = result.exchangers[0]
+    assert f"Exchanger {check.name}" in text and "minimum internal approach" in text and "UA required" in text
+    assert f"{check.name}: T-Q chart" in text
+    assert "Utilities for" in text and result.utilities[0].options[0].utility in text

@@ -31,8 +31,9 @@ from .. import address as addresses
 from ..reactor import CAUTION
 from ..results import SIGN_CONVENTION, Result
 from ..worksheet import Quantity, Worksheet
-from ..units import heat_kind
+from ..units import from_si, heat_kind
 from .exports import slug
+from .exchangers import exchanger_rows, utility_rows, zone_rows
 from .figures import CLOSING_COLOUR, HEAT_IN_COLOUR, HEAT_OUT_COLOUR, waterfall_steps
 from .screening import screening_report
 from .tables import contribution_rows
@@ -264,7 +265,8 @@ def _waterfall(result: Result, system: str, styles) -> list:
                          fillColor=colors.HexColor(colour), strokeColor=None))
         name = _plain(step["label"])[:18]
         drawing.add(String(x, 2, name, fontName=regular, fontSize=6))
-        drawing.add(String(x, max(y(a), y(b)) + 1.5, no_negative_zero(amount_text(step["heat"])), fontName=regular,
+        shown = step["heat"] if abs(step["heat"]) > 1e-9 * (high - low or 1.0) else 0.0  # the closing sum: 0
+        drawing.add(String(x, max(y(a), y(b)) + 1.5, no_negative_zero(amount_text(shown)), fontName=regular,
                            fontSize=6))
     unit = display_unit(UNIT_SETS[system][heat_kind(result.basis)])
     drawing.add(String(0, height - 6, f"[{unit}]", fontName=regular, fontSize=7))
@@ -294,6 +296,65 @@ def _cases(ws: Worksheet, system: str, styles) -> list:
     return out
 
 
+def _exchangers(result: Result, system: str, styles) -> list:
+    """Each exchanger's check (approach, UA, zones, rating) with its T–Q chart, and the utilities side by side."""
+    checks, tables = getattr(result, "exchangers", []) or [], getattr(result, "utilities", []) or []
+    out = []
+    for check in checks:
+        rows = [["quantity", "value", "note"]] + [[r["quantity"], r["value"], r["note"]]
+                                                  for r in exchanger_rows(check, system)]
+        out += [_p(f"Exchanger {check.name}: hot {', '.join(check.hot)}; cold {', '.join(check.cold)}", styles["h2"]),
+                _table(rows, [45 * mm, 35 * mm, 100 * mm], styles)]
+        zones = zone_rows(check, system)
+        if zones:
+            heading = list(zones[0])
+            body = [[amount_text(r[c]) if isinstance(r[c], float) else r[c] for c in heading] for r in zones]
+            out += [Spacer(1, 3), _table([heading, *body], [180 * mm / len(heading)] * len(heading), styles)]
+        out += [_p(f"• {phrase_text(n, system)}", styles["small"]) for n in check.notes]
+        out.append(_tq_drawing(check, system))
+    for table in tables:
+        rows = utility_rows(table, system)
+        if not rows:
+            continue
+        heading = [c for c in rows[0] if c != "source"]
+        body = [["" if r[c] is None else amount_text(r[c]) if isinstance(r[c], float) else r[c] for c in heading]
+                for r in rows]
+        out += [_p(f"Utilities for {table.demand.label}", styles["h2"]),
+                _table([heading, *body], [180 * mm / len(heading)] * len(heading), styles)]
+    return out
+
+
+def _tq_drawing(check, system: str) -> Drawing:
+    """The T–Q chart as vectors: the hot curve above the cold one against heat from the cold end."""
+    width, height, left, bottom = 180 * mm, 62 * mm, 16 * mm, 10 * mm
+    unit = UNIT_SETS[system]["temperature"]
+    points = [(x, from_si(T, unit, "temperature")) for x, T in check.hot_curve + check.cold_curve]
+    x_max = max(x for x, _ in points) or 1.0
+    t_low, t_high = min(t for _, t in points), max(t for _, t in points)
+    span = (t_high - t_low) or 1.0
+    drawing = Drawing(width, height)
+    regular = _font()[0]
+
+    def xy(x: float, t: float) -> tuple[float, float]:
+        return left + (width - left - 4) * x / x_max, bottom + (height - bottom - 10) * (t - t_low) / span
+
+    for curve, colour in ((check.hot_curve, HEAT_IN_COLOUR), (check.cold_curve, HEAT_OUT_COLOUR)):
+        shown = [xy(x, from_si(T, unit, "temperature")) for x, T in curve]
+        for (x0, y0), (x1, y1) in zip(shown, shown[1:]):
+            drawing.add(Line(x0, y0, x1, y1, strokeColor=colors.HexColor(colour), strokeWidth=1.2))
+    drawing.add(Line(left, bottom, width, bottom, strokeColor=colors.black, strokeWidth=0.5))
+    drawing.add(Line(left, bottom, left, height - 6, strokeColor=colors.black, strokeWidth=0.5))
+    drawing.add(String(0, height - 8, f"T [{display_unit(unit)}]", fontName=regular, fontSize=6.5))
+    for t in (t_low, t_high):
+        drawing.add(String(0, xy(0.0, t)[1] - 2, f"{t:.0f}", fontName=regular, fontSize=6.5))
+    drawing.add(String(left, height - 8, f"{_plain(check.name)}: T–Q chart (red: hot side, blue: cold side), "
+                       f"{t_low:.0f} to {t_high:.0f} {display_unit(unit)}".replace("–", "-"), fontName=regular,
+                       fontSize=6.5))
+    drawing.add(String(width - 60 * mm, 1, "heat from the cold end →".replace("→", "->"), fontName=regular,
+                       fontSize=6.5))
+    return drawing
+
+
 def _signoffs(signoffs: list, styles) -> list:
     out = [_p("Sign-off", styles["h2"])]
     if not signoffs:
@@ -321,7 +382,8 @@ def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision:
     story = []
     for section in (_identity(ws, revision, link, system, printed, styles), _answer(result, system, styles),
                     _warnings(ws, result, system, styles), _inputs(ws, styles), _contributions(result, system, styles),
-                    _uncertainty(result, system, styles), _cases(ws, system, styles), _screening(result, system, styles),
+                    _uncertainty(result, system, styles), _cases(ws, system, styles), _exchangers(result, system, styles),
+                    _screening(result, system, styles),
                     _waterfall(result, system, styles), _conventions(result, styles),
                     _signoffs(signoffs or [], styles)):
         story += section
