@@ -87,6 +87,7 @@ class Result:
     screening: list["Screening"] = field(default_factory=list)  # noqa: F821
     uncertainty: object = None  # analyses.uncertainty.Uncertainty of the answer, when the sheet has tolerances
     uncertainty_error: object = None  # the refusal that kept the uncertainty from being given (also a warning)
+    output_uncertainties: dict = field(default_factory=dict)  # other outputs' Uncertainty (each screening's MTSR)
     exchangers: list = field(default_factory=list)  # analyses.exchangers.ExchangerCheck, one per exchanger
     utilities: list = field(default_factory=list)  # analyses.utilities.UtilityTable, one per duty to meet
 

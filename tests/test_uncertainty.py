@@ -151,3 +151,14 @@ def test_check_tolerance_refuses_without_solving():
         pytest.approx(0.5)  # 0.9 °F = 0.5 K, in the °C typed there
     with pytest.raises(InputError, match="this is the unknown"):
         check_tolerance(ws, Tolerance(address="duties[Cooler].value", percent=2))
+
+
+def test_the_screening_temperature_is_reported_with_its_uncertainty():
+    from heatbalance.present.report import format_result
+
+    ws = load_worksheet(open("sample_data/glycol_hydration_screening.json", "rb").read())
+    ws = ws.model_copy(update={"tolerances": suggested_tolerances(ws)})
+    result = solve_and_analyse(ws)
+    u = result.output_uncertainties["screening[R-7].MTSR"]
+    assert u.value == pytest.approx(result.screening[0].MTSR, rel=1e-12) and u.standard > 0
+    assert f"R-7: MTSR = {uncertainty_text(u, 'SI')}" in format_result(result, "SI")

@@ -79,6 +79,9 @@ def solve_and_analyse(ws: Worksheet) -> Result:
 
         try:
             result.uncertainty = propagate(ws)
+            # the screening's temperatures bear on safety: how sure they are too
+            result.output_uncertainties = {f"screening[{s.vessel}].MTSR": propagate(ws, f"screening[{s.vessel}].MTSR")
+                                           for s in result.screening}
         except HeatBalanceError as exc:  # the answer stands; that its uncertainty is missing is said loudly
             result.uncertainty_error = exc
             result.warnings = list(result.warnings) + [Phrase(

@@ -7,7 +7,7 @@ from .screening import screening_report
 from .tables import contribution_rows
 from .text import answer_text, answer_unit, answer_value, format_heat, phrase_text
 from .uncertainty import contribution_rows as uncertainty_rows
-from .uncertainty import monte_carlo_text, uncertainty_text
+from .uncertainty import monte_carlo_text, output_uncertainty_lines, uncertainty_text
 
 __all__ = ["format_result", "result_json"]
 
@@ -39,7 +39,7 @@ def format_result(result: Result, system: str = "SI") -> str:
     out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
     out += ["warnings:"] + ([f"  ! {phrase_text(w, system)}" for w in result.warnings] or ["  (none)"])
     if result.uncertainty is not None:
-        out += [""] + uncertainty_report(result.uncertainty, system, result.answer)
+        out += [""] + uncertainty_report(result.uncertainty, system, result.answer, result)
     if result.screening:
         out += [""] + screening_report(result.screening, system)
     if result.exchangers or result.utilities:
@@ -48,11 +48,12 @@ def format_result(result: Result, system: str = "SI") -> str:
     return "\n".join(out)
 
 
-def uncertainty_report(u, system: str, answer) -> list[str]:
+def uncertainty_report(u, system: str, answer, result: Result | None = None) -> list[str]:
     """The answer ± U and its contributors, for the command line."""
     rows = uncertainty_rows(u, system, answer)
     out = ["UNCERTAINTY (GUM: linear propagation of the inputs' tolerances)",
            f"  {answer.label} = {uncertainty_text(u, system, answer)}"]
+    out += [f"  {line}" for line in output_uncertainty_lines(result, system)] if result is not None else []
     if rows:
         columns = [c for c in rows[0] if c not in ("address", "source")]
         out += ["  " + line for line in _table(rows, columns).splitlines()]

@@ -39,7 +39,7 @@ from .screening import screening_report
 from .tables import contribution_rows
 from .text import UNIT_SETS, amount_text, answer_text, display_unit, format_heat, no_negative_zero, phrase_text
 from .uncertainty import contribution_rows as uncertainty_rows
-from .uncertainty import monte_carlo_text, tolerance_text, uncertainty_text
+from .uncertainty import monte_carlo_text, output_uncertainty_lines, tolerance_text, uncertainty_text
 
 __all__ = ["sheet_pdf_bytes", "sheet_filename", "UNCHECKED"]
 
@@ -222,6 +222,7 @@ def _uncertainty(result: Result, system: str, styles) -> list:
     table = [heading] + [[r[c] if not isinstance(r[c], float) else amount_text(r[c]) for c in heading] for r in rows]
     out = [_p("How sure is the answer (GUM, linear propagation)", styles["h2"]),
            _p(uncertainty_text(u, system, result.answer), styles["body"])]
+    out += [_p(line, styles["body"]) for line in output_uncertainty_lines(result, system)]
     if rows:
         table[0] = [h.replace("contribution", "part") for h in table[0]]
         out.append(_table(table, [34 * mm, 18 * mm, 24 * mm, 42 * mm, 16 * mm, 18 * mm, 12 * mm, 16 * mm], styles))

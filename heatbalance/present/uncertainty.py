@@ -11,7 +11,8 @@ from .text import UNIT_SETS, answer_unit, display_unit
 if TYPE_CHECKING:  # the analysis (numpy, uncertainties) is loaded only when a sheet has tolerances
     from ..analyses.uncertainty import Uncertainty
 
-__all__ = ["uncertainty_unit", "uncertainty_text", "contribution_rows", "monte_carlo_text", "tolerance_text"]
+__all__ = ["uncertainty_unit", "uncertainty_text", "contribution_rows", "monte_carlo_text", "tolerance_text",
+           "output_uncertainty_lines"]
 
 
 def uncertainty_unit(u: Uncertainty, system: str = "SI", answer: Answer | None = None) -> str:
@@ -86,3 +87,13 @@ def monte_carlo_text(u: Uncertainty, system: str = "SI", answer: Answer | None =
             f"standard deviation {_number(abs(_difference(mc.standard, unit, u.kind)))}, 95 % of draws between "
             f"{_number(low)} and {_number(high)} {display_unit(unit)}; linear: u = "
             f"{_number(abs(_difference(u.standard, unit, u.kind)))}".rstrip())
+
+
+def output_uncertainty_lines(result, system: str = "SI") -> list[str]:
+    """Other outputs with their uncertainty (each screening's MTSR): ``R-7: MTSR = 91.2 ± 3.1 °C (k = 2, ...)``."""
+    def label_of(name: str) -> str:  # screening[R-7].MTSR -> R-7: MTSR
+        head, _, field = name.rpartition(".")
+        return f"{head[head.index('[') + 1:-1]}: {field}" if "[" in head else name
+
+    return [f"{label_of(name)} = {uncertainty_text(u, system)}"
+            for name, u in (getattr(result, "output_uncertainties", None) or {}).items()]
