@@ -251,3 +251,14 @@ def test_cli_cases_and_a_bad_vary(capsys):
     assert main(["sweep", GLYCOL, "--vary", "streams[Glycol].flow=6,12 kW"]) == 1
     assert capsys.readouterr().err == ("error: streams[Glycol].flow: unit 'kW' is not a mass flow "
                                        "(it measures power)\n")
+
+
+def test_warnings_every_point_shares_are_said_once():
+    from heatbalance.present.whatif import shared_warnings
+
+    frame = sweep(sample(GLYCOL), [Axis("streams[Glycol].outlet.temperature", (40, 60, 120), "degC")])
+    shared = shared_warnings(frame, "SI")
+    assert len(shared) == 1 and shared[0].startswith("Steam changes phase")
+    table = sweep_table(frame, "SI", shared)
+    assert not any("Steam changes phase" in text for text in table[WARNINGS])
+    assert all("Steam changes phase" in text for text in sweep_table(frame, "SI")[WARNINGS][:2])

@@ -34,8 +34,8 @@ from heatbalance.analyses.cases import AS_TYPED, run_cases
 from heatbalance.analyses.sweep import MAX_POINTS, REASON, Axis, answer_field, axis_values, output_names, sweep
 from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.present.text import display_unit, error_text
-from heatbalance.present.whatif import (case_table, output_label, output_unit, refusal_rows, sweep_csv_bytes,
-                                        sweep_figure, sweep_table)
+from heatbalance.present.whatif import (case_table, output_label, output_unit, refusal_rows, shared_warnings,
+                                        sweep_csv_bytes, sweep_figure, sweep_table)
 from heatbalance.problem import build_problem
 from heatbalance.results import Result
 from heatbalance.worksheet import Case, Override, Quantity, Worksheet, parse_worksheet
@@ -305,7 +305,9 @@ def _drawn(kept: dict, system: str, chosen: str):
         labels += [output_label(n, frame) for n in frame.attrs["kinds"]]
         plotly_safe(figure, labels)
         drawn.clear()  # one view at a time is enough
-        drawn[(system, chosen)] = (figure, sweep_table(frame, system), sweep_csv_bytes(frame, system))
+        shared = shared_warnings(frame, system)  # said once above the table, not on each of its rows
+        drawn[(system, chosen)] = (figure, sweep_table(frame, system, shared), sweep_csv_bytes(frame, system),
+                                   shared)
     return drawn[(system, chosen)]
 
 
@@ -326,7 +328,7 @@ def _draw_sweep(worksheet: Worksheet, system: str) -> None:
     if len(outputs) > 1:
         st.selectbox("Chart", outputs, key=key("chart_output"), format_func=lambda n: output_label(n, frame))
     chosen = st.session_state[key("chart_output")]
-    figure, table, csv = _drawn(kept, system, chosen)
+    figure, table, csv, shared = _drawn(kept, system, chosen)
     with st.container(key="whatif_chart"):
         st.plotly_chart(figure, key=key("figure"), width="stretch")
     if refused:
@@ -336,6 +338,8 @@ def _draw_sweep(worksheet: Worksheet, system: str) -> None:
             st.warning(f"{refused:,} of {len(frame):,} points were refused: gaps in the chart{more}.",
                        icon=":material/block:")
             st.markdown("\n".join(f"- {plain(r)}" for r in rows[:LISTED_REFUSALS]))
+    if shared:
+        st.warning("At every point: " + " ".join(plain(w) for w in shared), icon=":material/warning:")
     numbers = {c: st.column_config.NumberColumn(format=_NUMBER) for c in table.columns
                if pd.api.types.is_float_dtype(table[c])}
     st.dataframe(table, key=key("table"), hide_index=True, column_config=numbers)

@@ -13,7 +13,7 @@ from ..errors import HeatBalanceError
 from ..units import check_unit, from_si
 from .text import UNIT_SETS, display_unit, error_text, phrase_text
 
-__all__ = ["output_label", "output_unit", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
+__all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
            "refusal_rows"]
 
 _OUTPUT_WORDS = {"answer": "answer", "answer.phase_fraction": "phase fraction of the answer", "residual": "residual"}
@@ -59,8 +59,20 @@ def _header(label: str, unit: str) -> str:
     return f"{label} [{display_unit(unit)}]" if unit else label
 
 
-def sweep_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
-    """A sweep's frame for people: axes as given, outputs in the view's units, each refusal in words."""
+def shared_warnings(frame: pd.DataFrame, system: str = "SI") -> list[str]:
+    """The warnings every solved point of a sweep has (e.g. the steam condenses), to be said once."""
+    if WARNINGS not in frame:
+        return []
+    solved = [phrases for phrases, reason in zip(frame[WARNINGS], frame[REASON]) if reason is None]
+    if not solved:
+        return []
+    texts = [phrase_text(p, system) for p in solved[0]]
+    return [t for t in texts if all(t in {phrase_text(p, system) for p in phrases} for phrases in solved[1:])]
+
+
+def sweep_table(frame: pd.DataFrame, system: str = "SI", leave_out: tuple | list = ()) -> pd.DataFrame:
+    """A sweep's frame for people: axes as given, outputs in the view's units, each refusal in words;
+    ``leave_out``: warnings said once elsewhere (see :func:`shared_warnings`), not repeated on every row."""
     out = {}
     for column, unit in frame.attrs["units"].items():
         out[_header(address_label(column), unit)] = frame[column]
@@ -70,7 +82,9 @@ def sweep_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
     out[REFUSED_AT] = frame[REFUSED_AT]
     out[REASON] = frame[REASON].map(lambda exc: "" if exc is None else error_text(exc, system))
     if WARNINGS in frame:
-        out[WARNINGS] = frame[WARNINGS].map(lambda phrases: " ".join(phrase_text(p, system) for p in phrases))
+        left_out = set(leave_out)
+        out[WARNINGS] = frame[WARNINGS].map(lambda phrases: " ".join(
+            t for t in (phrase_text(p, system) for p in phrases) if t not in left_out))
     return pd.DataFrame(out)
 
 
