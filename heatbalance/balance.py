@@ -25,7 +25,7 @@ from .problem import EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_pr
 from .properties import IncompressibleSolution, Material, Transition, property_library_versions
 from .results import Answer, LineResult, Result, TermResult
 from .units import ATMOSPHERE, basis_kinds, heat_kind
-from .worksheet import Quantity, Worksheet
+from .worksheet import Worksheet
 
 __all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state", "Point"]
 

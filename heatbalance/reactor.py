@@ -19,7 +19,6 @@ Every number here is a screening estimate: see :data:`CAUTION`.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
 
 from .errors import InputError, NoSolutionError
 from .messages import Measure, Phrase

@@ -84,7 +84,7 @@ class Result:
     sign_convention: str = SIGN_CONVENTION
     # filled by the analyses (this module may not import them): one analyses.screening.Screening per vessel
     # with a reaction
-    screening: list["Screening"] = field(default_factory=list)  # noqa: F821
+    screening: list = field(default_factory=list)
     uncertainty: object = None  # analyses.uncertainty.Uncertainty of the answer, when the sheet has tolerances
     uncertainty_error: object = None  # the refusal that kept the uncertainty from being given (also a warning)
     output_uncertainties: dict = field(default_factory=dict)  # other outputs' Uncertainty (each screening's MTSR)

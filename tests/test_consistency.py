@@ -9,7 +9,7 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from heatbalance.balance import solve
-from heatbalance.present.text import answer_text, answer_unit, answer_value
+from heatbalance.present.text import answer_value
 from heatbalance.errors import NoSolutionError
 from sheet_factory import build, constant_cp_material, q, stream, temp
 

@@ -9,13 +9,12 @@ from __future__ import annotations
 
 import io
 import re
-from pathlib import Path
 
 import pypdf
 import pytest
+from page_helpers import held, page, sample
 from streamlit.testing.v1 import AppTest
 
-from heatbalance import load_worksheet
 from heatbalance.analyses.uncertainty import propagate, suggested_tolerances
 from heatbalance.errors import InputError
 from heatbalance.links import revision_id
@@ -25,11 +24,9 @@ from heatbalance.units import from_si
 from heatbalance.worksheet import Quantity, Tolerance
 from webapp.common import WORD_JOINER
 from webapp.filing_panel import OFFER
-from webapp.state import KEY, PageState
+from webapp.state import KEY
 from webapp.uncertainty_panel import checked_tolerance, parse_tolerance, with_suggested
 
-ROOT = Path(__file__).resolve().parent.parent
-APP = str(ROOT / "app.py")
 CONDENSER = "solvent_condenser_cooling_water.json"  # answer: cooling-water flow in t/h, four tolerances
 HEATER = "steam_heater_glycol.json"  # no tolerances
 FLOW = "streams[Toluene overhead].flow"
@@ -46,18 +43,7 @@ def db(monkeypatch, tmp_path):
     return f"sqlite:///{tmp_path / 'filing.sqlite3'}"
 
 
-def sample(name: str):
-    return load_worksheet((ROOT / "sample_data" / name).read_bytes())
 
-
-def page(ws) -> AppTest:
-    at = AppTest.from_file(APP, default_timeout=60)
-    at.session_state[KEY] = PageState.opened(ws)
-    return at.run()
-
-
-def held(at):
-    return at.session_state[KEY].worksheet
 
 
 def shown(text: str) -> str:

@@ -15,6 +15,7 @@ from pathlib import Path
 
 import pypdf
 import pytest
+from page_helpers import idle, open_page
 from playwright.sync_api import TimeoutError as PlaywrightTimeout
 
 from conftest import running_app
@@ -30,7 +31,6 @@ SAMPLE = Path(__file__).resolve().parent.parent / "sample_data" / "solvent_conde
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 PLUS_MINUS = ".st-key-answer_uncertainty"
 TIMEOUT_MS = 30_000
-FIRST_DRAW_MS = 90_000
 SIGNER = "Rosa Okafor"
 
 
@@ -46,19 +46,9 @@ def server(tmp_path_factory):
 @pytest.fixture
 def page(browser, server):
     url, _ = server
-    context = browser.new_context(viewport={"width": 1440, "height": 2600}, accept_downloads=True)
-    opened = context.new_page()
-    opened.set_default_timeout(TIMEOUT_MS)
-    opened.goto(url)
-    opened.wait_for_selector(ANSWER, timeout=FIRST_DRAW_MS)  # the first run on a cold server loads the libraries
-    _idle(opened)
+    context, opened = open_page(browser, url, ANSWER, TIMEOUT_MS)
     yield opened
     context.close()
-
-
-def _idle(page) -> None:
-    """The script run has finished: the running indicator is gone."""
-    page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden")
 
 
 def _choose(page, widget: str, option: str, attempts: int = 5) -> None:
@@ -66,7 +56,7 @@ def _choose(page, widget: str, option: str, attempts: int = 5) -> None:
     list, so it is opened again (each wait is on the list or on the box's shown value)."""
     box = page.locator(f".st-key-{widget}")
     for attempt in range(attempts):
-        _idle(page)
+        idle(page)
         box.click()
         try:
             page.get_by_role("option", name=option, exact=True).click(timeout=5_000)
@@ -83,7 +73,7 @@ def _open_sample(page, title: str, attempts: int = 5) -> None:
     so the wait is on the page's title."""
     box = page.locator(".st-key-sample_picker")
     for attempt in range(attempts):
-        _idle(page)
+        idle(page)
         box.click()
         try:
             page.get_by_role("option", name=title, exact=True).click(timeout=5_000)
@@ -111,7 +101,7 @@ def test_open_save_sign_and_download_the_calculation_sheet(server, page, output_
     page.locator(".st-key-filing_panel").get_by_text("Not saved: save the worksheet").wait_for()
     assert page.locator(".st-key-filing_sign button").is_disabled()
 
-    _idle(page)
+    idle(page)
     page.get_by_role("button", name="Save and share").click()
     rev_id = revision_id(ws)
     page.wait_for_url(re.compile(rf"\?ws={rev_id}$"))
@@ -124,16 +114,16 @@ def test_open_save_sign_and_download_the_calculation_sheet(server, page, output_
     name = page.locator(".st-key-filing_name input")
     name.fill(SIGNER)
     name.press("Enter")
-    _idle(page)
+    idle(page)
     comment = page.locator(".st-key-filing_comment textarea")
     comment.fill("Checked against the cooling-water flow meter log")
     comment.press("Control+Enter")
-    _idle(page)
+    idle(page)
     _wait_for_input(page, "filing_name", SIGNER)
     _wait_for_input(page, "filing_comment", "Checked against the cooling-water flow meter log", "textarea")
     sign.click()
     page.get_by_text(f"Signed revision {rev_id}: checked by {SIGNER}.").wait_for()
-    _idle(page)
+    idle(page)
     with WorksheetStore(db) as store:
         signoffs = store.signoffs(rev_id)
     assert [(s.role, s.name, s.comment) for s in signoffs] == \

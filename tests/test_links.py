@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from heatbalance.balance import solve
-from heatbalance.present.text import answer_text, answer_unit, answer_value
+from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
 from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import (ID_LENGTH, MAX_SHEET_PARAM_CHARS, SHEET_PREFIX, LinkError, canonical_json, check_id,

@@ -18,7 +18,6 @@ from heatbalance.errors import InputError, NoSolutionError, UnitError, Worksheet
 from heatbalance.reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, criticality_class,
                                  jacket_temperature, jacket_time, mtsr, thermal_inertia_factor)
 from heatbalance.present.screening import screening_figure, screening_report
-from heatbalance.present.text import phrase_text
 from sheet_factory import build, constant_cp_material, q, temp
 
 C = 273.15  # K at 0 °C (definition)

@@ -4,7 +4,7 @@ import json
 import pytest
 
 from heatbalance.balance import solve
-from heatbalance.present.text import answer_text, answer_unit, answer_value
+from heatbalance.present.text import answer_value
 from heatbalance.errors import InputError, NoSolutionError, PropertyRangeError, UnitError, WorksheetFormatError
 from heatbalance.worksheet import load_worksheet, parse_worksheet
 from sheet_factory import build, constant_cp_material, q, sheet, stream, temp

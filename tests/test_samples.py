@@ -8,7 +8,7 @@ import glob
 import pytest
 
 from heatbalance.balance import solve
-from heatbalance.present.text import answer_text, answer_unit, answer_value
+from heatbalance.present.text import answer_text, answer_value
 from heatbalance.worksheet import dump_worksheet, load_worksheet
 
 SAMPLES = sorted(glob.glob("sample_data/*.json"))

@@ -124,7 +124,7 @@ def test_the_cli_writes_the_sheet_of_a_signed_revision(tmp_path, monkeypatch, ca
     assert main(["save", CONDENSER]) == 0
     rev = capsys.readouterr().out.strip()
     assert main(["sign", rev, "--role", "checked", "--name", "B. Checker", "--comment", "agreed"]) == 0
-    assert capsys.readouterr().out.startswith(f"checked by B. Checker, ")
+    assert capsys.readouterr().out.startswith("checked by B. Checker, ")
     out = tmp_path / "sheet.pdf"
     assert main(["sheet", rev, "-o", str(out), "--units", "US"]) == 0
     text = text_of(out.read_bytes())

@@ -8,40 +8,27 @@ are shown in words with the address at fault. Case edits land in the worksheet t
 import json
 import math
 import re
-from pathlib import Path
 
 import pytest
+from page_helpers import held, page, sample
 from streamlit.testing.v1 import AppTest
 
-from heatbalance import load_worksheet, solve
+from heatbalance import solve
 from heatbalance.address import rename, with_value
 from heatbalance.analyses.cases import AS_TYPED, run_cases
 from heatbalance.analyses.sweep import MAX_POINTS
 from heatbalance.units import from_si
 from heatbalance.worksheet import Case, Override, Quantity
 from webapp.common import WORD_JOINER
-from webapp.state import KEY, PageState
+from webapp.state import KEY
 
-ROOT = Path(__file__).resolve().parent.parent
-APP = str(ROOT / "app.py")
 GLYCOL = "steam_heater_glycol.json"
 CONDENSER = "solvent_condenser_cooling_water.json"
 OUTLET = "streams[Glycol].outlet.temperature"
 CW_INLET = "streams[Cooling water].inlet.temperature"
 
 
-def sample(name):
-    return load_worksheet((ROOT / "sample_data" / name).read_bytes())
 
-
-def page(ws) -> AppTest:
-    at = AppTest.from_file(APP, default_timeout=60)
-    at.session_state[KEY] = PageState.opened(ws)
-    return at.run()
-
-
-def held(at):
-    return at.session_state[KEY].worksheet
 
 
 def no_exception(at):

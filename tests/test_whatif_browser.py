@@ -13,6 +13,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
+from page_helpers import idle, open_page
 from playwright.sync_api import TimeoutError as PlaywrightTimeout
 
 from heatbalance import load_worksheet
@@ -25,24 +26,13 @@ SAMPLE = Path(__file__).resolve().parent.parent / "sample_data" / "steam_heater_
 PANEL = ".st-key-whatif_panel"
 CHART = ".st-key-whatif_chart .js-plotly-plot"
 TIMEOUT_MS = 30_000
-FIRST_DRAW_MS = 90_000
 
 
 @pytest.fixture
 def page(browser, app_url):
-    context = browser.new_context(viewport={"width": 1440, "height": 2600}, accept_downloads=True)
-    opened = context.new_page()
-    opened.set_default_timeout(TIMEOUT_MS)
-    opened.goto(app_url)
-    opened.wait_for_selector(PANEL, timeout=FIRST_DRAW_MS)  # the first run on a cold server loads the libraries
-    _idle(opened)
+    context, opened = open_page(browser, app_url, PANEL, TIMEOUT_MS)
     yield opened
     context.close()
-
-
-def _idle(page) -> None:
-    """The script run has finished: the running indicator is gone."""
-    page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden")
 
 
 def _has_value(widget: str, value: str) -> str:
@@ -61,7 +51,7 @@ def _choose(page, widget: str, option: str, chosen: str, attempts: int = 5) -> N
     again (each wait is on the list or on ``chosen``)."""
     box = page.locator(f".st-key-{widget}")
     for attempt in range(attempts):
-        _idle(page)
+        idle(page)
         box.click()
         try:
             page.get_by_role("option", name=option, exact=True).click(timeout=5_000)
@@ -95,12 +85,12 @@ def test_a_sweep_draws_its_chart_and_its_csv_has_the_swept_values(page, output_d
     _set_number(page, "whatif_count_0", "7")
     run = page.locator(".st-key-whatif_run button")
     run.filter(has_text="Run the sweep (7 points)").wait_for()
-    _idle(page)
+    idle(page)
     run.click()
     page.wait_for_selector(CHART)
     page.wait_for_function(f"""() => {{ const e = document.querySelector("{CHART}");
         return e && e._fullData && e._fullData.length > 0 && e._fullData[0].x.length === 7; }}""")
-    _idle(page)
+    idle(page)
     values = axis_values(4, 16, count=7)
     expected = sweep(ws, [Axis("streams[Glycol].flow", values, "t/h")])
     steam = [from_si(v, "kg/h", "mass_flow") for v in expected["answer"]]
@@ -133,7 +123,7 @@ def test_a_fifty_by_fifty_grid_draws_its_heat_map(page, output_dir):
     _set_number(page, "whatif_count_1", "50")
     run = page.locator(".st-key-whatif_run button")
     run.filter(has_text="Run the sweep (2,500 points)").wait_for()
-    _idle(page)
+    idle(page)
     started = time.perf_counter()
     run.click()
     page.wait_for_function(f"""() => {{ const e = document.querySelector("{CHART}");
@@ -141,7 +131,7 @@ def test_a_fifty_by_fifty_grid_draws_its_heat_map(page, output_dir):
                && e._fullData[0].z.length === 50
                && document.querySelector("{CHART} .hm image, {CHART} .heatmaplayer image"); }}""")
     drawn = time.perf_counter() - started
-    _idle(page)
+    idle(page)
     print(f"50 x 50 grid: drawn {drawn:.2f} s after the click; "
           f"{page.locator('.st-key-whatif_sweep_box [data-testid=stCaptionContainer]').last.inner_text()}")
     z = page.evaluate(f"""() => Array.from(document.querySelector("{CHART}")._fullData[0].z, r => Array.from(r))""")

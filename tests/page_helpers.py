@@ -1,0 +1,49 @@
+"""What the page tests share: a sample, the real page on a worksheet (AppTest), and the browser's waits."""
+from __future__ import annotations
+
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+APP = str(ROOT / "app.py")
+FIRST_DRAW_MS = 90_000  # the first run on a cold server loads the libraries
+
+
+def sample(name: str):
+    """A bundled sample worksheet, by file name."""
+    from heatbalance.worksheet import load_worksheet
+
+    return load_worksheet((ROOT / "sample_data" / name).read_bytes())
+
+
+def page(ws):
+    """The real page (app.py) opened on ``ws`` through its one state key, after its first run."""
+    from streamlit.testing.v1 import AppTest
+
+    from webapp.state import KEY, PageState
+
+    at = AppTest.from_file(APP, default_timeout=60)
+    at.session_state[KEY] = PageState.opened(ws)
+    return at.run()
+
+
+def held(at):
+    """The worksheet the page holds."""
+    from webapp.state import KEY
+
+    return at.session_state[KEY].worksheet
+
+
+def idle(browser_page) -> None:
+    """The script run has finished: Streamlit's running indicator is gone."""
+    browser_page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden")
+
+
+def open_page(browser, url: str, ready: str, timeout_ms: int):
+    """A fresh browser context on the page at ``url``, waited until ``ready`` shows and the run is over."""
+    context = browser.new_context(viewport={"width": 1440, "height": 2600}, accept_downloads=True)
+    opened = context.new_page()
+    opened.set_default_timeout(timeout_ms)
+    opened.goto(url)
+    opened.wait_for_selector(ready, timeout=FIRST_DRAW_MS)
+    idle(opened)
+    return context, opened
