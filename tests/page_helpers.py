@@ -47,3 +47,25 @@ def open_page(browser, url: str, ready: str, timeout_ms: int):
     opened.wait_for_selector(ready, timeout=FIRST_DRAW_MS)
     idle(opened)
     return context, opened
+
+
+def choose(browser_page, widget: str, option: str, shown, attempts: int = 5) -> None:
+    """Pick ``option`` in the select box keyed ``widget``; ``shown(page)`` waits until the page shows the choice.
+
+    A script run that ends while the list is open redraws the box and closes the list: then it is opened
+    again (each wait is on the list or on ``shown``), at most ``attempts`` times.
+    """
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
+    box = browser_page.locator(f".st-key-{widget}")
+    for attempt in range(attempts):
+        idle(browser_page)
+        box.click()
+        try:
+            browser_page.get_by_role("option", name=option, exact=True).click(timeout=5_000)
+            shown(browser_page)
+            return
+        except PlaywrightTimeout:
+            if attempt == attempts - 1:
+                raise
+            browser_page.keyboard.press("Escape")

@@ -15,8 +15,7 @@ from pathlib import Path
 
 import pypdf
 import pytest
-from page_helpers import idle, open_page
-from playwright.sync_api import TimeoutError as PlaywrightTimeout
+from page_helpers import choose, idle, open_page
 
 from conftest import running_app
 from heatbalance import load_worksheet, solve
@@ -51,40 +50,6 @@ def page(browser, server):
     context.close()
 
 
-def _choose(page, widget: str, option: str, attempts: int = 5) -> None:
-    """Pick an option of a select box; a script run that redraws the box while its list is open closes the
-    list, so it is opened again (each wait is on the list or on the box's shown value)."""
-    box = page.locator(f".st-key-{widget}")
-    for attempt in range(attempts):
-        idle(page)
-        box.click()
-        try:
-            page.get_by_role("option", name=option, exact=True).click(timeout=5_000)
-            _wait_for_input(page, widget, option, timeout=5_000)  # the box's combobox shows it
-            return
-        except PlaywrightTimeout:
-            if attempt == attempts - 1:
-                raise
-            page.keyboard.press("Escape")
-
-
-def _open_sample(page, title: str, attempts: int = 5) -> None:
-    """Open a sample from the sidebar; the picker goes back to its placeholder once the sample is loaded,
-    so the wait is on the page's title."""
-    box = page.locator(".st-key-sample_picker")
-    for attempt in range(attempts):
-        idle(page)
-        box.click()
-        try:
-            page.get_by_role("option", name=title, exact=True).click(timeout=5_000)
-            page.locator("h1", has_text=title).wait_for(timeout=15_000)
-            return
-        except PlaywrightTimeout:
-            if attempt == attempts - 1:
-                raise
-            page.keyboard.press("Escape")
-
-
 def _wait_for_input(page, widget: str, value: str, tag: str = "input", timeout: float | None = None) -> None:
     page.wait_for_function("([w, t, v]) => { const e = document.querySelector(`.st-key-${w} ${t}`); "
                            "return e !== null && e.value === v; }", arg=[widget, tag, value], timeout=timeout)
@@ -95,7 +60,9 @@ def test_open_save_sign_and_download_the_calculation_sheet(server, page, output_
     ws = load_worksheet(SAMPLE.read_bytes())
     expected = uncertainty_text(propagate(ws), "SI", solve(ws).answer)
 
-    _open_sample(page, ws.title)
+    # the picker goes back to its placeholder once the sample is loaded: the wait is on the page's title
+    title_shown = lambda p: p.locator("h1", has_text=ws.title).wait_for(timeout=15_000)  # noqa: E731
+    choose(page, "sample_picker", ws.title, title_shown)
     page.locator(PLUS_MINUS, has_text=expected).wait_for()
     assert page.inner_text(PLUS_MINUS).strip() == expected  # "28.31 ± 2.37 t/h (k = 2, about 95 %)"
     page.locator(".st-key-filing_panel").get_by_text("Not saved: save the worksheet").wait_for()
@@ -110,7 +77,8 @@ def test_open_save_sign_and_download_the_calculation_sheet(server, page, output_
                            "return b !== null && !b.disabled; }")
     page.locator(".st-key-filing_signoffs").get_by_text("Unchecked").wait_for()
 
-    _choose(page, "filing_role", "checked")
+    choose(page, "filing_role", "checked",
+           lambda p: _wait_for_input(p, "filing_role", "checked", timeout=5_000))  # the box's combobox shows it
     name = page.locator(".st-key-filing_name input")
     name.fill(SIGNER)
     name.press("Enter")

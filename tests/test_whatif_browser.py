@@ -13,8 +13,7 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from page_helpers import idle, open_page
-from playwright.sync_api import TimeoutError as PlaywrightTimeout
+from page_helpers import choose, idle, open_page
 
 from heatbalance import load_worksheet
 from heatbalance.analyses.sweep import Axis, axis_values, sweep
@@ -35,32 +34,15 @@ def page(browser, app_url):
     context.close()
 
 
-def _has_value(widget: str, value: str) -> str:
-    """A script: true once the widget's field shows ``value``."""
-    return (f"() => {{ const e = document.querySelector('.st-key-{widget} input'); "
-            f"return e !== null && e.value === '{value}'; }}")
+def _wait_for_value(page, widget: str, value: str, timeout: float | None = None) -> None:
+    """Wait until the widget's field shows ``value``."""
+    page.wait_for_function(f"() => {{ const e = document.querySelector('.st-key-{widget} input'); "
+                           f"return e !== null && e.value === '{value}'; }}", timeout=timeout)
 
 
-def _wait_for_value(page, widget: str, value: str) -> None:
-    page.wait_for_function(_has_value(widget, value))
-
-
-def _choose(page, widget: str, option: str, chosen: str, attempts: int = 5) -> None:
-    """Pick an option of a select box; ``chosen`` is a script that is true once the page shows the choice.
-    A script run that ends while the list is open redraws the box and closes the list: then it is opened
-    again (each wait is on the list or on ``chosen``)."""
-    box = page.locator(f".st-key-{widget}")
-    for attempt in range(attempts):
-        idle(page)
-        box.click()
-        try:
-            page.get_by_role("option", name=option, exact=True).click(timeout=5_000)
-            page.wait_for_function(chosen, timeout=10_000)
-            return
-        except PlaywrightTimeout:
-            if attempt == attempts - 1:
-                raise
-            page.keyboard.press("Escape")
+def _has_value(widget: str, value: str):
+    """A wait for :func:`page_helpers.choose`: the widget's field shows ``value`` (within 10 s)."""
+    return lambda page: _wait_for_value(page, widget, value, timeout=10_000)
 
 
 def _set_number(page, widget: str, text: str) -> None:
@@ -115,11 +97,11 @@ def test_a_sweep_draws_its_chart_and_its_csv_has_the_swept_values(page, output_d
 def test_a_fifty_by_fifty_grid_draws_its_heat_map(page, output_dir):
     """The issue's 50 × 50 grid on the sample: drawn on the page (the time is printed, not asserted)."""
     page.locator(PANEL).scroll_into_view_if_needed()
-    _choose(page, "whatif_axis_0", "Glycol outlet temperature", _has_value("whatif_unit_0", "°C"))
+    choose(page, "whatif_axis_0", "Glycol outlet temperature", _has_value("whatif_unit_0", "°C"))
     _set_number(page, "whatif_from_0", "20")
     _set_number(page, "whatif_to_0", "100")
     _set_number(page, "whatif_count_0", "50")
-    _choose(page, "whatif_axis_1", "Glycol flow", _has_value("whatif_unit_1", "t/h"))
+    choose(page, "whatif_axis_1", "Glycol flow", _has_value("whatif_unit_1", "t/h"))
     _set_number(page, "whatif_count_1", "50")
     run = page.locator(".st-key-whatif_run button")
     run.filter(has_text="Run the sweep (2,500 points)").wait_for()
