@@ -75,13 +75,13 @@ def solve_and_analyse(ws: Worksheet) -> Result:
     problem = build_problem(ws)
     result = analyse(problem, solve_problem(problem))
     if ws.tolerances:
-        from .uncertainty import propagate  # only sheets with tolerances pay for it
+        from .uncertainty import propagate_outputs  # only sheets with tolerances pay for it
 
         try:
-            result.uncertainty = propagate(ws)
-            # the screening's temperatures bear on safety: how sure they are too
-            result.output_uncertainties = {f"screening[{s.vessel}].MTSR": propagate(ws, f"screening[{s.vessel}].MTSR")
-                                           for s in result.screening}
+            # the answer, and the screening's temperatures (they bear on safety), from the same solves
+            found = propagate_outputs(ws, ["answer"] + [f"screening[{s.vessel}].MTSR" for s in result.screening])
+            result.uncertainty = found.pop("answer")
+            result.output_uncertainties = found
         except HeatBalanceError as exc:  # the answer stands; that its uncertainty is missing is said loudly
             result.uncertainty_error = exc
             result.warnings = list(result.warnings) + [Phrase(

@@ -30,7 +30,7 @@ from ..worksheet import Quantity, Tolerance, Worksheet
 from .sweep import Axis, _FastRun, output_names
 
 __all__ = ["COVERAGE_FACTOR", "DEFAULT_TOLERANCES", "Contribution", "MonteCarlo", "Uncertainty", "propagate",
-           "suggested_tolerances", "standard_uncertainty", "check_tolerance"]
+           "suggested_tolerances", "standard_uncertainty", "check_tolerance", "propagate_outputs"]
 
 COVERAGE_FACTOR = 2.0  # k for the expanded uncertainty, about 95 % for a normal output (GUM 6.2)
 _DIVISORS = {"rectangular": math.sqrt(3.0), "normal": 1.0, "95 %": 2.0}  # a / u (GUM 4.3.7, 4.3.3)
@@ -183,21 +183,39 @@ def propagate(ws: Worksheet, output: str = "answer", coverage: float = COVERAGE_
     AddressError
         A tolerance's address naming nothing numeric; an unknown output.
     """
+    return propagate_outputs(ws, [output], coverage, monte_carlo, seed)[output]
+
+
+def propagate_outputs(ws: Worksheet, outputs: list[str], coverage: float = COVERAGE_FACTOR, monte_carlo: int = 0,
+                      seed: int = 20261202) -> dict[str, Uncertainty]:
+    """:func:`propagate` for several outputs at once: each perturbed point (and each draw) is solved once and
+    gives every output."""
     if not ws.tolerances:
         raise InputError("no input has a tolerance: give at least one (or take the suggested ones)", "tolerances")
     problem = build_problem(ws)
     known = output_names(problem)
-    if output not in known:
-        raise AddressError(f"no output called '{output}' (there are: {', '.join(known)})", "uncertainty")
+    for output in outputs:
+        if output not in known:
+            raise AddressError(f"no output called '{output}' (there are: {', '.join(known)})", "uncertainty")
     unknown = unknown_address(ws.unknowns[0]) if len(ws.unknowns) == 1 else ""
     entries = [_entry(ws, t, unknown) for t in ws.tolerances]
     axes = [Axis(t.address, (0.0,), unit) for t, (_, unit, _, _) in zip(ws.tolerances, entries)]
     kinds = [k for _, _, _, k in entries]
-    base = _evaluate(_FastRun(ws, problem, axes, kinds), [value for value, _, _, _ in entries], output)
+    base = _evaluate(_FastRun(ws, problem, axes, kinds), [value for value, _, _, _ in entries], outputs)
     if isinstance(base, HeatBalanceError):
         raise base
-    contributions = [_contribution(ws, t, e, i, axes, kinds, entries, output, base)
-                     for i, (t, e) in enumerate(zip(ws.tolerances, entries))]
+    sides = [_sides(ws, entry, axes[i], kinds[i], outputs) for i, entry in enumerate(entries)]
+    results = {o: _combined(o, known[o], base[o], coverage, [_contribution(t, e, s, o, base[o]) for t, e, s
+                                                             in zip(ws.tolerances, entries, sides)])
+               for o in outputs}
+    if monte_carlo:
+        for output, check in _monte_carlo(ws, axes, kinds, entries, outputs, monte_carlo, seed).items():
+            results[output].monte_carlo = check
+    return results
+
+
+def _combined(output: str, kind: str, base: float, coverage: float, contributions: list[Contribution]) -> Uncertainty:
+    """u_c² = Σ (c_i·u(x_i))² by the ``uncertainties`` package, each input's share, ranked largest first."""
     combined = base + sum((c.sensitivity * ufloat(0.0, c.standard, tag=c.address) for c in contributions
                            if c.standard > 0), start=0.0)
     components = combined.error_components() if hasattr(combined, "error_components") else {}
@@ -207,10 +225,8 @@ def propagate(ws: Worksheet, output: str = "answer", coverage: float = COVERAGE_
         c.contribution = abs(sum(v for var, v in components.items() if var.tag == c.address))
         c.share = c.contribution ** 2 / variance if variance > 0 else 0.0
     contributions.sort(key=lambda c: c.contribution, reverse=True)
-    result = Uncertainty(output, known[output], base, standard, coverage, contributions)
+    result = Uncertainty(output, kind, base, standard, coverage, contributions)
     result.notes = _notes(result)
-    if monte_carlo:
-        result.monte_carlo = _monte_carlo(ws, axes, kinds, entries, output, monte_carlo, seed)
     return result
 
 
@@ -230,18 +246,27 @@ def _entry(ws: Worksheet, tolerance: Tolerance, unknown: str) -> tuple[float, st
     return float(typed), "", half, kinds
 
 
-def _evaluate(run: _FastRun, values: list[float], output: str):
-    """The output at these input values (SI), or the refusal."""
-    row = run.point(tuple(values), [output])
-    reason = row[len(values) + 2]
-    return reason if reason is not None else row[len(values)]
+def _evaluate(run: _FastRun, values: list[float], outputs: list[str]):
+    """The outputs at these input values (SI), ``{output: value}``, or the refusal."""
+    row = run.point(tuple(values), outputs)
+    reason = row[len(values) + len(outputs) + 1]
+    return reason if reason is not None else dict(zip(outputs, row[len(values):len(values) + len(outputs)]))
 
 
-def _contribution(ws, tolerance, entry, i, axes, kinds, entries, output, base) -> Contribution:
+def _sides(ws, entry, axis: Axis, kinds, outputs: list[str]) -> tuple:
+    """The outputs with this input at +a and at −a (the others as typed), or each side's refusal."""
+    value, _, half, _ = entry
+    if half == 0:
+        return None, None
+    single = _FastRun(ws, build_problem(ws), [axis], [kinds])
+    return tuple(_evaluate(single, [value + sign * half], outputs) for sign in (1.0, -1.0))
+
+
+def _contribution(tolerance, entry, sides: tuple, output: str, base: float) -> Contribution:
     value, unit, half, _ = entry
-    single = _FastRun(ws, build_problem(ws), [axes[i]], [kinds[i]])
-    up, down = ([_evaluate(single, [value + sign * half], output) for sign in (1.0, -1.0)] if half > 0
-                else [base, base])
+    up, down = ((s if s is None or isinstance(s, HeatBalanceError) else s[output]) for s in sides)
+    if half == 0:
+        up = down = base
     refused = next((s for s in (up, down) if isinstance(s, HeatBalanceError)), None)
     slope, nonlinear = _slope(base, up, down, half, tolerance.address)
     u = standard_uncertainty(tolerance, half)
@@ -276,8 +301,8 @@ def _notes(result: Uncertainty) -> list[Phrase]:
     return notes
 
 
-def _monte_carlo(ws, axes, kinds, entries, output, draws: int, seed: int) -> MonteCarlo:
-    """Every input drawn from its distribution at once, each draw solved (GUM Supplement 1)."""
+def _monte_carlo(ws, axes, kinds, entries, outputs: list[str], draws: int, seed: int) -> dict[str, MonteCarlo]:
+    """Every input drawn from its distribution at once, each draw solved once for every output (GUM S1)."""
     rng = np.random.default_rng(seed)
     columns = []
     for tolerance, (value, _, half, _) in zip(ws.tolerances, entries):
@@ -286,8 +311,12 @@ def _monte_carlo(ws, axes, kinds, entries, output, draws: int, seed: int) -> Mon
         else:
             columns.append(rng.normal(value, standard_uncertainty(tolerance, half), draws))
     run = _FastRun(ws, build_problem(ws), axes, kinds)
-    values = [v for v in (_evaluate(run, list(draw), output) for draw in zip(*columns))
+    solved = [v for v in (_evaluate(run, list(draw), outputs) for draw in zip(*columns))
               if not isinstance(v, HeatBalanceError)]
+    return {output: _summary(draws, [v[output] for v in solved]) for output in outputs}
+
+
+def _summary(draws: int, values: list[float]) -> MonteCarlo:
     if len(values) < 2:
         return MonteCarlo(draws, len(values), math.nan, math.nan, math.nan, math.nan)
     array = np.asarray(values)
