@@ -168,10 +168,11 @@ def _solve_temperature(p: Problem) -> float | None:
                 fixed += sign * ln.amount * evaluate_state(ln.material, state, temps, {}).h
 
     for material, state, _ in moving:  # checked once here, so the residual below need not check again
-        if state.plateau is None and hasattr(material, "check_pressure"):
+        if hasattr(material, "check_pressure"):
             material.check_pressure(state.P, state.pressure_address)
-    plain = [(material.enthalpy, state.P, weight) for material, state, weight in moving if state.plateau is None]
-    fast = not equipment_dep and len(plain) == len(moving)
+    # a state on the temperature variable is never a plateau state (a StateSpec is one or the other)
+    plain = [(material.enthalpy, state.P, weight) for material, state, weight in moving]
+    fast = not equipment_dep
 
     def residual(T: float, side: float | None = None) -> float:
         temps[var] = T

@@ -13,7 +13,7 @@ from ..messages import Measure, Phrase
 from ..results import Answer
 from ..units import check_unit, from_si, heat_kind
 
-__all__ = ["UNIT_SETS", "DISPLAY_UNITS", "display_unit", "measure_text", "phrase_text", "error_text",
+__all__ = ["UNIT_SETS", "display_unit", "measure_text", "phrase_text", "error_text",
            "temperature_text", "pressure_text", "heat_text", "format_heat", "answer_unit", "answer_value",
            "answer_text", "amount_text", "no_negative_zero"]
 
@@ -32,7 +32,6 @@ UNIT_SETS: dict[str, dict[str, str]] = {
            "specific_energy": "Btu/lb", "molar_mass": "lb/lbmol", "thermal_conductance": "Btu/(h*delta_degF)",
            "heat_transfer_coefficient": "Btu/(h*ft**2*delta_degF)", "area": "ft**2"},
 }
-DISPLAY_UNITS = UNIT_SETS
 
 _PRETTY = {"degC": "°C", "degF": "°F", "degR": "°R", "delta_degF": "°F", "delta_degC": "K",
            "kJ/(kg*K)": "kJ/(kg·K)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "Btu/delta_degF": "Btu/°F",
