@@ -15,6 +15,7 @@ analyses run on that result, and :mod:`heatbalance.present` writes it in a unit 
 from __future__ import annotations
 
 import math
+from contextvars import ContextVar
 from dataclasses import dataclass
 
 from .address import item
@@ -36,6 +37,22 @@ CLOSURE_FLOOR = 1e-3  # ... or this many W (J in batch), whichever is larger
 
 
 # --------------------------------------------------------------------------- evaluation
+# Within one solve a state is asked for again and again (the fixed states while solving, every state again for
+# the result): each distinct (material, T, P) is evaluated once. Unset outside a solve, so callers see no cache.
+_SOLVE_ENTHALPIES: ContextVar[dict | None] = ContextVar("solve_enthalpies", default=None)
+
+
+def _enthalpy(material: Material, T: float, P: float) -> float:
+    memo = _SOLVE_ENTHALPIES.get()
+    if memo is None:
+        return material.enthalpy(T, P)
+    key = (id(material), T, P)
+    h = memo.get(key)
+    if h is None:
+        h = memo[key] = material.enthalpy(T, P)
+    return h
+
+
 def _transition_at(material: Material, P: float, T: float) -> Transition | None:
     return next((t for t in material.transitions(P) if abs(t.T - T) < T_TOL), None)
 
@@ -73,7 +90,7 @@ def evaluate_state(material: Material, state: StateSpec, temperatures: dict, pla
         if tr is not None:
             return Point(T, fraction, tr.h_lower + fraction * tr.latent)
     try:
-        return Point(T, None, material.enthalpy(T, state.P))
+        return Point(T, None, _enthalpy(material, T, state.P))
     except HeatBalanceError as exc:
         raise exc.located(state.temperature_address)
 
@@ -87,7 +104,7 @@ def _equipment_enthalpy(e: EquipmentHeat, var: str, T: float, plateau_side: dict
         if tr is not None:
             return tr.h_lower + fraction * tr.latent
     try:
-        return e.material.enthalpy(T, ATMOSPHERE)
+        return _enthalpy(e.material, T, ATMOSPHERE)
     except HeatBalanceError as exc:
         raise exc.located(e.address)
 
@@ -170,14 +187,26 @@ def _solve_temperature(p: Problem) -> float | None:
     for material, state, _ in moving:  # checked once here, so the residual below need not check again
         if hasattr(material, "check_pressure"):
             material.check_pressure(state.P, state.pressure_address)
-    # a state on the temperature variable is never a plateau state (a StateSpec is one or the other)
-    plain = [(material.enthalpy, state.P, weight) for material, state, weight in moving]
+    # a state on the temperature variable is never a plateau state (a StateSpec is one or the other); the
+    # states of one material at one pressure share one enthalpy call, weighted by their summed amounts
+    grouped: dict[tuple[int, float], list] = {}
+    for material, state, weight in moving:
+        entry = grouped.setdefault((id(material), state.P), [id(material), material.enthalpy, state.P, 0.0])
+        entry[3] += weight
+    plain = [tuple(entry) for entry in grouped.values()]
     fast = not equipment_dep
+    memo = _SOLVE_ENTHALPIES.get()  # the trial at the root is the result's state: kept, not evaluated again
 
     def residual(T: float, side: float | None = None) -> float:
         temps[var] = T
         if side is None and fast:  # off every plateau, inside every material's range (the bracket's bounds)
-            return fixed + sum(weight * enthalpy(T, P) for enthalpy, P, weight in plain)
+            value = fixed
+            for key, enthalpy, P, weight in plain:
+                h = enthalpy(T, P)
+                if memo is not None:
+                    memo[key, T, P] = h
+                value += weight * h
+            return value
         sides = {var: side} if side is not None else {}
         value = fixed + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
@@ -287,11 +316,14 @@ def solve(ws: Worksheet) -> Result:
 
 def solve_problem(p: Problem) -> Result:
     """Solve a built problem (it is changed: the unknown takes its value)."""
+    token = _SOLVE_ENTHALPIES.set({})
     try:
         fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
+        return _result(p, fraction)
     except HeatBalanceError as exc:  # a property refusal met while searching (no field of its own): the unknown's
         raise exc.located(p.unknown_address)
-    return _result(p, fraction)
+    finally:
+        _SOLVE_ENTHALPIES.reset(token)
 
 
 # --------------------------------------------------------------------------- the result
