@@ -1,0 +1,181 @@
+"""The page in a real browser (issue 16): start-up, a shared link, edit -> answer, server memory.
+
+    python benchmarks/bench_page.py [--edits 20]
+
+Each figure is paired with a baseline measured in the same run on a minimal Streamlit page of one
+number input and one text (``MINIMAL``), served the same way:
+  start      server start -> the first solved answer on screen      (target <= 3 s)
+  link       a ``?ws=`` link opened in a fresh browser -> its answer (target <= 2 s)
+  edit       a table cell typed -> the new answer on screen, median  (target <= 150 ms, <= 2x the minimal
+             page's widget round trip)
+  memory     the server's resident memory after ten edits           (target <= 150 MiB)
+Not part of pytest; chromium from Debian (/usr/bin/chromium), the app on a free loopback port.
+"""
+from __future__ import annotations
+
+import argparse
+import os
+import socket
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+import urllib.request
+from contextlib import contextmanager
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT))
+
+from playwright.sync_api import sync_playwright  # noqa: E402
+
+ANSWER = ".st-key-answer [data-testid='stMetricValue']"
+RUNNING = "[data-testid='stStatusWidget']"
+MINIMAL = '''import streamlit as st
+value = st.number_input("value", value=1.0, key="value")
+st.markdown(f"<span id='echo'>{2 * value:.1f}</span>", unsafe_allow_html=True)
+'''
+CHROMIUM = dict(executable_path="/usr/bin/chromium", headless=True, args=["--no-sandbox", "--disable-gpu"])
+
+
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+@contextmanager
+def served(script: Path, database: Path):
+    """A Streamlit server on ``script`` with its own store; yields (url, process, the time it was started)."""
+    port = _free_port()
+    started = time.perf_counter()
+    process = subprocess.Popen([sys.executable, "-m", "streamlit", "run", str(script), "--server.headless", "true",
+                                "--server.address", "127.0.0.1", "--server.port", str(port),
+                                "--browser.gatherUsageStats", "false"], cwd=ROOT,
+                               env={**os.environ, "HEATBALANCE_DB": str(database)},
+                               stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    url = f"http://127.0.0.1:{port}"
+    try:
+        for _ in range(600):
+            try:
+                urllib.request.urlopen(url + "/_stcore/health", timeout=1)
+                break
+            except OSError:
+                time.sleep(0.02)
+        yield url, process, started
+    finally:
+        process.terminate()
+        process.wait(timeout=30)
+
+
+def resident_mib(pid: int) -> float:
+    for line in Path(f"/proc/{pid}/status").read_text().splitlines():
+        if line.startswith("VmRSS:"):
+            return int(line.split()[1]) / 1024
+    return float("nan")
+
+
+def _fresh(browser, url: str, ready: str):
+    context = browser.new_context(viewport={"width": 1400, "height": 1000})
+    page = context.new_page()
+    page.set_default_timeout(120_000)
+    start = time.perf_counter()
+    page.goto(url)
+    page.wait_for_selector(ready)
+    return context, page, time.perf_counter() - start
+
+
+def _idle(page) -> None:
+    page.wait_for_selector(RUNNING, state="hidden")
+
+
+def _edit_cell(page, text: str) -> None:
+    """The first stream's flow cell (streams grid: row 0, column 3), replaced by ``text``."""
+    grid = page.locator("[class*='st-key-editor_streams_'] [data-testid='stDataFrameResizable']")
+    grid.locator("canvas").first.wait_for(state="visible")
+    box = grid.bounding_box()
+    page.mouse.click(box["x"] + 60, box["y"] + 52)
+    for _ in range(3):
+        page.keyboard.press("ArrowRight")
+    page.keyboard.press("Enter")
+    page.wait_for_selector("textarea.gdg-input")
+    page.keyboard.press("Control+a")
+    page.keyboard.type(text)
+    page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
+
+
+def edit_round_trips(page, edits: int) -> list[float]:
+    """Type ``edits`` flows into the first stream; the time from Enter to a new answer on screen."""
+    times = []
+    for i in range(edits):
+        _idle(page)
+        before = page.inner_text(ANSWER).strip()
+        _edit_cell(page, f"{6 + (i % 7) * 0.5} t/h")
+        start = time.perf_counter()
+        page.keyboard.press("Enter")
+        page.wait_for_function("([sel, old]) => { const e = document.querySelector(sel); "
+                               "return e && e.innerText.trim() !== old; }", arg=[ANSWER, before])
+        times.append(time.perf_counter() - start)
+        page.wait_for_selector("textarea.gdg-input", state="detached")
+    return times
+
+
+def minimal_round_trips(page, edits: int) -> list[float]:
+    times = []
+    box = page.get_by_label("value")
+    for i in range(edits):
+        _idle(page)
+        box.fill(str(2 + i))
+        start = time.perf_counter()
+        box.press("Enter")
+        page.wait_for_function("t => document.querySelector('#echo') && "
+                               "document.querySelector('#echo').innerText === t", arg=f"{2 * (2 + i):.1f}")
+        times.append(time.perf_counter() - start)
+    return times
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--edits", type=int, default=20)
+    args = parser.parse_args()
+    from heatbalance.links import revision_link
+    from heatbalance.store import open_store
+    from heatbalance.worksheet import load_worksheet
+
+    sample = load_worksheet((ROOT / "sample_data" / "steam_heater_glycol.json").read_bytes())
+    with tempfile.TemporaryDirectory() as tmp, sync_playwright() as pw:
+        database = Path(tmp) / "store.sqlite3"
+        saved = open_store("sqlite:///" + str(database)).save(sample, saved_by="benchmark")
+        minimal = Path(tmp) / "minimal.py"
+        minimal.write_text(MINIMAL)
+        browser = pw.chromium.launch(**CHROMIUM)
+        with served(minimal, database) as (url, _, started):
+            context, page, _ = _fresh(browser, url, "#echo")
+            minimal_start = time.perf_counter() - started
+            minimal_trips = minimal_round_trips(page, args.edits)
+            context.close()
+        with served(ROOT / "app.py", database) as (url, process, started):
+            context, page, _ = _fresh(browser, url, ANSWER)
+            first_answer = time.perf_counter() - started
+            _idle(page)
+            trips = edit_round_trips(page, args.edits)
+            _idle(page)
+            memory = resident_mib(process.pid)
+            context.close()
+            link_context, _, link = _fresh(browser, revision_link(saved.id, url + "/"), ANSWER)
+            link_context.close()
+        browser.close()
+    edit_ms, minimal_ms = statistics.median(trips) * 1e3, statistics.median(minimal_trips) * 1e3
+    print(f"start   server start -> first answer {first_answer:6.2f} s  (minimal page {minimal_start:.2f} s, "
+          f"{first_answer / minimal_start:.1f}x)   target <= 3 s")
+    print(f"link    ?ws= link, fresh browser     {link:6.2f} s                                  target <= 2 s")
+    print(f"edit    cell -> new answer, median   {edit_ms:6.0f} ms (minimal page {minimal_ms:.0f} ms, "
+          f"{edit_ms / minimal_ms:.1f}x)   target <= 150 ms and <= 2x")
+    print(f"memory  server after {args.edits} edits      {memory:6.0f} MiB"
+          "                                 target <= 150 MiB")
+    print(f"(cores {os.cpu_count()}, load {os.getloadavg()[0]:.1f})")
+
+
+if __name__ == "__main__":
+    main()
