@@ -12,8 +12,10 @@ from __future__ import annotations
 import math
 import re
 from functools import lru_cache
+from pathlib import Path
 
 from .errors import InputError, UnitError
+from .unit_cache import kept
 
 __all__ = [
     "registry", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
@@ -133,19 +135,36 @@ def _parse(unit: str, kind: str, where: str) -> tuple:
 
 def check_unit(unit: str, kind: str, where: str = "") -> None:
     """Raise :class:`UnitError` unless ``unit`` measures ``kind``."""
+    if not _measures(unit, kind):
+        _check_by_pint(unit, kind, where)  # the refusal, with what the unit measures instead
+
+
+def _check_by_pint(unit: str, kind: str, where: str = "") -> None:
     parsed, _ = _parse(unit, kind, where)
     if parsed.dimensionality != _unit(KINDS[kind][0]).dimensionality:
         raise UnitError(unit, KINDS[kind][1], where, detail=f"it measures {_describe(parsed)}")
 
 
+@lru_cache(maxsize=1024)
+def _measures(unit: str, kind: str) -> bool:
+    """Whether ``unit`` measures ``kind``: as kept from an earlier run, else asked of pint and kept."""
+    memo = kept(Path(__file__))
+    known = memo.measures.get(memo.key(unit, kind))
+    if known is None:
+        try:
+            _check_by_pint(unit, kind)
+            known = True
+        except UnitError:
+            known = False
+        memo.keep_measures(unit, kind, known)
+    return known
+
+
 def kind_of(unit: str, candidates: tuple[str, ...], where: str = "") -> str:
     """The first kind in ``candidates`` that ``unit`` measures, or a :class:`UnitError`."""
     for kind in candidates:
-        try:
-            check_unit(unit, kind, where)
+        if _measures(unit, kind):
             return kind
-        except UnitError:
-            continue
     expected = " or ".join(KINDS[k][1] for k in candidates)
     raise UnitError(unit, expected, where)
 
@@ -216,6 +235,15 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
 @lru_cache(maxsize=1024)
 def _affine(unit: str, kind: str) -> tuple[float, float]:
     """(scale, offset) with SI = value·scale + offset; every kind here is affine in its unit (cached)."""
+    memo = kept(Path(__file__))
+    found = memo.get_affine(unit, kind)
+    if found is None:
+        found = _affine_by_pint(unit, kind)
+        memo.keep_affine(unit, kind, *found)
+    return found
+
+
+def _affine_by_pint(unit: str, kind: str) -> tuple[float, float]:
     check_unit(unit, kind)
     parsed, gauge = _parse(unit, kind, "")
     si_unit = KINDS[kind][0]
