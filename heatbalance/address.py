@@ -481,6 +481,9 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
             override["address"] = follow_rename(override["address"], item_address, new)
     for tolerance in data.get("tolerances", []):
         tolerance["address"] = follow_rename(tolerance["address"], item_address, new)
+    for exchanger in data.get("exchangers", []):
+        if exchanger.get("sets"):
+            exchanger["sets"] = follow_rename(exchanger["sets"], item_address, new)
     for u in data.get("unknowns", []):
         if top in ("streams", "vessels") and len(path) == 1 and u.get("line") == old:
             u["line"] = new

@@ -140,6 +140,7 @@ class ExchangerInputs:
     area: float | None = None
     UA: float | None = None
     utility_side: str | None = None
+    sets: str | None = None  # the address of the input its rating sets (rating as a way of solving)
 
     @property
     def address(self) -> str:
@@ -389,7 +390,7 @@ class _Builder:
         if UA is None and U is not None and area is not None:
             UA = U * area
         return ExchangerInputs(e.name, list(e.hot), list(e.cold), e.arrangement, e.shells, approach,
-                               e.minimum_approach is not None, U, area, UA, e.utility_side)
+                               e.minimum_approach is not None, U, area, UA, e.utility_side, e.sets)
 
     def _utility(self, u) -> UtilityInputs:
         where = item("utilities", u.name)

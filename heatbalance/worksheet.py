@@ -328,7 +328,9 @@ class Exchanger(_Model):
     common practice for shell-and-tube liquid service, no source). An existing unit: ``UA``, or ``U``
     and ``area`` (rating); ``U`` alone gives the area needed (design). ``utility_side`` (``hot`` or
     ``cold``) names the side that is a utility: the utility table then offers each site utility for the
-    other side's duty.
+    other side's duty. ``sets`` (rating as a way of solving): the address of one more input (an outlet
+    temperature, a flow) that the exchanger's UA sets, so that the duty it delivers closes the balance; the
+    worksheet's unknown is still solved by the balance.
     """
 
     name: str = Field(min_length=1, max_length=80)
@@ -341,6 +343,7 @@ class Exchanger(_Model):
     area: Quantity | None = None
     UA: Quantity | None = None
     utility_side: Literal["hot", "cold"] | None = None
+    sets: str | None = Field(default=None, min_length=1, max_length=300)
 
     @model_validator(mode="after")
     def _one_form(self):

@@ -51,6 +51,12 @@ def exchanger_rows(check, system: str = "SI") -> list[dict]:
                      f"{r.duty / r.balance_duty:.1%} of the balance; hot out "
                      f"{_m(r.hot_outlet_T, 'temperature', system, digits=1)}, cold out "
                      f"{_m(r.cold_outlet_T, 'temperature', system, digits=1)} (ε-NTU per zone, flows as in the balance)"))
+    if check.closure is not None:
+        c = check.closure
+        digits = 2 if c.kind == "temperature" else 5
+        rows.append(("set by the rating", f"{c.address} = {_m(c.value, c.kind, system, digits=digits)}",
+                     f"typed {_m(c.typed_value, c.kind, system, digits=digits)}; with it the balance's duty is the rated "
+                     f"{_m(c.rated_duty, 'power', system)} (ε-NTU per zone)"))
     return [{"quantity": q, "value": v, "note": n} for q, v, n in rows]
 
 
