@@ -168,3 +168,43 @@ def test_operating_hours_beyond_a_year_refused():
     with pytest.raises(InputError) as info:
         solve_and_analyse(parse_worksheet(_cooler([], hours="9000 h")))
     assert info.value.where == "operating_hours"
+
+
+# --------------------------------------------------------------------------- a coolant's return limit
+def _methanol_sample() -> dict:
+    import json
+
+    with open("sample_data/methanol_condenser_cooling_water.json", encoding="utf-8") as handle:
+        return json.load(handle)
+
+
+def test_rated_cooling_water_return_above_its_limit_is_loud():
+    # The sample's condenser (UA 25 kW/K) over-delivers with the balance's 31.5 t/h of cooling water: the rating's
+    # cooling-water outlet is the inlet plus the rated duty over the water's heat flow, above the 40 °C limit.
+    result = solve_and_analyse(parse_worksheet(_methanol_sample()))
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]
+    assert warning.address == "utilities[Cooling water].return_limit"
+    rating = result.exchangers[0].rating
+    cw = next(ln for ln in result.lines if ln.name == "Cooling water")
+    P = cw.initial_P / 1e6  # MPa
+    # IAPWS-IF97 via iapws: the water's enthalpy rise from 27 °C by the rated duty, solved for its temperature
+    h_out = IAPWS97(P=P, T=27 + C0).h + rating.duty / cw.amount_si / 1e3
+    T_out = IAPWS97(P=P, h=h_out).T
+    assert rating.cold_outlet_T == pytest.approx(T_out, abs=0.01)
+    assert 40.5 < T_out - C0 < 41.0  # about 40.7 °C
+    assert f"{T_out - C0:.1f} °C" in warning.text and "40.0 °C" in warning.text
+    assert "as the exchanger's UA rates it" in warning.text
+    assert warning in result.exchangers[0].warnings  # shown with the exchanger (page, CLI) too
+
+
+def test_balance_return_above_its_limit_is_loud_and_within_it_silent():
+    doc = _methanol_sample()
+    doc["exchangers"][0].pop("UA")  # no rating: only the balance's outlet is checked
+    doc["streams"][1]["outlet"] = {"temperature": {"value": 44, "unit": "degC"}}
+    result = solve_and_analyse(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]
+    assert warning.address == "utilities[Cooling water].return_limit"
+    assert "44.0 °C in the balance" in warning.text and "by 4.0 K" in warning.text  # hand: 44 − 40
+    doc["streams"][1]["outlet"] = {"temperature": {"value": 38, "unit": "degC"}}
+    result = solve_and_analyse(parse_worksheet(doc))
+    assert not [w for w in result.warnings if "RETURN LIMIT" in w.text]

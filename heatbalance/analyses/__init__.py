@@ -14,7 +14,7 @@ from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
 from .screening import JacketTime, Screening, screen
-from .utilities import UtilityTable, utility_tables
+from .utilities import UtilityTable, return_limit_warnings, utility_tables
 
 __all__ = ["JacketTime", "Screening", "screen", "ExchangerCheck", "check_exchangers", "UtilityTable",
            "utility_tables", "analyse", "solve_and_analyse", "solve_closed"]
@@ -73,6 +73,8 @@ def analyse(problem, result):
     else:
         result.exchangers = []
     result.utilities = utility_tables(problem, result)
+    for name, warning in return_limit_warnings(problem, result):
+        next(c for c in result.exchangers if c.name == name).warnings.append(warning)
     for records, where in ((result.exchangers, lambda r: r.address), (result.utilities, lambda r: r.demand.address)):
         for record in records:
             if not _finite_numbers(record):

@@ -38,13 +38,14 @@ from ..units import ATMOSPHERE
 from ..worksheet import Utility
 
 __all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
-           "COLD_KINDS", "ELECTRIC_NOTE"]
+           "COLD_KINDS", "ELECTRIC_NOTE", "return_limit_warnings", "SAME_SUPPLY_K"]
 
 HOT_KINDS = ("steam", "hot oil", "electric")
 COLD_KINDS = ("cooling water", "chilled water", "brine")
 ELECTRIC_NOTE = "resistive heating, efficiency 1; element surface temperature not checked"
 _GJ = 1e9
 _MWh = 3.6e9
+SAME_SUPPLY_K = 0.05  # K: a utility line entering within this of a utility's supply temperature is that utility
 _DEMO = "demo value of our own invention, not a site's: replace with your site's"
 
 #: A site utility list of our own invention, for the demo and the samples (prices in EUR, CO2 in kg/GJ delivered)
@@ -269,3 +270,51 @@ def utility_tables(problem: Problem, result: Result) -> list[UtilityTable]:
         tables.append(UtilityTable(d, options, problem.currency, problem.operating_hours))
     return tables
 
+
+
+def _utilities_of_line(problem: Problem, line, kinds: tuple[str, ...]) -> list[UtilityInputs]:
+    """The site utilities a utility line of an exchanger is: the one of its name, else those of the right kinds
+    supplied at its inlet temperature."""
+    named = [u for u in problem.utilities if u.name == line.name and u.kind in kinds]
+    if named:
+        return named
+    return [u for u in problem.utilities if u.kind in kinds and u.supply_T is not None
+            and abs(u.supply_T - line.initial_T) <= SAME_SUPPLY_K]
+
+
+def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, Phrase]]:
+    """(exchanger name, warning) for each utility line whose return passes its utility's return limit.
+
+    A coolant (cooling water, chilled water, brine) must return no warmer than its ``return_limit`` (scaling), a hot
+    oil no colder than its own. Both the balance's outlet and, for a rated exchanger, the outlet its UA reaches
+    with the balance's flows are checked: an exchanger larger than the duty needs warms a coolant further.
+    """
+    out = []
+    checks = {c.name: c for c in getattr(result, "exchangers", [])}
+    for e in problem.exchangers:
+        if e.utility_side is None or e.name not in checks:
+            continue
+        check = checks[e.name]
+        cooling = e.utility_side == "cold"
+        kinds = COLD_KINDS if cooling else ("hot oil",)
+        for line in (ln for ln in result.lines if ln.kind == "stream" and ln.name in getattr(e, e.utility_side)):
+            outlets = [("in the balance", line.final_T)]
+            if check.rating is not None:
+                outlets.append(("as the exchanger's UA rates it", check.rating.cold_outlet_T if cooling
+                                else check.rating.hot_outlet_T))
+            for u in _utilities_of_line(problem, line, kinds):
+                if u.return_T is None:
+                    continue
+                for how, T in outlets:
+                    beyond = T - u.return_T if cooling else u.return_T - T
+                    if beyond > 1e-6:
+                        out.append((e.name, Phrase(
+                            "RETURN LIMIT PASSED: {line} leaves {exchanger} at {T} {how}, {side} {utility}'s return "
+                            "limit of {limit} (by {by}){why}. Raise its flow, or check the limit with the site",
+                            {"line": line.name, "exchanger": e.name, "T": Measure(T, "temperature", 1), "how": how,
+                             "side": "above" if cooling else "below", "utility": u.name,
+                             "limit": Measure(u.return_T, "temperature", 1),
+                             "by": Measure(beyond, "temperature_difference", decimals=1),
+                             "why": " (against scaling)" if u.kind == "cooling water" else ""},
+                            f"{u.address}.return_limit")))
+    return out
