@@ -125,7 +125,7 @@ def test_without_operating_hours_no_annual_figures():
 
 def test_hot_utilities_for_heating_cold_for_cooling():
     result = solve_and_analyse(parse_worksheet(_heater(DEMO_UTILITIES)))
-    assert [o.kind for o in result.utilities[0].options] == ["steam", "steam", "electric"]
+    assert [o.kind for o in result.utilities[0].options] == ["steam", "steam", "hot oil", "electric"]
     result = solve_and_analyse(parse_worksheet(_cooler(DEMO_UTILITIES)))
     assert [o.kind for o in result.utilities[0].options] == ["cooling water", "chilled water", "brine"]
     assert all(o.feasible for o in result.utilities[0].options)
@@ -208,3 +208,52 @@ def test_balance_return_above_its_limit_is_loud_and_within_it_silent():
     doc["streams"][1]["outlet"] = {"temperature": {"value": 38, "unit": "degC"}}
     result = solve_and_analyse(parse_worksheet(doc))
     assert not [w for w in result.warnings if "RETURN LIMIT" in w.text]
+
+
+# --------------------------------------------------------------------------- a generic hot oil, cp(T) by Cragoe
+def _cragoe_btu(t_F: float, s: float = 0.87) -> float:
+    """Cragoe (1929), US Bureau of Standards Misc. Publ. 97, as in Kern, Process Heat Transfer (from memory):
+    cp = (0.388 + 0.00045·t[°F]) / √s in Btu/(lb·°F), written out here in its own units."""
+    return (0.388 + 0.00045 * t_F) / s ** 0.5
+
+
+HOT_OIL = {"name": "Hot oil", "kind": "hot oil", "material": "mineral heat-transfer oil (generic)",
+           "supply_temperature": "250 degC", "return_limit": "180 degC", "price": 16, "per": "GJ",
+           "co2_kg_per_GJ": 68}
+
+
+def test_hot_oil_flow_from_cragoes_correlation_by_hand():
+    # 36 t/h of water 20 -> 80 °C (the heater scenario); the oil returns at its 180 °C limit (the process's coldest
+    # 20 °C + 10 K is colder). cp is linear in T, so ∫cp dT = cp at the mid temperature 215 °C × 70 K (exact).
+    result = solve_and_analyse(parse_worksheet(_heater([HOT_OIL])))
+    (option,) = result.utilities[0].options
+    assert option.feasible and option.kind == "hot oil"
+    per_kg = _cragoe_btu(215 * 1.8 + 32) * 4186.8 * 70  # J/kg, hand calculation (1 Btu/(lb·°F) = 4186.8 J/(kg·K))
+    assert option.per_kg == pytest.approx(per_kg, rel=1e-9)
+    assert option.flow == pytest.approx(result.answer.value_si / per_kg, rel=1e-9)
+    assert option.return_T - C0 == pytest.approx(180.0)
+    assert option.cost_per_hour == pytest.approx(16 * result.answer.value_si * 3600 / 1e9, rel=1e-12)
+
+
+def test_hot_oil_material_is_generic_sourced_and_refused_outside_its_range():
+    from heatbalance.materials import catalogue, get_material
+
+    oil = get_material("mineral heat-transfer oil (generic)")
+    assert "Cragoe" in oil.source and "from memory" in oil.source
+    info = next(m for m in catalogue() if m.name == oil.name)
+    assert info.group == "generic correlation"
+    # cp at 100 °C: (0.388 + 0.00045 × 212) / √0.87 = 0.5183 Btu/(lb·°F) = 2.170 kJ/(kg·K), hand calculation
+    cp_100 = (oil.enthalpy(373.15 + 0.5, 1e5) - oil.enthalpy(373.15 - 0.5, 1e5))
+    assert cp_100 == pytest.approx(_cragoe_btu(212) * 4186.8, rel=1e-9)
+    assert oil.extrapolated(250 + C0) and not oil.extrapolated(150 + C0)  # published to 205 °C (from memory)
+    too_hot = dict(HOT_OIL, supply_temperature="350 degC")  # beyond its 320 °C limit
+    (option,) = solve_and_analyse(parse_worksheet(_heater([too_hot]))).utilities[0].options
+    assert not option.feasible
+    assert option.refusal.where == "utilities[Hot oil].supply_temperature"
+    assert "320" in option.refusal.message
+
+
+def test_hot_oil_too_cold_for_the_target_refused_with_its_supply():
+    cool = dict(HOT_OIL, supply_temperature="85 degC", return_limit="60 degC")  # 85 °C < 80 °C + 10 K
+    (option,) = solve_and_analyse(parse_worksheet(_heater([cool]))).utilities[0].options
+    assert not option.feasible and option.refusal.where == "utilities[Hot oil].supply_temperature"

@@ -61,6 +61,9 @@ DEMO_UTILITIES: list[dict] = [
     {"name": "Brine -15 °C", "kind": "brine", "material": "calcium chloride brine", "mass_fraction": 0.25,
      "supply_temperature": "-15 degC", "return_limit": "-5 degC", "price": 30.0, "per": "GJ", "co2_kg_per_GJ": 60.0,
      "source": _DEMO},
+    {"name": "Hot oil 250 °C", "kind": "hot oil", "material": "mineral heat-transfer oil (generic)",
+     "supply_temperature": "250 degC", "return_limit": "180 degC", "price": 16.0, "per": "GJ", "co2_kg_per_GJ": 68.0,
+     "source": _DEMO},
     {"name": "Electric heating", "kind": "electric", "price": 120.0, "per": "MWh", "co2_kg_per_GJ": 65.0,
      "source": _DEMO},
 ]
