@@ -157,6 +157,7 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "utilities[].condensate_temperature": ("temperature",),
     "utilities[].supply_temperature": ("temperature",),
     "utilities[].return_limit": ("temperature",),
+    "utilities[].flash_pressure": ("pressure",),
     "utilities[].mass_fraction": (FRACTION,),
     "operating_hours": ("duration",),
 }
@@ -274,7 +275,7 @@ def inputs(ws: Worksheet) -> list[Input]:
             add(item("exchangers", e.name, name), getattr(e, name))
     for u in ws.utilities:
         for name in ("pressure", "superheat", "condensate_temperature", "supply_temperature", "return_limit",
-                     "mass_fraction"):
+                     "mass_fraction", "flash_pressure"):
             add(item("utilities", u.name, name), getattr(u, name))
     add("operating_hours", ws.operating_hours)
     return out

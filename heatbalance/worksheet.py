@@ -367,6 +367,10 @@ class Utility(_Model):
     ``material`` (a catalogue material or one defined in the worksheet). Electric heating: no temperatures.
     ``price`` in the worksheet's currency ``per`` GJ delivered, MWh delivered, or tonne of utility;
     ``co2_kg_per_GJ``: kg of CO2 per GJ delivered. ``source``: where the price and factor come from.
+    Steam's condensate is let down to ``flash_pressure`` (gauge or absolute; default the atmosphere) and part of it
+    flashes; ``condensate`` says what becomes of that flash steam: ``flash recovered`` (into a lower header: its
+    latent heat is credited at this utility's price and CO2 factor) or ``flash lost`` (vented: reported, no
+    credit); not given: the flash is reported only.
     """
 
     name: str = Field(min_length=1, max_length=80)
@@ -382,6 +386,8 @@ class Utility(_Model):
     per: Literal["GJ", "MWh", "t"] = "GJ"
     co2_kg_per_GJ: float = Field(default=0.0, ge=0.0, le=1e6)
     source: str = Field(default="site value", max_length=300)
+    condensate: Literal["flash recovered", "flash lost"] | None = None
+    flash_pressure: Quantity | None = None
 
     @model_validator(mode="after")
     def _fields_of_kind(self):
@@ -392,6 +398,8 @@ class Utility(_Model):
         missing = [n for n in needs if getattr(self, n) is None]
         if missing:
             raise ValueError(f"a {self.kind} utility needs {', '.join(repr(m) for m in missing)}")
+        if self.kind != "steam" and (self.condensate is not None or self.flash_pressure is not None):
+            raise ValueError("'condensate' and 'flash_pressure' belong to a steam utility")
         if self.kind == "electric" and self.per == "t":
             raise ValueError("electric heating is priced per GJ or per MWh, not per tonne")
         return self

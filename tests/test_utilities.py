@@ -8,7 +8,7 @@ from iapws import IAPWS97
 from heatbalance.address import inputs, rename
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.analyses.utilities import DEMO_UTILITIES, Demand, demo_utilities, utility_option
-from heatbalance.errors import InputError
+from heatbalance.errors import InputError, WorksheetFormatError
 from heatbalance.problem import build_problem
 from heatbalance.worksheet import dump_worksheet, load_worksheet, parse_worksheet
 
@@ -257,3 +257,51 @@ def test_hot_oil_too_cold_for_the_target_refused_with_its_supply():
     cool = dict(HOT_OIL, supply_temperature="85 degC", return_limit="60 degC")  # 85 °C < 80 °C + 10 K
     (option,) = solve_and_analyse(parse_worksheet(_heater([cool]))).utilities[0].options
     assert not option.feasible and option.refusal.where == "utilities[Hot oil].supply_temperature"
+
+
+# --------------------------------------------------------------------------- condensate: flash recovered or lost
+@pytest.mark.parametrize("condensate, flash_barg", [("flash recovered", None), ("flash lost", None),
+                                                    ("flash recovered", 1.0)])
+def test_flash_steam_recovered_or_lost_in_flow_and_cost_against_iapws(condensate, flash_barg):
+    steam = {"name": "LP", "kind": "steam", "pressure": "4 barg", "price": 28, "per": "t", "co2_kg_per_GJ": 70,
+             "condensate": condensate}
+    if flash_barg is not None:
+        steam["flash_pressure"] = f"{flash_barg} barg"
+    result = solve_and_analyse(parse_worksheet(_heater([steam])))
+    (option,) = result.utilities[0].options
+    duty = result.answer.value_si
+    # hand calculation with IAPWS-IF97 via iapws: saturated steam at 5.013 bar(a) condensing to saturated liquid,
+    # the condensate let down to the flash pressure: x = (h_f(P) − h_f(P_flash)) / h_fg(P_flash)
+    P, P_flash = 0.4 + ATM, (flash_barg or 0.0) / 10 + ATM  # MPa
+    h_f, h_g = IAPWS97(P=P, x=0).h, IAPWS97(P=P, x=1).h
+    h_f_flash, h_g_flash = IAPWS97(P=P_flash, x=0).h, IAPWS97(P=P_flash, x=1).h
+    flow = duty / ((h_g - h_f) * 1e3)  # kg/s
+    x = (h_f - h_f_flash) / (h_g_flash - h_f_flash)
+    assert option.flow == pytest.approx(flow, rel=2e-5)  # the steam drawn is the same either way
+    assert option.flash_fraction == pytest.approx(x, rel=1e-3)
+    assert option.flash_flow == pytest.approx(flow * x, rel=1e-3)
+    if condensate == "flash recovered":
+        credit = flow * x * (h_g_flash - h_f_flash) * 1e3  # W of latent heat recovered
+        assert option.flash_credit == pytest.approx(credit, rel=1e-3)
+        share = 1 - credit / duty
+    else:
+        assert option.flash_credit is None
+        share = 1.0
+    assert option.cost_per_hour == pytest.approx(28 * flow * 3.6 * share, rel=1e-3)
+    assert option.co2_per_year == pytest.approx(70 * duty * 3600 / 1e9 * 8000 * share, rel=1e-3)
+    if flash_barg is None:
+        assert 0.09 < x < 0.11  # about 10 % of 4 barg condensate flashes at the atmosphere (common practice)
+
+
+def test_flash_pressure_not_below_the_steam_refused_and_flash_fields_only_for_steam():
+    steam = {"name": "LP", "kind": "steam", "pressure": "4 barg", "condensate": "flash recovered",
+             "flash_pressure": "5 barg"}
+    (option,) = solve_and_analyse(parse_worksheet(_heater([steam]))).utilities[0].options
+    assert not option.feasible and option.refusal.where == "utilities[LP].flash_pressure"
+    assert "not below the steam's" in option.refusal.message
+    cw = {"name": "CW", "kind": "cooling water", "supply_temperature": "27 degC", "return_limit": "40 degC",
+          "condensate": "flash lost"}
+    with pytest.raises(WorksheetFormatError) as info:  # the loader's refusal, at the utility
+        parse_worksheet(_cooler([cw]))
+    assert info.value.where.startswith("utilities[CW]") and "belong to a steam utility" in info.value.message
+    assert "flash_pressure" in {i.address.rpartition(".")[2] for i in inputs(parse_worksheet(_heater([steam])))}

@@ -6,8 +6,10 @@ cooling) the flow is the duty divided by the heat one kilogram gives or takes, f
 property data at its pressure (water: IAPWS-IF97 through CoolProp):
 
 * steam: h(T_sat + superheat, P) − h(condensate), the condensate saturated liquid at P or subcooled to its
-  temperature; the flash fraction of that condensate let down to the atmosphere is reported,
-  x = (h_condensate − h_f,atm) / h_fg,atm (recovered or lost is the site's choice);
+  temperature; the condensate let down to the flash pressure (default the atmosphere) flashes a fraction
+  x = (h_condensate − h_f) / h_fg there, reported as a flow (m·x). ``condensate: flash recovered``: that flash
+  steam's latent heat m·x·h_fg is credited (it replaces this steam heat for heat, an assumption stated on the
+  row), so cost and CO2 are paid on (duty − credit); ``flash lost``: vented, no credit;
 * cooling water, chilled water, brine: h(T_return) − h(T_supply), the return the warmer of the limit and
   what the process allows (counter-current: the return meets the process's hot end, so
   T_return ≤ T_process,hot − ΔT_min);
@@ -22,8 +24,8 @@ the hottest. An infeasible utility is kept with its refusal (an :class:`~heatbal
 at the utility's field), never dropped silently. The exchanger check (:mod:`.exchangers`) draws the full
 curves; this table is a first choice.
 
-Cost per hour = price × (GJ or MWh delivered per hour, or tonnes of utility per hour); per year × the
-operating hours; CO2 per year = factor [kg/GJ] × GJ per year.
+Cost per hour = price × (GJ or MWh delivered per hour, or tonnes of utility per hour) × (1 − credit/duty);
+per year × the operating hours; CO2 per year = factor [kg/GJ] × GJ per year × (1 − credit/duty).
 """
 from __future__ import annotations
 
@@ -38,11 +40,14 @@ from ..units import ATMOSPHERE
 from ..worksheet import Utility
 
 __all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
-           "COLD_KINDS", "ELECTRIC_NOTE", "return_limit_warnings", "SAME_SUPPLY_K"]
+           "COLD_KINDS", "ELECTRIC_NOTE", "FLASH_RECOVERED_NOTE", "FLASH_LOST_NOTE", "return_limit_warnings", "SAME_SUPPLY_K"]
 
 HOT_KINDS = ("steam", "hot oil", "electric")
 COLD_KINDS = ("cooling water", "chilled water", "brine")
 ELECTRIC_NOTE = "resistive heating, efficiency 1; element surface temperature not checked"
+FLASH_RECOVERED_NOTE = ("flash steam recovered: its latent heat at the flash pressure is credited at this steam's price "
+                        "and CO2 factor (it replaces this steam heat for heat; an assumption)")
+FLASH_LOST_NOTE = "flash steam lost (vented): no credit; its heat and water are lost"
 _GJ = 1e9
 _MWh = 3.6e9
 SAME_SUPPLY_K = 0.05  # K: a utility line entering within this of a utility's supply temperature is that utility
@@ -99,7 +104,9 @@ class UtilityOption:
     per_kg: float | None = None  # J/kg delivered per kg of utility
     supply_T: float | None = None  # K (steam: its saturation temperature)
     return_T: float | None = None  # K (steam: the condensate's)
-    flash_fraction: float | None = None  # of the condensate let down to the atmosphere
+    flash_fraction: float | None = None  # of the condensate let down to the flash pressure (default the atmosphere)
+    flash_flow: float | None = None  # kg/s of flash steam
+    flash_credit: float | None = None  # W: the recovered flash steam's latent heat, credited against the duty
     cost_per_hour: float | None = None  # currency
     cost_per_year: float | None = None
     co2_per_year: float | None = None  # kg
@@ -119,7 +126,7 @@ class UtilityTable:
 
 
 def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | None]:
-    """(J/kg, T_sat, T_condensate, flash fraction)."""
+    """(J/kg, T_sat, T_condensate, the condensate's enthalpy [J/kg])."""
     water = u.material
     boiling = water.transitions(u.P)
     if not boiling:
@@ -149,9 +156,23 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
             "condensate temperature", {"T": Measure(T_out, "temperature", 1), "Tp": Measure(d.T_cold, "temperature", 1),
                                        "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}),
             f"{u.address}.condensate_temperature")
-    atm = water.transitions(ATMOSPHERE)[0]
-    flash = max(0.0, (h_out - atm.h_lower) / atm.latent)
-    return h_in - h_out, tr.T, T_out, flash
+    return h_in - h_out, tr.T, T_out, h_out
+
+
+def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
+    """(fraction of the condensate that flashes when let down to the flash pressure, latent heat there [J/kg]):
+    x = (h_condensate − h_f) / h_fg at the flash pressure (an adiabatic let-down, IAPWS-IF97 via CoolProp)."""
+    P = ATMOSPHERE if u.flash_P is None else u.flash_P
+    where = f"{u.address}.flash_pressure"
+    if P >= u.P:
+        raise InputError(Phrase("the condensate is let down to {P}: that is not below the steam's {Ps}",
+                                {"P": Measure(P, "pressure"), "Ps": Measure(u.P, "pressure")}), where)
+    u.material.check_pressure(P, where)
+    boiling = u.material.transitions(P)
+    if not boiling:
+        raise InputError(Phrase("water has no boiling plateau at {P}", {"P": Measure(P, "pressure")}), where)
+    low = boiling[0]
+    return max(0.0, (h_condensate - low.h_lower) / low.latent), low.latent
 
 
 def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
@@ -199,7 +220,8 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
     """The flow, cost and CO2 of one utility for one demand; raises the refusal when it cannot meet it."""
     option = UtilityOption(u.name, u.kind, True, source=u.source)
     if u.kind == "steam":
-        option.per_kg, option.supply_T, option.return_T, option.flash_fraction = _steam(u, d)
+        option.per_kg, option.supply_T, option.return_T, h_condensate = _steam(u, d)
+        option.flash_fraction, flash_latent = _flash(u, h_condensate)
     elif u.kind == "electric":
         option.notes.append(ELECTRIC_NOTE)
     else:
@@ -209,15 +231,24 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
             raise InputError(f"{u.name} gives no heat per kilogram between its supply and return states",
                              u.address)
         option.flow = d.duty / option.per_kg
-    per_hour_GJ = d.duty * 3600.0 / _GJ
+    share = 1.0  # of the gross cost and CO2 paid: less the recovered flash steam's heat
+    if option.flash_fraction is not None:
+        option.flash_flow = option.flow * option.flash_fraction
+        if u.condensate == "flash recovered":
+            option.flash_credit = option.flash_flow * flash_latent
+            share = 1.0 - option.flash_credit / d.duty
+            option.notes.append(FLASH_RECOVERED_NOTE)
+        elif u.condensate == "flash lost":
+            option.notes.append(FLASH_LOST_NOTE)
+    per_hour_GJ = d.duty * share * 3600.0 / _GJ
     if u.per == "GJ":
         option.cost_per_hour = u.price * per_hour_GJ
     elif u.per == "MWh":
-        option.cost_per_hour = u.price * d.duty * 3600.0 / _MWh
+        option.cost_per_hour = u.price * d.duty * share * 3600.0 / _MWh
     else:
         if option.flow is None:
             raise InputError("electric heating is priced per GJ or per MWh, not per tonne", f"{u.address}.per")
-        option.cost_per_hour = u.price * option.flow * 3600.0 / 1000.0
+        option.cost_per_hour = u.price * option.flow * share * 3600.0 / 1000.0
     if operating_hours is not None:
         hours = operating_hours / 3600.0
         option.cost_per_year = option.cost_per_hour * hours

@@ -99,7 +99,9 @@ def utility_rows(table, system: str = "SI") -> list[dict]:
                          f"{'condensate' if o.kind == 'steam' else 'return'} "
                          f"{_m(o.return_T, 'temperature', system, digits=1)}")
         if o.flash_fraction is not None:
-            notes.append(f"flash to atmosphere {o.flash_fraction:.1%} of the condensate")
+            notes.append(f"condensate flashes {o.flash_fraction:.1%} ({_m(o.flash_flow, 'mass_flow', system)} of "
+                         "flash steam)" + (f", credited {_m(o.flash_credit, 'power', system)}"
+                                            if o.flash_credit is not None else ""))
         notes += o.notes
         if o.refusal is not None:
             notes.append(f"{phrase_text(o.refusal.phrase, system)} [{o.refusal.where}]")
