@@ -157,6 +157,7 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "utilities[].condensate_temperature": ("temperature",),
     "utilities[].supply_temperature": ("temperature",),
     "utilities[].return_limit": ("temperature",),
+    "utilities[].flash_pressure": ("pressure",),
     "utilities[].mass_fraction": (FRACTION,),
     "operating_hours": ("duration",),
 }
@@ -274,7 +275,7 @@ def inputs(ws: Worksheet) -> list[Input]:
             add(item("exchangers", e.name, name), getattr(e, name))
     for u in ws.utilities:
         for name in ("pressure", "superheat", "condensate_temperature", "supply_temperature", "return_limit",
-                     "mass_fraction"):
+                     "mass_fraction", "flash_pressure"):
             add(item("utilities", u.name, name), getattr(u, name))
     add("operating_hours", ws.operating_hours)
     return out
@@ -481,6 +482,9 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
             override["address"] = follow_rename(override["address"], item_address, new)
     for tolerance in data.get("tolerances", []):
         tolerance["address"] = follow_rename(tolerance["address"], item_address, new)
+    for exchanger in data.get("exchangers", []):
+        if exchanger.get("sets"):
+            exchanger["sets"] = follow_rename(exchanger["sets"], item_address, new)
     for u in data.get("unknowns", []):
         if top in ("streams", "vessels") and len(path) == 1 and u.get("line") == old:
             u["line"] = new

@@ -212,7 +212,10 @@ def _solve_temperature(p: Problem) -> float | None:
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
 
     materials = [ln.material for ln in dependent] + [e.material for e in equipment_dep if e.material]
-    low, high = max(m.t_min for m in materials), min(m.t_max for m in materials)
+    # each material's lowest temperature at its state's pressure (a fluid's melting line rises with pressure)
+    lowest = [(m.lowest_temperature(state.P), m) for m, state, _ in moving]
+    lowest += [(e.material.t_min, e.material) for e in equipment_dep if e.material]
+    low, high = max(T for T, _ in lowest), min(m.t_max for m in materials)
     if low >= high:
         raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
                               f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_address)
@@ -234,7 +237,7 @@ def _solve_temperature(p: Problem) -> float | None:
         if i + 1 < len(points) and r_hot * points[i + 1][1] < 0:
             p.temperatures[var] = _root_in_segment(residual, (T, r_hot), points[i + 1][:2])
             return None
-    limits = {low: next(m.name for m in materials if m.t_min == low),
+    limits = {low: next(m.name for T, m in lowest if T == low),
               high: next(m.name for m in materials if m.t_max == high)}
     raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_address)
 

@@ -13,8 +13,8 @@ from importlib import resources
 from .errors import InputError
 from .properties import CoolPropFluid, IncompressibleSolution, Material, Phase, TabulatedMaterial
 
-__all__ = ["PURE_FLUIDS", "SOLUTIONS", "get_material", "solid_table", "catalogue", "MaterialInfo",
-           "SOLIDS_FILE"]
+__all__ = ["PURE_FLUIDS", "SOLUTIONS", "CORRELATED_LIQUIDS", "get_material", "solid_table", "catalogue",
+           "MaterialInfo", "SOLIDS_FILE", "cragoe_cp"]
 
 #: generic name -> (CoolProp fluid, backend)
 PURE_FLUIDS: dict[str, tuple[str, str]] = {
@@ -51,6 +51,37 @@ SOLUTIONS: dict[str, tuple[str, float]] = {
     "propylene glycol (aq)": ("MPG", 0.60),
     "calcium chloride brine": ("MCA", 0.30),
     "sodium chloride brine": ("MNA", 0.23),
+}
+
+BTU_PER_LB_F = 4186.8  # J/(kg·K) in 1 Btu/(lb·°F) (International Table Btu, exact)
+
+
+def cragoe_cp(specific_gravity: float) -> tuple[float, float]:
+    """(a, b) of cp = a + b·T [J/(kg·K), T in K] of a petroleum liquid by Cragoe's correlation.
+
+    c = (0.388 + 0.00045·t) / √s  [Btu/(lb·°F), t in °F, s the specific gravity at 60/60 °F]; with
+    t = 1.8·T − 459.67 this is a + b·T. Cragoe, C. S., *Thermal Properties of Petroleum Products*, US Bureau of
+    Standards Misc. Publ. 97 (1929), as quoted in Kern, *Process Heat Transfer* (1950) (from memory).
+
+    >>> a, b = cragoe_cp(0.87)
+    >>> round((a + b * 373.15) / 1000, 4)  # kJ/(kg·K) at 100 °C
+    2.1698
+    """
+    root = specific_gravity ** 0.5
+    return (0.388 - 0.00045 * 459.67) * BTU_PER_LB_F / root, 0.00045 * 1.8 * BTU_PER_LB_F / root
+
+
+_HOT_OIL_SG = 0.87  # a typical mineral heat-transfer oil at 60 °F (common practice, no source)
+
+#: generic liquids with cp(T) from a published generic correlation (no trade names):
+#: name -> (cp coefficients, valid min, valid max, limit min, limit max [°C], source)
+CORRELATED_LIQUIDS: dict[str, tuple[tuple[float, float], float, float, float, float, str]] = {
+    "mineral heat-transfer oil (generic)": (
+        cragoe_cp(_HOT_OIL_SG), 0.0, 205.0, -10.0, 320.0,
+        "Cragoe's correlation for petroleum liquids, cp = (0.388 + 0.00045 t[°F])/√s Btu/(lb·°F), US Bureau of "
+        "Standards Misc. Publ. 97 (1929), as in Kern, Process Heat Transfer, from memory; s = 0.87 (a typical "
+        "mineral oil, common practice, no source); published for 0–205 °C (from memory), extrapolated to 320 °C "
+        "(a common upper film temperature of mineral heat-transfer oils, common practice, no source)"),
 }
 
 SOLIDS_FILE = "solids_and_simple_liquids.csv"
@@ -90,6 +121,12 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
         if mass_fraction is None:
             raise InputError(f"{name} needs a mass fraction (0 to {fraction_max:g})")
         return IncompressibleSolution(name, code, mass_fraction, fraction_max)
+    if name in CORRELATED_LIQUIDS:
+        cp, valid_min, valid_max, limit_min, limit_max, source = CORRELATED_LIQUIDS[name]
+        material = TabulatedMaterial(name, (Phase("liquid", cp),), _celsius(str(limit_min)),
+                                     _celsius(str(limit_max)), source)
+        material.valid_min, material.valid_max = _celsius(str(valid_min)), _celsius(str(valid_max))
+        return material
     for row in solid_table():
         if row["name"] == name:
             return _tabulated(row)
@@ -99,7 +136,7 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
 
 def library_names() -> list[str]:
     """Every material name the library knows."""
-    return [*PURE_FLUIDS, *SOLUTIONS, *(row["name"] for row in solid_table())]
+    return [*PURE_FLUIDS, *SOLUTIONS, *CORRELATED_LIQUIDS, *(row["name"] for row in solid_table())]
 
 
 def get_material(name: str, mass_fraction: float | None = None,
@@ -128,6 +165,7 @@ def catalogue() -> list[MaterialInfo]:
               for name, (fluid, backend) in PURE_FLUIDS.items()]
     solutions = [MaterialInfo(name, "aqueous solution", f"CoolProp incompressible {code}, mass fraction 0-{x:g}")
                  for name, (code, x) in SOLUTIONS.items()]
+    correlated = [MaterialInfo(name, "generic correlation", entry[-1]) for name, entry in CORRELATED_LIQUIDS.items()]
     tabulated = [MaterialInfo(row["name"], "tabulated solid or simple liquid", row["source"])
                  for row in solid_table()]
-    return fluids + solutions + tabulated
+    return fluids + solutions + correlated + tabulated

@@ -140,6 +140,7 @@ class ExchangerInputs:
     area: float | None = None
     UA: float | None = None
     utility_side: str | None = None
+    sets: str | None = None  # the address of the input its rating sets (rating as a way of solving)
 
     @property
     def address(self) -> str:
@@ -162,6 +163,8 @@ class UtilityInputs:
     per: str = "GJ"
     co2_kg_per_GJ: float = 0.0
     source: str = "site value"
+    condensate: str | None = None  # flash recovered | flash lost | None (reported only)
+    flash_P: float | None = None  # Pa absolute the condensate is let down to (None: the atmosphere)
 
     @property
     def address(self) -> str:
@@ -389,7 +392,7 @@ class _Builder:
         if UA is None and U is not None and area is not None:
             UA = U * area
         return ExchangerInputs(e.name, list(e.hot), list(e.cold), e.arrangement, e.shells, approach,
-                               e.minimum_approach is not None, U, area, UA, e.utility_side)
+                               e.minimum_approach is not None, U, area, UA, e.utility_side, e.sets)
 
     def _utility(self, u) -> UtilityInputs:
         where = item("utilities", u.name)
@@ -405,6 +408,9 @@ class _Builder:
             out.superheat = _si(u.superheat, "temperature_difference", f"{where}.superheat")
             if out.superheat < 0:
                 raise InputError(f"superheat cannot be negative ({u.superheat})", f"{where}.superheat")
+        out.condensate = u.condensate
+        if u.flash_pressure is not None:
+            out.flash_P = _si(u.flash_pressure, "pressure", f"{where}.flash_pressure")
         out.condensate_T, out.supply_T, out.return_T = (temperature("condensate_temperature"),
                                                         temperature("supply_temperature"), temperature("return_limit"))
         if u.kind in ("steam", "cooling water", "chilled water"):

@@ -98,6 +98,10 @@ class Material:
     valid_min: float | None = None
     valid_max: float | None = None
 
+    def lowest_temperature(self, P: float) -> float:
+        """The lowest temperature of its data at pressure P [K] (``t_min``; a fluid with a melting line: that line)."""
+        return self.t_min
+
     def check_range(self, T: float, where: str = "") -> None:
         """Refuse a temperature outside the property data's range."""
         if not self.t_min - 1e-9 <= T <= self.t_max + 1e-9:
@@ -152,6 +156,14 @@ class CoolPropFluid(Material):
     def _state(self):
         return self._local.state
 
+    def lowest_temperature(self, P: float) -> float:
+        """Below its melting line the fluid is solid, which its equation of state does not model: at a pressure above
+        the triple point's the data start at the melting temperature T_m(P) (above T_triple: it rises with P;
+        methanol at 1.3 bar: 175.63 K against 175.61 K, CoolProp's HEOS melting line)."""
+        if self.backend != "HEOS":
+            return self.t_min
+        return max(self.t_min, _melting_temperature(self.fluid, P))
+
     def check_pressure(self, P: float, where: str = "") -> None:
         if not self.p_min <= P <= self.p_max:
             raise PropertyRangeError(self.name, "pressure", P, self.p_min, self.p_max, "pressure", where)
@@ -176,6 +188,9 @@ class CoolPropFluid(Material):
             state.update(self._PT, P, T)
             return state.hmass()
         except (ValueError, IndexError) as exc:
+            low = self.lowest_temperature(P)
+            if T < low:  # below the melting line: solid, not modelled
+                raise PropertyRangeError(self.name, "temperature", T, low, self.t_max, "temperature") from exc
             if not self.p_triple < P < self.p_critical:
                 raise PropertyRangeError(self.name, "pressure", P, self.p_min, self.p_max, "pressure") from exc
             sat = _saturation(self, P)  # on the saturation line (IF97: "Region 4 with T and p")
@@ -184,6 +199,19 @@ class CoolPropFluid(Material):
                                         {"name": self.name, "T": Measure(T, "temperature"),
                                          "P": Measure(P, "pressure"), "detail": str(exc)})) from exc
             return sat.h_lower if T <= sat.T else sat.h_upper
+
+
+@lru_cache(maxsize=4096)
+def _melting_temperature(fluid: str, P: float) -> float:
+    """T_m(P) [K] of a HEOS fluid's melting line (0 when it has none, or none at this pressure)."""
+    CP = _cp()
+    state = CP.AbstractState("HEOS", fluid)
+    if not state.has_melting_line():
+        return 0.0
+    try:
+        return float(state.melting_line(CP.iT, CP.iP, P))
+    except ValueError:  # outside the line's range, or a form CoolProp cannot invert
+        return 0.0
 
 
 @lru_cache(maxsize=4096)

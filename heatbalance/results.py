@@ -90,6 +90,7 @@ class Result:
     output_uncertainties: dict = field(default_factory=dict)  # other outputs' Uncertainty (each screening's MTSR)
     exchangers: list = field(default_factory=list)  # analyses.exchangers.ExchangerCheck, one per exchanger
     utilities: list = field(default_factory=list)  # analyses.utilities.UtilityTable, one per duty to meet
+    rating_closure: object = None  # analyses.rating_solve.RatingClosure: an exchanger's rating set an input
 
     @property
     def heat_si_unit(self) -> str:

@@ -328,7 +328,9 @@ class Exchanger(_Model):
     common practice for shell-and-tube liquid service, no source). An existing unit: ``UA``, or ``U``
     and ``area`` (rating); ``U`` alone gives the area needed (design). ``utility_side`` (``hot`` or
     ``cold``) names the side that is a utility: the utility table then offers each site utility for the
-    other side's duty.
+    other side's duty. ``sets`` (rating as a way of solving): the address of one more input (an outlet
+    temperature, a flow) that the exchanger's UA sets, so that the duty it delivers closes the balance; the
+    worksheet's unknown is still solved by the balance.
     """
 
     name: str = Field(min_length=1, max_length=80)
@@ -341,6 +343,7 @@ class Exchanger(_Model):
     area: Quantity | None = None
     UA: Quantity | None = None
     utility_side: Literal["hot", "cold"] | None = None
+    sets: str | None = Field(default=None, min_length=1, max_length=300)
 
     @model_validator(mode="after")
     def _one_form(self):
@@ -364,6 +367,10 @@ class Utility(_Model):
     ``material`` (a catalogue material or one defined in the worksheet). Electric heating: no temperatures.
     ``price`` in the worksheet's currency ``per`` GJ delivered, MWh delivered, or tonne of utility;
     ``co2_kg_per_GJ``: kg of CO2 per GJ delivered. ``source``: where the price and factor come from.
+    Steam's condensate is let down to ``flash_pressure`` (gauge or absolute; default the atmosphere) and part of it
+    flashes; ``condensate`` says what becomes of that flash steam: ``flash recovered`` (into a lower header: its
+    latent heat is credited at this utility's price and CO2 factor) or ``flash lost`` (vented: reported, no
+    credit); not given: the flash is reported only.
     """
 
     name: str = Field(min_length=1, max_length=80)
@@ -379,6 +386,8 @@ class Utility(_Model):
     per: Literal["GJ", "MWh", "t"] = "GJ"
     co2_kg_per_GJ: float = Field(default=0.0, ge=0.0, le=1e6)
     source: str = Field(default="site value", max_length=300)
+    condensate: Literal["flash recovered", "flash lost"] | None = None
+    flash_pressure: Quantity | None = None
 
     @model_validator(mode="after")
     def _fields_of_kind(self):
@@ -389,6 +398,8 @@ class Utility(_Model):
         missing = [n for n in needs if getattr(self, n) is None]
         if missing:
             raise ValueError(f"a {self.kind} utility needs {', '.join(repr(m) for m in missing)}")
+        if self.kind != "steam" and (self.condensate is not None or self.flash_pressure is not None):
+            raise ValueError("'condensate' and 'flash_pressure' belong to a steam utility")
         if self.kind == "electric" and self.per == "t":
             raise ValueError("electric heating is priced per GJ or per MWh, not per tonne")
         return self

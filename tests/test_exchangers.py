@@ -340,3 +340,36 @@ def test_report_json_and_chart_carry_the_same_numbers():
     assert [t.name.split(":")[0] for t in fig.data] == ["hot side", "cold side", "pinch"]
     assert max(fig.data[0].y) == pytest.approx(check.hot_curve[-1][1] - C0)
     assert len(fig.layout.shapes) == len(check.zones)
+
+
+# --------------------------------------------------------------------------- the methanol sample's temperatures
+def test_methanol_sample_solves_for_its_temperatures_round_trip():
+    # Methanol's data start at its melting line, not at its triple point: at 1.3 bar the melting temperature is above
+    # T_triple = 175.61 K (CoolProp's HEOS data; CRC Handbook gives a melting point of -97.5 °C ≈ 175.6 K, from
+    # memory), and the liquid's equation of state is refused below it. Before, the temperature search started at
+    # T_triple and every temperature solve on the sample was refused.
+    from heatbalance.address import with_unknown
+    from heatbalance.materials import get_material
+
+    methanol = get_material("methanol")
+    assert methanol.lowest_temperature(1.3e5) > methanol.t_min == pytest.approx(175.61, abs=0.01)
+    assert methanol.lowest_temperature(1e7) > methanol.lowest_temperature(1.3e5)  # the melting line rises with P
+    with open("sample_data/methanol_condenser_cooling_water.json", encoding="utf-8") as handle:
+        ws = load_worksheet(handle.read())
+    flow = solve_and_analyse(ws).answer.value_si  # the cooling water the sample needs (kg/s)
+    for address, typed in (("streams[Methanol overhead].outlet.temperature", 50.0),
+                           ("streams[Cooling water].outlet.temperature", 40.0)):
+        result = solve_and_analyse(with_unknown(ws, address, (flow, "kg/s")))
+        assert result.answer.value_si - C0 == pytest.approx(typed, abs=1e-5)  # the sample's typed value, back
+        assert abs(result.residual) <= 1e-6 * max(abs(ln.total) for ln in result.lines)
+
+
+def test_methanol_cooled_below_its_melting_line_is_refused_with_the_range():
+    doc = {"streams": [{"name": "Methanol", "material": "methanol", "flow": "1 kg/s", "pressure": "0.3 barg",
+                        "inlet": {"temperature": "20 degC"}, "outlet": {"temperature": "0 degC"}}],
+           "duties": [{"name": "Chiller", "value": "-400 kW"}],
+           "unknowns": [{"kind": "temperature", "line": "Methanol", "end": "outlet"}]}
+    with pytest.raises(NoSolutionError) as info:
+        solve_and_analyse(parse_worksheet(doc))
+    assert info.value.where == "streams[Methanol].outlet.temperature"
+    assert "too much heat" not in info.value.message and "lower limit of the data for methanol" in info.value.message

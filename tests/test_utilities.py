@@ -8,7 +8,7 @@ from iapws import IAPWS97
 from heatbalance.address import inputs, rename
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.analyses.utilities import DEMO_UTILITIES, Demand, demo_utilities, utility_option
-from heatbalance.errors import InputError
+from heatbalance.errors import InputError, WorksheetFormatError
 from heatbalance.problem import build_problem
 from heatbalance.worksheet import dump_worksheet, load_worksheet, parse_worksheet
 
@@ -125,7 +125,7 @@ def test_without_operating_hours_no_annual_figures():
 
 def test_hot_utilities_for_heating_cold_for_cooling():
     result = solve_and_analyse(parse_worksheet(_heater(DEMO_UTILITIES)))
-    assert [o.kind for o in result.utilities[0].options] == ["steam", "steam", "electric"]
+    assert [o.kind for o in result.utilities[0].options] == ["steam", "steam", "hot oil", "electric"]
     result = solve_and_analyse(parse_worksheet(_cooler(DEMO_UTILITIES)))
     assert [o.kind for o in result.utilities[0].options] == ["cooling water", "chilled water", "brine"]
     assert all(o.feasible for o in result.utilities[0].options)
@@ -168,3 +168,140 @@ def test_operating_hours_beyond_a_year_refused():
     with pytest.raises(InputError) as info:
         solve_and_analyse(parse_worksheet(_cooler([], hours="9000 h")))
     assert info.value.where == "operating_hours"
+
+
+# --------------------------------------------------------------------------- a coolant's return limit
+def _methanol_sample() -> dict:
+    import json
+
+    with open("sample_data/methanol_condenser_cooling_water.json", encoding="utf-8") as handle:
+        return json.load(handle)
+
+
+def test_rated_cooling_water_return_above_its_limit_is_loud():
+    # The sample's condenser (UA 25 kW/K) over-delivers with the balance's 31.5 t/h of cooling water: the rating's
+    # cooling-water outlet is the inlet plus the rated duty over the water's heat flow, above the 40 °C limit.
+    result = solve_and_analyse(parse_worksheet(_methanol_sample()))
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]
+    assert warning.address == "utilities[Cooling water].return_limit"
+    rating = result.exchangers[0].rating
+    cw = next(ln for ln in result.lines if ln.name == "Cooling water")
+    P = cw.initial_P / 1e6  # MPa
+    # IAPWS-IF97 via iapws: the water's enthalpy rise from 27 °C by the rated duty, solved for its temperature
+    h_out = IAPWS97(P=P, T=27 + C0).h + rating.duty / cw.amount_si / 1e3
+    T_out = IAPWS97(P=P, h=h_out).T
+    assert rating.cold_outlet_T == pytest.approx(T_out, abs=0.01)
+    assert 40.5 < T_out - C0 < 41.0  # about 40.7 °C
+    assert f"{T_out - C0:.1f} °C" in warning.text and "40.0 °C" in warning.text
+    assert "as the exchanger's UA rates it" in warning.text
+    assert warning in result.exchangers[0].warnings  # shown with the exchanger (page, CLI) too
+
+
+def test_balance_return_above_its_limit_is_loud_and_within_it_silent():
+    doc = _methanol_sample()
+    doc["exchangers"][0].pop("UA")  # no rating: only the balance's outlet is checked
+    doc["streams"][1]["outlet"] = {"temperature": {"value": 44, "unit": "degC"}}
+    result = solve_and_analyse(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]
+    assert warning.address == "utilities[Cooling water].return_limit"
+    assert "44.0 °C in the balance" in warning.text and "by 4.0 K" in warning.text  # hand: 44 − 40
+    doc["streams"][1]["outlet"] = {"temperature": {"value": 38, "unit": "degC"}}
+    result = solve_and_analyse(parse_worksheet(doc))
+    assert not [w for w in result.warnings if "RETURN LIMIT" in w.text]
+
+
+# --------------------------------------------------------------------------- a generic hot oil, cp(T) by Cragoe
+def _cragoe_btu(t_F: float, s: float = 0.87) -> float:
+    """Cragoe (1929), US Bureau of Standards Misc. Publ. 97, as in Kern, Process Heat Transfer (from memory):
+    cp = (0.388 + 0.00045·t[°F]) / √s in Btu/(lb·°F), written out here in its own units."""
+    return (0.388 + 0.00045 * t_F) / s ** 0.5
+
+
+HOT_OIL = {"name": "Hot oil", "kind": "hot oil", "material": "mineral heat-transfer oil (generic)",
+           "supply_temperature": "250 degC", "return_limit": "180 degC", "price": 16, "per": "GJ",
+           "co2_kg_per_GJ": 68}
+
+
+def test_hot_oil_flow_from_cragoes_correlation_by_hand():
+    # 36 t/h of water 20 -> 80 °C (the heater scenario); the oil returns at its 180 °C limit (the process's coldest
+    # 20 °C + 10 K is colder). cp is linear in T, so ∫cp dT = cp at the mid temperature 215 °C × 70 K (exact).
+    result = solve_and_analyse(parse_worksheet(_heater([HOT_OIL])))
+    (option,) = result.utilities[0].options
+    assert option.feasible and option.kind == "hot oil"
+    per_kg = _cragoe_btu(215 * 1.8 + 32) * 4186.8 * 70  # J/kg, hand calculation (1 Btu/(lb·°F) = 4186.8 J/(kg·K))
+    assert option.per_kg == pytest.approx(per_kg, rel=1e-9)
+    assert option.flow == pytest.approx(result.answer.value_si / per_kg, rel=1e-9)
+    assert option.return_T - C0 == pytest.approx(180.0)
+    assert option.cost_per_hour == pytest.approx(16 * result.answer.value_si * 3600 / 1e9, rel=1e-12)
+
+
+def test_hot_oil_material_is_generic_sourced_and_refused_outside_its_range():
+    from heatbalance.materials import catalogue, get_material
+
+    oil = get_material("mineral heat-transfer oil (generic)")
+    assert "Cragoe" in oil.source and "from memory" in oil.source
+    info = next(m for m in catalogue() if m.name == oil.name)
+    assert info.group == "generic correlation"
+    # cp at 100 °C: (0.388 + 0.00045 × 212) / √0.87 = 0.5183 Btu/(lb·°F) = 2.170 kJ/(kg·K), hand calculation
+    cp_100 = (oil.enthalpy(373.15 + 0.5, 1e5) - oil.enthalpy(373.15 - 0.5, 1e5))
+    assert cp_100 == pytest.approx(_cragoe_btu(212) * 4186.8, rel=1e-9)
+    assert oil.extrapolated(250 + C0) and not oil.extrapolated(150 + C0)  # published to 205 °C (from memory)
+    too_hot = dict(HOT_OIL, supply_temperature="350 degC")  # beyond its 320 °C limit
+    (option,) = solve_and_analyse(parse_worksheet(_heater([too_hot]))).utilities[0].options
+    assert not option.feasible
+    assert option.refusal.where == "utilities[Hot oil].supply_temperature"
+    assert "320" in option.refusal.message
+
+
+def test_hot_oil_too_cold_for_the_target_refused_with_its_supply():
+    cool = dict(HOT_OIL, supply_temperature="85 degC", return_limit="60 degC")  # 85 °C < 80 °C + 10 K
+    (option,) = solve_and_analyse(parse_worksheet(_heater([cool]))).utilities[0].options
+    assert not option.feasible and option.refusal.where == "utilities[Hot oil].supply_temperature"
+
+
+# --------------------------------------------------------------------------- condensate: flash recovered or lost
+@pytest.mark.parametrize("condensate, flash_barg", [("flash recovered", None), ("flash lost", None),
+                                                    ("flash recovered", 1.0)])
+def test_flash_steam_recovered_or_lost_in_flow_and_cost_against_iapws(condensate, flash_barg):
+    steam = {"name": "LP", "kind": "steam", "pressure": "4 barg", "price": 28, "per": "t", "co2_kg_per_GJ": 70,
+             "condensate": condensate}
+    if flash_barg is not None:
+        steam["flash_pressure"] = f"{flash_barg} barg"
+    result = solve_and_analyse(parse_worksheet(_heater([steam])))
+    (option,) = result.utilities[0].options
+    duty = result.answer.value_si
+    # hand calculation with IAPWS-IF97 via iapws: saturated steam at 5.013 bar(a) condensing to saturated liquid,
+    # the condensate let down to the flash pressure: x = (h_f(P) − h_f(P_flash)) / h_fg(P_flash)
+    P, P_flash = 0.4 + ATM, (flash_barg or 0.0) / 10 + ATM  # MPa
+    h_f, h_g = IAPWS97(P=P, x=0).h, IAPWS97(P=P, x=1).h
+    h_f_flash, h_g_flash = IAPWS97(P=P_flash, x=0).h, IAPWS97(P=P_flash, x=1).h
+    flow = duty / ((h_g - h_f) * 1e3)  # kg/s
+    x = (h_f - h_f_flash) / (h_g_flash - h_f_flash)
+    assert option.flow == pytest.approx(flow, rel=2e-5)  # the steam drawn is the same either way
+    assert option.flash_fraction == pytest.approx(x, rel=1e-3)
+    assert option.flash_flow == pytest.approx(flow * x, rel=1e-3)
+    if condensate == "flash recovered":
+        credit = flow * x * (h_g_flash - h_f_flash) * 1e3  # W of latent heat recovered
+        assert option.flash_credit == pytest.approx(credit, rel=1e-3)
+        share = 1 - credit / duty
+    else:
+        assert option.flash_credit is None
+        share = 1.0
+    assert option.cost_per_hour == pytest.approx(28 * flow * 3.6 * share, rel=1e-3)
+    assert option.co2_per_year == pytest.approx(70 * duty * 3600 / 1e9 * 8000 * share, rel=1e-3)
+    if flash_barg is None:
+        assert 0.09 < x < 0.11  # about 10 % of 4 barg condensate flashes at the atmosphere (common practice)
+
+
+def test_flash_pressure_not_below_the_steam_refused_and_flash_fields_only_for_steam():
+    steam = {"name": "LP", "kind": "steam", "pressure": "4 barg", "condensate": "flash recovered",
+             "flash_pressure": "5 barg"}
+    (option,) = solve_and_analyse(parse_worksheet(_heater([steam]))).utilities[0].options
+    assert not option.feasible and option.refusal.where == "utilities[LP].flash_pressure"
+    assert "not below the steam's" in option.refusal.message
+    cw = {"name": "CW", "kind": "cooling water", "supply_temperature": "27 degC", "return_limit": "40 degC",
+          "condensate": "flash lost"}
+    with pytest.raises(WorksheetFormatError) as info:  # the loader's refusal, at the utility
+        parse_worksheet(_cooler([cw]))
+    assert info.value.where.startswith("utilities[CW]") and "belong to a steam utility" in info.value.message
+    assert "flash_pressure" in {i.address.rpartition(".")[2] for i in inputs(parse_worksheet(_heater([steam])))}

@@ -14,10 +14,10 @@ from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
 from .screening import JacketTime, Screening, screen
-from .utilities import UtilityTable, utility_tables
+from .utilities import UtilityTable, return_limit_warnings, utility_tables
 
 __all__ = ["JacketTime", "Screening", "screen", "ExchangerCheck", "check_exchangers", "UtilityTable",
-           "utility_tables", "analyse", "solve_and_analyse"]
+           "utility_tables", "analyse", "solve_and_analyse", "solve_closed"]
 
 
 def __getattr__(name: str):
@@ -40,6 +40,16 @@ def _finite_numbers(record) -> bool:
     return True
 
 
+def solve_closed(problem) -> Result:
+    """Solve a built problem: by the balance alone, or with an exchanger's rating setting one more input
+    (:mod:`.rating_solve`, loaded only for such a sheet)."""
+    if any(e.sets for e in problem.exchangers):
+        from .rating_solve import solve_rated
+
+        return solve_rated(problem)
+    return solve_problem(problem)
+
+
 def analyse(problem, result):
     """Run every analysis on a solved balance and attach its records to the result (returned).
 
@@ -55,9 +65,16 @@ def analyse(problem, result):
         from .exchangers import check_exchangers
 
         result.exchangers = check_exchangers(problem, result)
+        closure = getattr(result, "rating_closure", None)
+        for check in result.exchangers:
+            if closure is not None and check.name == closure.exchanger:
+                check.closure = closure
+                check.notes.insert(0, closure.note)
     else:
         result.exchangers = []
     result.utilities = utility_tables(problem, result)
+    for name, warning in return_limit_warnings(problem, result):
+        next(c for c in result.exchangers if c.name == name).warnings.append(warning)
     for records, where in ((result.exchangers, lambda r: r.address), (result.utilities, lambda r: r.demand.address)):
         for record in records:
             if not _finite_numbers(record):
@@ -73,7 +90,7 @@ def solve_and_analyse(ws: Worksheet) -> Result:
     With tolerances, the answer's uncertainty is propagated too (``result.uncertainty``).
     """
     problem = build_problem(ws)
-    result = analyse(problem, solve_problem(problem))
+    result = analyse(problem, solve_closed(problem))
     if ws.tolerances:
         from .uncertainty import propagate_outputs  # only sheets with tolerances pay for it
 

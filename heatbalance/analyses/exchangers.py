@@ -46,13 +46,13 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..balance import T_TOL, evaluate_state
-from ..errors import HeatBalanceError, NoSolutionError
+from ..errors import HeatBalanceError, InputError, NoSolutionError
 from ..messages import Measure, Phrase
 from ..problem import ExchangerInputs, Line, Problem
 from ..properties import Material
 from ..results import Result
 
-__all__ = ["Zone", "Rating", "ExchangerCheck", "LinePath", "Curve", "check_exchangers", "check_exchanger",
+__all__ = ["Zone", "Rating", "rated_duty", "ExchangerCheck", "LinePath", "Curve", "check_exchangers", "check_exchanger",
            "required_UA", "correction_factor", "typical_U", "TYPICAL_U_FILE", "F_FLOOR", "SAMPLES_PER_SEGMENT", "APPROACH_SOURCE"]
 
 SAMPLES_PER_SEGMENT = 24  # interior samples of each single-phase stretch of a line's path
@@ -122,6 +122,7 @@ class ExchangerCheck:
     area_required: float | None = None  # m² for the entered U
     UA_given: float | None = None
     rating: Rating | None = None
+    closure: object = None  # rating_solve.RatingClosure: the input its rating set, when it closes the balance
     warnings: list[Phrase] = field(default_factory=list)
     notes: list[Phrase] = field(default_factory=list)
     sources: list[str] = field(default_factory=list)
@@ -483,6 +484,46 @@ def _rate(problem: Problem, result: Result, e: ExchangerInputs, check: Exchanger
         return None
     (hl, hr), = _side(problem, result, e, "hot")
     (cl, cr), = _side(problem, result, e, "cold")
+    q, q_top, T_hot_out, T_cold_out = _rated(problem, e, hl, hr, cl, cr)
+    ratio = q / check.duty if check.duty > 0 else math.inf
+    if not math.isfinite(ratio):
+        raise NoSolutionError(f"{e.name} exchanges no heat in this balance: nothing to rate", f"{e.address}.UA")
+    values = {"exchanger": e.name, "q": Measure(q, "power"), "duty": Measure(check.duty, "power"),
+              "share": f"{ratio:.1%}", "Th": Measure(T_hot_out, "temperature", 1),
+              "Tc": Measure(T_cold_out, "temperature", 1)}
+    if ratio < 1 - 1e-3:
+        verdict = Phrase("{exchanger} IS TOO SMALL for the balance: with its UA it delivers {q}, {share} of the "
+                         "{duty} the balance needs (hot outlet {Th}, cold outlet {Tc})", values, f"{e.address}.UA")
+        warnings.append(verdict)
+    else:
+        verdict = Phrase("{exchanger} can deliver {q} ({share} of the balance's {duty}; hot outlet {Th}, cold outlet "
+                         "{Tc} if nothing throttles it)", values, f"{e.address}.UA")
+    return Rating(e.UA, float(q), check.duty, T_hot_out, T_cold_out, float(q_top), verdict)
+
+
+def rated_duty(problem: Problem, result: Result, e: ExchangerInputs) -> tuple[float, float, float, float]:
+    """(duty [W], the duty at which the curves would touch [W], hot outlet [K], cold outlet [K]) that the
+    exchanger's UA delivers with the balance's inlets and flows, by ε-NTU per zone (one line per side).
+
+    Unlike the check, it does not ask which way the balance sends the heat: a rating solve
+    (:mod:`.rating_solve`) calls it at trial values where the balance is not yet the exchanger's.
+    """
+    if e.UA is None:
+        raise InputError("rating needs the exchanger's UA, or its U and area", f"{e.address}.UA")
+    if len(e.hot) != 1 or len(e.cold) != 1:
+        raise InputError(Phrase("rating is done for one line on each side; {exchanger} has {n_hot} hot and {n_cold} "
+                                "cold", {"exchanger": e.name, "n_hot": len(e.hot), "n_cold": len(e.cold)}),
+                         f"{e.address}.{'hot' if len(e.hot) != 1 else 'cold'}")
+    (hl, hr), (cl, cr) = (_pair(problem, result, e.hot[0]), _pair(problem, result, e.cold[0]))
+    return _rated(problem, e, hl, hr, cl, cr)
+
+
+def _pair(problem: Problem, result: Result, name: str) -> tuple[Line, object]:
+    index = next(i for i, ln in enumerate(problem.lines) if ln.kind == "stream" and ln.name == name)
+    return problem.lines[index], result.lines[index]
+
+
+def _rated(problem: Problem, e: ExchangerInputs, hl: Line, hr, cl: Line, cr) -> tuple[float, float, float, float]:
     hot_path = _extended(problem, hl, hr, cr.initial_T, True)
     cold_path = _extended(problem, cl, cr, hr.initial_T, False)
     hot_full, cold_full = _composite([hot_path]), _composite([cold_path])
@@ -545,20 +586,7 @@ def _rate(problem: Problem, result: Result, e: ExchangerInputs, check: Exchanger
     hot, cold, _ = curves(q)
     T_hot_out = hot.T(0.0, True)
     T_cold_out = cold.T(0.0 if co else q, not co)
-    ratio = q / check.duty if check.duty > 0 else math.inf
-    if not math.isfinite(ratio):
-        raise NoSolutionError(f"{e.name} exchanges no heat in this balance: nothing to rate", f"{e.address}.UA")
-    values = {"exchanger": e.name, "q": Measure(q, "power"), "duty": Measure(check.duty, "power"),
-              "share": f"{ratio:.1%}", "Th": Measure(T_hot_out, "temperature", 1),
-              "Tc": Measure(T_cold_out, "temperature", 1)}
-    if ratio < 1 - 1e-3:
-        verdict = Phrase("{exchanger} IS TOO SMALL for the balance: with its UA it delivers {q}, {share} of the "
-                         "{duty} the balance needs (hot outlet {Th}, cold outlet {Tc})", values, f"{e.address}.UA")
-        warnings.append(verdict)
-    else:
-        verdict = Phrase("{exchanger} can deliver {q} ({share} of the balance's {duty}; hot outlet {Th}, cold outlet "
-                         "{Tc} if nothing throttles it)", values, f"{e.address}.UA")
-    return Rating(e.UA, float(q), check.duty, T_hot_out, T_cold_out, float(q_top), verdict)
+    return float(q), float(q_top), T_hot_out, T_cold_out
 
 
 def check_exchangers(problem: Problem, result: Result) -> list[ExchangerCheck]:

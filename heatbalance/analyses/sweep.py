@@ -20,12 +20,11 @@ from dataclasses import dataclass
 import pandas as pd
 
 from ..address import FRACTION, get, kinds_of, parse, unknown_address, with_value
-from ..balance import solve_problem
 from ..errors import AddressError, HeatBalanceError, InputError
 from ..problem import Problem, basis_si, build_problem, typed_si
 from ..units import check_unit, heat_kind, kind_of
 from ..worksheet import Quantity, Worksheet
-from . import analyse
+from . import analyse, solve_closed
 
 __all__ = ["Axis", "axis_values", "sweep", "output_names", "answer_field", "MAX_POINTS", "REFUSED_AT", "REASON",
            "WARNINGS"]
@@ -330,11 +329,11 @@ class _FastRun:
                 p.unknown_target.heat = None
             for setter, value in zip(self.setters, values):
                 setter(value)
-            result = analyse(p, solve_problem(p))
+            result = analyse(p, solve_closed(p))
             return result, result.screening
         ws = self.ws
         for axis, value, kinds in zip(self.axes, values, self.kinds):
             ws = with_value(ws, axis.address, _typed(axis, value, kinds))
         p = build_problem(ws)
-        result = analyse(p, solve_problem(p))
+        result = analyse(p, solve_closed(p))
         return result, result.screening

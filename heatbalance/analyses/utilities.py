@@ -6,8 +6,10 @@ cooling) the flow is the duty divided by the heat one kilogram gives or takes, f
 property data at its pressure (water: IAPWS-IF97 through CoolProp):
 
 * steam: h(T_sat + superheat, P) − h(condensate), the condensate saturated liquid at P or subcooled to its
-  temperature; the flash fraction of that condensate let down to the atmosphere is reported,
-  x = (h_condensate − h_f,atm) / h_fg,atm (recovered or lost is the site's choice);
+  temperature; the condensate let down to the flash pressure (default the atmosphere) flashes a fraction
+  x = (h_condensate − h_f) / h_fg there, reported as a flow (m·x). ``condensate: flash recovered``: that flash
+  steam's latent heat m·x·h_fg is credited (it replaces this steam heat for heat, an assumption stated on the
+  row), so cost and CO2 are paid on (duty − credit); ``flash lost``: vented, no credit;
 * cooling water, chilled water, brine: h(T_return) − h(T_supply), the return the warmer of the limit and
   what the process allows (counter-current: the return meets the process's hot end, so
   T_return ≤ T_process,hot − ΔT_min);
@@ -22,8 +24,8 @@ the hottest. An infeasible utility is kept with its refusal (an :class:`~heatbal
 at the utility's field), never dropped silently. The exchanger check (:mod:`.exchangers`) draws the full
 curves; this table is a first choice.
 
-Cost per hour = price × (GJ or MWh delivered per hour, or tonnes of utility per hour); per year × the
-operating hours; CO2 per year = factor [kg/GJ] × GJ per year.
+Cost per hour = price × (GJ or MWh delivered per hour, or tonnes of utility per hour) × (1 − credit/duty);
+per year × the operating hours; CO2 per year = factor [kg/GJ] × GJ per year × (1 − credit/duty).
 """
 from __future__ import annotations
 
@@ -38,13 +40,17 @@ from ..units import ATMOSPHERE
 from ..worksheet import Utility
 
 __all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
-           "COLD_KINDS", "ELECTRIC_NOTE"]
+           "COLD_KINDS", "ELECTRIC_NOTE", "FLASH_RECOVERED_NOTE", "FLASH_LOST_NOTE", "return_limit_warnings", "SAME_SUPPLY_K"]
 
 HOT_KINDS = ("steam", "hot oil", "electric")
 COLD_KINDS = ("cooling water", "chilled water", "brine")
 ELECTRIC_NOTE = "resistive heating, efficiency 1; element surface temperature not checked"
+FLASH_RECOVERED_NOTE = ("flash steam recovered: its latent heat at the flash pressure is credited at this steam's price "
+                        "and CO2 factor (it replaces this steam heat for heat; an assumption)")
+FLASH_LOST_NOTE = "flash steam lost (vented): no credit; its heat and water are lost"
 _GJ = 1e9
 _MWh = 3.6e9
+SAME_SUPPLY_K = 0.05  # K: a utility line entering within this of a utility's supply temperature is that utility
 _DEMO = "demo value of our own invention, not a site's: replace with your site's"
 
 #: A site utility list of our own invention, for the demo and the samples (prices in EUR, CO2 in kg/GJ delivered)
@@ -59,6 +65,9 @@ DEMO_UTILITIES: list[dict] = [
      "price": 12.0, "per": "GJ", "co2_kg_per_GJ": 25.0, "source": _DEMO},
     {"name": "Brine -15 °C", "kind": "brine", "material": "calcium chloride brine", "mass_fraction": 0.25,
      "supply_temperature": "-15 degC", "return_limit": "-5 degC", "price": 30.0, "per": "GJ", "co2_kg_per_GJ": 60.0,
+     "source": _DEMO},
+    {"name": "Hot oil 250 °C", "kind": "hot oil", "material": "mineral heat-transfer oil (generic)",
+     "supply_temperature": "250 degC", "return_limit": "180 degC", "price": 16.0, "per": "GJ", "co2_kg_per_GJ": 68.0,
      "source": _DEMO},
     {"name": "Electric heating", "kind": "electric", "price": 120.0, "per": "MWh", "co2_kg_per_GJ": 65.0,
      "source": _DEMO},
@@ -95,7 +104,9 @@ class UtilityOption:
     per_kg: float | None = None  # J/kg delivered per kg of utility
     supply_T: float | None = None  # K (steam: its saturation temperature)
     return_T: float | None = None  # K (steam: the condensate's)
-    flash_fraction: float | None = None  # of the condensate let down to the atmosphere
+    flash_fraction: float | None = None  # of the condensate let down to the flash pressure (default the atmosphere)
+    flash_flow: float | None = None  # kg/s of flash steam
+    flash_credit: float | None = None  # W: the recovered flash steam's latent heat, credited against the duty
     cost_per_hour: float | None = None  # currency
     cost_per_year: float | None = None
     co2_per_year: float | None = None  # kg
@@ -115,7 +126,7 @@ class UtilityTable:
 
 
 def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | None]:
-    """(J/kg, T_sat, T_condensate, flash fraction)."""
+    """(J/kg, T_sat, T_condensate, the condensate's enthalpy [J/kg])."""
     water = u.material
     boiling = water.transitions(u.P)
     if not boiling:
@@ -145,9 +156,23 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
             "condensate temperature", {"T": Measure(T_out, "temperature", 1), "Tp": Measure(d.T_cold, "temperature", 1),
                                        "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}),
             f"{u.address}.condensate_temperature")
-    atm = water.transitions(ATMOSPHERE)[0]
-    flash = max(0.0, (h_out - atm.h_lower) / atm.latent)
-    return h_in - h_out, tr.T, T_out, flash
+    return h_in - h_out, tr.T, T_out, h_out
+
+
+def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
+    """(fraction of the condensate that flashes when let down to the flash pressure, latent heat there [J/kg]):
+    x = (h_condensate − h_f) / h_fg at the flash pressure (an adiabatic let-down, IAPWS-IF97 via CoolProp)."""
+    P = ATMOSPHERE if u.flash_P is None else u.flash_P
+    where = f"{u.address}.flash_pressure"
+    if P >= u.P:
+        raise InputError(Phrase("the condensate is let down to {P}: that is not below the steam's {Ps}",
+                                {"P": Measure(P, "pressure"), "Ps": Measure(u.P, "pressure")}), where)
+    u.material.check_pressure(P, where)
+    boiling = u.material.transitions(P)
+    if not boiling:
+        raise InputError(Phrase("water has no boiling plateau at {P}", {"P": Measure(P, "pressure")}), where)
+    low = boiling[0]
+    return max(0.0, (h_condensate - low.h_lower) / low.latent), low.latent
 
 
 def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
@@ -195,7 +220,8 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
     """The flow, cost and CO2 of one utility for one demand; raises the refusal when it cannot meet it."""
     option = UtilityOption(u.name, u.kind, True, source=u.source)
     if u.kind == "steam":
-        option.per_kg, option.supply_T, option.return_T, option.flash_fraction = _steam(u, d)
+        option.per_kg, option.supply_T, option.return_T, h_condensate = _steam(u, d)
+        option.flash_fraction, flash_latent = _flash(u, h_condensate)
     elif u.kind == "electric":
         option.notes.append(ELECTRIC_NOTE)
     else:
@@ -205,15 +231,24 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
             raise InputError(f"{u.name} gives no heat per kilogram between its supply and return states",
                              u.address)
         option.flow = d.duty / option.per_kg
-    per_hour_GJ = d.duty * 3600.0 / _GJ
+    share = 1.0  # of the gross cost and CO2 paid: less the recovered flash steam's heat
+    if option.flash_fraction is not None:
+        option.flash_flow = option.flow * option.flash_fraction
+        if u.condensate == "flash recovered":
+            option.flash_credit = option.flash_flow * flash_latent
+            share = 1.0 - option.flash_credit / d.duty
+            option.notes.append(FLASH_RECOVERED_NOTE)
+        elif u.condensate == "flash lost":
+            option.notes.append(FLASH_LOST_NOTE)
+    per_hour_GJ = d.duty * share * 3600.0 / _GJ
     if u.per == "GJ":
         option.cost_per_hour = u.price * per_hour_GJ
     elif u.per == "MWh":
-        option.cost_per_hour = u.price * d.duty * 3600.0 / _MWh
+        option.cost_per_hour = u.price * d.duty * share * 3600.0 / _MWh
     else:
         if option.flow is None:
             raise InputError("electric heating is priced per GJ or per MWh, not per tonne", f"{u.address}.per")
-        option.cost_per_hour = u.price * option.flow * 3600.0 / 1000.0
+        option.cost_per_hour = u.price * option.flow * share * 3600.0 / 1000.0
     if operating_hours is not None:
         hours = operating_hours / 3600.0
         option.cost_per_year = option.cost_per_hour * hours
@@ -269,3 +304,51 @@ def utility_tables(problem: Problem, result: Result) -> list[UtilityTable]:
         tables.append(UtilityTable(d, options, problem.currency, problem.operating_hours))
     return tables
 
+
+
+def _utilities_of_line(problem: Problem, line, kinds: tuple[str, ...]) -> list[UtilityInputs]:
+    """The site utilities a utility line of an exchanger is: the one of its name, else those of the right kinds
+    supplied at its inlet temperature."""
+    named = [u for u in problem.utilities if u.name == line.name and u.kind in kinds]
+    if named:
+        return named
+    return [u for u in problem.utilities if u.kind in kinds and u.supply_T is not None
+            and abs(u.supply_T - line.initial_T) <= SAME_SUPPLY_K]
+
+
+def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, Phrase]]:
+    """(exchanger name, warning) for each utility line whose return passes its utility's return limit.
+
+    A coolant (cooling water, chilled water, brine) must return no warmer than its ``return_limit`` (scaling), a hot
+    oil no colder than its own. Both the balance's outlet and, for a rated exchanger, the outlet its UA reaches
+    with the balance's flows are checked: an exchanger larger than the duty needs warms a coolant further.
+    """
+    out = []
+    checks = {c.name: c for c in getattr(result, "exchangers", [])}
+    for e in problem.exchangers:
+        if e.utility_side is None or e.name not in checks:
+            continue
+        check = checks[e.name]
+        cooling = e.utility_side == "cold"
+        kinds = COLD_KINDS if cooling else ("hot oil",)
+        for line in (ln for ln in result.lines if ln.kind == "stream" and ln.name in getattr(e, e.utility_side)):
+            outlets = [("in the balance", line.final_T)]
+            if check.rating is not None:
+                outlets.append(("as the exchanger's UA rates it", check.rating.cold_outlet_T if cooling
+                                else check.rating.hot_outlet_T))
+            for u in _utilities_of_line(problem, line, kinds):
+                if u.return_T is None:
+                    continue
+                for how, T in outlets:
+                    beyond = T - u.return_T if cooling else u.return_T - T
+                    if beyond > 1e-6:
+                        out.append((e.name, Phrase(
+                            "RETURN LIMIT PASSED: {line} leaves {exchanger} at {T} {how}, {side} {utility}'s return "
+                            "limit of {limit} (by {by}){why}. Raise its flow, or check the limit with the site",
+                            {"line": line.name, "exchanger": e.name, "T": Measure(T, "temperature", 1), "how": how,
+                             "side": "above" if cooling else "below", "utility": u.name,
+                             "limit": Measure(u.return_T, "temperature", 1),
+                             "by": Measure(beyond, "temperature_difference", decimals=1),
+                             "why": " (against scaling)" if u.kind == "cooling water" else ""},
+                            f"{u.address}.return_limit")))
+    return out

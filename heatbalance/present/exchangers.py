@@ -51,6 +51,12 @@ def exchanger_rows(check, system: str = "SI") -> list[dict]:
                      f"{r.duty / r.balance_duty:.1%} of the balance; hot out "
                      f"{_m(r.hot_outlet_T, 'temperature', system, digits=1)}, cold out "
                      f"{_m(r.cold_outlet_T, 'temperature', system, digits=1)} (ε-NTU per zone, flows as in the balance)"))
+    if check.closure is not None:
+        c = check.closure
+        digits = 2 if c.kind == "temperature" else 5
+        rows.append(("set by the rating", f"{c.address} = {_m(c.value, c.kind, system, digits=digits)}",
+                     f"typed {_m(c.typed_value, c.kind, system, digits=digits)}; with it the balance's duty is the rated "
+                     f"{_m(c.rated_duty, 'power', system)} (ε-NTU per zone)"))
     return [{"quantity": q, "value": v, "note": n} for q, v, n in rows]
 
 
@@ -93,7 +99,9 @@ def utility_rows(table, system: str = "SI") -> list[dict]:
                          f"{'condensate' if o.kind == 'steam' else 'return'} "
                          f"{_m(o.return_T, 'temperature', system, digits=1)}")
         if o.flash_fraction is not None:
-            notes.append(f"flash to atmosphere {o.flash_fraction:.1%} of the condensate")
+            notes.append(f"condensate flashes {o.flash_fraction:.1%} ({_m(o.flash_flow, 'mass_flow', system)} of "
+                         "flash steam)" + (f", credited {_m(o.flash_credit, 'power', system)}"
+                                            if o.flash_credit is not None else ""))
         notes += o.notes
         if o.refusal is not None:
             notes.append(f"{phrase_text(o.refusal.phrase, system)} [{o.refusal.where}]")
