@@ -159,7 +159,19 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "utilities[].return_limit": ("temperature",),
     "utilities[].mass_fraction": (FRACTION,),
     "operating_hours": ("duration",),
+    "losses[].surface.diameter": ("length",),
+    "losses[].surface.length": ("length",),
+    "losses[].surface.emissivity": (FRACTION,),
+    "losses[].surface.insulation.thickness": ("length",),
+    "losses[].surface.ambient_temperature": ("temperature",),
+    "losses[].surface.surroundings_temperature": ("temperature",),
+    "losses[].surface.wind_speed": ("velocity",),
+    "losses[].surface.process_temperature": ("temperature",),
+    "losses[].surface.protection_limit": ("temperature",),
 }
+#: the numeric fields of a computed loss's surface (``losses[L].surface.<field>``)
+SURFACE_FIELDS = ("diameter", "length", "emissivity", "ambient_temperature", "surroundings_temperature",
+                  "wind_speed", "process_temperature", "protection_limit")
 _STATE_KINDS = {"temperature": ("temperature",), "pressure": ("pressure",), "vapour_fraction": (FRACTION,),
                 "solid_fraction": (FRACTION,)}
 
@@ -266,6 +278,11 @@ def inputs(ws: Worksheet) -> list[Input]:
         add(item("duties", d.name, "value"), d.value)
     for loss in ws.losses:
         add(item("losses", loss.name, "value"), loss.value)
+        if loss.surface is not None:
+            for name in SURFACE_FIELDS:
+                add(item("losses", loss.name, "surface", name), getattr(loss.surface, name))
+            if loss.surface.insulation is not None:
+                add(item("losses", loss.name, "surface", "insulation", "thickness"), loss.surface.insulation.thickness)
     for r in ws.reactions:
         for name in ("enthalpy", "amount", "conversion", "molar_mass"):
             add(item("reactions", r.name, name), getattr(r, name))
@@ -501,6 +518,10 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
         for state in states:
             if state.get("common") == old:
                 state["common"] = new
+    if top in ("streams", "vessels") and len(path) == 1:
+        for loss in data.get("losses", []):
+            if loss.get("surface", {}).get("line") == old:
+                loss["surface"]["line"] = new
     if path == ["streams"]:
         for exchanger in data.get("exchangers", []):
             for side in ("hot", "cold"):

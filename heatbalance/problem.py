@@ -15,6 +15,7 @@ from .address import get as get_input
 from .address import item, unknown_address
 from .address import label as address_label
 from .errors import InputError
+from .losses import PERSONNEL_PROTECTION_LIMIT, Surface, insulation_names
 from .materials import get_material
 from .messages import Measure, Phrase
 from .properties import Material, Phase, TabulatedMaterial
@@ -22,7 +23,7 @@ from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
-__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
+__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
            "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
 
@@ -95,6 +96,21 @@ class HeatTerm:
     heat: float | None  # + into the process; None: the unknown
     detail: Phrase = field(default_factory=lambda: Phrase(""))
     vessel: str | None = None  # a reaction's vessel, as named
+    computed: ComputedLoss | None = None  # a loss computed from its surface (heat set by the solver)
+
+
+@dataclass
+class ComputedLoss:
+    """A loss computed from geometry (:mod:`heatbalance.losses`), SI: the surface, the process side's
+    temperature [K] or the line whose mean temperature it is, the protection limit [K], and the factor that
+    turns the power into the term's heat (1, or the batch duration [s])."""
+
+    surface: Surface
+    address: str  # losses[L].surface
+    process_T: float | None = None
+    line: Line | None = None
+    limit: float = PERSONNEL_PROTECTION_LIMIT
+    per_power: float = 1.0
 
 
 @dataclass
@@ -341,6 +357,7 @@ class _Builder:
             vessel_lines, vessel_equipment = self._vessel(vessel)
             lines += vessel_lines
             equipment += vessel_equipment
+        self.lines = lines
         terms = self._terms()
         target, address = self._target(lines, terms, unknown_var)
         screening = {v.name: self._screening(v) for v in ws.vessels}
@@ -483,6 +500,9 @@ class _Builder:
             value = None if is_unknown else self.basis_value(d.value, "heat", where)
             terms.append(HeatTerm(d.name, "duty", value, Phrase("heater +, cooler −")))
         for loss in self.ws.losses:
+            if loss.surface is not None:
+                terms.append(self._computed_loss(loss))
+                continue
             where = item("losses", loss.name, "value")
             value = self.basis_value(loss.value, "heat", where)
             if value < 0:
@@ -491,6 +511,54 @@ class _Builder:
         for r in self.ws.reactions:
             terms.append(self._reaction(r))
         return terms
+
+    def _computed_loss(self, loss) -> HeatTerm:
+        """A loss computed from its surface: geometry in SI, refused field by field."""
+        s, where = loss.surface, item("losses", loss.name, "surface")
+
+        def positive(q: Quantity, kind: str, name: str, zero: bool = False) -> float:
+            value = _si(q, kind, f"{where}.{name}")
+            if value < 0 or (value == 0 and not zero):
+                raise InputError(f"{name.replace('_', ' ')} must be {'zero or more' if zero else 'positive'}, "
+                                 f"not {q}", f"{where}.{name}")
+            return value
+
+        def temperature(q: Quantity | None, name: str) -> float | None:
+            return None if q is None else _si(q, "temperature", f"{where}.{name}")
+
+        insulation, thickness = None, 0.0
+        if s.insulation is not None:
+            insulation = s.insulation.material
+            if insulation not in insulation_names():
+                raise InputError(f"no insulation called '{insulation}' (there are: {', '.join(insulation_names())})",
+                                 f"{where}.insulation.material")
+            thickness = positive(s.insulation.thickness, "length", "insulation.thickness", zero=True)
+        surface = Surface(s.shape, positive(s.diameter, "length", "diameter"),
+                          0.0 if s.length is None else positive(s.length, "length", "length"), s.emissivity,
+                          insulation, thickness, temperature(s.ambient_temperature, "ambient_temperature"),
+                          temperature(s.surroundings_temperature, "surroundings_temperature"),
+                          0.0 if s.wind_speed is None else positive(s.wind_speed, "velocity", "wind_speed", zero=True))
+        computed = ComputedLoss(surface, where, temperature(s.process_temperature, "process_temperature"))
+        if s.protection_limit is not None:
+            computed.limit = temperature(s.protection_limit, "protection_limit")
+        if s.line is not None:
+            lines = [ln for ln in self.lines if ln.name == s.line or ln.vessel == s.line]
+            if not lines:
+                names = [ln.name for ln in self.lines if ln.kind == "stream"] + list(dict.fromkeys(
+                    ln.vessel for ln in self.lines if ln.vessel))
+                raise InputError(f"no stream or vessel called '{s.line}' (there are: {', '.join(names)})",
+                                 f"{where}.line")
+            computed.line = lines[0]
+        if self.basis == "batch":
+            if self.duration is None:
+                raise InputError("a computed loss is a power: a batch worksheet needs its duration to apply it",
+                                 "basis.duration")
+            computed.per_power = self.duration
+            self.assumptions.append(f"{where}: the computed loss applies over the batch duration "
+                                    f"{self.ws.basis.duration}, at the mean of the start and end temperatures.")
+        self.assumptions.append(f"{where}: the inside film and the metal wall are neglected (the bare surface, or "
+                                "the insulation's inner face, is at the process temperature).")
+        return HeatTerm(loss.name, "loss", 0.0, Phrase("computed from its surface"), computed=computed)
 
     def _reaction(self, r) -> HeatTerm:
         where = item("reactions", r.name)

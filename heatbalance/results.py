@@ -90,6 +90,7 @@ class Result:
     output_uncertainties: dict = field(default_factory=dict)  # other outputs' Uncertainty (each screening's MTSR)
     exchangers: list = field(default_factory=list)  # analyses.exchangers.ExchangerCheck, one per exchanger
     utilities: list = field(default_factory=list)  # analyses.utilities.UtilityTable, one per duty to meet
+    surface_losses: list = field(default_factory=list)  # losses.SurfaceLoss, one per loss computed from a surface
 
     @property
     def heat_si_unit(self) -> str:

@@ -14,10 +14,11 @@ from typing import Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
 from .errors import WorksheetFormatError
+from .losses import SHAPES
 from .migrations import CURRENT_VERSION, migrate
 
 __all__ = [
-    "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
+    "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss", "LossSurface", "Insulation",
     "Jacket", "ScreeningInputs",
     "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
@@ -199,11 +200,59 @@ class Duty(_Model):
     value: Quantity | None = None
 
 
+class Insulation(_Model):
+    """Insulation around a surface: a material of the insulation table (:mod:`heatbalance.losses`) and its
+    thickness."""
+
+    material: str = Field(min_length=1, max_length=80)
+    thickness: Quantity
+
+
+class LossSurface(_Model):
+    """A loss computed from geometry (:mod:`heatbalance.losses`): a bare or insulated surface in air.
+
+    ``shape`` is one of :data:`heatbalance.losses.SHAPES`; ``diameter`` the bare pipe's or vessel's outside
+    diameter (the roof's diameter); ``length`` the pipe's length or the wall's height (not for a roof);
+    ``emissivity`` of the outer surface (0–1); ``wind_speed`` (none or 0: still air); the process side is at
+    ``process_temperature``, or at the mean of the inlet and outlet temperatures of the stream named in
+    ``line`` (a vessel: of its first charge's initial and its final temperature). ``protection_limit``: the
+    warmest surface people may touch (default 60 °C, common practice).
+    """
+
+    shape: Literal[SHAPES]  # type: ignore[valid-type]
+    diameter: Quantity
+    length: Quantity | None = None
+    emissivity: float = Field(ge=0.0, le=1.0)
+    insulation: Insulation | None = None
+    ambient_temperature: Quantity = Quantity(value=20, unit="degC")
+    surroundings_temperature: Quantity | None = None
+    wind_speed: Quantity | None = None
+    process_temperature: Quantity | None = None
+    line: str | None = Field(default=None, max_length=80)
+    protection_limit: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _complete(self):
+        if (self.process_temperature is None) == (self.line is None):
+            raise ValueError("give the process side's 'process_temperature', or the 'line' whose mean temperature "
+                             "it is, one of them")
+        if self.shape != "tank roof" and self.length is None:
+            raise ValueError(f"a {self.shape} needs its 'length'")
+        return self
+
+
 class Loss(_Model):
-    """Heat lost to the surroundings, entered as a positive amount."""
+    """Heat lost to the surroundings: entered as a positive ``value``, or computed from a ``surface``."""
 
     name: str = Field(min_length=1, max_length=80)
-    value: Quantity
+    value: Quantity | None = None
+    surface: LossSurface | None = None
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if (self.value is None) == (self.surface is None):
+            raise ValueError("a loss is entered as a 'value', or computed from a 'surface', one of them")
+        return self
 
 
 class Reaction(_Model):
