@@ -113,12 +113,17 @@ def _depends(line: Line, var: str) -> bool:
     return line.initial.var == var or line.final.var == var
 
 
+def _process_ends(c: ComputedLoss, temperatures: dict) -> tuple[float, float]:
+    """The process side of a computed loss at its two ends: as typed, or its line's start and end temperatures."""
+    if c.line is None:
+        return c.process_T, c.process_T
+    initial, final = (evaluate_state(c.line.material, st, temperatures, {}).T for st in (c.line.initial, c.line.final))
+    return initial, final
+
+
 def _process_temperature(c: ComputedLoss, temperatures: dict) -> float:
     """The process side of a computed loss: as typed, or the mean of its line's start and end temperatures."""
-    if c.line is None:
-        return c.process_T
-    ends = (evaluate_state(c.line.material, st, temperatures, {}).T for st in (c.line.initial, c.line.final))
-    return sum(ends) / 2
+    return sum(_process_ends(c, temperatures)) / 2
 
 
 def _computed_heat(c: ComputedLoss, temperatures: dict) -> float:
@@ -340,7 +345,8 @@ def _computed_loss_records(p: Problem) -> list:
             continue
         T_p = _process_temperature(c, p.temperatures)
         try:
-            check_service(c.surface, T_p, f"{c.address}.insulation.material")
+            for T in _process_ends(c, p.temperatures):
+                check_service(c.surface, T, f"{c.address}.insulation.material")
             record = surface_loss(c.surface, T_p, c.limit)
         except HeatBalanceError as exc:
             raise exc.located(c.address)

@@ -25,7 +25,7 @@ Air properties at the film temperature from CoolProp (:func:`heatbalance.propert
 β = 1/T_film (ideal gas). Insulation conductivity from ``data/insulation.csv`` (each row names its source).
 
 The insulation thickness for personnel protection is the thinnest that keeps the outer surface at or below
-the limit, 60 °C by default (:data:`PERSONNEL_PROTECTION_LIMIT`: common practice, no source; follow local
+the limit in still air, 60 °C by default (:data:`PERSONNEL_PROTECTION_LIMIT`: common practice, no source; follow local
 codes).
 """
 from __future__ import annotations
@@ -216,18 +216,20 @@ def heat_loss(s: Surface, T_p: float) -> float:
     Examples
     --------
     Incropera et al., 6th ed., Example 9.3 (from memory): a bare horizontal steam pipe, D = 0.1 m, surface at
-    165 °C, ε = 0.85, air and walls at 23 °C, loses about 1100 W per metre (convection 321, radiation 782):
+    165 °C, ε = 0.85, air and walls at 23 °C; by hand with the book's air data, convection 327 W/m and
+    radiation 441 W/m (see tests/test_losses.py):
 
     >>> s = Surface("horizontal pipe", 0.1, 1.0, 0.85, ambient_T=296.15)
     >>> round(heat_loss(s, 438.15), -1)
-    1110.0
+    770.0
     """
     convection, radiation, _, _ = _outward(s, surface_temperature(s, T_p))
     return convection + radiation
 
 
 def protection_thickness(s: Surface, T_p: float, limit: float, material: str) -> float | None:
-    """Thinnest insulation of ``material`` [m] keeping the outer surface at or below ``limit`` [K].
+    """Thinnest insulation of ``material`` [m] keeping the outer surface at or below ``limit`` [K], in still
+    air (wind cools the surface; without it is the conservative case).
 
     0 when the bare surface already is; ``None`` when no thickness up to :data:`MAX_THICKNESS` gets there
     (e.g. the air itself is warmer than the limit).
@@ -236,7 +238,7 @@ def protection_thickness(s: Surface, T_p: float, limit: float, material: str) ->
 
     def excess(thickness: float) -> float:
         trial = Surface(s.shape, s.diameter, s.length, s.emissivity, material, thickness, s.ambient_T,
-                        s.surroundings_T, s.wind, s.P)
+                        s.surroundings_T, 0.0, s.P)
         return surface_temperature(trial, T_p) - limit
 
     if T_p <= limit:
@@ -274,8 +276,8 @@ def check_service(s: Surface, T_p: float, where: str = "") -> None:
         return
     _, low, high, _ = insulation_table()[s.insulation]
     if not low <= T_p <= high:
-        raise InputError(Phrase("{material} serves from {low} to {high}; the process is at {T}: choose another "
-                                "insulation", {"material": s.insulation, "low": Measure(low, "temperature", 0),
+        raise InputError(Phrase("{material} serves from {low} to {high}; the process side reaches {T}: choose "
+                                "another insulation", {"material": s.insulation, "low": Measure(low, "temperature", 0),
                                                "high": Measure(high, "temperature", 0),
                                                "T": Measure(T_p, "temperature", 1)}), where)
 
