@@ -727,6 +727,7 @@ _FIELD_COLUMNS = {
     "initial_temperature": "initial temperature", "temperature": "temperature", "cp": "cp",
     "cp_per_kelvin": "cp per K", "cp_per_kelvin2": "cp per K²", "up_to": "up to", "latent_heat": "latent heat",
     "min_temperature": "min temperature", "max_temperature": "max temperature", "source": "source",
+    "surface": "heat",  # a computed loss's geometry: its heat cell says "computed"
 }
 _ENDS = ("inlet", "outlet", "initial", "final")
 
