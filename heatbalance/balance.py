@@ -132,6 +132,13 @@ def _computed_heat(c: ComputedLoss, temperatures: dict) -> float:
         return -heat_loss(c.surface, _process_temperature(c, temperatures)) * c.per_power
     except HeatBalanceError as exc:
         raise exc.located(c.address)
+    except (ArithmeticError, ValueError) as exc:  # a correlation or root search beyond any plant scale
+        raise _loss_failed(c, exc) from None
+
+
+def _loss_failed(c: ComputedLoss, exc: Exception) -> NoSolutionError:
+    return NoSolutionError(f"the loss cannot be computed for this geometry and these temperatures "
+                           f"({exc.__class__.__name__}): check the sizes, the wind and the temperatures", c.address)
 
 
 def _set_computed_losses(p: Problem, temperatures: dict, var: str | None = None) -> list[HeatTerm]:
@@ -350,6 +357,8 @@ def _computed_loss_records(p: Problem) -> list:
             record = surface_loss(c.surface, T_p, c.limit)
         except HeatBalanceError as exc:
             raise exc.located(c.address)
+        except (ArithmeticError, ValueError) as exc:
+            raise _loss_failed(c, exc) from None
         record.name, record.address = term.name, c.address
         term.heat = -record.loss * c.per_power
         term.detail = Phrase("computed: surface at {T_s} (process {T_p}); convection {convection}, radiation "

@@ -40,7 +40,7 @@ from .errors import InputError
 from .messages import Measure, Phrase
 from .properties import air_transport
 
-__all__ = ["SHAPES", "INSULATION_FILE", "PERSONNEL_PROTECTION_LIMIT", "Surface", "SurfaceLoss", "insulation_table",
+__all__ = ["SHAPES", "INSULATION_FILE", "PERSONNEL_PROTECTION_LIMIT", "MIN_INSULATION", "MAX_THICKNESS", "Surface", "SurfaceLoss", "insulation_table",
            "insulation_names", "insulation_conductivity", "convection_coefficient", "surface_temperature",
            "heat_loss", "surface_loss", "protection_thickness", "check_service"]
 
@@ -50,6 +50,7 @@ INSULATION_FILE = "insulation.csv"
 PERSONNEL_PROTECTION_LIMIT = 333.15
 GRAVITY = 9.80665  # m/s², standard gravity (CGPM 1901)
 MAX_THICKNESS = 1.0  # m: the thickest insulation the protection search tries
+MIN_INSULATION = 1e-3  # m: thinner insulation is refused (0 is bare)
 _CYLINDERS = ("horizontal pipe", "vertical pipe", "vessel wall")
 
 
@@ -245,7 +246,9 @@ def protection_thickness(s: Surface, T_p: float, limit: float, material: str) ->
         return 0.0
     if excess(MAX_THICKNESS) > 0:
         return None
-    return brentq(excess, 0.0, MAX_THICKNESS, xtol=1e-5, maxiter=200)
+    if excess(MIN_INSULATION) <= 0:
+        return MIN_INSULATION
+    return brentq(excess, MIN_INSULATION, MAX_THICKNESS, xtol=1e-5, maxiter=200)
 
 
 def surface_loss(s: Surface, T_p: float, limit: float = PERSONNEL_PROTECTION_LIMIT) -> SurfaceLoss:

@@ -15,7 +15,7 @@ from .address import get as get_input
 from .address import item, unknown_address
 from .address import label as address_label
 from .errors import InputError
-from .losses import PERSONNEL_PROTECTION_LIMIT, Surface, insulation_names
+from .losses import MIN_INSULATION, PERSONNEL_PROTECTION_LIMIT, Surface, insulation_names
 from .materials import get_material
 from .messages import Measure, Phrase
 from .properties import Material, Phase, TabulatedMaterial
@@ -533,6 +533,9 @@ class _Builder:
                 raise InputError(f"no insulation called '{insulation}' (there are: {', '.join(insulation_names())})",
                                  f"{where}.insulation.material")
             thickness = positive(s.insulation.thickness, "length", "insulation.thickness", zero=True)
+            if 0 < thickness < MIN_INSULATION:
+                raise InputError(f"insulation is 0 (bare) or at least 1 mm thick, not {s.insulation.thickness}",
+                                 f"{where}.insulation.thickness")
         surface = Surface(s.shape, positive(s.diameter, "length", "diameter"),
                           0.0 if s.length is None else positive(s.length, "length", "length"), s.emissivity,
                           insulation, thickness, temperature(s.ambient_temperature, "ambient_temperature"),

@@ -300,7 +300,7 @@ def air_transport(T: float, P: float = 101325.0) -> tuple[float, float, float, f
     2004), for surface heat-loss correlations (:mod:`heatbalance.losses`). Refused outside 60–2000 K.
     """
     if not 60.0 <= T <= 2000.0:
-        raise PropertyRangeError("air", "temperature", T, 60.0, 2000.0, "temperature")
+        raise PropertyRangeError("air", "film temperature", T, 60.0, 2000.0, "temperature")
     if _AIR.local is None:
         _AIR.local = _ThreadLocalState("HEOS", "Air", None)
     state = _AIR.local.state

@@ -195,6 +195,10 @@ def test_every_geometry_input_has_an_address():
     ({"insulation": {"material": "polyurethane foam", "thickness": "40 mm"}},
      "losses[Yard line].surface.insulation.material", "polyurethane foam serves from -50 °C to 120 °C; the process "
      "side reaches 140.0 °C"),
+    ({"insulation": {"material": "mineral wool", "thickness": "0.01 mm"}},
+     "losses[Yard line].surface.insulation.thickness", "insulation is 0 (bare) or at least 1 mm thick"),
+    ({"ambient_temperature": "2500 degC"}, "losses[Yard line].surface",
+     "film temperature"),
     ({"wind_speed": "-2 m/s"}, "losses[Yard line].surface.wind_speed", "wind speed must be zero or more"),
     ({"line": "Steam"}, "losses[Yard line].surface.line", "no stream or vessel called 'Steam' (there are: Hot water)"),
     ({"diameter": "50 kg"}, "losses[Yard line].surface.diameter", "a length"),
