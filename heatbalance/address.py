@@ -28,6 +28,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 from .errors import AddressError, HeatBalanceError, InputError
+from .humid_air import HUMIDITY_FORMS
 from .units import basis_kinds, check_unit, from_si, kind_of
 from .worksheet import Quantity, Unknown, Worksheet, item_address, parse_worksheet
 
@@ -159,6 +160,12 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "utilities[].return_limit": ("temperature",),
     "utilities[].mass_fraction": (FRACTION,),
     "operating_hours": ("duration",),
+    "streams[].inlet.humidity.relative_humidity": (FRACTION,),
+    "streams[].inlet.humidity.humidity_ratio": (FRACTION,),
+    "streams[].inlet.humidity.dew_point": ("temperature",),
+    "streams[].inlet.humidity.wet_bulb": ("temperature",),
+    "streams[].air_flow.volume_flow": ("volume_flow",),
+    "streams[].air_flow.volume_temperature": ("temperature",),
     "losses[].surface.diameter": ("length",),
     "losses[].surface.length": ("length",),
     "losses[].surface.emissivity": (FRACTION,),
@@ -242,6 +249,9 @@ def inputs(ws: Worksheet) -> list[Input]:
     def state(prefix: str, s) -> None:
         for name in _STATE_KINDS:
             add(f"{prefix}.{name}", getattr(s, name))
+        if s.humidity is not None:  # humid air's inlet
+            for name in HUMIDITY_FORMS:
+                add(f"{prefix}.humidity.{name}", getattr(s.humidity, name))
 
     add("basis.duration", ws.basis.duration)
     for m in ws.materials:
@@ -257,6 +267,9 @@ def inputs(ws: Worksheet) -> list[Input]:
             add(item("streams", s.name, name), getattr(s, name))
         state(item("streams", s.name, "inlet"), s.inlet)
         state(item("streams", s.name, "outlet"), s.outlet)
+        if s.air_flow is not None:
+            for name in ("volume_flow", "volume_temperature"):
+                add(item("streams", s.name, "air_flow", name), getattr(s.air_flow, name))
     for v in ws.vessels:
         add(item("vessels", v.name, "pressure"), v.pressure)
         state(item("vessels", v.name, "final"), v.final)
@@ -334,6 +347,9 @@ def with_value(ws: Worksheet, address: str, value) -> Worksheet:
         target = target.setdefault(name, {}) if key is None else next(x for x in target[name] if x["name"] == key)
     if field in _STATE_KINDS and field != "pressure" and steps[-2][0] in _STATE_ENDS:
         for other in ("temperature", "vapour_fraction", "solid_fraction", "common"):
+            target.pop(other, None)
+    if steps[-2][0] == "humidity":  # a humidity is given one way
+        for other in HUMIDITY_FORMS:
             target.pop(other, None)
     target[field] = new.model_dump() if isinstance(new, Quantity) else new
     try:

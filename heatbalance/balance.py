@@ -19,6 +19,7 @@ from dataclasses import dataclass
 
 from .address import item
 from .errors import HeatBalanceError, InputError, NoSolutionError
+from .humid_air import HumidAir, humid_air_line
 from .losses import check_service, heat_loss, surface_loss
 from .materials import get_material
 from .messages import Measure, Phrase
@@ -340,6 +341,9 @@ def solve_problem(p: Problem) -> Result:
     records = _computed_loss_records(p)
     result = _result(p, fraction)
     result.surface_losses = records
+    result.humid_air = [humid_air_line(ln.name, ln.address, model.material, ln.amount_si, ln.initial_T, ln.initial_P,
+                                       ln.final_T, ln.final_P)
+                        for model, ln in zip(p.lines, result.lines) if isinstance(model.material, HumidAir)]
     return result
 
 
@@ -373,6 +377,8 @@ def _computed_loss_records(p: Problem) -> list:
 # --------------------------------------------------------------------------- the result
 def _latent_content(material: Material, point: Point, P: float) -> float:
     """Latent heat held by a state: every transition below it, plus its own plateau fraction."""
+    if isinstance(material, HumidAir):  # condensate that left the vapour over a range of temperatures
+        return material.latent_content(point.T, P)
     total = 0.0
     for tr in material.transitions(P):
         if point.T > tr.T + T_TOL:

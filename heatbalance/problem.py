@@ -15,6 +15,7 @@ from .address import get as get_input
 from .address import item, unknown_address
 from .address import label as address_label
 from .errors import InputError
+from .humid_air import HUMID_AIR, HUMIDITY_FORMS, HumidAir, humidity_ratio, volume_per_dry_air
 from .losses import MIN_INSULATION, PERSONNEL_PROTECTION_LIMIT, Surface, insulation_names
 from .materials import get_material
 from .messages import Measure, Phrase
@@ -444,10 +445,72 @@ class _Builder:
         where = item("streams", s.name)
         P = _si(s.pressure, "pressure", f"{where}.pressure")
         is_unknown = self.unknown.kind == "amount" and self.unknown.line == s.name and self.unknown.charge is None
+        if s.material == HUMID_AIR:
+            return self._humid_air_stream(s, where, P, is_unknown)
+        for end in ("inlet", "outlet"):
+            if getattr(s, end).humidity is not None:
+                raise InputError(f"a humidity belongs to humid air; {s.material} has none", f"{where}.{end}.humidity")
         return Line(s.name, "stream", s.material, self.material(s.material, s.mass_fraction, f"{where}.material"),
                     self.amount(s.flow, f"{where}.flow", is_unknown),
                     self.state(s.inlet, f"stream:{s.name}:inlet", f"{where}.inlet", P),
                     self.state(s.outlet, f"stream:{s.name}:outlet", f"{where}.outlet", P), address=where)
+
+    def _humid_air_stream(self, s, where: str, P: float, is_unknown: bool) -> Line:
+        """A humid-air stream: its humidity ratio from the inlet's humidity, its flow counted as dry air."""
+        if s.outlet.humidity is not None:
+            raise InputError("the outlet's humidity follows from the inlet's (the water stays with the air; below "
+                             "the dew point it condenses): give the humidity at the inlet only",
+                             f"{where}.outlet.humidity")
+        if s.inlet.humidity is None:
+            raise InputError(f"humid air needs the inlet's humidity: one of {', '.join(HUMIDITY_FORMS)}",
+                             f"{where}.inlet.humidity")
+        inlet = self.state(s.inlet, f"stream:{s.name}:inlet", f"{where}.inlet", P)
+        outlet = self.state(s.outlet, f"stream:{s.name}:outlet", f"{where}.outlet", P)
+        form = next(k for k in HUMIDITY_FORMS if getattr(s.inlet.humidity, k) is not None)
+        field_where = f"{where}.inlet.humidity.{form}"
+        value = getattr(s.inlet.humidity, form)
+        value = _si(value, "temperature", field_where) if isinstance(value, Quantity) else value
+        T_in = self.temperatures.get(inlet.var) if inlet.var else None
+        if T_in is None and form == "dew_point":
+            T_in, form, value = value, "relative_humidity", 1.0  # saturated at its dew point: the same water
+        elif T_in is None and form != "humidity_ratio":
+            raise InputError(f"a {form.replace('_', ' ')} needs the inlet's temperature: give it, or give the "
+                             "humidity as a humidity ratio or a dew point", field_where)
+        W = humidity_ratio(form, value, T_in if T_in is not None else 293.15, inlet.P, field_where)
+        material = HumidAir(W)
+        amount = self._air_amount(s, where, W, T_in, inlet.P, is_unknown)
+        self.assumptions.append(f"{where}: humid air, counted per kg of dry air (humidity ratio {W:.5f} kg/kg); "
+                                "water it cannot hold condenses and leaves at the air's temperature.")
+        return Line(s.name, "stream", s.material, material, amount, inlet, outlet, address=where)
+
+    def _air_amount(self, s, where: str, W: float, T_in: float | None, P: float, is_unknown: bool) -> float | None:
+        """The dry-air flow of a humid-air stream from its mass flow (dry or humid air) or its volume flow."""
+        air = s.air_flow
+        if air is None or air.volume_flow is None:
+            amount = self.amount(s.flow, f"{where}.flow", is_unknown)
+            if air is not None and air.mass_of == "humid air":
+                if amount is None:
+                    raise InputError("a solved flow is of dry air: set 'mass_of' to dry air", f"{where}.air_flow")
+                amount /= 1.0 + W
+            return amount
+        volume_where = f"{where}.air_flow.volume_flow"
+        if s.flow is not None or is_unknown:
+            raise InputError("give the flow one way: a mass 'flow' (or the unknown), or this volume flow",
+                             volume_where)
+        if self.basis != "continuous":
+            raise InputError("a volume flow is for a continuous worksheet; give the batch's mass", volume_where)
+        V = _si(air.volume_flow, "volume_flow", volume_where)
+        if V < 0:
+            raise InputError(f"a volume flow cannot be negative ({air.volume_flow})", volume_where)
+        T = T_in if air.volume_temperature is None else \
+            _si(air.volume_temperature, "temperature", f"{where}.air_flow.volume_temperature")
+        if T is None:
+            raise InputError("give the temperature the volume flow is measured at (the inlet's is the unknown)",
+                             f"{where}.air_flow.volume_temperature")
+        try:
+            return V / volume_per_dry_air(T, P, W)
+        except InputError as exc:
+            raise InputError(exc.phrase, f"{where}.air_flow.volume_temperature") from None
 
     def _vessel(self, v) -> tuple[list[Line], list[EquipmentHeat]]:
         where = item("vessels", v.name)
@@ -456,6 +519,9 @@ class _Builder:
         lines = []
         for c in v.charges:
             cw = f"{where}.{item('charges', c.name)}"
+            if c.material == HUMID_AIR or c.initial.humidity is not None:
+                raise InputError("humid air is modelled for streams; a batch of air is a charge of 'air'",
+                                 f"{cw}.{'material' if c.material == HUMID_AIR else 'initial.humidity'}")
             is_unknown = (self.unknown.kind == "amount" and self.unknown.line == v.name
                           and self.unknown.charge == c.name)
             lines.append(Line(f"{v.name} / {c.name}", "charge", c.material,

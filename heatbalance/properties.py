@@ -23,7 +23,8 @@ from .errors import InputError, PropertyRangeError
 from .messages import Measure, Phrase
 
 __all__ = ["Transition", "Material", "CoolPropFluid", "IncompressibleSolution", "TabulatedMaterial",
-           "Phase", "EVALUATIONS", "property_library_versions", "air_transport"]
+           "Phase", "EVALUATIONS", "property_library_versions", "air_transport",
+           "coolprop"]
 
 
 _LIBRARY = SimpleNamespace(module=None)
@@ -36,6 +37,11 @@ def _cp():
 
         _LIBRARY.module = coolprop
     return _LIBRARY.module
+
+
+def coolprop():
+    """CoolProp's module, loaded on first use: for the modules that call its humid-air functions."""
+    return _cp()
 
 
 def _version() -> str:

@@ -70,6 +70,7 @@ KINDS: dict[str, tuple[str, str]] = {
     "length": ("m", "a length (e.g. mm, m, in)"),
     "velocity": ("m/s", "a speed (e.g. m/s, km/h)"),
     "thermal_conductivity": ("W/(m*K)", "a thermal conductivity (e.g. W/(m*K))"),
+    "volume_flow": ("m**3/s", "a volume flow (e.g. m^3/h)"),
 }
 
 #: kind -> the largest magnitude accepted, in SI: physically generous, but finite (refused beyond, with the bound)
@@ -95,6 +96,7 @@ BOUNDS: dict[str, float] = {
     "length": 1e5,  # m (100 km of pipe)
     "velocity": 1e3,  # m/s
     "thermal_conductivity": 1e4,  # W/(m·K)
+    "volume_flow": 1e7,  # m³/s
 }
 
 _GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}

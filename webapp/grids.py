@@ -417,7 +417,10 @@ def _streams(tables, ws: Worksheet, problems) -> list[dict]:
                                     r.quantity("inlet pressure", ("pressure",), required=False)),
             "outlet": _with_pressure(r.state("outlet", at("outlet", "temperature"), old.outlet if old else None),
                                      r.quantity("outlet pressure", ("pressure",), required=False)),
+            "air_flow": old.air_flow if old else None,  # humid air: not in the grid, kept from the model
         })
+        if old is not None and old.inlet.humidity is not None and out[-1]["inlet"] is not None:
+            out[-1]["inlet"] = {**out[-1]["inlet"], "humidity": old.inlet.humidity}
     return out
 
 
@@ -728,6 +731,7 @@ _FIELD_COLUMNS = {
     "cp_per_kelvin": "cp per K", "cp_per_kelvin2": "cp per K²", "up_to": "up to", "latent_heat": "latent heat",
     "min_temperature": "min temperature", "max_temperature": "max temperature", "source": "source",
     "surface": "heat",  # a computed loss's geometry: its heat cell says "computed"
+    "air_flow": "flow",  # humid air's volume flow: its flow cell
 }
 _ENDS = ("inlet", "outlet", "initial", "final")
 

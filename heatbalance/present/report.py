@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from ..results import SIGN_CONVENTION, Result
 from .exchangers import exchanger_report
+from .humid_air import humid_air_report
 from .losses import protection_text, surface_loss_report
 from .screening import screening_report
 from .tables import contribution_rows
@@ -47,6 +48,8 @@ def format_result(result: Result, system: str = "SI") -> str:
         out += [""] + exchanger_report(result, system)
     if result.surface_losses:
         out += [""] + surface_loss_report(result, system)
+    if result.humid_air:
+        out += [""] + humid_air_report(result, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
     return "\n".join(out)
 
