@@ -28,6 +28,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 from .errors import AddressError, HeatBalanceError, InputError
+from .humid_air import HUMIDITY_FORMS
 from .units import basis_kinds, check_unit, from_si, kind_of
 from .worksheet import Quantity, Unknown, Worksheet, item_address, parse_worksheet
 
@@ -160,7 +161,25 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "utilities[].flash_pressure": ("pressure",),
     "utilities[].mass_fraction": (FRACTION,),
     "operating_hours": ("duration",),
+    "streams[].inlet.humidity.relative_humidity": (FRACTION,),
+    "streams[].inlet.humidity.humidity_ratio": (FRACTION,),
+    "streams[].inlet.humidity.dew_point": ("temperature",),
+    "streams[].inlet.humidity.wet_bulb": ("temperature",),
+    "streams[].air_flow.volume_flow": ("volume_flow",),
+    "streams[].air_flow.volume_temperature": ("temperature",),
+    "losses[].surface.diameter": ("length",),
+    "losses[].surface.length": ("length",),
+    "losses[].surface.emissivity": (FRACTION,),
+    "losses[].surface.insulation.thickness": ("length",),
+    "losses[].surface.ambient_temperature": ("temperature",),
+    "losses[].surface.surroundings_temperature": ("temperature",),
+    "losses[].surface.wind_speed": ("velocity",),
+    "losses[].surface.process_temperature": ("temperature",),
+    "losses[].surface.protection_limit": ("temperature",),
 }
+#: the numeric fields of a computed loss's surface (``losses[L].surface.<field>``)
+SURFACE_FIELDS = ("diameter", "length", "emissivity", "ambient_temperature", "surroundings_temperature",
+                  "wind_speed", "process_temperature", "protection_limit")
 _STATE_KINDS = {"temperature": ("temperature",), "pressure": ("pressure",), "vapour_fraction": (FRACTION,),
                 "solid_fraction": (FRACTION,)}
 
@@ -231,6 +250,9 @@ def inputs(ws: Worksheet) -> list[Input]:
     def state(prefix: str, s) -> None:
         for name in _STATE_KINDS:
             add(f"{prefix}.{name}", getattr(s, name))
+        if s.humidity is not None:  # humid air's inlet
+            for name in HUMIDITY_FORMS:
+                add(f"{prefix}.humidity.{name}", getattr(s.humidity, name))
 
     add("basis.duration", ws.basis.duration)
     for m in ws.materials:
@@ -246,6 +268,9 @@ def inputs(ws: Worksheet) -> list[Input]:
             add(item("streams", s.name, name), getattr(s, name))
         state(item("streams", s.name, "inlet"), s.inlet)
         state(item("streams", s.name, "outlet"), s.outlet)
+        if s.air_flow is not None:
+            for name in ("volume_flow", "volume_temperature"):
+                add(item("streams", s.name, "air_flow", name), getattr(s.air_flow, name))
     for v in ws.vessels:
         add(item("vessels", v.name, "pressure"), v.pressure)
         state(item("vessels", v.name, "final"), v.final)
@@ -267,6 +292,11 @@ def inputs(ws: Worksheet) -> list[Input]:
         add(item("duties", d.name, "value"), d.value)
     for loss in ws.losses:
         add(item("losses", loss.name, "value"), loss.value)
+        if loss.surface is not None:
+            for name in SURFACE_FIELDS:
+                add(item("losses", loss.name, "surface", name), getattr(loss.surface, name))
+            if loss.surface.insulation is not None:
+                add(item("losses", loss.name, "surface", "insulation", "thickness"), loss.surface.insulation.thickness)
     for r in ws.reactions:
         for name in ("enthalpy", "amount", "conversion", "molar_mass"):
             add(item("reactions", r.name, name), getattr(r, name))
@@ -318,6 +348,9 @@ def with_value(ws: Worksheet, address: str, value) -> Worksheet:
         target = target.setdefault(name, {}) if key is None else next(x for x in target[name] if x["name"] == key)
     if field in _STATE_KINDS and field != "pressure" and steps[-2][0] in _STATE_ENDS:
         for other in ("temperature", "vapour_fraction", "solid_fraction", "common"):
+            target.pop(other, None)
+    if steps[-2][0] == "humidity":  # a humidity is given one way
+        for other in HUMIDITY_FORMS:
             target.pop(other, None)
     target[field] = new.model_dump() if isinstance(new, Quantity) else new
     try:
@@ -505,6 +538,10 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
         for state in states:
             if state.get("common") == old:
                 state["common"] = new
+    if top in ("streams", "vessels") and len(path) == 1:
+        for loss in data.get("losses", []):
+            if loss.get("surface", {}).get("line") == old:
+                loss["surface"]["line"] = new
     if path == ["streams"]:
         for exchanger in data.get("exchangers", []):
             for side in ("hot", "cold"):

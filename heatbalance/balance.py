@@ -20,9 +20,11 @@ from dataclasses import dataclass
 
 from .address import item
 from .errors import HeatBalanceError, InputError, NoSolutionError
+from .humid_air import HumidAir, humid_air_line
+from .losses import check_service, heat_loss, surface_loss
 from .materials import get_material
 from .messages import Measure, Phrase
-from .problem import EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_problem
+from .problem import ComputedLoss, EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_problem
 from .properties import IncompressibleSolution, Material, Transition, property_library_versions
 from .results import Answer, LineResult, Result, TermResult
 from .units import ATMOSPHERE, basis_kinds, heat_kind
@@ -129,10 +131,53 @@ def _depends(line: Line, var: str) -> bool:
     return line.initial.var == var or line.final.var == var
 
 
+def _process_ends(c: ComputedLoss, temperatures: dict) -> tuple[float, float]:
+    """The process side of a computed loss at its two ends: as typed, or its line's start and end temperatures."""
+    if c.line is None:
+        return c.process_T, c.process_T
+    initial, final = (evaluate_state(c.line.material, st, temperatures, {}).T for st in (c.line.initial, c.line.final))
+    return initial, final
+
+
+def _process_temperature(c: ComputedLoss, temperatures: dict) -> float:
+    """The process side of a computed loss: as typed, or the mean of its line's start and end temperatures."""
+    return sum(_process_ends(c, temperatures)) / 2
+
+
+def _computed_heat(c: ComputedLoss, temperatures: dict) -> float:
+    """A computed loss as a heat term (− out of the process); a refusal names the loss's surface."""
+    try:
+        return -heat_loss(c.surface, _process_temperature(c, temperatures)) * c.per_power
+    except HeatBalanceError as exc:
+        raise exc.located(c.address)
+    except (ArithmeticError, ValueError) as exc:  # a correlation or root search beyond any plant scale
+        raise _loss_failed(c, exc) from None
+
+
+def _loss_failed(c: ComputedLoss, exc: Exception) -> NoSolutionError:
+    return NoSolutionError(f"the loss cannot be computed for this geometry and these temperatures "
+                           f"({exc.__class__.__name__}): check the sizes, the wind and the temperatures", c.address)
+
+
+def _set_computed_losses(p: Problem, temperatures: dict, var: str | None = None) -> list[HeatTerm]:
+    """Set each computed loss's heat from the temperatures; return those that move with ``var`` instead."""
+    moving = []
+    for term in p.terms:
+        c = term.computed
+        if c is None:
+            continue
+        if var is not None and c.line is not None and _depends(c.line, var):
+            moving.append(term)
+        else:
+            term.heat = _computed_heat(c, temperatures)
+    return moving
+
+
 # --------------------------------------------------------------------------- solving
 def _solve_linear(p: Problem) -> None:
     """Solve an amount or duty unknown directly (they enter the balance linearly)."""
     temps = p.temperatures
+    _set_computed_losses(p, temps)
     absorbed = sum(ln.amount * _line_dh(ln, temps, {}) for ln in p.lines if ln.amount is not None)
     absorbed += sum(_equipment_heat(e, temps, {}) for e in p.equipment)
     supplied = sum(t.heat for t in p.terms if t.heat is not None)
@@ -174,7 +219,8 @@ def _solve_temperature(p: Problem) -> float | None:
         raise InputError("no line's state depends on this temperature", p.unknown_address)
     fixed = sum(ln.amount * _line_dh(ln, temps, {}) for ln in p.lines if not _depends(ln, var))
     fixed += sum(_equipment_heat(e, temps, {}) for e in p.equipment if e not in equipment_dep)
-    fixed -= sum(t.heat for t in p.terms)
+    losses = _set_computed_losses(p, temps, var)  # a computed loss on a line at this temperature moves with it
+    fixed -= sum(t.heat for t in p.terms if t not in losses)
     # the states that move with T, each with its line's amount and sign; the others' enthalpies are fixed
     moving = []
     for ln in dependent:
@@ -199,8 +245,9 @@ def _solve_temperature(p: Problem) -> float | None:
 
     def residual(T: float, side: float | None = None) -> float:
         temps[var] = T
+        lost = -sum(_computed_heat(t.computed, temps) for t in losses) if losses else 0.0
         if side is None and fast:  # off every plateau, inside every material's range (the bracket's bounds)
-            value = fixed
+            value = fixed + lost
             for key, enthalpy, P, weight in plain:
                 h = enthalpy(T, P)
                 if memo is not None:
@@ -208,7 +255,7 @@ def _solve_temperature(p: Problem) -> float | None:
                 value += weight * h
             return value
         sides = {var: side} if side is not None else {}
-        value = fixed + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
+        value = fixed + lost + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
 
     materials = [ln.material for ln in dependent] + [e.material for e in equipment_dep if e.material]
@@ -322,16 +369,51 @@ def solve_problem(p: Problem) -> Result:
     token = _SOLVE_ENTHALPIES.set({})
     try:
         fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
-        return _result(p, fraction)
+        records = _computed_loss_records(p)
+        result = _result(p, fraction)
     except HeatBalanceError as exc:  # a property refusal met while searching (no field of its own): the unknown's
         raise exc.located(p.unknown_address)
     finally:
         _SOLVE_ENTHALPIES.reset(token)
+    result.surface_losses = records
+    result.humid_air = [humid_air_line(ln.name, ln.address, model.material, ln.amount_si, ln.initial_T, ln.initial_P,
+                                       ln.final_T, ln.final_P)
+                        for model, ln in zip(p.lines, result.lines) if isinstance(model.material, HumidAir)]
+    return result
+
+
+def _computed_loss_records(p: Problem) -> list:
+    """Each computed loss at the solved temperatures: its heat set, its details (surface, parts, protection)."""
+    records = []
+    for term in p.terms:
+        c = term.computed
+        if c is None:
+            continue
+        T_p = _process_temperature(c, p.temperatures)
+        try:
+            for T in _process_ends(c, p.temperatures):
+                check_service(c.surface, T, f"{c.address}.insulation.material")
+            record = surface_loss(c.surface, T_p, c.limit)
+        except HeatBalanceError as exc:
+            raise exc.located(c.address)
+        except (ArithmeticError, ValueError) as exc:
+            raise _loss_failed(c, exc) from None
+        record.name, record.address = term.name, c.address
+        term.heat = -record.loss * c.per_power
+        term.detail = Phrase("computed: surface at {T_s} (process {T_p}); convection {convection}, radiation "
+                             "{radiation}", {"T_s": Measure(record.surface_T, "temperature", 1),
+                                             "T_p": Measure(T_p, "temperature", 1),
+                                             "convection": Measure(record.convection, "power"),
+                                             "radiation": Measure(record.radiation, "power")}, c.address)
+        records.append(record)
+    return records
 
 
 # --------------------------------------------------------------------------- the result
 def _latent_content(material: Material, point: Point, P: float) -> float:
     """Latent heat held by a state: every transition below it, plus its own plateau fraction."""
+    if isinstance(material, HumidAir):  # condensate that left the vapour over a range of temperatures
+        return material.latent_content(point.T, P)
     total = 0.0
     for tr in material.transitions(P):
         if point.T > tr.T + T_TOL:

@@ -11,6 +11,7 @@ from functools import lru_cache
 from importlib import resources
 
 from .errors import InputError
+from .humid_air import HUMID_AIR
 from .properties import CoolPropFluid, IncompressibleSolution, Material, Phase, TabulatedMaterial
 
 __all__ = ["PURE_FLUIDS", "SOLUTIONS", "CORRELATED_LIQUIDS", "get_material", "solid_table", "catalogue",
@@ -130,13 +131,15 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
     for row in solid_table():
         if row["name"] == name:
             return _tabulated(row)
+    if name == HUMID_AIR:
+        raise InputError("humid air is a stream's material, with its humidity given at the inlet")
     raise InputError(f"unknown material '{name}'; choose one of: {', '.join(library_names())}"
                      " or define it in the worksheet's materials")
 
 
 def library_names() -> list[str]:
     """Every material name the library knows."""
-    return [*PURE_FLUIDS, *SOLUTIONS, *CORRELATED_LIQUIDS, *(row["name"] for row in solid_table())]
+    return [*PURE_FLUIDS, HUMID_AIR, *SOLUTIONS, *CORRELATED_LIQUIDS, *(row["name"] for row in solid_table())]
 
 
 def get_material(name: str, mass_fraction: float | None = None,
@@ -168,4 +171,5 @@ def catalogue() -> list[MaterialInfo]:
     correlated = [MaterialInfo(name, "generic correlation", entry[-1]) for name, entry in CORRELATED_LIQUIDS.items()]
     tabulated = [MaterialInfo(row["name"], "tabulated solid or simple liquid", row["source"])
                  for row in solid_table()]
-    return fluids + solutions + correlated + tabulated
+    humid = [MaterialInfo(HUMID_AIR, "humid air (streams)", "CoolProp HAPropsSI (ASHRAE RP-1485); per kg of dry air")]
+    return fluids + humid + solutions + correlated + tabulated

@@ -15,6 +15,8 @@ from .address import get as get_input
 from .address import item, unknown_address
 from .address import label as address_label
 from .errors import InputError
+from .humid_air import HUMID_AIR, HUMIDITY_FORMS, HumidAir, humidity_ratio, volume_per_dry_air
+from .losses import MIN_INSULATION, PERSONNEL_PROTECTION_LIMIT, Surface, insulation_names
 from .materials import get_material
 from .messages import Measure, Phrase
 from .properties import Material, Phase, TabulatedMaterial
@@ -22,7 +24,7 @@ from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
-__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
+__all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
            "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
 
@@ -95,6 +97,21 @@ class HeatTerm:
     heat: float | None  # + into the process; None: the unknown
     detail: Phrase = field(default_factory=lambda: Phrase(""))
     vessel: str | None = None  # a reaction's vessel, as named
+    computed: ComputedLoss | None = None  # a loss computed from its surface (heat set by the solver)
+
+
+@dataclass
+class ComputedLoss:
+    """A loss computed from geometry (:mod:`heatbalance.losses`), SI: the surface, the process side's
+    temperature [K] or the line whose mean temperature it is, the protection limit [K], and the factor that
+    turns the power into the term's heat (1, or the batch duration [s])."""
+
+    surface: Surface
+    address: str  # losses[L].surface
+    process_T: float | None = None
+    line: Line | None = None
+    limit: float = PERSONNEL_PROTECTION_LIMIT
+    per_power: float = 1.0
 
 
 @dataclass
@@ -344,6 +361,7 @@ class _Builder:
             vessel_lines, vessel_equipment = self._vessel(vessel)
             lines += vessel_lines
             equipment += vessel_equipment
+        self.lines = lines
         terms = self._terms()
         target, address = self._target(lines, terms, unknown_var)
         screening = {v.name: self._screening(v) for v in ws.vessels}
@@ -433,10 +451,72 @@ class _Builder:
         where = item("streams", s.name)
         P = _si(s.pressure, "pressure", f"{where}.pressure")
         is_unknown = self.unknown.kind == "amount" and self.unknown.line == s.name and self.unknown.charge is None
+        if s.material == HUMID_AIR:
+            return self._humid_air_stream(s, where, P, is_unknown)
+        for end in ("inlet", "outlet"):
+            if getattr(s, end).humidity is not None:
+                raise InputError(f"a humidity belongs to humid air; {s.material} has none", f"{where}.{end}.humidity")
         return Line(s.name, "stream", s.material, self.material(s.material, s.mass_fraction, f"{where}.material"),
                     self.amount(s.flow, f"{where}.flow", is_unknown),
                     self.state(s.inlet, f"stream:{s.name}:inlet", f"{where}.inlet", P),
                     self.state(s.outlet, f"stream:{s.name}:outlet", f"{where}.outlet", P), address=where)
+
+    def _humid_air_stream(self, s, where: str, P: float, is_unknown: bool) -> Line:
+        """A humid-air stream: its humidity ratio from the inlet's humidity, its flow counted as dry air."""
+        if s.outlet.humidity is not None:
+            raise InputError("the outlet's humidity follows from the inlet's (the water stays with the air; below "
+                             "the dew point it condenses): give the humidity at the inlet only",
+                             f"{where}.outlet.humidity")
+        if s.inlet.humidity is None:
+            raise InputError(f"humid air needs the inlet's humidity: one of {', '.join(HUMIDITY_FORMS)}",
+                             f"{where}.inlet.humidity")
+        inlet = self.state(s.inlet, f"stream:{s.name}:inlet", f"{where}.inlet", P)
+        outlet = self.state(s.outlet, f"stream:{s.name}:outlet", f"{where}.outlet", P)
+        form = next(k for k in HUMIDITY_FORMS if getattr(s.inlet.humidity, k) is not None)
+        field_where = f"{where}.inlet.humidity.{form}"
+        value = getattr(s.inlet.humidity, form)
+        value = _si(value, "temperature", field_where) if isinstance(value, Quantity) else value
+        T_in = self.temperatures.get(inlet.var) if inlet.var else None
+        if T_in is None and form == "dew_point":
+            T_in, form, value = value, "relative_humidity", 1.0  # saturated at its dew point: the same water
+        elif T_in is None and form != "humidity_ratio":
+            raise InputError(f"a {form.replace('_', ' ')} needs the inlet's temperature: give it, or give the "
+                             "humidity as a humidity ratio or a dew point", field_where)
+        W = humidity_ratio(form, value, T_in if T_in is not None else 293.15, inlet.P, field_where)
+        material = HumidAir(W)
+        amount = self._air_amount(s, where, W, T_in, inlet.P, is_unknown)
+        self.assumptions.append(f"{where}: humid air, counted per kg of dry air (humidity ratio {W:.5f} kg/kg); "
+                                "water it cannot hold condenses and leaves at the air's temperature.")
+        return Line(s.name, "stream", s.material, material, amount, inlet, outlet, address=where)
+
+    def _air_amount(self, s, where: str, W: float, T_in: float | None, P: float, is_unknown: bool) -> float | None:
+        """The dry-air flow of a humid-air stream from its mass flow (dry or humid air) or its volume flow."""
+        air = s.air_flow
+        if air is None or air.volume_flow is None:
+            amount = self.amount(s.flow, f"{where}.flow", is_unknown)
+            if air is not None and air.mass_of == "humid air":
+                if amount is None:
+                    raise InputError("a solved flow is of dry air: set 'mass_of' to dry air", f"{where}.air_flow")
+                amount /= 1.0 + W
+            return amount
+        volume_where = f"{where}.air_flow.volume_flow"
+        if s.flow is not None or is_unknown:
+            raise InputError("give the flow one way: a mass 'flow' (or the unknown), or this volume flow",
+                             volume_where)
+        if self.basis != "continuous":
+            raise InputError("a volume flow is for a continuous worksheet; give the batch's mass", volume_where)
+        V = _si(air.volume_flow, "volume_flow", volume_where)
+        if V < 0:
+            raise InputError(f"a volume flow cannot be negative ({air.volume_flow})", volume_where)
+        T = T_in if air.volume_temperature is None else \
+            _si(air.volume_temperature, "temperature", f"{where}.air_flow.volume_temperature")
+        if T is None:
+            raise InputError("give the temperature the volume flow is measured at (the inlet's is the unknown)",
+                             f"{where}.air_flow.volume_temperature")
+        try:
+            return V / volume_per_dry_air(T, P, W)
+        except InputError as exc:
+            raise InputError(exc.phrase, f"{where}.air_flow.volume_temperature") from None
 
     def _vessel(self, v) -> tuple[list[Line], list[EquipmentHeat]]:
         where = item("vessels", v.name)
@@ -445,6 +525,9 @@ class _Builder:
         lines = []
         for c in v.charges:
             cw = f"{where}.{item('charges', c.name)}"
+            if c.material == HUMID_AIR or c.initial.humidity is not None:
+                raise InputError("humid air is modelled for streams; a batch of air is a charge of 'air'",
+                                 f"{cw}.{'material' if c.material == HUMID_AIR else 'initial.humidity'}")
             is_unknown = (self.unknown.kind == "amount" and self.unknown.line == v.name
                           and self.unknown.charge == c.name)
             lines.append(Line(f"{v.name} / {c.name}", "charge", c.material,
@@ -489,6 +572,9 @@ class _Builder:
             value = None if is_unknown else self.basis_value(d.value, "heat", where)
             terms.append(HeatTerm(d.name, "duty", value, Phrase("heater +, cooler −")))
         for loss in self.ws.losses:
+            if loss.surface is not None:
+                terms.append(self._computed_loss(loss))
+                continue
             where = item("losses", loss.name, "value")
             value = self.basis_value(loss.value, "heat", where)
             if value < 0:
@@ -497,6 +583,57 @@ class _Builder:
         for r in self.ws.reactions:
             terms.append(self._reaction(r))
         return terms
+
+    def _computed_loss(self, loss) -> HeatTerm:
+        """A loss computed from its surface: geometry in SI, refused field by field."""
+        s, where = loss.surface, item("losses", loss.name, "surface")
+
+        def positive(q: Quantity, kind: str, name: str, zero: bool = False) -> float:
+            value = _si(q, kind, f"{where}.{name}")
+            if value < 0 or (value == 0 and not zero):
+                raise InputError(f"{name.replace('_', ' ')} must be {'zero or more' if zero else 'positive'}, "
+                                 f"not {q}", f"{where}.{name}")
+            return value
+
+        def temperature(q: Quantity | None, name: str) -> float | None:
+            return None if q is None else _si(q, "temperature", f"{where}.{name}")
+
+        insulation, thickness = None, 0.0
+        if s.insulation is not None:
+            insulation = s.insulation.material
+            if insulation not in insulation_names():
+                raise InputError(f"no insulation called '{insulation}' (there are: {', '.join(insulation_names())})",
+                                 f"{where}.insulation.material")
+            thickness = positive(s.insulation.thickness, "length", "insulation.thickness", zero=True)
+            if 0 < thickness < MIN_INSULATION:
+                raise InputError(f"insulation is 0 (bare) or at least 1 mm thick, not {s.insulation.thickness}",
+                                 f"{where}.insulation.thickness")
+        surface = Surface(s.shape, positive(s.diameter, "length", "diameter"),
+                          0.0 if s.length is None else positive(s.length, "length", "length"), s.emissivity,
+                          insulation, thickness, temperature(s.ambient_temperature, "ambient_temperature"),
+                          temperature(s.surroundings_temperature, "surroundings_temperature"),
+                          0.0 if s.wind_speed is None else positive(s.wind_speed, "velocity", "wind_speed", zero=True))
+        computed = ComputedLoss(surface, where, temperature(s.process_temperature, "process_temperature"))
+        if s.protection_limit is not None:
+            computed.limit = temperature(s.protection_limit, "protection_limit")
+        if s.line is not None:
+            lines = [ln for ln in self.lines if ln.name == s.line or ln.vessel == s.line]
+            if not lines:
+                names = [ln.name for ln in self.lines if ln.kind == "stream"] + list(dict.fromkeys(
+                    ln.vessel for ln in self.lines if ln.vessel))
+                raise InputError(f"no stream or vessel called '{s.line}' (there are: {', '.join(names)})",
+                                 f"{where}.line")
+            computed.line = lines[0]
+        if self.basis == "batch":
+            if self.duration is None:
+                raise InputError("a computed loss is a power: a batch worksheet needs its duration to apply it",
+                                 "basis.duration")
+            computed.per_power = self.duration
+            self.assumptions.append(f"{where}: the computed loss applies over the batch duration "
+                                    f"{self.ws.basis.duration}, at the mean of the start and end temperatures.")
+        self.assumptions.append(f"{where}: the inside film and the metal wall are neglected (the bare surface, or "
+                                "the insulation's inner face, is at the process temperature).")
+        return HeatTerm(loss.name, "loss", 0.0, Phrase("computed from its surface"), computed=computed)
 
     def _reaction(self, r) -> HeatTerm:
         where = item("reactions", r.name)

@@ -23,7 +23,8 @@ from .errors import InputError, PropertyRangeError
 from .messages import Measure, Phrase
 
 __all__ = ["Transition", "Material", "CoolPropFluid", "IncompressibleSolution", "TabulatedMaterial",
-           "Phase", "EVALUATIONS", "property_library_versions"]
+           "Phase", "EVALUATIONS", "property_library_versions", "air_transport",
+           "coolprop"]
 
 
 _LIBRARY = SimpleNamespace(module=None)
@@ -36,6 +37,11 @@ def _cp():
 
         _LIBRARY.module = coolprop
     return _LIBRARY.module
+
+
+def coolprop():
+    """CoolProp's module, loaded on first use: for the modules that call its humid-air functions."""
+    return _cp()
 
 
 def _version() -> str:
@@ -316,3 +322,21 @@ class TabulatedMaterial(Material):
 
     def phase_name(self, T: float, P: float) -> str:
         return next((p.name for p in self.phases if T <= p.T_upper), self.phases[-1].name)
+
+
+_AIR = SimpleNamespace(local=None)
+
+
+def air_transport(T: float, P: float = 101325.0) -> tuple[float, float, float, float]:
+    """Dry air's density [kg/m³], viscosity [Pa·s], conductivity [W/(m·K)] and cp [J/(kg·K)] at T [K], P [Pa].
+
+    CoolProp's ``Air`` (Lemmon et al. 2000 pseudo-pure equation of state; transport by Lemmon & Jacobsen
+    2004), for surface heat-loss correlations (:mod:`heatbalance.losses`). Refused outside 60–2000 K.
+    """
+    if not 60.0 <= T <= 2000.0:
+        raise PropertyRangeError("air", "film temperature", T, 60.0, 2000.0, "temperature")
+    if _AIR.local is None:
+        _AIR.local = _ThreadLocalState("HEOS", "Air", None)
+    state = _AIR.local.state
+    state.update(_cp().PT_INPUTS, P, T)
+    return state.rhomass(), state.viscosity(), state.conductivity(), state.cpmass()

@@ -91,6 +91,8 @@ class Result:
     exchangers: list = field(default_factory=list)  # analyses.exchangers.ExchangerCheck, one per exchanger
     utilities: list = field(default_factory=list)  # analyses.utilities.UtilityTable, one per duty to meet
     rating_closure: object = None  # analyses.rating_solve.RatingClosure: an exchanger's rating set an input
+    surface_losses: list = field(default_factory=list)  # losses.SurfaceLoss, one per loss computed from a surface
+    humid_air: list = field(default_factory=list)  # humid_air.HumidAirLine, one per humid-air line
 
     @property
     def heat_si_unit(self) -> str:

@@ -69,6 +69,10 @@ KINDS: dict[str, tuple[str, str]] = {
     "thermal_conductance": ("W/K", "a heat-transfer coefficient times area (e.g. kW/K)"),
     "heat_transfer_coefficient": ("W/(m**2*K)", "a heat-transfer coefficient (e.g. W/(m^2*K))"),
     "area": ("m**2", "an area (e.g. m^2)"),
+    "length": ("m", "a length (e.g. mm, m, in)"),
+    "velocity": ("m/s", "a speed (e.g. m/s, km/h)"),
+    "thermal_conductivity": ("W/(m*K)", "a thermal conductivity (e.g. W/(m*K))"),
+    "volume_flow": ("m**3/s", "a volume flow (e.g. m^3/h)"),
 }
 
 #: kind -> the largest magnitude accepted, in SI: physically generous, but finite (refused beyond, with the bound)
@@ -91,6 +95,10 @@ BOUNDS: dict[str, float] = {
     "thermal_conductance": 1e12,  # W/K
     "heat_transfer_coefficient": 1e7,  # W/(m²·K)
     "area": 1e8,  # m²
+    "length": 1e5,  # m (100 km of pipe)
+    "velocity": 1e3,  # m/s
+    "thermal_conductivity": 1e4,  # W/(m·K)
+    "volume_flow": 1e7,  # m³/s
 }
 
 _GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}

@@ -14,10 +14,12 @@ from typing import Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
 from .errors import WorksheetFormatError
+from .humid_air import HUMIDITY_FORMS
+from .losses import SHAPES
 from .migrations import CURRENT_VERSION, migrate
 
 __all__ = [
-    "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
+    "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss", "LossSurface", "Insulation", "Humidity", "AirFlow",
     "Jacket", "ScreeningInputs",
     "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
@@ -55,6 +57,34 @@ class Quantity(_Model):
         return f"{self.value:g} {self.unit}"
 
 
+class Humidity(_Model):
+    """The humidity of humid air at a state, one way (see :mod:`heatbalance.humid_air`):
+    ``relative_humidity`` (0–1), ``humidity_ratio`` (kg water per kg dry air), ``dew_point`` or ``wet_bulb``."""
+
+    relative_humidity: float | None = None
+    humidity_ratio: float | None = None
+    dew_point: Quantity | None = None
+    wet_bulb: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _one_way(self):
+        given = [k for k in HUMIDITY_FORMS if getattr(self, k) is not None]
+        if len(given) != 1:
+            raise ValueError(f"give the humidity one way: {', '.join(HUMIDITY_FORMS)}"
+                             + (f" (not {' and '.join(given)})" if given else ""))
+        return self
+
+
+class AirFlow(_Model):
+    """How a humid-air stream's flow is given (the balance counts kg of dry air): the stream's mass ``flow``
+    is of ``dry air`` (default) or of ``humid air``; or instead a ``volume_flow`` of the humid air at
+    ``volume_temperature`` (default: the inlet's) and the line's pressure."""
+
+    mass_of: Literal["dry air", "humid air"] = "dry air"
+    volume_flow: Quantity | None = None
+    volume_temperature: Quantity | None = None
+
+
 class State(_Model):
     """A line's state: a temperature, a phase fraction on a plateau, or a shared temperature.
 
@@ -69,6 +99,7 @@ class State(_Model):
     solid_fraction: float | None = Field(default=None, ge=0.0, le=1.0)
     common: str | None = None
     pressure: Quantity | None = None
+    humidity: Humidity | None = None  # humid air only: the inlet's humidity
 
     @model_validator(mode="after")
     def _one_way(self):
@@ -109,6 +140,7 @@ class Stream(_Model):
     pressure: Quantity = Quantity(value=0, unit="barg")
     inlet: State
     outlet: State
+    air_flow: AirFlow | None = None  # humid air only: what the flow counts, or a volume flow
 
 
 class Charge(_Model):
@@ -199,11 +231,59 @@ class Duty(_Model):
     value: Quantity | None = None
 
 
+class Insulation(_Model):
+    """Insulation around a surface: a material of the insulation table (:mod:`heatbalance.losses`) and its
+    thickness."""
+
+    material: str = Field(min_length=1, max_length=80)
+    thickness: Quantity
+
+
+class LossSurface(_Model):
+    """A loss computed from geometry (:mod:`heatbalance.losses`): a bare or insulated surface in air.
+
+    ``shape`` is one of :data:`heatbalance.losses.SHAPES`; ``diameter`` the bare pipe's or vessel's outside
+    diameter (the roof's diameter); ``length`` the pipe's length or the wall's height (not for a roof);
+    ``emissivity`` of the outer surface (0–1); ``wind_speed`` (none or 0: still air); the process side is at
+    ``process_temperature``, or at the mean of the inlet and outlet temperatures of the stream named in
+    ``line`` (a vessel: of its first charge's initial and its final temperature). ``protection_limit``: the
+    warmest surface people may touch (default 60 °C, common practice).
+    """
+
+    shape: Literal[SHAPES]  # type: ignore[valid-type]
+    diameter: Quantity
+    length: Quantity | None = None
+    emissivity: float = Field(ge=0.0, le=1.0)
+    insulation: Insulation | None = None
+    ambient_temperature: Quantity = Quantity(value=20, unit="degC")
+    surroundings_temperature: Quantity | None = None
+    wind_speed: Quantity | None = None
+    process_temperature: Quantity | None = None
+    line: str | None = Field(default=None, max_length=80)
+    protection_limit: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _complete(self):
+        if (self.process_temperature is None) == (self.line is None):
+            raise ValueError("give the process side's 'process_temperature', or the 'line' whose mean temperature "
+                             "it is, one of them")
+        if self.shape != "tank roof" and self.length is None:
+            raise ValueError(f"a {self.shape} needs its 'length'")
+        return self
+
+
 class Loss(_Model):
-    """Heat lost to the surroundings, entered as a positive amount."""
+    """Heat lost to the surroundings: entered as a positive ``value``, or computed from a ``surface``."""
 
     name: str = Field(min_length=1, max_length=80)
-    value: Quantity
+    value: Quantity | None = None
+    surface: LossSurface | None = None
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if (self.value is None) == (self.surface is None):
+            raise ValueError("a loss is entered as a 'value', or computed from a 'surface', one of them")
+        return self
 
 
 class Reaction(_Model):

@@ -101,5 +101,6 @@ def render_answer(worksheet: Worksheet, result: Result | None, error: HeatBalanc
     if result is not None and result.warnings:
         listed = "\n".join(f"- {plain(phrase_text(w, system))}" for w in result.warnings)
         st.warning(f"**Read before using this answer:**\n{listed}", icon=":material/warning:")
-    if worksheet.reactions or worksheet.vessels:  # a batch end temperature or reaction heat bears on safety
+    hot_surfaces = any(loss.surface is not None for loss in worksheet.losses)  # personnel protection
+    if worksheet.reactions or worksheet.vessels or hot_surfaces:  # a batch end temperature or reaction heat
         st.warning(CAUTION, icon=":material/health_and_safety:")

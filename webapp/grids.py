@@ -292,7 +292,8 @@ def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:
         tables["duties"].append({"name": d.name,
                                  "heat": _quantity_cell(d.value, item("duties", d.name, "value") in unknown)})
     for loss in ws.losses:
-        tables["losses"].append({"name": loss.name, "heat": format_quantity(loss.value)})
+        heat = COMPUTED_LOSS if loss.surface is not None else format_quantity(loss.value)
+        tables["losses"].append({"name": loss.name, "heat": heat})
     for r in ws.reactions:
         tables["reactions"].append({
             "name": r.name, "heat of reaction": format_quantity(r.enthalpy), "equation": r.equation,
@@ -416,7 +417,10 @@ def _streams(tables, ws: Worksheet, problems) -> list[dict]:
                                     r.quantity("inlet pressure", ("pressure",), required=False)),
             "outlet": _with_pressure(r.state("outlet", at("outlet", "temperature"), old.outlet if old else None),
                                      r.quantity("outlet pressure", ("pressure",), required=False)),
+            "air_flow": old.air_flow if old else None,  # humid air: not in the grid, kept from the model
         })
+        if old is not None and old.inlet.humidity is not None and out[-1]["inlet"] is not None:
+            out[-1]["inlet"] = {**out[-1]["inlet"], "humidity": old.inlet.humidity}
     return out
 
 
@@ -496,12 +500,23 @@ def _duties(tables, ws: Worksheet, problems) -> list[dict]:
     return out
 
 
+#: the heat cell of a loss computed from its surface (its geometry is edited in the surface-losses panel)
+COMPUTED_LOSS = "computed (surface losses panel)"
+
+
 def _losses(tables, ws: Worksheet, problems) -> list[dict]:
+    surfaces = {loss.name: loss.surface for loss in ws.losses if loss.surface is not None}
     out = []
     for index, row in _rows(tables, "losses"):
         r = _Reader("losses", index, row, problems)
-        out.append({"name": r.text("name", required=True),
-                    "value": r.quantity("heat", basis_kinds("heat", ws.basis.kind))})
+        name = r.text("name", required=True)
+        if r.text("heat").startswith("computed"):
+            if name in surfaces:
+                out.append({"name": name, "surface": surfaces[name].model_dump(mode="json", exclude_none=True)})
+            else:
+                r.report("heat", "a computed loss is set up in the surface losses panel; here, give a heat")
+            continue
+        out.append({"name": name, "value": r.quantity("heat", basis_kinds("heat", ws.basis.kind))})
     return out
 
 
@@ -715,6 +730,8 @@ _FIELD_COLUMNS = {
     "initial_temperature": "initial temperature", "temperature": "temperature", "cp": "cp",
     "cp_per_kelvin": "cp per K", "cp_per_kelvin2": "cp per K²", "up_to": "up to", "latent_heat": "latent heat",
     "min_temperature": "min temperature", "max_temperature": "max temperature", "source": "source",
+    "surface": "heat",  # a computed loss's geometry: its heat cell says "computed"
+    "air_flow": "flow",  # humid air's volume flow: its flow cell
 }
 _ENDS = ("inlet", "outlet", "initial", "final")
 

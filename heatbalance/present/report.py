@@ -3,6 +3,8 @@ from __future__ import annotations
 
 from ..results import SIGN_CONVENTION, Result
 from .exchangers import exchanger_report
+from .humid_air import humid_air_report
+from .losses import protection_text, surface_loss_report
 from .screening import screening_report
 from .tables import contribution_rows
 from .text import answer_text, answer_unit, answer_value, format_heat, phrase_text
@@ -44,6 +46,10 @@ def format_result(result: Result, system: str = "SI") -> str:
         out += [""] + screening_report(result.screening, system)
     if result.exchangers or result.utilities:
         out += [""] + exchanger_report(result, system)
+    if result.surface_losses:
+        out += [""] + surface_loss_report(result, system)
+    if result.humid_air:
+        out += [""] + humid_air_report(result, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
     return "\n".join(out)
 
@@ -69,6 +75,8 @@ def result_json(result: Result, system: str = "SI") -> dict:
     data["answer"].update(text=answer_text(result.answer, system), unit=answer_unit(result.answer, system),
                           value=answer_value(result.answer, system))
     data["units"] = system
+    for loss, record in zip(data.get("surface_losses", []), result.surface_losses):
+        loss["personnel_protection"] = protection_text(record, system)
     if result.uncertainty is not None:
         data["uncertainty"].update(expanded=result.uncertainty.expanded,
                                    text=uncertainty_text(result.uncertainty, system, result.answer))

@@ -152,7 +152,7 @@ def _warnings(ws: Worksheet, result: Result, system: str, styles) -> list:
     alarms = [phrase_text(a, system) for s in result.screening for a in s.alarms]
     out += [_p(f"ALARM: {a}", styles["alarm"]) for a in alarms]
     out += [_p(f"• {w}", styles["body"]) for w in warnings] or [_p("No warnings.", styles["body"])]
-    if ws.vessels or ws.reactions:
+    if ws.vessels or ws.reactions or any(loss.surface is not None for loss in ws.losses):  # + hot surfaces
         out.append(_p(f"Safety: {CAUTION}", styles["alarm"]))
     return out
 

@@ -24,19 +24,23 @@ UNIT_SETS: dict[str, dict[str, str]] = {
            "specific_heat": "kJ/(kg*K)", "heat_capacity": "kJ/K", "amount": "kmol",
            "molar_flow": "kmol/h", "molar_energy": "kJ/mol", "specific_energy": "kJ/kg",
            "molar_mass": "g/mol", "thermal_conductance": "kW/K", "heat_transfer_coefficient": "W/(m**2*K)",
-           "area": "m**2"},
+           "area": "m**2", "length": "m", "velocity": "m/s", "thermal_conductivity": "W/(m*K)",
+           "volume_flow": "m**3/h"},
     "US": {"temperature": "degF", "temperature_difference": "delta_degF", "pressure": "psi",
            "mass": "lb", "mass_flow": "lb/h", "energy": "Btu", "power": "Btu/h", "duration": "min",
            "specific_heat": "Btu/(lb*delta_degF)", "heat_capacity": "Btu/delta_degF",
            "amount": "lbmol", "molar_flow": "lbmol/h", "molar_energy": "Btu/lbmol",
            "specific_energy": "Btu/lb", "molar_mass": "lb/lbmol", "thermal_conductance": "Btu/(h*delta_degF)",
-           "heat_transfer_coefficient": "Btu/(h*ft**2*delta_degF)", "area": "ft**2"},
+           "heat_transfer_coefficient": "Btu/(h*ft**2*delta_degF)", "area": "ft**2",
+           "length": "ft", "velocity": "ft/s", "thermal_conductivity": "Btu/(h*ft*delta_degF)",
+           "volume_flow": "ft**3/min"},
 }
 
 _PRETTY = {"degC": "°C", "degF": "°F", "degR": "°R", "delta_degF": "°F", "delta_degC": "K",
            "kJ/(kg*K)": "kJ/(kg·K)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "Btu/delta_degF": "Btu/°F",
            "bar": "bar(a)", "psi": "psia", "m**2": "m²", "ft**2": "ft²", "W/(m**2*K)": "W/(m²·K)",
-           "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)"}
+           "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)",
+           "W/(m*K)": "W/(m·K)", "m**3/h": "m³/h", "ft**3/min": "ft³/min", "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)"}
 
 
 def display_unit(unit: str) -> str:
