@@ -182,11 +182,13 @@ def _solve_temperature(p: Problem) -> float | None:
         value = fixed + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
 
-    materials = [ln.material for ln in dependent] + [e.material for e in equipment_dep if e.material]
-    low, high = max(m.t_min for m in materials), min(m.t_max for m in materials)
+    # (material, lowest, highest temperature of its data at the state's pressure)
+    ranges = [(m, m.t_min, m.t_max_at(state.P)) for m, state, _ in moving]
+    ranges += [(e.material, e.material.t_min, e.material.t_max_at(ATMOSPHERE)) for e in equipment_dep if e.material]
+    low, high = max(r[1] for r in ranges), min(r[2] for r in ranges)
     if low >= high:
         raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
-                              f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_address)
+                              f"({', '.join(sorted({r[0].name for r in ranges}))})", p.unknown_address)
     breaks = sorted({tr.T for tr in _transitions_on(p, var) if low - T_TOL <= tr.T <= high + T_TOL})
     # (T, residual on its cold side, residual on its hot side) at each bound and phase change
     points = [(T, residual(T, 0.0), residual(T, 1.0)) for T in breaks]
@@ -205,8 +207,8 @@ def _solve_temperature(p: Problem) -> float | None:
         if i + 1 < len(points) and r_hot * points[i + 1][1] < 0:
             p.temperatures[var] = _root_in_segment(residual, (T, r_hot), points[i + 1][:2])
             return None
-    limits = {low: next(m.name for m in materials if m.t_min == low),
-              high: next(m.name for m in materials if m.t_max == high)}
+    limits = {low: next(m.name for m, lo, _ in ranges if lo == low),
+              high: next(m.name for m, _, hi in ranges if hi == high)}
     raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_address)
 
 

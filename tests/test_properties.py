@@ -146,6 +146,7 @@ def test_solution_needs_a_fraction_in_range():
 
 
 def test_temperature_outside_the_data_is_refused_with_the_range():
-    with pytest.raises(PropertyRangeError, match=r"^streams\[S\]\.outlet\.temperature: temperature 1200\.00 °C is "
-                                                 r"outside the property data of water \(0\.00 °C to 800\.00 °C\)"):
-        WATER.check_range(1473.15, "streams[S].outlet.temperature")
+    # issue 13: water now reaches 2000 °C (IAPWS-IF97 region 5); before, 1200 °C was refused at an 800 °C limit
+    with pytest.raises(PropertyRangeError, match=r"^streams\[S\]\.outlet\.temperature: temperature 2100\.00 °C is "
+                                                 r"outside the property data of water \(0\.00 °C to 2000\.00 °C\)"):
+        WATER.check_range(2373.15, "streams[S].outlet.temperature")
