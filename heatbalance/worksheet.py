@@ -79,23 +79,36 @@ class State(_Model):
 
 
 class PhaseSpec(_Model):
-    """One phase of a user-defined material: cp = a + b·T + c·T² (T in K) up to a transition."""
+    """One phase of a user-defined material: cp = a + b·T + c·T² (T in K) up to a transition, or the phase of
+    the same name of a library material (``from_library``, e.g. water's liquid)."""
 
     name: Literal["solid", "liquid", "vapour"]
-    cp: Quantity = Field(description="constant specific heat, or the constant term a")
+    cp: Quantity | None = Field(default=None, description="constant specific heat, or the constant term a")
     cp_per_kelvin: float = 0.0  # b, in the cp unit per K
     cp_per_kelvin2: float = 0.0  # c, in the cp unit per K²
+    from_library: str | None = Field(default=None, min_length=1, max_length=80)  # a library material's phase
     up_to: Quantity | None = None  # transition temperature to the next phase
     latent_heat: Quantity | None = None  # to the next phase
 
+    @model_validator(mode="after")
+    def _one_source(self):
+        if self.cp is None and self.from_library is None:
+            raise ValueError("a phase needs its cp, or 'from_library' naming the library material whose phase it takes")
+        if self.from_library is not None and (self.cp is not None or self.cp_per_kelvin or self.cp_per_kelvin2):
+            raise ValueError("a phase taken from the library ('from_library') has no cp of its own")
+        return self
+
 
 class UserMaterial(_Model):
-    """A material defined in the worksheet by its cp per phase and transitions."""
+    """A material defined in the worksheet by its cp per phase and transitions.
+
+    ``min_temperature``/``max_temperature`` may be left out where the coldest/hottest phase is a library
+    phase: they default to that phase's data range (the default is shown with the result)."""
 
     name: str = Field(min_length=1, max_length=80)
     phases: list[PhaseSpec] = Field(min_length=1, max_length=3)
-    min_temperature: Quantity
-    max_temperature: Quantity
+    min_temperature: Quantity | None = None
+    max_temperature: Quantity | None = None
     source: str = Field(min_length=1, max_length=300)
 
 

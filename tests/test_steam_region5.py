@@ -48,8 +48,9 @@ def test_above_800C_over_50MPa_is_refused_with_the_limits():
     with pytest.raises(InputError) as caught:
         solve(ws)
     assert caught.value.where == "streams[HP steam].outlet.temperature"
-    assert error_text(caught.value) == ("no IAPWS-IF97 data for water at 900.00 °C and 600 bar(a): above 800.00 °C "
-                                        "the formulation (region 5, to 2000.00 °C) covers pressures up to 500 bar(a) only")
+    assert error_text(caught.value) == ("no IAPWS-IF97 data for water at 900.00 °C and 600 bar(a): above "
+                                        "800.00 °C the formulation (region 5, to 2000.00 °C) covers pressures up to "
+                                        "500 bar(a) only")
 
 
 def test_solving_a_temperature_over_50MPa_stays_below_800C():
