@@ -6,7 +6,7 @@ from iapws import IAPWS97
 
 from heatbalance.balance import solve
 from heatbalance.errors import InputError, WorksheetFormatError
-from heatbalance.present.text import answer_value, error_text, phrase_text
+from heatbalance.present.text import error_text, phrase_text
 from heatbalance.worksheet import parse_worksheet
 from sheet_factory import build, q, stream, temp
 
