@@ -15,13 +15,14 @@ from .address import get as get_input
 from .address import item, unknown_address
 from .address import label as address_label
 from .errors import InputError
+from .freezing import BOUND_WATER_PER_PROTEIN, FOOD_T_MIN, EnthalpyTable, FoodByComposition
 from .library_phases import LibraryPhase, library_phase
 from .materials import get_material
 from .messages import Measure, Phrase
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
-from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
+from .worksheet import FreezingMaterial, Quantity, State, Unknown, UserMaterial, Worksheet
 
 __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
@@ -230,6 +231,7 @@ class _Builder:
         self.duration = self._duration()
         self.warnings: list[Phrase] = []  # defaults a checker should see (a user material's range)
         self.user_materials = {m.name: _user_material(m, self.warnings) for m in ws.materials}
+        self.user_materials.update({f.name: _freezing_material(f) for f in ws.freezing_materials})
         self.temperatures: dict[str, float | None] = {}
         self.var_addresses: dict[str, str] = {}
         self.assumptions = list(ASSUMPTIONS)
@@ -654,6 +656,41 @@ def _end_temperature(m: UserMaterial, field_name: str, span, warnings: list[Phra
                                          "T": Measure(T, "temperature"), "end": end, "library": phase.from_library,
                                          "phase": phase.name}, where))
     return T
+
+
+def _freezing_material(f: FreezingMaterial) -> Material:
+    """A material that freezes over a range, by composition or by its enthalpy table (issue 13, item 2)."""
+    where = item("freezing_materials", f.name)
+    T_freeze = None if f.initial_freezing_point is None else \
+        _si(f.initial_freezing_point, "temperature", f"{where}.initial_freezing_point")
+    if f.enthalpy_table is not None:
+        return _enthalpy_table(f, T_freeze, f"{where}.enthalpy_table")
+    fractions = dict(f.composition)
+    total = sum(fractions.values())
+    if any(x < 0 for x in fractions.values()) or abs(total - 1.0) > 1e-3:
+        raise InputError(f"the mass fractions must not be negative and must add up to 1 (they add up to {total:.4g})",
+                         f"{where}.composition")
+    if fractions.get("water", 0.0) <= BOUND_WATER_PER_PROTEIN * fractions.get("protein", 0.0):
+        raise InputError("the water fraction must exceed the bound water (0.4 × protein, Schwartzberg 1976): "
+                         "with no freezable water the material does not freeze", f"{where}.composition")
+    if not FOOD_T_MIN < T_freeze < 273.15:
+        raise InputError(Phrase("the initial freezing point must lie between {low} (the Choi–Okos correlations' lower "
+                                "limit) and {high}, not {T}", {"low": Measure(FOOD_T_MIN, "temperature"),
+                                                               "high": Measure(273.15, "temperature"),
+                                                               "T": Measure(T_freeze, "temperature")}),
+                         f"{where}.initial_freezing_point")
+    return FoodByComposition(f.name, fractions, T_freeze, f"user-defined: {f.source}")
+
+
+def _enthalpy_table(f: FreezingMaterial, T_freeze: float | None, where: str) -> EnthalpyTable:
+    temperatures = [_si(row.temperature, "temperature", where) for row in f.enthalpy_table]
+    enthalpies = [_si(row.enthalpy, "specific_energy", where) for row in f.enthalpy_table]
+    for i in range(1, len(temperatures)):
+        if not (temperatures[i] > temperatures[i - 1] and enthalpies[i] > enthalpies[i - 1]):
+            raise InputError(f"rows {i} and {i + 1}: temperature and enthalpy must both rise from row to row "
+                             f"({f.enthalpy_table[i - 1].temperature}, {f.enthalpy_table[i - 1].enthalpy} then "
+                             f"{f.enthalpy_table[i].temperature}, {f.enthalpy_table[i].enthalpy})", where)
+    return EnthalpyTable(f.name, tuple(temperatures), tuple(enthalpies), f.source, T_freeze)
 
 
 def build_problem(ws: Worksheet) -> Problem:

@@ -19,7 +19,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -110,6 +110,36 @@ class UserMaterial(_Model):
     min_temperature: Quantity | None = None
     max_temperature: Quantity | None = None
     source: str = Field(min_length=1, max_length=300)
+
+
+FOOD_COMPONENTS = ("water", "protein", "fat", "carbohydrate", "fibre", "ash")
+
+
+class EnthalpyPoint(_Model):
+    """One row of an enthalpy table: the specific enthalpy at a temperature (any reference)."""
+
+    temperature: Quantity
+    enthalpy: Quantity
+
+
+class FreezingMaterial(_Model):
+    """A material that freezes over a range (a food, a wet solid): by composition (mass fractions) with its
+    initial freezing point, or by an enthalpy–temperature table (optionally with its initial freezing point)."""
+
+    name: str = Field(min_length=1, max_length=80)
+    composition: dict[Literal[FOOD_COMPONENTS], float] | None = None  # type: ignore[valid-type]
+    initial_freezing_point: Quantity | None = None
+    enthalpy_table: list[EnthalpyPoint] | None = Field(default=None, min_length=2, max_length=200)
+    source: str = Field(min_length=1, max_length=300)
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if (self.composition is None) == (self.enthalpy_table is None):
+            raise ValueError("a freezing-range material is given by its 'composition' or by an 'enthalpy_table', "
+                             "one of the two")
+        if self.composition is not None and self.initial_freezing_point is None:
+            raise ValueError("a material by composition needs its 'initial_freezing_point'")
+        return self
 
 
 class Stream(_Model):
@@ -416,6 +446,7 @@ class Worksheet(_Model):
     tags: SheetTags = SheetTags()
     basis: Basis = Basis()
     materials: list[UserMaterial] = Field(default_factory=list, max_length=50)
+    freezing_materials: list[FreezingMaterial] = Field(default_factory=list, max_length=50)
     common_temperatures: list[CommonTemperature] = Field(default_factory=list, max_length=50)
     streams: list[Stream] = Field(default_factory=list, max_length=500)
     vessels: list[Vessel] = Field(default_factory=list, max_length=50)
@@ -443,7 +474,7 @@ class Worksheet(_Model):
         terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
-                  ("material", [m.name for m in self.materials]), ("case", [c.name for c in self.cases]),
+                  ("material", [m.name for m in (*self.materials, *self.freezing_materials)]), ("case", [c.name for c in self.cases]),
                   ("tolerance address", [t.address for t in self.tolerances]),
                   ("exchanger", [e.name for e in self.exchangers]), ("utility", [u.name for u in self.utilities])]
         groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]
