@@ -37,7 +37,7 @@ __all__ = ["Input", "item", "parse", "inputs", "get", "with_value", "unknown_add
 
 FRACTION = "fraction"  # the kind of a plain number between 0 and 1
 _COLLECTIONS = {"streams", "vessels", "charges", "duties", "losses", "reactions", "common_temperatures",
-                "materials", "phases", "exchangers", "utilities"}
+                "materials", "phases", "exchangers", "utilities", "freezing_materials"}
 _STATE_ENDS = ("inlet", "outlet", "initial", "final")
 _STEP = re.compile(r"(\w+)(?:\[((?:[^\]\\]|\\.)*)\])?")
 
@@ -149,6 +149,7 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "materials[].phases[].cp": ("specific_heat",),
     "materials[].phases[].up_to": ("temperature",),
     "materials[].phases[].latent_heat": ("specific_energy",),
+    "freezing_materials[].initial_freezing_point": ("temperature",),
     "exchangers[].minimum_approach": ("temperature_difference",),
     "exchangers[].U": ("heat_transfer_coefficient",),
     "exchangers[].area": ("area",),
@@ -261,6 +262,8 @@ def inputs(ws: Worksheet) -> list[Input]:
         for p in m.phases:
             for name in ("cp", "up_to", "latent_heat"):
                 add(item("materials", m.name, item("phases", p.name, name)), getattr(p, name))
+    for f in ws.freezing_materials:
+        add(item("freezing_materials", f.name, "initial_freezing_point"), f.initial_freezing_point)
     for c in ws.common_temperatures:
         add(item("common_temperatures", c.name, "temperature"), c.temperature)
     for s in ws.streams:

@@ -258,14 +258,14 @@ def _solve_temperature(p: Problem) -> float | None:
         value = fixed + lost + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
         return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
 
-    materials = [ln.material for ln in dependent] + [e.material for e in equipment_dep if e.material]
-    # each material's lowest temperature at its state's pressure (a fluid's melting line rises with pressure)
-    lowest = [(m.lowest_temperature(state.P), m) for m, state, _ in moving]
-    lowest += [(e.material.t_min, e.material) for e in equipment_dep if e.material]
-    low, high = max(T for T, _ in lowest), min(m.t_max for m in materials)
+    # (material, lowest, highest temperature of its data at the state's pressure: a fluid's melting line rises
+    # with pressure, water's IF97 data reach 2000 °C only at low pressure)
+    ranges = [(m, m.lowest_temperature(state.P), m.t_max_at(state.P)) for m, state, _ in moving]
+    ranges += [(e.material, e.material.t_min, e.material.t_max_at(ATMOSPHERE)) for e in equipment_dep if e.material]
+    low, high = max(r[1] for r in ranges), min(r[2] for r in ranges)
     if low >= high:
         raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
-                              f"({', '.join(sorted({m.name for m in materials}))})", p.unknown_address)
+                              f"({', '.join(sorted({r[0].name for r in ranges}))})", p.unknown_address)
     breaks = sorted({tr.T for tr in _transitions_on(p, var) if low - T_TOL <= tr.T <= high + T_TOL})
     # (T, residual on its cold side, residual on its hot side) at each bound and phase change
     points = [(T, residual(T, 0.0), residual(T, 1.0)) for T in breaks]
@@ -284,8 +284,8 @@ def _solve_temperature(p: Problem) -> float | None:
         if i + 1 < len(points) and r_hot * points[i + 1][1] < 0:
             p.temperatures[var] = _root_in_segment(residual, (T, r_hot), points[i + 1][:2])
             return None
-    limits = {low: next(m.name for T, m in lowest if T == low),
-              high: next(m.name for m in materials if m.t_max == high)}
+    limits = {low: next(m.name for m, lo, _ in ranges if lo == low),
+              high: next(m.name for m, _, hi in ranges if hi == high)}
     raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_address)
 
 

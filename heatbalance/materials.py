@@ -6,13 +6,14 @@ source of its property data (``Material.source``).
 from __future__ import annotations
 
 import csv
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from importlib import resources
 
 from .errors import InputError
 from .humid_air import HUMID_AIR
 from .properties import CoolPropFluid, IncompressibleSolution, Material, Phase, TabulatedMaterial
+from .solids import TablePhase, cp_tables
 
 __all__ = ["PURE_FLUIDS", "SOLUTIONS", "CORRELATED_LIQUIDS", "get_material", "solid_table", "catalogue",
            "MaterialInfo", "SOLIDS_FILE", "cragoe_cp"]
@@ -101,10 +102,13 @@ def solid_table() -> tuple[dict[str, str], ...]:
 
 
 def _tabulated(row: dict[str, str]) -> TabulatedMaterial:
-    low = Phase("solid", (float(row["cp_low_kJ_kgK"]) * KJ,))
-    phases: tuple[Phase, ...] = (low,)
+    table = cp_tables().get(row["name"])  # cp(T) of the solid where a sourced table has it, else constant
+    low: Phase | TablePhase = TablePhase("solid", table) if table else \
+        Phase("solid", (float(row["cp_low_kJ_kgK"]) * KJ,))
+    phases: tuple[Phase | TablePhase, ...] = (low,)
     if row["melting_point_C"]:
-        low = Phase("solid", low.cp, _celsius(row["melting_point_C"]), float(row["latent_fusion_kJ_kg"]) * KJ)
+        low = replace(low, T_upper=_celsius(row["melting_point_C"]),
+                      latent_to_next=float(row["latent_fusion_kJ_kg"]) * KJ)
         phases = (low, Phase("liquid", (float(row["cp_high_kJ_kgK"]) * KJ,)))
     material = TabulatedMaterial(row["name"], phases, _celsius(row["limit_min_C"]),
                                  _celsius(row["limit_max_C"]), row["source"])

@@ -17,12 +17,14 @@ from .address import label as address_label
 from .errors import InputError
 from .humid_air import HUMID_AIR, HUMIDITY_FORMS, HumidAir, humidity_ratio, volume_per_dry_air
 from .losses import MIN_INSULATION, PERSONNEL_PROTECTION_LIMIT, Surface, insulation_names
+from .freezing import BOUND_WATER_PER_PROTEIN, FOOD_T_MIN, EnthalpyTable, FoodByComposition
+from .library_phases import LibraryPhase, library_phase
 from .materials import get_material
 from .messages import Measure, Phrase
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
-from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
+from .worksheet import FreezingMaterial, Quantity, State, Unknown, UserMaterial, Worksheet
 
 __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
@@ -247,7 +249,9 @@ class _Builder:
         self.ws = ws
         self.basis = ws.basis.kind
         self.duration = self._duration()
-        self.user_materials = {m.name: _user_material(m) for m in ws.materials}
+        self.warnings: list[Phrase] = []  # defaults a checker should see (a user material's range)
+        self.user_materials = {m.name: _user_material(m, self.warnings) for m in ws.materials}
+        self.user_materials.update({f.name: _freezing_material(f) for f in ws.freezing_materials})
         self.temperatures: dict[str, float | None] = {}
         self.var_addresses: dict[str, str] = {}
         self.assumptions = list(ASSUMPTIONS)
@@ -374,7 +378,8 @@ class _Builder:
                                  f"{ws.operating_hours}", "operating_hours")
         return Problem(ws.title, self.basis, lines, equipment, terms, self.temperatures, self.var_addresses,
                        self.unknown, target, address, typed.unit if isinstance(typed, Quantity) else None,
-                       address_label(address), [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration,
+                       address_label(address), [v.name for v in ws.vessels], screening, warnings=self.warnings,
+                       assumptions=self.assumptions, duration=self.duration,
                        exchangers=[self._exchanger(e) for e in ws.exchangers],
                        utilities=[self._utility(u) for u in ws.utilities], operating_hours=hours,
                        currency=ws.currency)
@@ -730,15 +735,11 @@ def _the_unknown(ws: Worksheet) -> Unknown:
     return ws.unknowns[0]
 
 
-def _user_material(m: UserMaterial) -> TabulatedMaterial:
+def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial:
     where = item("materials", m.name)
-    phases = []
+    phases, spans = [], []  # spans: the library phase's range, or None for a phase of the user's own data
     for i, p in enumerate(m.phases):
         pw = f"{where}.{item('phases', p.name)}"
-        cp0 = _si(p.cp, "specific_heat", f"{pw}.cp")
-        scale = cp0 / p.cp.value if p.cp.value else 1.0
-        if cp0 <= 0:
-            raise InputError(f"cp must be positive ({p.cp})", f"{pw}.cp")
         last = i == len(m.phases) - 1
         if not last and (p.up_to is None or p.latent_heat is None):
             raise InputError("every phase but the last needs 'up_to' (its transition temperature) and "
@@ -747,14 +748,92 @@ def _user_material(m: UserMaterial) -> TabulatedMaterial:
         latent = 0.0 if last else _si(p.latent_heat, "specific_energy", f"{pw}.latent_heat")
         if latent < 0:
             raise InputError(f"a latent heat cannot be negative ({p.latent_heat})", f"{pw}.latent_heat")
+        if p.from_library is not None:
+            library, span = library_phase(p.from_library, p.name, f"{pw}.from_library")
+            phases.append(LibraryPhase(p.name, library, span, T_upper=T_upper, latent_to_next=latent))
+            spans.append(span)
+            continue
+        cp0 = _si(p.cp, "specific_heat", f"{pw}.cp")
+        scale = cp0 / p.cp.value if p.cp.value else 1.0
+        if cp0 <= 0:
+            raise InputError(f"cp must be positive ({p.cp})", f"{pw}.cp")
         phases.append(Phase(p.name, (cp0, p.cp_per_kelvin * scale, p.cp_per_kelvin2 * scale), T_upper, latent))
-    t_min = _si(m.min_temperature, "temperature", f"{where}.min_temperature")
-    t_max = _si(m.max_temperature, "temperature", f"{where}.max_temperature")
+        spans.append(None)
+    t_min = _end_temperature(m, "min_temperature", spans[0], warnings)
+    t_max = _end_temperature(m, "max_temperature", spans[-1], warnings)
     uppers = [p.T_upper for p in phases[:-1]]
     if not t_min < t_max or uppers != sorted(uppers) or any(not t_min <= T <= t_max for T in uppers):
         raise InputError("temperatures must rise: min temperature < each transition < max temperature",
                          f"{where}.max_temperature")
-    return TabulatedMaterial(m.name, tuple(phases), t_min, t_max, f"user-defined: {m.source}")
+    for phase, span, low, high in zip(phases, spans, [t_min, *uppers], [*uppers, t_max]):
+        if span is not None and not (span.T_low - 1e-6 <= low and high <= span.T_high + 1e-6):
+            raise InputError(Phrase("{library}'s {phase} phase at 1 atm covers {low} to {high}; this phase would "
+                                    "span {from} to {to}: move its transitions or the min/max temperature inside",
+                                    {"library": phase.material.name, "phase": phase.name,
+                                     "low": Measure(span.T_low, "temperature"),
+                                     "high": Measure(span.T_high, "temperature"),
+                                     "from": Measure(low, "temperature"), "to": Measure(high, "temperature")}),
+                             f"{where}.{item('phases', phase.name)}.from_library")
+    borrowed = "".join(f"; {p.name} phase: the library's {p.material.name} at 1 atm ({p.material.source})"
+                       for p in phases if isinstance(p, LibraryPhase))
+    material = TabulatedMaterial(m.name, tuple(phases), t_min, t_max, f"user-defined: {m.source}{borrowed}")
+    material.valid_min = spans[0].valid_low if spans[0] is not None else None
+    material.valid_max = spans[-1].valid_high if spans[-1] is not None else None
+    return material
+
+
+def _end_temperature(m: UserMaterial, field_name: str, span, warnings: list[Phrase]) -> float:
+    """A user material's min or max temperature: as typed, else the end of its end phase's library data."""
+    where = f"{item('materials', m.name)}.{field_name}"
+    typed = getattr(m, field_name)
+    if typed is not None:
+        return _si(typed, "temperature", where)
+    end = "lower" if field_name == "min_temperature" else "upper"
+    phase = m.phases[0] if end == "lower" else m.phases[-1]
+    if span is None:
+        raise InputError(f"give the {field_name.replace('_', ' ')}: the {phase.name} phase is this worksheet's own "
+                         "data, so its range is not known (a phase taken from the library brings its own)", where)
+    T = span.T_low if end == "lower" else span.T_high
+    warnings.append(Phrase("{material}: no {field} given; {T} is used, the {end} end of {library}'s {phase} data "
+                           "at 1 atm.", {"material": m.name, "field": field_name.replace("_", " "),
+                                         "T": Measure(T, "temperature"), "end": end, "library": phase.from_library,
+                                         "phase": phase.name}, where))
+    return T
+
+
+def _freezing_material(f: FreezingMaterial) -> Material:
+    """A material that freezes over a range, by composition or by its enthalpy table (issue 13, item 2)."""
+    where = item("freezing_materials", f.name)
+    T_freeze = None if f.initial_freezing_point is None else \
+        _si(f.initial_freezing_point, "temperature", f"{where}.initial_freezing_point")
+    if f.enthalpy_table is not None:
+        return _enthalpy_table(f, T_freeze, f"{where}.enthalpy_table")
+    fractions = dict(f.composition)
+    total = sum(fractions.values())
+    if any(x < 0 for x in fractions.values()) or abs(total - 1.0) > 1e-3:
+        raise InputError(f"the mass fractions must not be negative and must add up to 1 (they add up to {total:.4g})",
+                         f"{where}.composition")
+    if fractions.get("water", 0.0) <= BOUND_WATER_PER_PROTEIN * fractions.get("protein", 0.0):
+        raise InputError("the water fraction must exceed the bound water (0.4 × protein, Schwartzberg 1976): "
+                         "with no freezable water the material does not freeze", f"{where}.composition")
+    if not FOOD_T_MIN < T_freeze < 273.15:
+        raise InputError(Phrase("the initial freezing point must lie between {low} (the Choi–Okos correlations' lower "
+                                "limit) and {high}, not {T}", {"low": Measure(FOOD_T_MIN, "temperature"),
+                                                               "high": Measure(273.15, "temperature"),
+                                                               "T": Measure(T_freeze, "temperature")}),
+                         f"{where}.initial_freezing_point")
+    return FoodByComposition(f.name, fractions, T_freeze, f"user-defined: {f.source}")
+
+
+def _enthalpy_table(f: FreezingMaterial, T_freeze: float | None, where: str) -> EnthalpyTable:
+    temperatures = [_si(row.temperature, "temperature", where) for row in f.enthalpy_table]
+    enthalpies = [_si(row.enthalpy, "specific_energy", where) for row in f.enthalpy_table]
+    for i in range(1, len(temperatures)):
+        if not (temperatures[i] > temperatures[i - 1] and enthalpies[i] > enthalpies[i - 1]):
+            raise InputError(f"rows {i} and {i + 1}: temperature and enthalpy must both rise from row to row "
+                             f"({f.enthalpy_table[i - 1].temperature}, {f.enthalpy_table[i - 1].enthalpy} then "
+                             f"{f.enthalpy_table[i].temperature}, {f.enthalpy_table[i].enthalpy})", where)
+    return EnthalpyTable(f.name, tuple(temperatures), tuple(enthalpies), f.source, T_freeze)
 
 
 def build_problem(ws: Worksheet) -> Problem:

@@ -113,6 +113,10 @@ class Material:
         if not self.t_min - 1e-9 <= T <= self.t_max + 1e-9:
             raise PropertyRangeError(self.name, "temperature", T, self.t_min, self.t_max, "temperature", where)
 
+    def t_max_at(self, P: float) -> float:
+        """The highest temperature of the data at pressure P (most materials: ``t_max`` at any pressure)."""
+        return self.t_max
+
     def extrapolated(self, T: float) -> bool:
         """True when T lies in the extrapolation band of the data."""
         low = self.t_min if self.valid_min is None else self.valid_min
@@ -135,6 +139,11 @@ class _ThreadLocalState(threading.local):
             self.state.set_mass_fractions([fraction])
 
 
+IF97_REGION2_T_MAX = 1073.15  # K: regions 1-3 end here (IAPWS-IF97, p <= 100 MPa)
+IF97_REGION5_T_MAX = 2273.15  # K: region 5, high-temperature steam (IAPWS-IF97)
+IF97_REGION5_P_MAX = 50e6  # Pa: region 5's pressure limit (IAPWS-IF97)
+
+
 class CoolPropFluid(Material):
     """A pure fluid from CoolProp's low-level ``AbstractState`` (one instance per thread, reused).
 
@@ -150,7 +159,9 @@ class CoolPropFluid(Material):
         self._PT = CP.PT_INPUTS
         probe = CP.AbstractState("HEOS", fluid)
         self.t_min = max(probe.Ttriple(), probe.Tmin()) if backend == "HEOS" else 273.15
-        self.t_max = probe.Tmax() if backend == "HEOS" else 1073.15
+        # IF97: regions 1-3 to 1073.15 K at p <= 100 MPa, region 5 to 2273.15 K at p <= 50 MPa (IAPWS-IF97, 2007
+        # revision, section 1); CoolProp's IF97 backend computes region 5 though its Tmax() says 1073.15 K
+        self.t_max = probe.Tmax() if backend == "HEOS" else IF97_REGION5_T_MAX
         self.p_critical = probe.p_critical()
         self.p_triple = probe.trivial_keyed_output(CP.iP_triple)
         self.p_max = probe.pmax() if backend == "HEOS" else 100e6
@@ -187,8 +198,20 @@ class CoolPropFluid(Material):
                 self._transitions[P] = found
         return found
 
+    def t_max_at(self, P: float) -> float:
+        if self.backend == "IF97" and P > IF97_REGION5_P_MAX:
+            return IF97_REGION2_T_MAX
+        return self.t_max
+
     def enthalpy(self, T: float, P: float) -> float:
         EVALUATIONS.count += 1
+        if T > IF97_REGION2_T_MAX and self.backend == "IF97" and P > IF97_REGION5_P_MAX:
+            raise InputError(Phrase("no IAPWS-IF97 data for {name} at {T} and {P}: above {T2} the formulation "
+                                    "(region 5, to {T5}) covers pressures up to {P5} only",
+                                    {"name": self.name, "T": Measure(T, "temperature"), "P": Measure(P, "pressure"),
+                                     "T2": Measure(IF97_REGION2_T_MAX, "temperature"),
+                                     "T5": Measure(IF97_REGION5_T_MAX, "temperature"),
+                                     "P5": Measure(IF97_REGION5_P_MAX, "pressure")}))
         state = self._state()
         try:
             state.update(self._PT, P, T)

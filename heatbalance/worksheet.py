@@ -21,7 +21,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss", "LossSurface", "Insulation", "Humidity", "AirFlow",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -110,24 +110,67 @@ class State(_Model):
 
 
 class PhaseSpec(_Model):
-    """One phase of a user-defined material: cp = a + b·T + c·T² (T in K) up to a transition."""
+    """One phase of a user-defined material: cp = a + b·T + c·T² (T in K) up to a transition, or the phase of
+    the same name of a library material (``from_library``, e.g. water's liquid)."""
 
     name: Literal["solid", "liquid", "vapour"]
-    cp: Quantity = Field(description="constant specific heat, or the constant term a")
+    cp: Quantity | None = Field(default=None, description="constant specific heat, or the constant term a")
     cp_per_kelvin: float = 0.0  # b, in the cp unit per K
     cp_per_kelvin2: float = 0.0  # c, in the cp unit per K²
+    from_library: str | None = Field(default=None, min_length=1, max_length=80)  # a library material's phase
     up_to: Quantity | None = None  # transition temperature to the next phase
     latent_heat: Quantity | None = None  # to the next phase
 
+    @model_validator(mode="after")
+    def _one_source(self):
+        if self.cp is None and self.from_library is None:
+            raise ValueError("a phase needs its cp, or 'from_library' naming the library material whose phase it takes")
+        if self.from_library is not None and (self.cp is not None or self.cp_per_kelvin or self.cp_per_kelvin2):
+            raise ValueError("a phase taken from the library ('from_library') has no cp of its own")
+        return self
+
 
 class UserMaterial(_Model):
-    """A material defined in the worksheet by its cp per phase and transitions."""
+    """A material defined in the worksheet by its cp per phase and transitions.
+
+    ``min_temperature``/``max_temperature`` may be left out where the coldest/hottest phase is a library
+    phase: they default to that phase's data range (the default is shown with the result)."""
 
     name: str = Field(min_length=1, max_length=80)
     phases: list[PhaseSpec] = Field(min_length=1, max_length=3)
-    min_temperature: Quantity
-    max_temperature: Quantity
+    min_temperature: Quantity | None = None
+    max_temperature: Quantity | None = None
     source: str = Field(min_length=1, max_length=300)
+
+
+FOOD_COMPONENTS = ("water", "protein", "fat", "carbohydrate", "fibre", "ash")
+
+
+class EnthalpyPoint(_Model):
+    """One row of an enthalpy table: the specific enthalpy at a temperature (any reference)."""
+
+    temperature: Quantity
+    enthalpy: Quantity
+
+
+class FreezingMaterial(_Model):
+    """A material that freezes over a range (a food, a wet solid): by composition (mass fractions) with its
+    initial freezing point, or by an enthalpy–temperature table (optionally with its initial freezing point)."""
+
+    name: str = Field(min_length=1, max_length=80)
+    composition: dict[Literal[FOOD_COMPONENTS], float] | None = None  # type: ignore[valid-type]
+    initial_freezing_point: Quantity | None = None
+    enthalpy_table: list[EnthalpyPoint] | None = Field(default=None, min_length=2, max_length=200)
+    source: str = Field(min_length=1, max_length=300)
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if (self.composition is None) == (self.enthalpy_table is None):
+            raise ValueError("a freezing-range material is given by its 'composition' or by an 'enthalpy_table', "
+                             "one of the two")
+        if self.composition is not None and self.initial_freezing_point is None:
+            raise ValueError("a material by composition needs its 'initial_freezing_point'")
+        return self
 
 
 class Stream(_Model):
@@ -494,6 +537,7 @@ class Worksheet(_Model):
     tags: SheetTags = SheetTags()
     basis: Basis = Basis()
     materials: list[UserMaterial] = Field(default_factory=list, max_length=50)
+    freezing_materials: list[FreezingMaterial] = Field(default_factory=list, max_length=50)
     common_temperatures: list[CommonTemperature] = Field(default_factory=list, max_length=50)
     streams: list[Stream] = Field(default_factory=list, max_length=500)
     vessels: list[Vessel] = Field(default_factory=list, max_length=50)
@@ -521,7 +565,7 @@ class Worksheet(_Model):
         terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
-                  ("material", [m.name for m in self.materials]), ("case", [c.name for c in self.cases]),
+                  ("material", [m.name for m in (*self.materials, *self.freezing_materials)]), ("case", [c.name for c in self.cases]),
                   ("tolerance address", [t.address for t in self.tolerances]),
                   ("exchanger", [e.name for e in self.exchangers]), ("utility", [u.name for u in self.utilities])]
         groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]

@@ -8,6 +8,7 @@ from iapws import IAPWS97
 
 from heatbalance.balance import solve
 from heatbalance.present.text import answer_text, answer_unit, answer_value
+from handbook import INCROPERA_A1, integrated_cp
 from sheet_factory import build, constant_cp_material, melting_material, q, stream, temp
 
 A = constant_cp_material("liquid A", cp=2.0)
@@ -99,15 +100,21 @@ def test_batch_vessel_with_reaction_losses_and_calibrated_equipment():
 
 
 def test_batch_power_duty_over_a_duration_with_steel_equipment():
-    # hand calculation: 10 kW × 30 min = 18 MJ; heat capacity = 500·4.0 + 200·0.434 = 2086.8 kJ/K
-    # (carbon steel cp 0.434 kJ/(kg·K), Incropera Table A.1, from memory); ΔT = 18 000 / 2086.8 K
+    # hand calculation: 10 kW × 30 min = 18 MJ = 500 kg·4.0 kJ/(kg·K)·ΔT + 200 kg·∫cp_steel dT.
+    # Since issue 13 carbon steel has cp(T) (it was a constant 0.434 kJ/(kg·K), giving ΔT = 18 000 / 2086.8 K);
+    # the reference now integrates Incropera Table A.1 plain carbon steel (tests/handbook.py, from memory).
+    from scipy.optimize import brentq
+
+    def heat(T):
+        return 500 * 4000.0 * (T - 293.15) + 200 * integrated_cp(INCROPERA_A1["carbon steel"], 293.15, T) - 18e6
+
     ws = build(basis={"kind": "batch", "duration": q(30, "min")}, materials=[B],
                vessels=[{"name": "Tank", "charges": [{"name": "Water-like", "material": "liquid B",
                                                       "mass": q(500, "kg"), "initial": temp(20)}],
                          "final": temp(20), "equipment": {"material": "carbon steel", "mass": q(200, "kg")}}],
                duties=[{"name": "Coil", "value": q(10, "kW")}],
                unknowns=[{"kind": "temperature", "line": "Tank", "end": "final"}])
-    assert answer_value(solve(ws).answer) == pytest.approx(20 + 18000 / 2086.8, abs=1e-6)
+    assert answer_value(solve(ws).answer) == pytest.approx(brentq(heat, 293.15, 320.0) - 273.15, abs=1e-6)
 
 
 def test_us_customary_worksheet():

@@ -63,9 +63,10 @@ def test_wrong_dimension():
 
 
 def test_state_outside_the_property_data():
-    streams = [stream("Steam", "water", q(1, "t/h"), temp(200), temp(950))]
-    with pytest.raises(PropertyRangeError, match=r"^streams\[Steam\]\.outlet\.temperature: temperature 950\.00 °C is outside "
-                                                 r"the property data of water \(0\.00 °C to 800\.00 °C\)"):
+    # issue 13: water now reaches 2000 °C (IAPWS-IF97 region 5); before, 950 °C was refused at an 800 °C limit
+    streams = [stream("Steam", "water", q(1, "t/h"), temp(200), temp(2050))]
+    with pytest.raises(PropertyRangeError, match=r"^streams\[Steam\]\.outlet\.temperature: temperature 2050\.00 °C is outside "
+                                                 r"the property data of water \(0\.00 °C to 2000\.00 °C\)"):
         solve_with(streams=streams, unknowns=[{"kind": "duty", "term": "Heater"}])
 
 

@@ -44,7 +44,7 @@ COLUMNS: dict[str, list[str]] = {
                   "vessel"],
     "equipment": ["vessel", "material", "mass", "heat capacity", "initial temperature"],
     "shared": ["name", "temperature"],
-    "materials": ["material", "phase", "cp", "cp per K", "cp per K²", "up to", "latent heat",
+    "materials": ["material", "phase", "from library", "cp", "cp per K", "cp per K²", "up to", "latent heat",
                   "min temperature", "max temperature", "source"],
 }
 TABLES = tuple(COLUMNS)
@@ -305,7 +305,8 @@ def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:
     for m in ws.materials:
         for p in m.phases:
             tables["materials"].append({
-                "material": m.name, "phase": p.name, "cp": format_quantity(p.cp), "cp per K": p.cp_per_kelvin,
+                "material": m.name, "phase": p.name, "from library": p.from_library or "",
+                "cp": format_quantity(p.cp), "cp per K": p.cp_per_kelvin,
                 "cp per K²": p.cp_per_kelvin2, "up to": format_quantity(p.up_to),
                 "latent heat": format_quantity(p.latent_heat), "min temperature": format_quantity(m.min_temperature),
                 "max temperature": format_quantity(m.max_temperature), "source": m.source})
@@ -563,7 +564,9 @@ def _materials(tables, problems) -> list[dict]:
     for index, row in _rows(tables, "materials"):
         r = _Reader("materials", index, row, problems)
         name = r.text("material", required=True)
-        phase = {"name": r.text("phase", required=True), "cp": r.quantity("cp", ("specific_heat",)),
+        library = r.text("from library") or None  # the phase of a library material: no cp of its own
+        phase = {"name": r.text("phase", required=True), "from_library": library,
+                 "cp": r.quantity("cp", ("specific_heat",), required=library is None),
                  "cp_per_kelvin": r.number("cp per K", 0.0), "cp_per_kelvin2": r.number("cp per K²", 0.0),
                  "up_to": r.quantity("up to", ("temperature",), required=False),
                  "latent_heat": r.quantity("latent heat", ("specific_energy",), required=False)}
@@ -571,8 +574,9 @@ def _materials(tables, problems) -> list[dict]:
             r.report("phase", f"'{phase['name']}' is not a phase: solid, liquid or vapour")
         if name not in materials:
             materials[name] = {"name": name, "phases": [],
-                               "min_temperature": r.quantity("min temperature", ("temperature",)),
-                               "max_temperature": r.quantity("max temperature", ("temperature",)),
+                               # may be left out: a library phase at that end brings its range
+                               "min_temperature": r.quantity("min temperature", ("temperature",), required=False),
+                               "max_temperature": r.quantity("max temperature", ("temperature",), required=False),
                                "source": r.text("source", required=True)}
         materials[name]["phases"].append(phase)
     return list(materials.values())
@@ -732,6 +736,7 @@ _FIELD_COLUMNS = {
     "min_temperature": "min temperature", "max_temperature": "max temperature", "source": "source",
     "surface": "heat",  # a computed loss's geometry: its heat cell says "computed"
     "air_flow": "flow",  # humid air's volume flow: its flow cell
+    "from_library": "from library",
 }
 _ENDS = ("inlet", "outlet", "initial", "final")
 

@@ -53,6 +53,7 @@ def _column_config(worksheet: Worksheet) -> dict:
         "initial temperature": text("initial temperature", help="default: the first charge's initial temperature"),
         "temperature": text("temperature", help="? = the unknown"),
         "phase": pick("phase", options=["solid", "liquid", "vapour"]),
+        "from library": text("from library", help="instead of cp: a library material whose phase this is, e.g. water"),
         "cp": text("cp", help="2.1 kJ/(kg*K) or 0.5 Btu/(lb*degF)"),
         "cp per K": number("cp per K", help="b in cp = a + b·T + c·T² (T in K)"),
         "cp per K²": number("cp per K²", help="c in cp = a + b·T + c·T² (T in K)"),
