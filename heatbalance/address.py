@@ -36,7 +36,7 @@ __all__ = ["Input", "item", "parse", "inputs", "get", "with_value", "unknown_add
 
 FRACTION = "fraction"  # the kind of a plain number between 0 and 1
 _COLLECTIONS = {"streams", "vessels", "charges", "duties", "losses", "reactions", "common_temperatures",
-                "materials", "phases", "exchangers", "utilities"}
+                "materials", "phases", "exchangers", "utilities", "mixings"}
 _STATE_ENDS = ("inlet", "outlet", "initial", "final")
 _STEP = re.compile(r"(\w+)(?:\[((?:[^\]\\]|\\.)*)\])?")
 
@@ -142,6 +142,9 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "reactions[].enthalpy": ("molar_energy",),
     "reactions[].conversion": (FRACTION,),
     "reactions[].molar_mass": ("molar_mass",),
+    "mixings[].from_fraction": (FRACTION,),
+    "mixings[].with_fraction": (FRACTION,),
+    "mixings[].to_fraction": (FRACTION,),
     "common_temperatures[].temperature": ("temperature",),
     "materials[].min_temperature": ("temperature",),
     "materials[].max_temperature": ("temperature",),
@@ -173,7 +176,7 @@ def kinds_of(address: str, basis: str = "continuous") -> tuple[str, ...]:
     pattern = _pattern(parse(address))
     if pattern in _FIXED_KINDS:
         return _FIXED_KINDS[pattern]
-    if pattern in ("streams[].flow", "vessels[].charges[].mass"):
+    if pattern in ("streams[].flow", "vessels[].charges[].mass", "mixings[].amount"):
         return basis_kinds("amount", basis)
     if pattern in ("duties[].value", "losses[].value"):
         return basis_kinds("heat", basis)
@@ -269,6 +272,9 @@ def inputs(ws: Worksheet) -> list[Input]:
     for r in ws.reactions:
         for name in ("enthalpy", "amount", "conversion", "molar_mass"):
             add(item("reactions", r.name, name), getattr(r, name))
+    for m in ws.mixings:
+        for name in ("amount", "from_fraction", "with_fraction", "to_fraction"):
+            add(item("mixings", m.name, name), getattr(m, name))
     for e in ws.exchangers:
         for name in ("minimum_approach", "U", "area", "UA"):
             add(item("exchangers", e.name, name), getattr(e, name))
@@ -491,7 +497,7 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
         elif top == "common_temperatures" and u.get("common") == old:
             u["common"] = new
     if path == ["vessels"]:
-        for r in data.get("reactions", []):
+        for r in data.get("reactions", []) + data.get("mixings", []):
             if r.get("vessel") == old:
                 r["vessel"] = new
     if path == ["common_temperatures"]:

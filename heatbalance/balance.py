@@ -21,6 +21,7 @@ from .address import item
 from .errors import HeatBalanceError, InputError, NoSolutionError
 from .materials import get_material
 from .messages import Measure, Phrase
+from .mixing_check import unstated_mixing
 from .problem import EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_problem
 from .properties import IncompressibleSolution, Material, Transition, property_library_versions
 from .results import Answer, LineResult, Result, TermResult
@@ -357,7 +358,7 @@ def _result(p: Problem, fraction: float | None) -> Result:
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
-        + _range_warnings(p, lines)
+        + _range_warnings(p, lines) + unstated_mixing(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,

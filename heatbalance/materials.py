@@ -11,6 +11,7 @@ from functools import lru_cache
 from importlib import resources
 
 from .errors import InputError
+from .mixing import solution_material, solution_names
 from .properties import CoolPropFluid, IncompressibleSolution, Material, Phase, TabulatedMaterial
 
 __all__ = ["PURE_FLUIDS", "SOLUTIONS", "get_material", "solid_table", "catalogue", "MaterialInfo",
@@ -90,6 +91,8 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
         if mass_fraction is None:
             raise InputError(f"{name} needs a mass fraction (0 to {fraction_max:g})")
         return IncompressibleSolution(name, code, mass_fraction, fraction_max)
+    if name in solution_names():  # acids, bases, ammonia in water (heatbalance.mixing)
+        return solution_material(name, mass_fraction)
     for row in solid_table():
         if row["name"] == name:
             return _tabulated(row)
@@ -99,7 +102,7 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
 
 def library_names() -> list[str]:
     """Every material name the library knows."""
-    return [*PURE_FLUIDS, *SOLUTIONS, *(row["name"] for row in solid_table())]
+    return [*PURE_FLUIDS, *SOLUTIONS, *solution_names(), *(row["name"] for row in solid_table())]
 
 
 def get_material(name: str, mass_fraction: float | None = None,
@@ -108,7 +111,8 @@ def get_material(name: str, mass_fraction: float | None = None,
     if user_materials and name in user_materials:
         return user_materials[name]
     try:
-        return _library_material(name, mass_fraction if name in SOLUTIONS else None)
+        takes_fraction = name in SOLUTIONS or name in solution_names()
+        return _library_material(name, mass_fraction if takes_fraction else None)
     except InputError as exc:
         raise InputError(exc.message, where) from None
 
@@ -128,6 +132,9 @@ def catalogue() -> list[MaterialInfo]:
               for name, (fluid, backend) in PURE_FLUIDS.items()]
     solutions = [MaterialInfo(name, "aqueous solution", f"CoolProp incompressible {code}, mass fraction 0-{x:g}")
                  for name, (code, x) in SOLUTIONS.items()]
+    solutions += [MaterialInfo(name, "aqueous solution", f"Laliberté heat capacity via thermo, mass fraction "
+                               f"0-{s.max_fraction:g}; heats of solution table")
+                  for name, s in solution_names().items()]
     tabulated = [MaterialInfo(row["name"], "tabulated solid or simple liquid", row["source"])
                  for row in solid_table()]
     return fluids + solutions + tabulated

@@ -17,6 +17,8 @@ from .address import label as address_label
 from .errors import InputError
 from .materials import get_material
 from .messages import Measure, Phrase
+from .mixing import mixing_heat, solute_named
+from .mixing import sources as heat_sources
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
@@ -27,7 +29,8 @@ __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "Sc
            "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
-    "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
+    "Ideal mixing: no heat of mixing or solution unless stated as a mixing (heats of solution table) or entered "
+    "as a duty.",
     "Losses as entered.",
     "Reaction heat applied at the process temperature (no Kirchhoff correction).",
     "Gauge pressures are relative to the standard atmosphere, 1.01325 bar.",
@@ -95,6 +98,7 @@ class HeatTerm:
     heat: float | None  # + into the process; None: the unknown
     detail: Phrase = field(default_factory=lambda: Phrase(""))
     vessel: str | None = None  # a reaction's vessel, as named
+    solute: str | None = None  # a stated mixing's solute (heatbalance.mixing.SOLUTES)
 
 
 @dataclass
@@ -490,7 +494,27 @@ class _Builder:
             terms.append(HeatTerm(loss.name, "loss", -value, Phrase(f"{loss.value} lost")))
         for r in self.ws.reactions:
             terms.append(self._reaction(r))
+        terms += [self._mixing(m) for m in self.ws.mixings]
         return terms
+
+    def _mixing(self, m) -> HeatTerm:
+        where = item("mixings", m.name)
+        solute = solute_named(m.solute, f"{where}.solute")
+        if m.vessel is not None and m.vessel not in [v.name for v in self.ws.vessels]:
+            raise InputError(f"no vessel called '{m.vessel}' (there are: "
+                             f"{', '.join(v.name for v in self.ws.vessels) or 'none'})", f"{where}.vessel")
+        amount = self.amount(m.amount, f"{where}.amount", False)
+        heat = mixing_heat(solute.name, amount, m.from_fraction, m.with_fraction, m.to_fraction, where)
+        self.assumptions.append(f"{where}: heat of mixing from integral heats of solution at 25 °C applied as "
+                                "entered (each line keeps its own cp; no excess heat capacity). Table: "
+                                + "; ".join(heat_sources(solute.name)) + ".")
+        amount_kind = basis_kinds("amount", self.basis)[0]
+        detail = Phrase("{solute}: {x1} mixed with {mass_b} at {x2} to {x3}; ΔH_s from {h1} to {h3} "
+                        "(integral heats of solution, 25 °C)",
+                        {"solute": solute.formula, "x1": f"{m.from_fraction:.1%}", "x2": f"{m.with_fraction:.1%}",
+                         "x3": f"{m.to_fraction:.1%}", "mass_b": Measure(heat.mass_b, amount_kind),
+                         "h1": Measure(heat.dH1, "molar_energy"), "h3": Measure(heat.dH3, "molar_energy")})
+        return HeatTerm(m.name, "mixing", heat.released, detail, vessel=m.vessel, solute=solute.name)
 
     def _reaction(self, r) -> HeatTerm:
         where = item("reactions", r.name)
