@@ -93,7 +93,7 @@ def _missing(solute: Solute, group: list[LineResult], parts: list[tuple[float, f
         try:
             released, x3 = _released(solute, parts)
         except HeatBalanceError as exc:
-            reason = exc.phrase.text if isinstance(exc.phrase, Phrase) else str(exc.phrase)
+            reason = exc.message
     if reason is not None:
         values["reason"] = reason
         return Phrase("HEAT OF MIXING NOT IN THE BALANCE: {lines} bring {solute} together with water, and no "
