@@ -37,6 +37,7 @@ EXTRA_PANELS = [
     __import__("webapp.uncertainty_panel", fromlist=["panel"]).panel(set_worksheet),  # how sure (uncertainty_panel.py)
     screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
     __import__("webapp.exchanger_panel", fromlist=["panel"]).panel(set_worksheet),  # exchangers, utilities
+    __import__("webapp.mixing_panel", fromlist=["panel"]).panel(set_worksheet),  # heats of mixing (mixing_panel.py)
     __import__("webapp.whatif_panel", fromlist=["panel"]).panel(set_worksheet),  # what if (webapp/whatif_panel.py)
     sharing.panel(replace_worksheet),  # save and share (webapp/sharing.py)
     __import__("webapp.filing_panel", fromlist=["panel"]).panel(),  # the PDF sheet, sign-off (filing_panel.py)

@@ -9,6 +9,8 @@ for the heat of neutralisation. Never silence: a concentration the table cannot 
 """
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 from .address import item
 from .errors import HeatBalanceError
 from .messages import Measure, Phrase
@@ -17,7 +19,7 @@ from .problem import Line, Problem
 from .results import LineResult
 from .units import heat_kind
 
-__all__ = ["unstated_mixing", "mixing_groups"]
+__all__ = ["unstated_mixing", "mixing_groups", "Suggestion", "suggested_mixings"]
 
 
 def mixing_groups(p: Problem) -> list[tuple[str | None, list[int]]]:
@@ -136,3 +138,34 @@ def _neutralisation(p: Problem, vessel: str | None, members: list[int], found: d
     return Phrase("HEAT OF NEUTRALISATION NOT IN THE BALANCE: {lines} bring a strong acid and a strong base together "
                   "and no reaction is stated. Neutralisation releases about {Q} (55.84 kJ per mol of water formed, "
                   "NBS tables), enough to raise these lines by about {rise}; enter it as a reaction.", values, address)
+
+
+@dataclass(frozen=True)
+class Suggestion:
+    """A mixing the lines imply: one solution (``amount_address``) into water, in ``vessel`` (None: streams)."""
+
+    vessel: str | None
+    solute: str
+    amount_address: str
+    from_fraction: float
+    to_fraction: float
+
+
+def suggested_mixings(p: Problem) -> list[Suggestion]:
+    """Each group where one line of a tabled solute (strength known) meets water, with the final strength from
+    the mass balance of the problem's amounts (lines whose amount is the unknown are left out)."""
+    out = []
+    for vessel, members in mixing_groups(p):
+        found = {i: solute_of_material(p.lines[i].material, p.lines[i].material_name) for i in members}
+        water = [i for i in members if p.lines[i].material_name == "water"]
+        carriers = [i for i in members if found[i][0] is not None]
+        if len(carriers) != 1 or not water or found[carriers[0]][1] is None:
+            continue
+        (a,) = carriers
+        amounts = [p.lines[i].amount for i in [a, *water]]
+        if None in amounts or sum(amounts) <= 0:
+            continue
+        x1 = found[a][1]
+        out.append(Suggestion(vessel, found[a][0].name, p.lines[a].amount_address, x1,
+                              round(p.lines[a].amount * x1 / sum(amounts), 6)))
+    return out
