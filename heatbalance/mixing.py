@@ -186,12 +186,16 @@ class MixingHeat:
 
     solute: str
     released: float
+    mass_a: float  # kg (or kg/s) of A
     mass_b: float  # kg (or kg/s) of B the mass balance needs
     moles_a: float
     moles_b: float
     dH1: float
     dH2: float
     dH3: float
+    x1: float
+    x2: float
+    x3: float
 
 
 def mixing_heat(solute: str, mass_a: float, x1: float, x2: float, x3: float, where: str = "") -> MixingHeat:
@@ -233,7 +237,7 @@ def mixing_heat(solute: str, mass_a: float, x1: float, x2: float, x3: float, whe
     mass_b = mass_a * (x1 - x3) / (x3 - x2)
     n_a, n_b = mass_a * x1 / M, mass_b * x2 / M
     dH_mix = (n_a + n_b) * dH3 - n_a * dH1 - n_b * dH2
-    return MixingHeat(solute, -dH_mix, mass_b, n_a, n_b, dH1, dH2, dH3)
+    return MixingHeat(solute, -dH_mix, mass_a, mass_b, n_a, n_b, dH1, dH2, dH3, x1, x2, x3)
 
 
 # --------------------------------------------------------------------------- the solutions' heat capacity

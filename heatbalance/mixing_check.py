@@ -71,14 +71,34 @@ def unstated_mixing(p: Problem, lines: list[LineResult]) -> list[Phrase]:
             fractions = {found[i][1] for i in carriers}
             if not water and len(fractions) < 2:
                 continue
-            if any(t.kind == "mixing" and t.solute == solute.name and t.vessel in (None, vessel) for t in p.terms):
+            if any(t.mixing is not None and t.mixing.solute == solute.name and t.vessel in (None, vessel)
+                   for t in p.terms):
                 continue
             out.append(_missing(solute, [lines[i] for i in carriers + water],
                                 [(lines[i].amount_si, found[i][1]) for i in carriers]
                                 + [(lines[i].amount_si, 0.0) for i in water], kind, total_capacity, address))
+        out += _stated_against_lines(p, vessel, members, found)
         neutralisation = _neutralisation(p, vessel, members, found, lines, kind, total_capacity, address)
         if neutralisation is not None:
             out.append(neutralisation)
+    return out
+
+
+def _stated_against_lines(p: Problem, vessel: str | None, members: list[int], found: dict) -> list[Phrase]:
+    """A stated mixing whose final strength differs from what the group's lines make (mass balance)."""
+    out = []
+    for term in (t for t in p.terms if t.mixing is not None and t.vessel in (None, vessel)):
+        carriers = [i for i in members if found[i][0] is not None and found[i][0].name == term.mixing.solute]
+        waters = [i for i in members if p.lines[i].material_name == "water"]
+        parts = [(p.lines[i].amount, found[i][1]) for i in carriers] + [(p.lines[i].amount, 0.0) for i in waters]
+        if not carriers or any(m is None or x is None for m, x in parts) or sum(m for m, _ in parts) <= 0:
+            continue
+        x3 = sum(m * x for m, x in parts) / sum(m for m, _ in parts)
+        if abs(x3 - term.mixing.x3) > 0.005:
+            out.append(Phrase("The stated mixing {name} ends at {stated}, but the lines mixed here make {made} "
+                              "(mass balance): its heat may not be this balance's. Check its strengths and amount.",
+                              {"name": term.name, "stated": f"{term.mixing.x3:.1%}", "made": f"{x3:.1%}"},
+                              item("mixings", term.name)))
     return out
 
 

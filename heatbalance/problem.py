@@ -17,7 +17,7 @@ from .address import label as address_label
 from .errors import InputError
 from .materials import get_material
 from .messages import Measure, Phrase
-from .mixing import mixing_heat, solute_named
+from .mixing import MixingHeat, mixing_heat, solute_named
 from .mixing import sources as heat_sources
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
@@ -98,7 +98,7 @@ class HeatTerm:
     heat: float | None  # + into the process; None: the unknown
     detail: Phrase = field(default_factory=lambda: Phrase(""))
     vessel: str | None = None  # a reaction's vessel, as named
-    solute: str | None = None  # a stated mixing's solute (heatbalance.mixing.SOLUTES)
+    mixing: MixingHeat | None = None  # a stated mixing: its solute, strengths and amounts (heatbalance.mixing)
 
 
 @dataclass
@@ -514,7 +514,7 @@ class _Builder:
                         {"solute": solute.formula, "x1": f"{m.from_fraction:.1%}", "x2": f"{m.with_fraction:.1%}",
                          "x3": f"{m.to_fraction:.1%}", "mass_b": Measure(heat.mass_b, amount_kind),
                          "h1": Measure(heat.dH1, "molar_energy"), "h3": Measure(heat.dH3, "molar_energy")})
-        return HeatTerm(m.name, "mixing", heat.released, detail, vessel=m.vessel, solute=solute.name)
+        return HeatTerm(m.name, "mixing", heat.released, detail, vessel=m.vessel, mixing=heat)
 
     def _reaction(self, r) -> HeatTerm:
         where = item("reactions", r.name)

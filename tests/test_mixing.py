@@ -293,3 +293,14 @@ def test_a_sweep_over_the_mixed_amount_rebuilds_each_point():
     table = sweep(ws, [Axis(f"{BASE}.amount", [500.0, 1000.0], "kg")], ["answer", "terms[Dilution 98 % to 25 %].heat"])
     heats = table["terms[Dilution 98 % to 25 %].heat"].tolist()
     assert heats[1] == pytest.approx(2 * heats[0])  # linear in the amount of A (same strengths)
+
+
+def test_a_stated_mixing_that_the_lines_do_not_make_is_warned():
+    doc = sample()
+    doc["vessels"][0]["charges"][0]["mass"] = q(2000, "kg")
+    result = solve(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if w.template.startswith("The stated mixing")]
+    # hand calculation: 980 kg of H2SO4 in 1000 + 2000 kg: 32.7 %, not the stated 25.0 %
+    assert "ends at 25.0%, but the lines mixed here make 32.7%" in warning.text
+    assert warning.address == f"{BASE}"
+    assert not any(w.template.startswith("The stated mixing") for w in solve(parse_worksheet(sample())).warnings)
