@@ -94,12 +94,24 @@ def _stated_against_lines(p: Problem, vessel: str | None, members: list[int], fo
         if not carriers or any(m is None or x is None for m, x in parts) or sum(m for m, _ in parts) <= 0:
             continue
         x3 = sum(m * x for m, x in parts) / sum(m for m, _ in parts)
+        where = item("mixings", term.name)
         if abs(x3 - term.mixing.x3) > 0.005:
             out.append(Phrase("The stated mixing {name} ends at {stated}, but the lines mixed here make {made} "
                               "(mass balance): its heat may not be this balance's. Check its strengths and amount.",
-                              {"name": term.name, "stated": f"{term.mixing.x3:.1%}", "made": f"{x3:.1%}"},
-                              item("mixings", term.name)))
+                              {"name": term.name, "stated": f"{term.mixing.x3:.1%}", "made": f"{x3:.1%}"}, where))
+            continue
+        same = [i for i in carriers if abs(found[i][1] - term.mixing.x1) < 1e-9]
+        amount = sum(p.lines[i].amount for i in same)
+        if same and abs(amount - term.mixing.mass_a) > 0.01 * max(amount, term.mixing.mass_a):
+            out.append(Phrase("The stated mixing {name} mixes {stated} of A, but the lines here hold {held} at that "
+                              "strength: its heat is in proportion to the amount of A. Check its amount.",
+                              {"name": term.name, "stated": Measure(term.mixing.mass_a, _amount_kind(p)),
+                               "held": Measure(amount, _amount_kind(p))}, f"{where}.amount"))
     return out
+
+
+def _amount_kind(p: Problem) -> str:
+    return "mass" if p.basis == "batch" else "mass_flow"
 
 
 def _missing(solute: Solute, group: list[LineResult], parts: list[tuple[float, float | None]], kind: str,

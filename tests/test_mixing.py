@@ -304,3 +304,12 @@ def test_a_stated_mixing_that_the_lines_do_not_make_is_warned():
     assert "ends at 25.0%, but the lines mixed here make 32.7%" in warning.text
     assert warning.address == f"{BASE}"
     assert not any(w.template.startswith("The stated mixing") for w in solve(parse_worksheet(sample())).warnings)
+
+
+def test_a_stated_amount_that_the_lines_do_not_hold_is_warned():
+    doc = sample()
+    doc["vessels"][0]["charges"][0]["mass"] = q(5840, "kg")  # twice the water and twice the acid: still 25 %
+    doc["vessels"][0]["charges"][1]["mass"] = q(2000, "kg")
+    (warning,) = [w for w in solve(parse_worksheet(doc)).warnings if w.template.startswith("The stated mixing")]
+    assert warning.address == f"{BASE}.amount"
+    assert "mixes 1,000 kg of A, but the lines here hold 2,000 kg at that strength" in warning.text
