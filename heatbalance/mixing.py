@@ -78,7 +78,8 @@ SOLUTES: dict[str, Solute] = {s.name: s for s in (
     Solute("nitric acid", "HNO3", "7697-37-2", "nitric acid (aq)", 1.0, 278.15, 353.15,
            1744.0, "109.9 J/(mol·K) for HNO3(l) at 25 °C, CRC Handbook, from memory", protons=1,
            words=("nitric", "hno3")),
-    Solute("ammonia", "NH3", "7664-41-7", "ammonia (aq)", 0.30, 260.15, 313.15,
+    # 25 % aqueous ammonia boils at about 38 °C at 1 atm (from memory): kept below that, and no stronger
+    Solute("ammonia", "NH3", "7664-41-7", "ammonia (aq)", 0.25, 260.15, 308.15,
            words=("ammonia", "ammonium hydroxide", "nh3")),
     Solute("potassium hydroxide", "KOH", "1310-58-3", "potassium hydroxide (aq)", 0.46, 277.15, 373.15,
            hydroxides=1, words=("potassium hydroxide", "caustic potash", "koh")),
@@ -277,7 +278,8 @@ class ElectrolyteSolution(Material):
         self.valid_min, self.valid_max = max(fit_low, self.t_min), min(fit_high, self.t_max)
         self.source = (f"Laliberté (J. Chem. Eng. Data 54, 2009) heat capacity via thermo, {solute.formula} "
                        f"w ≤ {w_max:.3g}, {fit_low - 273.15:.0f} to {fit_high - 273.15:.0f} °C")
-        if fraction > w_max:
+        self.bridged = fraction > w_max
+        if self.bridged:
             self.source += (f"; above w = {w_max:.3g} a straight line in w to the pure liquid's cp "
                             f"({solute.cp_pure_source})")
         self.source += "; boiling and gas release not modelled"

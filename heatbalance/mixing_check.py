@@ -57,8 +57,13 @@ def _released(solute: Solute, parts: list[tuple[float, float]]) -> tuple[float, 
 
 
 def unstated_mixing(p: Problem, lines: list[LineResult]) -> list[Phrase]:
-    """A warning per group that mixes a tabled solute with water (or an acid with a base) with no heat stated."""
-    out = []
+    """A warning per group that mixes a tabled solute with water (or an acid with a base) with no heat stated;
+    a stated mixing the lines do not make; a solution's cp taken beyond its fitted strength."""
+    out = [Phrase("{name}: the heat capacity of {material} at {x} lies beyond Laliberté's fitted strength; it is "
+                  "interpolated to the pure liquid's and may be off by several percent.",
+                  {"name": line.name, "material": line.material.name, "x": f"{line.material.fraction:.1%}"},
+                  line.address)
+           for line in p.lines if getattr(line.material, "bridged", False)]
     kind = heat_kind(p.basis)
     for vessel, members in mixing_groups(p):
         found = {i: solute_of_material(p.lines[i].material, p.lines[i].material_name) for i in members}

@@ -313,3 +313,11 @@ def test_a_stated_amount_that_the_lines_do_not_hold_is_warned():
     (warning,) = [w for w in solve(parse_worksheet(doc)).warnings if w.template.startswith("The stated mixing")]
     assert warning.address == f"{BASE}.amount"
     assert "mixes 1,000 kg of A, but the lines here hold 2,000 kg at that strength" in warning.text
+
+
+def test_a_cp_beyond_the_fitted_strength_is_warned():
+    # Laliberté's H2SO4 fit reaches w = 0.9389 (thermo's coefficient table): 98 % is interpolated to the pure acid
+    warnings = solve(parse_worksheet(sample())).warnings
+    (warning,) = [w for w in warnings if "beyond Laliberté's fitted strength" in w.text]
+    assert warning.address == "vessels[D-101].charges[Acid 98 %]"
+    assert "sulfuric acid (aq) at 98.0%" in warning.text
