@@ -37,7 +37,7 @@ __all__ = ["Input", "item", "parse", "inputs", "get", "with_value", "unknown_add
 
 FRACTION = "fraction"  # the kind of a plain number between 0 and 1
 _COLLECTIONS = {"streams", "vessels", "charges", "duties", "losses", "reactions", "common_temperatures",
-                "materials", "phases", "exchangers", "utilities", "freezing_materials"}
+                "materials", "phases", "exchangers", "utilities", "freezing_materials", "mixings"}
 _STATE_ENDS = ("inlet", "outlet", "initial", "final")
 _STEP = re.compile(r"(\w+)(?:\[((?:[^\]\\]|\\.)*)\])?")
 
@@ -143,6 +143,9 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "reactions[].enthalpy": ("molar_energy",),
     "reactions[].conversion": (FRACTION,),
     "reactions[].molar_mass": ("molar_mass",),
+    "mixings[].from_fraction": (FRACTION,),
+    "mixings[].with_fraction": (FRACTION,),
+    "mixings[].to_fraction": (FRACTION,),
     "common_temperatures[].temperature": ("temperature",),
     "materials[].min_temperature": ("temperature",),
     "materials[].max_temperature": ("temperature",),
@@ -194,7 +197,7 @@ def kinds_of(address: str, basis: str = "continuous") -> tuple[str, ...]:
     pattern = _pattern(parse(address))
     if pattern in _FIXED_KINDS:
         return _FIXED_KINDS[pattern]
-    if pattern in ("streams[].flow", "vessels[].charges[].mass"):
+    if pattern in ("streams[].flow", "vessels[].charges[].mass", "mixings[].amount"):
         return basis_kinds("amount", basis)
     if pattern in ("duties[].value", "losses[].value"):
         return basis_kinds("heat", basis)
@@ -303,6 +306,9 @@ def inputs(ws: Worksheet) -> list[Input]:
     for r in ws.reactions:
         for name in ("enthalpy", "amount", "conversion", "molar_mass"):
             add(item("reactions", r.name, name), getattr(r, name))
+    for m in ws.mixings:
+        for name in ("amount", "from_fraction", "with_fraction", "to_fraction"):
+            add(item("mixings", m.name, name), getattr(m, name))
     for e in ws.exchangers:
         for name in ("minimum_approach", "U", "area", "UA"):
             add(item("exchangers", e.name, name), getattr(e, name))
@@ -352,7 +358,7 @@ def with_value(ws: Worksheet, address: str, value) -> Worksheet:
     if field in _STATE_KINDS and field != "pressure" and steps[-2][0] in _STATE_ENDS:
         for other in ("temperature", "vapour_fraction", "solid_fraction", "common"):
             target.pop(other, None)
-    if steps[-2][0] == "humidity":  # a humidity is given one way
+    if len(steps) > 1 and steps[-2][0] == "humidity":  # a humidity is given one way
         for other in HUMIDITY_FORMS:
             target.pop(other, None)
     target[field] = new.model_dump() if isinstance(new, Quantity) else new
@@ -531,7 +537,7 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
         elif top == "common_temperatures" and u.get("common") == old:
             u["common"] = new
     if path == ["vessels"]:
-        for r in data.get("reactions", []):
+        for r in data.get("reactions", []) + data.get("mixings", []):
             if r.get("vessel") == old:
                 r["vessel"] = new
     if path == ["common_temperatures"]:

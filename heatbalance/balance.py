@@ -24,6 +24,7 @@ from .humid_air import HumidAir, humid_air_line
 from .losses import check_service, heat_loss, surface_loss
 from .materials import get_material
 from .messages import Measure, Phrase
+from .mixing_check import unstated_mixing
 from .problem import ComputedLoss, EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_problem
 from .properties import IncompressibleSolution, Material, Transition, property_library_versions
 from .results import Answer, LineResult, Result, TermResult
@@ -474,7 +475,7 @@ def _result(p: Problem, fraction: float | None) -> Result:
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
-        + _range_warnings(p, lines)
+        + _range_warnings(p, lines) + unstated_mixing(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,

@@ -12,6 +12,7 @@ from importlib import resources
 
 from .errors import InputError
 from .humid_air import HUMID_AIR
+from .mixing import solution_material, solution_names
 from .properties import CoolPropFluid, IncompressibleSolution, Material, Phase, TabulatedMaterial
 from .solids import TablePhase, cp_tables
 
@@ -132,6 +133,8 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
                                      _celsius(str(limit_max)), source)
         material.valid_min, material.valid_max = _celsius(str(valid_min)), _celsius(str(valid_max))
         return material
+    if name in solution_names():  # acids, bases, ammonia in water (heatbalance.mixing)
+        return solution_material(name, mass_fraction)
     for row in solid_table():
         if row["name"] == name:
             return _tabulated(row)
@@ -143,7 +146,8 @@ def _library_material(name: str, mass_fraction: float | None) -> Material:
 
 def library_names() -> list[str]:
     """Every material name the library knows."""
-    return [*PURE_FLUIDS, HUMID_AIR, *SOLUTIONS, *CORRELATED_LIQUIDS, *(row["name"] for row in solid_table())]
+    return [*PURE_FLUIDS, HUMID_AIR, *SOLUTIONS, *solution_names(), *CORRELATED_LIQUIDS,
+            *(row["name"] for row in solid_table())]
 
 
 def get_material(name: str, mass_fraction: float | None = None,
@@ -152,7 +156,8 @@ def get_material(name: str, mass_fraction: float | None = None,
     if user_materials and name in user_materials:
         return user_materials[name]
     try:
-        return _library_material(name, mass_fraction if name in SOLUTIONS else None)
+        takes_fraction = name in SOLUTIONS or name in solution_names()
+        return _library_material(name, mass_fraction if takes_fraction else None)
     except InputError as exc:
         raise InputError(exc.message, where) from None
 
@@ -173,6 +178,9 @@ def catalogue() -> list[MaterialInfo]:
     solutions = [MaterialInfo(name, "aqueous solution", f"CoolProp incompressible {code}, mass fraction 0-{x:g}")
                  for name, (code, x) in SOLUTIONS.items()]
     correlated = [MaterialInfo(name, "generic correlation", entry[-1]) for name, entry in CORRELATED_LIQUIDS.items()]
+    solutions += [MaterialInfo(name, "aqueous solution", f"Laliberté heat capacity via thermo, mass fraction "
+                               f"0-{s.max_fraction:g}; heats of solution table")
+                  for name, s in solution_names().items()]
     tabulated = [MaterialInfo(row["name"], "tabulated solid or simple liquid", row["source"])
                  for row in solid_table()]
     humid = [MaterialInfo(HUMID_AIR, "humid air (streams)", "CoolProp HAPropsSI (ASHRAE RP-1485); per kg of dry air")]

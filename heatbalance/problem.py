@@ -21,6 +21,8 @@ from .freezing import BOUND_WATER_PER_PROTEIN, FOOD_T_MIN, EnthalpyTable, FoodBy
 from .library_phases import LibraryPhase, library_phase
 from .materials import get_material
 from .messages import Measure, Phrase
+from .mixing import MixingHeat, mixing_heat, solute_named
+from .mixing import sources as heat_sources
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
 from .units import basis_kinds, kind_of, to_si
@@ -31,7 +33,8 @@ __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "Ja
            "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
-    "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
+    "Ideal mixing: no heat of mixing or solution unless stated as a mixing (heats of solution table) or entered "
+    "as a duty.",
     "Losses as entered.",
     "Reaction heat applied at the process temperature (no Kirchhoff correction).",
     "Gauge pressures are relative to the standard atmosphere, 1.01325 bar.",
@@ -100,6 +103,7 @@ class HeatTerm:
     detail: Phrase = field(default_factory=lambda: Phrase(""))
     vessel: str | None = None  # a reaction's vessel, as named
     computed: ComputedLoss | None = None  # a loss computed from its surface (heat set by the solver)
+    mixing: MixingHeat | None = None  # a stated mixing: its solute, strengths and amounts (heatbalance.mixing)
 
 
 @dataclass
@@ -587,6 +591,7 @@ class _Builder:
             terms.append(HeatTerm(loss.name, "loss", -value, Phrase(f"{loss.value} lost")))
         for r in self.ws.reactions:
             terms.append(self._reaction(r))
+        terms += [self._mixing(m) for m in self.ws.mixings]
         return terms
 
     def _computed_loss(self, loss) -> HeatTerm:
@@ -639,6 +644,25 @@ class _Builder:
         self.assumptions.append(f"{where}: the inside film and the metal wall are neglected (the bare surface, or "
                                 "the insulation's inner face, is at the process temperature).")
         return HeatTerm(loss.name, "loss", 0.0, Phrase("computed from its surface"), computed=computed)
+
+    def _mixing(self, m) -> HeatTerm:
+        where = item("mixings", m.name)
+        solute = solute_named(m.solute, f"{where}.solute")
+        if m.vessel is not None and m.vessel not in [v.name for v in self.ws.vessels]:
+            raise InputError(f"no vessel called '{m.vessel}' (there are: "
+                             f"{', '.join(v.name for v in self.ws.vessels) or 'none'})", f"{where}.vessel")
+        amount = self.amount(m.amount, f"{where}.amount", False)
+        heat = mixing_heat(solute.name, amount, m.from_fraction, m.with_fraction, m.to_fraction, where)
+        self.assumptions.append(f"{where}: heat of mixing from integral heats of solution at 25 °C applied as "
+                                "entered (each line keeps its own cp; no excess heat capacity). Table: "
+                                + "; ".join(heat_sources(solute.name)) + ".")
+        amount_kind = basis_kinds("amount", self.basis)[0]
+        detail = Phrase("{solute}: {x1} mixed with {mass_b} at {x2} to {x3}; ΔH_s from {h1} to {h3} "
+                        "(integral heats of solution, 25 °C)",
+                        {"solute": solute.formula, "x1": f"{m.from_fraction:.1%}", "x2": f"{m.with_fraction:.1%}",
+                         "x3": f"{m.to_fraction:.1%}", "mass_b": Measure(heat.mass_b, amount_kind),
+                         "h1": Measure(heat.dH1, "molar_energy"), "h3": Measure(heat.dH3, "molar_energy")})
+        return HeatTerm(m.name, "mixing", heat.released, detail, vessel=m.vessel, mixing=heat)
 
     def _reaction(self, r) -> HeatTerm:
         where = item("reactions", r.name)

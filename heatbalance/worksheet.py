@@ -21,7 +21,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss", "LossSurface", "Insulation", "Humidity", "AirFlow",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
+    "Reaction", "Mixing", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -358,6 +358,22 @@ class Reaction(_Model):
         return self
 
 
+class Mixing(_Model):
+    """A stated mixing: ``amount`` of solution A (solute mass fraction ``from_fraction``) mixed with B
+    (``with_fraction``, 0 = water) to ``to_fraction``. Its heat (from integral heats of solution, see
+    :mod:`heatbalance.mixing`) enters the balance as its own line. ``solute``: a name or formula of the table
+    (``sulfuric acid``, ``NaOH``); ``amount``: A's mass (batch) or mass flow; ``vessel``: where it happens.
+    """
+
+    name: str = Field(min_length=1, max_length=80)
+    solute: str = Field(min_length=1, max_length=80)
+    amount: Quantity
+    from_fraction: float = Field(ge=0.0, le=1.0)
+    with_fraction: float = Field(default=0.0, ge=0.0, le=1.0)
+    to_fraction: float = Field(ge=0.0, le=1.0)
+    vessel: str | None = None
+
+
 class CommonTemperature(_Model):
     """A temperature shared by several states (lines that end mixed in one outlet)."""
 
@@ -544,6 +560,7 @@ class Worksheet(_Model):
     duties: list[Duty] = Field(default_factory=list, max_length=100)
     losses: list[Loss] = Field(default_factory=list, max_length=100)
     reactions: list[Reaction] = Field(default_factory=list, max_length=50)
+    mixings: list[Mixing] = Field(default_factory=list, max_length=50)
     unknowns: list[Unknown] = Field(default_factory=list, max_length=10)
     cases: list[Case] = Field(default_factory=list, max_length=50)
     tolerances: list[Tolerance] = Field(default_factory=list, max_length=500)
@@ -562,7 +579,7 @@ class Worksheet(_Model):
     @model_validator(mode="after")
     def _unique_names(self):
         names = [s.name for s in self.streams] + [v.name for v in self.vessels]
-        terms = [t.name for t in (*self.duties, *self.losses, *self.reactions)]
+        terms = [t.name for t in (*self.duties, *self.losses, *self.reactions, *self.mixings)]
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
                   ("material", [m.name for m in (*self.materials, *self.freezing_materials)]), ("case", [c.name for c in self.cases]),

@@ -22,7 +22,8 @@ HEAT_OUT_COLOUR = "#2f6690"  # slate blue: heat taken up or removed
 CLOSING_COLOUR = "#6c757d"  # grey: the closing bar
 CLOSING_LABEL = "Sum (closes at 0)"
 
-_KIND_WORDS = {"duty": "duty", "loss": "loss", "reaction": "reaction heat", "equipment": "equipment",
+_KIND_WORDS = {"duty": "duty", "loss": "loss", "reaction": "reaction heat", "mixing": "heat of mixing",
+               "equipment": "equipment",
                "stream": "stream", "charge": "vessel charge"}
 
 

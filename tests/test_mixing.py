@@ -1,0 +1,323 @@
+"""Heats of solution, dilution and neutralisation (heatbalance.mixing), the stated mixing in the balance, and the
+loud warning when a tabled solute meets water with no heat stated (heatbalance.mixing_check)."""
+import csv
+import hashlib
+import json
+from importlib import resources
+
+import pytest
+
+from heatbalance.address import inputs, rename, with_value
+from heatbalance.balance import solve
+from heatbalance.errors import HeatBalanceError, InputError, WorksheetFormatError
+from heatbalance.materials import get_material
+from heatbalance.mixing import (NEUTRALISATION_J_PER_MOL, SOLUTES, TABLE_FILE, integral_heat, mixing_heat,
+                                solute_named)
+from heatbalance.present.report import format_result, result_json
+from heatbalance.worksheet import parse_worksheet
+from sheet_factory import build, constant_cp_material, q, sheet, stream, temp
+
+M_WATER = 18.015  # g/mol
+
+
+def fraction(M: float, n: float) -> float:
+    """Solute mass fraction of n mol water per mol solute of molar mass M [g/mol]."""
+    return M / (M + n * M_WATER)
+
+
+# --------------------------------------------------------------------------- the shipped table
+def test_table_is_pinned_and_every_row_names_its_source():
+    """A silent edit of the shipped table fails here: update the checksum only with a reviewed change."""
+    with resources.files("heatbalance").joinpath("data", TABLE_FILE).open(encoding="utf-8") as handle:
+        rows = list(csv.DictReader(handle))
+    assert len(rows) == 66 and len(rows[0]) == 7
+    assert all(row["source"].strip() for row in rows)
+    assert {row["formula"] for row in rows} == {"H2SO4", "NaOH", "HCl", "HNO3", "NH3", "KOH"}
+    column = ",".join(row["integral_heat_kJ_mol"] for row in rows)
+    assert hashlib.sha256(column.encode()).hexdigest()[:16] == "30594757ec24c507", TABLE_FILE
+
+
+@pytest.mark.parametrize("solute, M, n, expected", [
+    # Felder & Rousseau, Elementary Principles of Chemical Processes, 3rd ed., Table B.11, 25 °C (from memory)
+    ("sulfuric acid", 98.079, 1, -28.07),
+    ("sulfuric acid", 98.079, 5, -58.03),
+    ("sulfuric acid", 98.079, 10, -67.03),
+    ("sulfuric acid", 98.079, 100, -73.97),
+    ("sodium hydroxide", 39.997, 5, -37.74),
+    ("sodium hydroxide", 39.997, 10, -42.51),
+    # CRC Handbook, Enthalpy of Dilution of Acids (Parker 1965): ΔsolH∞(HCl, g) −74.84 + (−ΔdilH) at the molality
+    ("hydrogen chloride", 36.461, 55.51, -74.84 + 1.695),  # 1 mol/kg
+    ("hydrogen chloride", 36.461, 5.551, -74.84 + 10.24),  # 10 mol/kg
+    ("hydrogen chloride", 36.461, 1.0, -74.84 + 45.61),  # 55.506 mol/kg
+    # same table, nitric acid: ΔsolH∞(HNO3, l) −33.28 (CRC Enthalpy of Solution of Electrolytes)
+    ("nitric acid", 63.013, 2.775, -33.28 + 9.498),  # 20 mol/kg
+    ("nitric acid", 63.013, 13.88, -33.28 + 0.958),  # 4 mol/kg
+])
+def test_integral_heats_at_tabulated_concentrations(solute, M, n, expected):
+    assert integral_heat(solute, fraction(M, n)) / 1e3 == pytest.approx(expected, abs=0.005)
+
+
+@pytest.mark.parametrize("solute, expected, rel", [
+    ("sulfuric acid", -96.19, 0.01),  # Table B.11 ∞; NBS 1982 ΔfH H2SO4(l) −813.99, SO4²⁻(aq) −909.27: −95.28 (from memory)
+    ("hydrogen chloride", -74.85, 0.001),  # NBS 1982 ΔfH HCl(g) −92.31, Cl⁻(aq) −167.16 (from memory)
+    # CRC (Parker 1965) −44.51; the table's Felder/NBS Circular 500 (1952) value −42.89 is 3.6 % smaller
+    ("sodium hydroxide", -44.51, 0.04),
+    ("nitric acid", -33.28, 0.001),  # CRC Enthalpy of Solution of Electrolytes (Parker 1965)
+    ("potassium hydroxide", -57.61, 0.001),  # same CRC table
+    ("ammonia", -35.35, 0.001),  # Vanderzee & King 1972: −8448 cal_th/mol (non-ionised)
+])
+def test_infinite_dilution_against_independent_values(solute, expected, rel):
+    assert integral_heat(solute, 0.0) / 1e3 == pytest.approx(expected, rel=rel)
+
+
+def test_between_rows_the_table_is_interpolated_in_mole_fraction():
+    # hand calculation: 25 % H2SO4 is n = (75/18.015)/(25/98.079) = 16.33, z = 1/17.33 = 0.05770; between
+    # n = 10 (z = 0.09091, −67.03) and n = 25 (z = 0.03846, −72.31): −67.03 − 0.633 × 5.28 = −70.37 kJ/mol
+    assert integral_heat("sulfuric acid", 0.25) / 1e3 == pytest.approx(-70.37, abs=0.01)
+
+
+def test_neutralisation_heat_from_heats_of_formation():
+    from chemicals.reaction import Hfl
+
+    # H+(aq) + OH−(aq) -> H2O(l): ΔfH° OH−(aq) = −229.99 kJ/mol (NBS 1982, from memory), H+(aq) = 0 by convention,
+    # H2O(l) from the chemicals package's table
+    assert NEUTRALISATION_J_PER_MOL == pytest.approx(Hfl("7732-18-5") - (-229.99e3), abs=60)
+    assert -57.3e3 <= NEUTRALISATION_J_PER_MOL <= -55.8e3  # measured 55.8–57.3 kJ/mol (the brief's range)
+
+
+def test_mixing_heat_of_a_dilution_by_hand():
+    # hand calculation: 1000 kg of 98 % H2SO4 = 9,991.9 mol; 98 % is n = 0.1112, z = 0.9, 30 % of the way from the
+    # pure acid (0) to n = 0.5 (−15.73): −4.719 kJ/mol; 25 %: −70.37 kJ/mol; released 9,991.9 × 65.655 = 656.0 MJ;
+    # water by mass balance 1000 × (0.98 − 0.25)/0.25 = 2,920 kg
+    heat = mixing_heat("sulfuric acid", 1000.0, 0.98, 0.0, 0.25)
+    assert heat.released == pytest.approx(656.0e6, rel=1e-3)
+    assert heat.mass_b == pytest.approx(2920.0)
+
+
+def test_solution_heat_capacity_is_laliberte_and_meets_water_at_zero():
+    # IAPWS-95 via the iapws package (independent of the Laliberté water term): cp(25 °C, 1 atm) = 4.1813 kJ/(kg·K)
+    from iapws import IAPWS95
+
+    water = IAPWS95(T=298.15, P=0.101325)
+    dilute = get_material("sulfuric acid (aq)", 0.0)
+    assert (dilute.enthalpy(298.65, 1e5) - dilute.enthalpy(297.65, 1e5)) / 1e3 == pytest.approx(water.cp, rel=2e-3)
+    # 20 % H2SO4 at 20-25 °C: 3.52 kJ/(kg·K) (Perry's, heat capacities of aqueous sulfuric acid, from memory)
+    acid = get_material("sulfuric acid (aq)", 0.20)
+    assert acid.cp(298.15) / 1e3 == pytest.approx(3.52, rel=0.03)
+
+
+# --------------------------------------------------------------------------- in the balance
+SAMPLE = "sample_data/acid_dilution_jacketed_vessel.json"
+
+
+def sample(**changes) -> dict:
+    with open(SAMPLE, encoding="utf-8") as handle:
+        doc = json.load(handle)
+    doc.update(changes)
+    return doc
+
+
+def adiabatic(doc: dict) -> dict:
+    doc = dict(doc, duties=[], unknowns=[{"kind": "temperature", "line": "D-101", "end": "final"}])
+    return doc
+
+
+def test_dilution_solved_to_its_final_temperature():
+    result = solve(parse_worksheet(adiabatic(sample())))
+    # hand calculation: heat capacities water 2920 × 4.18 = 12,206 kJ/K (common practice), 98 % acid 1000 × 1.50
+    # = 1,500 kJ/K (Laliberté bridged to the pure acid, as shipped), steel 4500 × 0.434 = 1,953 kJ/K (Incropera
+    # A.1); 656,021 kJ released: T = (656,021 + 12,206×20 + 1,500×25 + 1,953×20)/15,659 = 62.4 °C
+    assert result.answer.value_si - 273.15 == pytest.approx(62.4, abs=0.3)
+    (mixing,) = [t for t in result.terms if t.kind == "mixing"]
+    assert mixing.heat / 1e3 == pytest.approx(656_021, rel=1e-4)
+    assert not any("HEAT OF MIXING" in w.text for w in result.warnings)
+
+
+def test_jacket_duty_of_the_sample():
+    result = solve(parse_worksheet(sample()))
+    # hand calculation with the heat capacities above: 12,206×20 + 1,500×15 + 1,953×20 − 656,021 = −350,341 kJ
+    assert result.answer.value_si / 1e3 == pytest.approx(-350_341, rel=1e-3)
+
+
+def test_warning_fires_with_an_estimate_when_no_mixing_is_stated():
+    doc = adiabatic(sample())
+    doc.pop("mixings")
+    result = solve(parse_worksheet(doc))
+    # without the heat of dilution the classic wrong answer: the mixture barely warms (20.5 °C)
+    assert result.answer.value_si - 273.15 == pytest.approx(20.5, abs=0.2)
+    (warning,) = [w for w in result.warnings if "HEAT OF MIXING NOT IN THE BALANCE" in w.text]
+    assert warning.address == "vessels[D-101]"
+    assert warning.values["Q"].value / 1e3 == pytest.approx(656_021, rel=1e-3)  # the hand calculation above
+    # 656,021 kJ over the lines' 12,206 + 1,500 kJ/K (no vessel): about 47.9 K
+    assert warning.values["rise"].value == pytest.approx(47.9, abs=0.5)
+    assert "(to about 25.0%)" in warning.text
+
+
+def test_no_warning_for_solutions_without_a_tabled_solute():
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "T-1", "charges": [
+                   {"name": "Water", "material": "water", "mass": q(100, "kg"), "initial": temp(20)},
+                   {"name": "Glycol", "material": "ethylene glycol (aq)", "mass_fraction": 0.5, "mass": q(100, "kg"),
+                    "initial": temp(30)}], "final": temp(25)}],
+               duties=[{"name": "Q"}], unknowns=[{"kind": "duty", "term": "Q"}])
+    assert not any("NOT IN THE BALANCE" in w.text for w in solve(ws).warnings)
+
+
+def test_streams_to_a_shared_outlet_warn_too():
+    ws = build(common_temperatures=[{"name": "Mix"}],
+               streams=[stream("Caustic", "sodium hydroxide (aq)", q(1, "t/h"), temp(25), {"common": "Mix"},
+                               mass_fraction=0.30),
+                        stream("Dilution water", "water", q(2, "t/h"), temp(25), {"common": "Mix"})],
+               unknowns=[{"kind": "temperature", "common": "Mix"}])
+    (warning,) = [w for w in solve(ws).warnings if "HEAT OF MIXING" in w.text]
+    # hand calculation: 30 % NaOH is n = 5.185, 10 % is n = 19.98 (x3 = 300/3000); from Table B.11 rows
+    # n = 5 (−37.74), 10 (−42.51), 20 (−42.84): ΔH_s(30 %) = −38.04, ΔH_s(10 %) = −42.84 kJ/mol;
+    # 300 kg/h / 39.997 = 7,500 mol/h × 4.80 kJ/mol = 36.0 MJ/h = 10.0 kW
+    assert warning.values["Q"].value == pytest.approx(10.0e3, rel=0.02)
+    assert warning.address == "streams[Caustic]"
+
+
+def test_a_worksheet_material_named_for_a_solute_warns_without_an_estimate():
+    acid = constant_cp_material("sulfuric acid 98 %", cp=1.47)
+    ws = build(basis={"kind": "batch"}, materials=[acid],
+               vessels=[{"name": "D-1", "charges": [
+                   {"name": "Water", "material": "water", "mass": q(300, "kg"), "initial": temp(20)},
+                   {"name": "Acid", "material": "sulfuric acid 98 %", "mass": q(100, "kg"), "initial": temp(20)}],
+                   "final": temp(30)}],
+               duties=[{"name": "Q"}], unknowns=[{"kind": "duty", "term": "Q"}])
+    (warning,) = [w for w in solve(ws).warnings if "HEAT OF MIXING" in w.text]
+    assert "could not be estimated" in warning.text and "strength of a worksheet material" in warning.text
+
+
+def neutralisation_sheet(**extra) -> dict:
+    return sheet(basis={"kind": "batch"},
+                 vessels=[{"name": "N-1", "charges": [
+                     {"name": "Acid", "material": "sulfuric acid (aq)", "mass_fraction": 0.10, "mass": q(100, "kg"),
+                      "initial": temp(20)},
+                     {"name": "Caustic", "material": "sodium hydroxide (aq)", "mass_fraction": 0.10,
+                      "mass": q(100, "kg"), "initial": temp(20)}], "final": temp(30)}],
+                 duties=[{"name": "Q"}], unknowns=[{"kind": "duty", "term": "Q"}], **extra)
+
+
+def test_acid_meeting_base_warns_of_the_heat_of_neutralisation():
+    result = solve(parse_worksheet(neutralisation_sheet()))
+    (warning,) = [w for w in result.warnings if "NEUTRALISATION" in w.text]
+    # hand calculation: H+ 10 kg / 98.079 × 2 = 203.9 mol; OH− 10 kg / 39.997 = 250.0 mol; 203.9 × 55.84 = 11.39 MJ
+    assert warning.values["Q"].value == pytest.approx(11.39e6, rel=1e-3)
+
+
+def test_a_stated_reaction_silences_the_neutralisation_warning():
+    doc = neutralisation_sheet(reactions=[{"name": "Neutralisation", "enthalpy": q(-55.84, "kJ/mol"),
+                                           "amount": q(203.9, "mol"), "vessel": "N-1"}])
+    assert not any("NEUTRALISATION" in w.text for w in solve(parse_worksheet(doc)).warnings)
+
+
+def test_report_and_json_carry_the_mixing_line_and_its_source():
+    result = solve(parse_worksheet(sample()))
+    report = format_result(result)
+    assert "Dilution 98 % to 25 %  mixing" in report
+    assert "Table B.11" in report  # the table's source, in the assumptions
+    data = result_json(result)
+    (term,) = [t for t in data["terms"] if t["kind"] == "mixing"]
+    assert term["detail"].startswith("H2SO4: 98.0% mixed with 2,920 kg at 0.0% to 25.0%")
+    assert any("Felder & Rousseau" in a for a in data["assumptions"])
+
+
+# --------------------------------------------------------------------------- addresses and refusals
+def test_mixing_inputs_have_addresses_and_follow_a_vessel_rename():
+    ws = parse_worksheet(sample())
+    addresses = {i.address for i in inputs(ws)}
+    base = "mixings[Dilution 98 % to 25 %]"
+    assert {f"{base}.amount", f"{base}.from_fraction", f"{base}.with_fraction", f"{base}.to_fraction"} <= addresses
+    changed = with_value(ws, f"{base}.to_fraction", 0.30)
+    assert changed.mixings[0].to_fraction == 0.30
+    assert rename(ws, "vessels[D-101]", "D-102").mixings[0].vessel == "D-102"
+
+
+def refusal(mixing: dict) -> HeatBalanceError:
+    doc = sample()
+    doc["mixings"] = [dict(doc["mixings"][0], **mixing)]
+    with pytest.raises(HeatBalanceError) as caught:
+        solve(parse_worksheet(doc))
+    return caught.value
+
+
+BASE = "mixings[Dilution 98 % to 25 %]"
+
+
+@pytest.mark.parametrize("change, where, words", [
+    ({"to_fraction": 0.99}, f"{BASE}.to_fraction", "must lie strictly between those of A (0.98) and B (0)"),
+    ({"to_fraction": 0.0}, f"{BASE}.to_fraction", "must lie strictly between"),
+    ({"solute": "unobtainium"}, f"{BASE}.solute", "no heats of solution for 'unobtainium'; the table has: sulfuric"),
+    ({"solute": "NaOH", "from_fraction": 0.5}, f"{BASE}.from_fraction",
+     "50.0% sodium hydroxide is more concentrated than the heats-of-solution table reaches (42.5%, 3 mol water"),
+    ({"amount": q(-5, "kg")}, f"{BASE}.amount", "cannot be negative"),
+    ({"amount": q(5, "kW")}, f"{BASE}.amount", ""),
+    ({"vessel": "D-999"}, f"{BASE}.vessel", "no vessel called 'D-999' (there are: D-101)"),
+])
+def test_every_refusal_names_the_address(change, where, words):
+    error = refusal(change)
+    assert isinstance(error, InputError)
+    assert error.where == where
+    assert words in error.message
+
+
+def test_a_fraction_outside_zero_to_one_is_refused_by_the_loader():
+    doc = sample()
+    doc["mixings"][0]["from_fraction"] = 1.5
+    with pytest.raises(WorksheetFormatError) as caught:
+        parse_worksheet(doc)
+    assert caught.value.where == f"{BASE}.from_fraction"
+
+
+def test_a_catalogue_solution_beyond_its_heat_capacity_data_is_refused_at_the_line():
+    doc = sample()
+    doc["vessels"][0]["charges"][1].update(material="hydrochloric acid (aq)", mass_fraction=0.36)
+    with pytest.raises(InputError) as caught:
+        solve(parse_worksheet(doc))
+    assert caught.value.where == "vessels[D-101].charges[Acid 98 %].material"
+    assert "hydrochloric acid (aq) is modelled from 0 to 0.065 mass fraction" in caught.value.message
+
+
+def test_solute_names_and_formulas():
+    assert solute_named("H2SO4") is SOLUTES["sulfuric acid"]
+    assert solute_named("caustic") is SOLUTES["sodium hydroxide"]
+    with pytest.raises(InputError, match="the table has"):
+        solute_named("salt", "mixings[X].solute")
+
+
+def test_a_sweep_over_the_mixed_amount_rebuilds_each_point():
+    from heatbalance.analyses.sweep import Axis, sweep
+
+    ws = parse_worksheet(sample())
+    table = sweep(ws, [Axis(f"{BASE}.amount", [500.0, 1000.0], "kg")], ["answer", "terms[Dilution 98 % to 25 %].heat"])
+    heats = table["terms[Dilution 98 % to 25 %].heat"].tolist()
+    assert heats[1] == pytest.approx(2 * heats[0])  # linear in the amount of A (same strengths)
+
+
+def test_a_stated_mixing_that_the_lines_do_not_make_is_warned():
+    doc = sample()
+    doc["vessels"][0]["charges"][0]["mass"] = q(2000, "kg")
+    result = solve(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if w.template.startswith("The stated mixing")]
+    # hand calculation: 980 kg of H2SO4 in 1000 + 2000 kg: 32.7 %, not the stated 25.0 %
+    assert "ends at 25.0%, but the lines mixed here make 32.7%" in warning.text
+    assert warning.address == f"{BASE}"
+    assert not any(w.template.startswith("The stated mixing") for w in solve(parse_worksheet(sample())).warnings)
+
+
+def test_a_stated_amount_that_the_lines_do_not_hold_is_warned():
+    doc = sample()
+    doc["vessels"][0]["charges"][0]["mass"] = q(5840, "kg")  # twice the water and twice the acid: still 25 %
+    doc["vessels"][0]["charges"][1]["mass"] = q(2000, "kg")
+    (warning,) = [w for w in solve(parse_worksheet(doc)).warnings if w.template.startswith("The stated mixing")]
+    assert warning.address == f"{BASE}.amount"
+    assert "mixes 1,000 kg of A, but the lines here hold 2,000 kg at that strength" in warning.text
+
+
+def test_a_cp_beyond_the_fitted_strength_is_warned():
+    # Laliberté's H2SO4 fit reaches w = 0.9389 (thermo's coefficient table): 98 % is interpolated to the pure acid
+    warnings = solve(parse_worksheet(sample())).warnings
+    (warning,) = [w for w in warnings if "beyond Laliberté's fitted strength" in w.text]
+    assert warning.address == "vessels[D-101].charges[Acid 98 %]"
+    assert "sulfuric acid (aq) at 98.0%" in warning.text

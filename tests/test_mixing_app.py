@@ -1,0 +1,61 @@
+"""The heats-of-mixing panel on the page (AppTest): a stated mixing listed with its heat, a mixing stated from the
+form (defaults from the lines) entering the worksheet, a refusal shown with its address and not written, removal."""
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from heatbalance.worksheet import parse_worksheet
+from page_helpers import ROOT, held, page, sample
+from webapp.mixing_panel import KEYS
+
+SAMPLE = "acid_dilution_jacketed_vessel.json"
+
+
+def unstated():
+    doc = json.loads((ROOT / "sample_data" / SAMPLE).read_text(encoding="utf-8"))
+    doc.pop("mixings")
+    return parse_worksheet(doc)
+
+
+def test_stated_mixing_is_listed_with_its_heat():
+    at = page(sample(SAMPLE))
+    assert not at.exception
+    assert "Heats of mixing" in [s.value for s in at.subheader]
+    rows = next(d.value for d in at.dataframe if "heat into process" in d.value.columns)
+    assert list(rows["name"]) == ["Dilution 98 % to 25 %"]
+    # 656,021 kJ released (hand calculation in test_mixing.py)
+    assert list(rows["heat into process"]) == ["656,020.83 kJ"]
+
+
+def test_form_starts_from_the_lines_and_states_the_mixing():
+    at = page(unstated())
+    assert not at.exception
+    # the lines imply 1000 kg of 98 % acid into 2920 kg of water: 25 % (mass balance)
+    assert at.session_state[KEYS["from"]] == pytest.approx(98.0)
+    assert at.session_state[KEYS["to"]] == pytest.approx(25.0)
+    assert at.session_state[KEYS["unit"]] == "kg"
+    at.button(key=KEYS["save"]).click().run()
+    assert not at.exception
+    (mixing,) = held(at).mixings
+    assert (mixing.solute, mixing.from_fraction, mixing.to_fraction, mixing.vessel) == \
+        ("sulfuric acid", 0.98, 0.25, "D-101")
+    assert str(mixing.amount) == "1000 kg"
+
+
+def test_a_refused_statement_names_its_address_and_is_not_written():
+    at = page(unstated())
+    at.number_input(key=KEYS["to"]).set_value(99.0)
+    at.button(key=KEYS["save"]).click().run()
+    assert not at.exception
+    assert held(at).mixings == []
+    errors = " ".join(e.value for e in at.error)
+    assert "must lie strictly between" in errors and "mixings\\[Dilution\\]\\.to\\_fraction" in errors
+
+
+def test_remove_a_stated_mixing():
+    at = page(sample(SAMPLE))
+    at.button(key=KEYS["remove"]).click().run()
+    assert not at.exception
+    assert held(at).mixings == []
