@@ -159,6 +159,8 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "utilities[].return_limit": ("temperature",),
     "utilities[].mass_fraction": (FRACTION,),
     "operating_hours": ("duration",),
+    "atmosphere.barometric_pressure": ("pressure",),
+    "atmosphere.altitude": ("length",),
 }
 _STATE_KINDS = {"temperature": ("temperature",), "pressure": ("pressure",), "vapour_fraction": (FRACTION,),
                 "solid_fraction": (FRACTION,)}
@@ -232,6 +234,8 @@ def inputs(ws: Worksheet) -> list[Input]:
             add(f"{prefix}.{name}", getattr(s, name))
 
     add("basis.duration", ws.basis.duration)
+    add("atmosphere.barometric_pressure", ws.atmosphere.barometric_pressure)
+    add("atmosphere.altitude", ws.atmosphere.altitude)
     for m in ws.materials:
         add(item("materials", m.name, "min_temperature"), m.min_temperature)
         add(item("materials", m.name, "max_temperature"), m.max_temperature)
@@ -305,7 +309,8 @@ def _as_value(value, kinds: tuple[str, ...], address: str):
 def with_value(ws: Worksheet, address: str, value) -> Worksheet:
     """A copy of the worksheet with the input at ``address`` set to ``value`` (in any unit of its kind).
 
-    A state's temperature replaces a phase fraction or shared temperature given there (and the reverse).
+    A state's temperature replaces a phase fraction or shared temperature given there (and the reverse); the
+    site's altitude replaces its barometric pressure (and the reverse).
     """
     steps = parse(address)
     kinds = kinds_of(address, ws.basis.kind)
@@ -318,6 +323,8 @@ def with_value(ws: Worksheet, address: str, value) -> Worksheet:
     if field in _STATE_KINDS and field != "pressure" and steps[-2][0] in _STATE_ENDS:
         for other in ("temperature", "vapour_fraction", "solid_fraction", "common"):
             target.pop(other, None)
+    if steps[0][0] == "atmosphere":  # the site is given one way: a pressure or an altitude
+        target.pop("barometric_pressure", None), target.pop("altitude", None)
     target[field] = new.model_dump() if isinstance(new, Quantity) else new
     try:
         return parse_worksheet(data)

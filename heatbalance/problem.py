@@ -19,19 +19,18 @@ from .materials import get_material
 from .messages import Measure, Phrase
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
-from .units import basis_kinds, kind_of, to_si
+from .units import ATMOSPHERE, basis_kinds, is_gauge, kind_of, standard_atmosphere_pressure, to_si
 from .worksheet import Quantity, State, Unknown, UserMaterial, Worksheet
 
 __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
-           "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
+           "build_problem", "basis_si", "typed_si", "site_atmosphere", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
     "Losses as entered.",
     "Reaction heat applied at the process temperature (no Kirchhoff correction).",
-    "Gauge pressures are relative to the standard atmosphere, 1.01325 bar.",
-]
+]  # and the reference of gauge pressures, with the site's value (site_atmosphere)
 
 
 # --------------------------------------------------------------------------- the problem model
@@ -162,6 +161,7 @@ class UtilityInputs:
     per: str = "GJ"
     co2_kg_per_GJ: float = 0.0
     source: str = "site value"
+    flash_P: float = ATMOSPHERE  # Pa: where condensate flashes to, the site's barometric pressure
 
     @property
     def address(self) -> str:
@@ -187,23 +187,54 @@ class Problem:
     vessels: list[str] = field(default_factory=list)
     screening: dict[str, ScreeningInputs] = field(default_factory=dict)  # vessel -> its inputs
     warnings: list[Phrase] = field(default_factory=list)
-    assumptions: list[str] = field(default_factory=list)
+    assumptions: list[str | Phrase] = field(default_factory=list)
     duration: float | None = None  # s, the batch duration a rate is applied over
     exchangers: list[ExchangerInputs] = field(default_factory=list)
     utilities: list[UtilityInputs] = field(default_factory=list)
     operating_hours: float | None = None  # s per year
     currency: str = "EUR"
+    atmosphere: float = ATMOSPHERE  # Pa: the site's barometric pressure, the reference of every gauge pressure
 
 
 # --------------------------------------------------------------------------- building
-def _si(q: Quantity, kind: str, where: str) -> float:
-    return to_si(q.value, q.unit, kind, where)
+def _si(q: Quantity, kind: str, where: str, atmosphere: float = ATMOSPHERE) -> float:
+    return to_si(q.value, q.unit, kind, where, gauge_reference=atmosphere)
 
 
-def typed_si(value: float, unit: str, kind: str, where: str) -> float:
+def typed_si(value: float, unit: str, kind: str, where: str, atmosphere: float = ATMOSPHERE) -> float:
     """A typed value in SI, with the refusals of any input (bounds, absolute zero, vacuum): for analyses that
-    write typed values into a built problem (a sweep's points)."""
-    return to_si(value, unit, kind, where)
+    write typed values into a built problem (a sweep's points). ``atmosphere``: the problem's site pressure,
+    the reference of a gauge pressure."""
+    return to_si(value, unit, kind, where, gauge_reference=atmosphere)
+
+
+#: Pa: the barometric pressures a site may enter (the standard atmosphere from 11 km up to 500 m below sea
+#: level spans 22.6 to 107.5 kPa; the weather adds a few percent)
+SITE_PRESSURES = (20e3, 110e3)
+
+
+def site_atmosphere(ws: Worksheet) -> tuple[float, Phrase]:
+    """The site's barometric pressure [Pa] and the assumption that states it: entered, from the altitude by the
+    ISO 2533 standard atmosphere, or the standard atmosphere at sea level (1.01325 bar)."""
+    site = ws.atmosphere
+    if site.barometric_pressure is not None:
+        where = "atmosphere.barometric_pressure"
+        if is_gauge(site.barometric_pressure.unit):
+            raise InputError(f"the barometric pressure is absolute; {site.barometric_pressure} is a gauge pressure "
+                             "(use bar, kPa, psia, …)", where)
+        P = _si(site.barometric_pressure, "pressure", where)
+        if not SITE_PRESSURES[0] <= P <= SITE_PRESSURES[1]:
+            raise InputError(f"a site's barometric pressure lies between {SITE_PRESSURES[0] / 1e5:g} and "
+                             f"{SITE_PRESSURES[1] / 1e5:g} bar, not {site.barometric_pressure}", where)
+        how = Phrase("the site's barometric pressure as entered")
+    elif site.altitude is not None:
+        h = _si(site.altitude, "length", "atmosphere.altitude")
+        P = standard_atmosphere_pressure(h)
+        how = Phrase("the ISO 2533 standard atmosphere at the site's altitude, {h}", {"h": str(site.altitude)})
+    else:
+        P, how = ATMOSPHERE, Phrase("the standard atmosphere at sea level; no site pressure or altitude entered")
+    return P, Phrase("Gauge pressures are relative to {P}: " + how.template + ".",
+                     {"P": Measure(P, "pressure", digits=6), **how.values})
 
 
 def basis_si(value: float, unit: str, role: str, basis: str, duration: float | None,
@@ -230,7 +261,8 @@ class _Builder:
         self.user_materials = {m.name: _user_material(m) for m in ws.materials}
         self.temperatures: dict[str, float | None] = {}
         self.var_addresses: dict[str, str] = {}
-        self.assumptions = list(ASSUMPTIONS)
+        self.atmosphere, atmosphere_assumption = site_atmosphere(ws)
+        self.assumptions = [*ASSUMPTIONS, atmosphere_assumption]
         self.unknown = _the_unknown(ws)
 
     def _duration(self) -> float | None:
@@ -277,7 +309,7 @@ class _Builder:
     def state(self, state: State, key: str, address: str, line_pressure: float) -> StateSpec:
         """``line_pressure``: the line's (or vessel's) pressure, used unless the state has its own."""
         if state.pressure:
-            P, P_address = _si(state.pressure, "pressure", f"{address}.pressure"), f"{address}.pressure"
+            P, P_address = self.pressure(state.pressure, f"{address}.pressure"), f"{address}.pressure"
         else:
             P, P_address = line_pressure, f"{address.rpartition('.')[0]}.pressure"
         if "].charges[" in address and not state.pressure:  # a charge is at its vessel's pressure
@@ -293,6 +325,10 @@ class _Builder:
             spec = StateSpec(address, P, var=self.variable(key, f"{address}.temperature", state.temperature))
         spec.pressure_address = P_address
         return spec
+
+    def pressure(self, q: Quantity, where: str) -> float:
+        """A typed pressure in Pa absolute, a gauge pressure relative to the site's barometric pressure."""
+        return _si(q, "pressure", where, self.atmosphere)
 
     def _common_key(self, name: str, where: str) -> str:
         key = f"common:{name}"
@@ -356,7 +392,7 @@ class _Builder:
                        address_label(address), [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration,
                        exchangers=[self._exchanger(e) for e in ws.exchangers],
                        utilities=[self._utility(u) for u in ws.utilities], operating_hours=hours,
-                       currency=ws.currency)
+                       currency=ws.currency, atmosphere=self.atmosphere)
 
     def _exchanger(self, e) -> ExchangerInputs:
         where = item("exchangers", e.name)
@@ -398,9 +434,10 @@ class _Builder:
             q = getattr(u, name)
             return None if q is None else _si(q, "temperature", f"{where}.{name}")
 
-        out = UtilityInputs(u.name, u.kind, price=u.price, per=u.per, co2_kg_per_GJ=u.co2_kg_per_GJ, source=u.source)
+        out = UtilityInputs(u.name, u.kind, price=u.price, per=u.per, co2_kg_per_GJ=u.co2_kg_per_GJ, source=u.source,
+                           flash_P=self.atmosphere)
         if u.pressure is not None:
-            out.P = _si(u.pressure, "pressure", f"{where}.pressure")
+            out.P = self.pressure(u.pressure, f"{where}.pressure")
         if u.superheat is not None:
             out.superheat = _si(u.superheat, "temperature_difference", f"{where}.superheat")
             if out.superheat < 0:
@@ -412,7 +449,7 @@ class _Builder:
         elif u.material is not None:
             out.material = self.material(u.material, u.mass_fraction, f"{where}.material")
         if out.P is None and out.material is not None:
-            out.P = 101325.0 + 3e5  # a coolant or oil loop at 3 barg (its enthalpy hardly depends on it)
+            out.P = self.atmosphere + 3e5  # a coolant or oil loop at 3 barg (its enthalpy hardly depends on it)
         cold = u.kind in ("cooling water", "chilled water", "brine")
         if out.supply_T is not None and out.return_T is not None:
             if cold and not out.return_T > out.supply_T:
@@ -425,7 +462,7 @@ class _Builder:
 
     def _stream(self, s) -> Line:
         where = item("streams", s.name)
-        P = _si(s.pressure, "pressure", f"{where}.pressure")
+        P = self.pressure(s.pressure, f"{where}.pressure")
         is_unknown = self.unknown.kind == "amount" and self.unknown.line == s.name and self.unknown.charge is None
         return Line(s.name, "stream", s.material, self.material(s.material, s.mass_fraction, f"{where}.material"),
                     self.amount(s.flow, f"{where}.flow", is_unknown),
@@ -434,7 +471,7 @@ class _Builder:
 
     def _vessel(self, v) -> tuple[list[Line], list[EquipmentHeat]]:
         where = item("vessels", v.name)
-        P = _si(v.pressure, "pressure", f"{where}.pressure")
+        P = self.pressure(v.pressure, f"{where}.pressure")
         final = self.state(v.final, f"vessel:{v.name}:final", f"{where}.final", P)
         lines = []
         for c in v.charges:

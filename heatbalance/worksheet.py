@@ -19,7 +19,7 @@ from .migrations import CURRENT_VERSION, migrate
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
     "Jacket", "ScreeningInputs",
-    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
+    "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "SiteAtmosphere", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -315,6 +315,23 @@ class SheetTags(_Model):
     equipment: str = Field(default="", max_length=120)
 
 
+class SiteAtmosphere(_Model):
+    """The site's barometric pressure, the reference of every gauge pressure of the worksheet.
+
+    ``barometric_pressure`` (absolute, e.g. ``"0.85 bar"``) or ``altitude`` (``"1500 m"``, converted by the
+    ISO 2533 standard atmosphere); neither: the standard atmosphere at sea level, 1.01325 bar.
+    """
+
+    barometric_pressure: Quantity | None = None
+    altitude: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if self.barometric_pressure is not None and self.altitude is not None:
+            raise ValueError("give the site's 'barometric_pressure' or its 'altitude', not both")
+        return self
+
+
 ARRANGEMENTS = ("counter-current", "co-current", "shell-and-tube 1-2", "shell-and-tube N shells", "cross-flow")
 UTILITY_KINDS = ("steam", "cooling water", "chilled water", "brine", "hot oil", "electric")
 
@@ -402,6 +419,7 @@ class Worksheet(_Model):
     notes: str = Field(default="", max_length=20_000)
     tags: SheetTags = SheetTags()
     basis: Basis = Basis()
+    atmosphere: SiteAtmosphere = SiteAtmosphere()  # the reference of gauge pressures (default 1.01325 bar)
     materials: list[UserMaterial] = Field(default_factory=list, max_length=50)
     common_temperatures: list[CommonTemperature] = Field(default_factory=list, max_length=50)
     streams: list[Stream] = Field(default_factory=list, max_length=500)

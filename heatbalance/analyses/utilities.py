@@ -34,7 +34,6 @@ from ..address import item
 from ..messages import Measure, Phrase
 from ..problem import DEFAULT_MINIMUM_APPROACH, Problem, UtilityInputs
 from ..results import Result
-from ..units import ATMOSPHERE
 from ..worksheet import Utility
 
 __all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
@@ -145,7 +144,7 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
             "condensate temperature", {"T": Measure(T_out, "temperature", 1), "Tp": Measure(d.T_cold, "temperature", 1),
                                        "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}),
             f"{u.address}.condensate_temperature")
-    atm = water.transitions(ATMOSPHERE)[0]
+    atm = water.transitions(u.flash_P)[0]
     flash = max(0.0, (h_out - atm.h_lower) / atm.latent)
     return h_in - h_out, tr.T, T_out, flash
 
