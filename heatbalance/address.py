@@ -497,6 +497,12 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
             u["term"] = new
         elif top == "common_temperatures" and u.get("common") == old:
             u["common"] = new
+    if path == ["vessels", "charges"]:  # the chemical a charge is for the bubble point follows it
+        vessel = parse(item_address)[0][1]
+        for v in data.get("vessels", []):
+            for component in (v.get("screening") or {}).get("components", []) if v["name"] == vessel else []:
+                if component.get("charge") == old:
+                    component["charge"] = new
     if path == ["vessels"]:
         for r in data.get("reactions", []):
             if r.get("vessel") == old:

@@ -116,6 +116,8 @@ class ScreeningInputs:
     T_process: float | None = None
     thermal_inertia: bool = False
     jacket: JacketInputs | None = None
+    chemicals: dict[str, str] = field(default_factory=dict)  # charge -> the chemical it is for the bubble point
+    activity_model: str = "UNIFAC"
 
 
 #: K: the minimum approach when none is entered: about 10 K for shell-and-tube liquid service (common practice,
@@ -576,9 +578,15 @@ class _Builder:
             q = getattr(s, name)
             return None if q is None else _si(q, "temperature", f"{where}.{name}")
 
+        charges = [c.name for c in v.charges]
+        for c in s.components:
+            if c.charge not in charges:
+                raise InputError(f"no charge called '{c.charge}' in vessel {v.name} (charges: {', '.join(charges)})",
+                                 f"{where}.{item('components', c.charge)}")
         return ScreeningInputs(s.accumulation, temperature("T_D24"), temperature("MTT"),
                                temperature("process_temperature"), s.thermal_inertia,
-                               None if s.jacket is None else _jacket(s.jacket, f"{where}.jacket"))
+                               None if s.jacket is None else _jacket(s.jacket, f"{where}.jacket"),
+                               {c.charge: c.chemical for c in s.components}, s.activity_model)
 
     def _target(self, lines: list[Line], terms: list[HeatTerm], var: str | None) -> tuple[object, str]:
         u = self.unknown

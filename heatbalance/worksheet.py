@@ -18,7 +18,7 @@ from .migrations import CURRENT_VERSION, migrate
 
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss",
-    "Jacket", "ScreeningInputs",
+    "Jacket", "ChargeChemical", "ScreeningInputs",
     "Reaction", "CommonTemperature", "PhaseSpec", "UserMaterial", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "SiteAtmosphere", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
@@ -163,6 +163,14 @@ class Jacket(_Model):
         return self
 
 
+class ChargeChemical(_Model):
+    """What a charge is for the mixture's bubble point: the ``chemical`` (a name or CAS number the `chemicals`
+    databases know) whose vapour pressure and UNIFAC groups it has, e.g. a material defined by its cp only."""
+
+    charge: str = Field(min_length=1, max_length=80)
+    chemical: str = Field(min_length=1, max_length=120)
+
+
 class ScreeningInputs(_Model):
     """Optional inputs of the thermal screening of a vessel with a reaction (see :mod:`heatbalance.reactor`).
 
@@ -171,6 +179,9 @@ class ScreeningInputs(_Model):
     ``MTT``: maximum technical temperature, overriding the boiling point from the property data.
     ``process_temperature``: overrides the vessel's final temperature as the temperature of the process.
     ``thermal_inertia``: divide ΔT_ad by φ for the MTSR (less conservative; off by default).
+    ``components``: the chemical each charge is for the bubble point of the mixture (the MTT when not entered);
+    a catalogue fluid or glycol solution needs none. ``activity_model``: ``UNIFAC`` (where every component has
+    groups, else Raoult's law, said in the result) or ``ideal`` (Raoult's law).
     """
 
     accumulation: float = Field(default=1.0, ge=0.0, le=1.0)
@@ -179,6 +190,16 @@ class ScreeningInputs(_Model):
     process_temperature: Quantity | None = None
     thermal_inertia: bool = False
     jacket: Jacket | None = None
+    components: list[ChargeChemical] = Field(default_factory=list, max_length=50)
+    activity_model: Literal["UNIFAC", "ideal"] = "UNIFAC"
+
+    @model_validator(mode="after")
+    def _one_chemical_per_charge(self):
+        named = [c.charge for c in self.components]
+        repeated = sorted({n for n in named if named.count(n) > 1})
+        if repeated:
+            raise ValueError(f"a charge is one chemical; named more than once: {', '.join(repeated)}")
+        return self
 
 
 class Vessel(_Model):
