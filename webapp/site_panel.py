@@ -20,8 +20,8 @@ from .common import plain
 __all__ = ["panel", "WIDGET", "site_from_text", "site_text"]
 
 WIDGET = "site_atmosphere"
-_SOURCE = "hb_site_source"  # session key: the worksheet the widget was filled from
-_REFUSED = "hb_site_refused"
+_SOURCE = "site_atmosphere_source"  # session key: the worksheet the widget was filled from
+_REFUSED = "site_atmosphere_refused"
 
 
 def site_text(site: SiteAtmosphere) -> str:
