@@ -142,6 +142,7 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "reactions[].enthalpy": ("molar_energy",),
     "reactions[].conversion": (FRACTION,),
     "reactions[].molar_mass": ("molar_mass",),
+    "reactions[].temperature": ("temperature",),
     "common_temperatures[].temperature": ("temperature",),
     "materials[].min_temperature": ("temperature",),
     "materials[].max_temperature": ("temperature",),
@@ -271,7 +272,7 @@ def inputs(ws: Worksheet) -> list[Input]:
     for loss in ws.losses:
         add(item("losses", loss.name, "value"), loss.value)
     for r in ws.reactions:
-        for name in ("enthalpy", "amount", "conversion", "molar_mass"):
+        for name in ("enthalpy", "amount", "conversion", "molar_mass", "temperature"):
             add(item("reactions", r.name, name), getattr(r, name))
     for e in ws.exchangers:
         for name in ("minimum_approach", "U", "area", "UA"):

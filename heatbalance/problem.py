@@ -29,7 +29,7 @@ __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "JacketInputs", "Sc
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless entered as a duty.",
     "Losses as entered.",
-    "Reaction heat applied at the process temperature (no Kirchhoff correction).",
+    "Reaction heat: an entered ΔH as entered; ΔH from an equation at the process temperature (Kirchhoff) where known.",
 ]  # and the reference of gauge pressures, with the site's value (site_atmosphere)
 
 
@@ -266,6 +266,7 @@ class _Builder:
         self.atmosphere, atmosphere_assumption = site_atmosphere(ws)
         self.assumptions = [*ASSUMPTIONS, atmosphere_assumption]
         self.unknown = _the_unknown(ws)
+        self.warnings: list[Phrase] = []
 
     def _duration(self) -> float | None:
         q = self.ws.basis.duration
@@ -394,7 +395,7 @@ class _Builder:
                        address_label(address), [v.name for v in ws.vessels], screening, assumptions=self.assumptions, duration=self.duration,
                        exchangers=[self._exchanger(e) for e in ws.exchangers],
                        utilities=[self._utility(u) for u in ws.utilities], operating_hours=hours,
-                       currency=ws.currency, atmosphere=self.atmosphere)
+                       currency=ws.currency, atmosphere=self.atmosphere, warnings=self.warnings)
 
     def _exchanger(self, e) -> ExchangerInputs:
         where = item("exchangers", e.name)
@@ -540,14 +541,69 @@ class _Builder:
             used = "the entered ΔH is used; the equation gives " if r.enthalpy is not None else ""
             tables = "; ".join(f"{name} = {source}" for name, source in hess.sources.items())
             self.assumptions.append(f"{where}: {used}{hess.text}. Tables: {tables}.")
+        at_temperature = None
+        if hess is not None and r.enthalpy is None:
+            at_temperature = self._kirchhoff(r, hess, where)
+            dH = at_temperature.dH_T / hess.key_coefficient if at_temperature else dH
         reacted = self._moles(r, hess, f"{where}.amount") * r.conversion
         entered = str(r.enthalpy) if r.enthalpy is not None else \
-            f"{dH / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
+            f"{hess.dH_per_key / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
         amount_kind = basis_kinds("moles", "batch")[0] if self.basis == "batch" else "molar_flow"
-        detail = Phrase("ΔH = {entered} × {reacted} reacted (conversion {conversion})",
-                        {"entered": entered, "reacted": Measure(reacted, amount_kind),
-                         "conversion": f"{r.conversion:.0%}"})
+        values = {"entered": entered, "reacted": Measure(reacted, amount_kind), "conversion": f"{r.conversion:.0%}"}
+        template = "ΔH = {entered} × {reacted} reacted (conversion {conversion})"
+        if at_temperature is not None and at_temperature.corrected:
+            template = "ΔH = {entered} at {T} (Kirchhoff; {standard} at 25 °C by Hess's law) × {reacted} reacted " \
+                       "(conversion {conversion})"
+            values.update(entered=f"{dH / 1000:.2f} kJ/mol {hess.key_reactant}", T=Measure(at_temperature.T,
+                          "temperature", 1), standard=f"{hess.dH_per_key / 1000:.2f} kJ/mol")
+        detail = Phrase(template, values)
         return HeatTerm(r.name, "reaction", -dH * reacted, detail, vessel=r.vessel)
+
+    def _reaction_temperature(self, r) -> tuple[float | None, str]:
+        """K and the field it comes from: the reaction's own, else its vessel's screening process temperature; None
+        when neither is entered (not the vessel's final temperature: the answer must not depend on which field is
+        the unknown)."""
+        where = item("reactions", r.name)
+        if r.temperature is not None:
+            return _si(r.temperature, "temperature", f"{where}.temperature"), f"{where}.temperature"
+        vessels = [v for v in self.ws.vessels if v.name == r.vessel or (r.vessel is None and len(self.ws.vessels) == 1)]
+        if not vessels:
+            return None, ""
+        v = vessels[0]
+        if v.screening is not None and v.screening.process_temperature is not None:
+            address = item("vessels", v.name, "screening", "process_temperature")
+            return _si(v.screening.process_temperature, "temperature", address), address
+        return None, ""
+
+    def _kirchhoff(self, r, hess, where: str):
+        """ΔH of the equation at the process temperature (Kirchhoff), with its assumption or warning; None when no
+        process temperature is known (ΔH at 25 °C, said)."""
+        from .kirchhoff import correlation_source, reaction_enthalpy_at
+
+        T, source = self._reaction_temperature(r)
+        if T is None:
+            self.assumptions.append(f"{where}: ΔH at 25 °C (no Kirchhoff correction): no reaction temperature "
+                                    f"entered ({where}.temperature)")
+            return None
+        result = reaction_enthalpy_at(hess, T)
+        if result.missing:
+            self.warnings.append(Phrase(
+                "Reaction {name}: no heat-capacity data for {species}: ΔH is applied at its 25 °C value, not at the "
+                "process temperature {T} (no Kirchhoff correction). Enter ΔH at temperature if it matters.",
+                {"name": r.name, "species": ", ".join(result.missing), "T": Measure(T, "temperature", 1)},
+                address=f"{where}.equation"))
+            return result
+        words = "; ".join(f"{s} = {m} ({correlation_source(m)})" for s, m in result.correlations.items())
+        extrapolated = f"; extrapolated beyond its data: {', '.join(result.extrapolated)}" \
+            if result.extrapolated else ""
+        self.assumptions.append(Phrase(
+            "{where}: ΔH at {T} ({source}) by Kirchhoff's law, ΔH(T) = ΔH(25 °C) + ∫Δcp dT with each species in its "
+            "written phase: {dH_T} vs {dH_25} at 25 °C per mol {key}. cp(T) from thermo: {words}{extrapolated}.",
+            {"where": where, "T": Measure(T, "temperature", 1), "source": source,
+             "dH_T": Measure(result.dH_T / hess.key_coefficient, "molar_energy"),
+             "dH_25": Measure(hess.dH_per_key, "molar_energy"), "key": hess.key_reactant, "words": words,
+             "extrapolated": extrapolated}))
+        return result
 
     def _moles(self, r, hess, where: str) -> float:
         by_mass = r.molar_mass is not None or (

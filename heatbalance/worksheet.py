@@ -238,6 +238,9 @@ class Reaction(_Model):
     :mod:`heatbalance.reactions`) per mole of ``key_reactant``. With both, the entered
     ΔH is used and the equation's value is reported beside it. With an equation,
     a mass ``amount`` needs no ``molar_mass`` (the key reactant's is used).
+
+    ``temperature``: where the reaction runs, for ΔH from the equation at that temperature (Kirchhoff's law);
+    default: its vessel's screening ``process_temperature``; neither: ΔH at 25 °C, said in the assumptions.
     """
 
     name: str = Field(min_length=1, max_length=80)
@@ -248,6 +251,7 @@ class Reaction(_Model):
     vessel: str | None = None
     equation: str | None = Field(default=None, max_length=500)
     key_reactant: str | None = Field(default=None, max_length=120)
+    temperature: Quantity | None = None
 
     @model_validator(mode="after")
     def _heat_given(self):
