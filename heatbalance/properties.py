@@ -142,6 +142,7 @@ class CoolPropFluid(Material):
         self.t_min = max(probe.Ttriple(), probe.Tmin()) if backend == "HEOS" else 273.15
         self.t_max = probe.Tmax() if backend == "HEOS" else 1073.15
         self.p_critical = probe.p_critical()
+        self.T_critical = probe.T_critical()
         self.p_triple = probe.trivial_keyed_output(CP.iP_triple)
         self.p_max = probe.pmax() if backend == "HEOS" else 100e6
         # IF97 has no data below the triple-point pressure (611.657 Pa); HEOS gases go lower.
