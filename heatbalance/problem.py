@@ -585,7 +585,13 @@ class _Builder:
             self.assumptions.append(f"{where}: ΔH at 25 °C (no Kirchhoff correction): no reaction temperature "
                                     f"entered ({where}.temperature)")
             return None
+        if not 100.0 <= T <= 3000.0:
+            raise InputError(Phrase("ΔH at temperature (Kirchhoff's law over the species' cp correlations) is taken "
+                                    "from 100 K to 3000 K, not at {T}", {"T": Measure(T, "temperature", 1)}), source)
         result = reaction_enthalpy_at(hess, T)
+        if not math.isfinite(result.dH_T):
+            raise InputError(Phrase("the species' cp correlations give no finite ΔH at {T}",
+                                    {"T": Measure(T, "temperature", 1)}), source)
         if result.missing:
             self.warnings.append(Phrase(
                 "Reaction {name}: no heat-capacity data for {species}: ΔH is applied at its 25 °C value, not at the "

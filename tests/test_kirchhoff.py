@@ -118,3 +118,13 @@ def test_a_species_without_cp_data_falls_back_with_a_warning_naming_it():
 def test_an_entered_enthalpy_is_never_corrected():
     result = solve(converter({"enthalpy": q(-100, "kJ/mol"), "temperature": q(500, "degC")}))
     assert reaction_term(result).heat == pytest.approx(2000 * 100e3)  # hand: 2000 mol × 100 kJ/mol
+
+
+@pytest.mark.parametrize("typed", ["-200 degC", "5000 K"])
+def test_a_reaction_temperature_out_of_range_is_refused_at_its_address(typed):
+    from heatbalance.errors import InputError
+
+    with pytest.raises(InputError) as caught:
+        solve(converter({"temperature": typed}))
+    assert caught.value.where == "reactions[Synthesis].temperature"
+    assert "from 100 K to 3000 K" in caught.value.message
