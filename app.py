@@ -34,6 +34,7 @@ def set_worksheet(worksheet: Worksheet) -> None:
 
 # Panels below the results, each called as panel(worksheet, result, system) (result None when not solved).
 EXTRA_PANELS = [
+    __import__("webapp.site_panel", fromlist=["panel"]).panel(set_worksheet),  # site atmosphere (site_panel.py)
     __import__("webapp.uncertainty_panel", fromlist=["panel"]).panel(set_worksheet),  # how sure (uncertainty_panel.py)
     screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
     __import__("webapp.exchanger_panel", fromlist=["panel"]).panel(set_worksheet),  # exchangers, utilities

@@ -146,6 +146,7 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "mixings[].from_fraction": (FRACTION,),
     "mixings[].with_fraction": (FRACTION,),
     "mixings[].to_fraction": (FRACTION,),
+    "reactions[].temperature": ("temperature",),
     "common_temperatures[].temperature": ("temperature",),
     "materials[].min_temperature": ("temperature",),
     "materials[].max_temperature": ("temperature",),
@@ -180,6 +181,8 @@ _FIXED_KINDS: dict[str, tuple[str, ...]] = {
     "losses[].surface.wind_speed": ("velocity",),
     "losses[].surface.process_temperature": ("temperature",),
     "losses[].surface.protection_limit": ("temperature",),
+    "atmosphere.barometric_pressure": ("pressure",),
+    "atmosphere.altitude": ("length",),
 }
 #: the numeric fields of a computed loss's surface (``losses[L].surface.<field>``)
 SURFACE_FIELDS = ("diameter", "length", "emissivity", "ambient_temperature", "surroundings_temperature",
@@ -259,6 +262,8 @@ def inputs(ws: Worksheet) -> list[Input]:
                 add(f"{prefix}.humidity.{name}", getattr(s.humidity, name))
 
     add("basis.duration", ws.basis.duration)
+    add("atmosphere.barometric_pressure", ws.atmosphere.barometric_pressure)
+    add("atmosphere.altitude", ws.atmosphere.altitude)
     for m in ws.materials:
         add(item("materials", m.name, "min_temperature"), m.min_temperature)
         add(item("materials", m.name, "max_temperature"), m.max_temperature)
@@ -304,7 +309,7 @@ def inputs(ws: Worksheet) -> list[Input]:
             if loss.surface.insulation is not None:
                 add(item("losses", loss.name, "surface", "insulation", "thickness"), loss.surface.insulation.thickness)
     for r in ws.reactions:
-        for name in ("enthalpy", "amount", "conversion", "molar_mass"):
+        for name in ("enthalpy", "amount", "conversion", "molar_mass", "temperature"):
             add(item("reactions", r.name, name), getattr(r, name))
     for m in ws.mixings:
         for name in ("amount", "from_fraction", "with_fraction", "to_fraction"):
@@ -345,7 +350,8 @@ def _as_value(value, kinds: tuple[str, ...], address: str):
 def with_value(ws: Worksheet, address: str, value) -> Worksheet:
     """A copy of the worksheet with the input at ``address`` set to ``value`` (in any unit of its kind).
 
-    A state's temperature replaces a phase fraction or shared temperature given there (and the reverse).
+    A state's temperature replaces a phase fraction or shared temperature given there (and the reverse); the
+    site's altitude replaces its barometric pressure (and the reverse).
     """
     steps = parse(address)
     kinds = kinds_of(address, ws.basis.kind)
@@ -361,6 +367,8 @@ def with_value(ws: Worksheet, address: str, value) -> Worksheet:
     if len(steps) > 1 and steps[-2][0] == "humidity":  # a humidity is given one way
         for other in HUMIDITY_FORMS:
             target.pop(other, None)
+    if steps[0][0] == "atmosphere":  # the site is given one way: a pressure or an altitude
+        target.pop("barometric_pressure", None), target.pop("altitude", None)
     target[field] = new.model_dump() if isinstance(new, Quantity) else new
     try:
         return parse_worksheet(data)
@@ -536,6 +544,12 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
             u["term"] = new
         elif top == "common_temperatures" and u.get("common") == old:
             u["common"] = new
+    if path == ["vessels", "charges"]:  # the chemical a charge is for the bubble point follows it
+        vessel = parse(item_address)[0][1]
+        for v in data.get("vessels", []):
+            for component in (v.get("screening") or {}).get("components", []) if v["name"] == vessel else []:
+                if component.get("charge") == old:
+                    component["charge"] = new
     if path == ["vessels"]:
         for r in data.get("reactions", []) + data.get("mixings", []):
             if r.get("vessel") == old:

@@ -25,20 +25,19 @@ from .mixing import MixingHeat, mixing_heat, solute_named
 from .mixing import sources as heat_sources
 from .properties import Material, Phase, TabulatedMaterial
 from .reactions import reaction_enthalpy
-from .units import basis_kinds, kind_of, to_si
+from .units import ATMOSPHERE, basis_kinds, is_gauge, kind_of, standard_atmosphere_pressure, to_si
 from .worksheet import FreezingMaterial, Quantity, State, Unknown, UserMaterial, Worksheet
 
 __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
-           "build_problem", "basis_si", "typed_si", "ASSUMPTIONS"]
+           "build_problem", "basis_si", "typed_si", "site_atmosphere", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless stated as a mixing (heats of solution table) or entered "
     "as a duty.",
     "Losses as entered.",
-    "Reaction heat applied at the process temperature (no Kirchhoff correction).",
-    "Gauge pressures are relative to the standard atmosphere, 1.01325 bar.",
-]
+    "Reaction heat: an entered ΔH as entered; ΔH from an equation at the process temperature (Kirchhoff) where known.",
+]  # and the reference of gauge pressures, with the site's value (site_atmosphere)
 
 
 # --------------------------------------------------------------------------- the problem model
@@ -140,6 +139,8 @@ class ScreeningInputs:
     T_process: float | None = None
     thermal_inertia: bool = False
     jacket: JacketInputs | None = None
+    chemicals: dict[str, str] = field(default_factory=dict)  # charge -> the chemical it is for the bubble point
+    activity_model: str = "UNIFAC"
 
 
 #: K: the minimum approach when none is entered: about 10 K for shell-and-tube liquid service (common practice,
@@ -187,7 +188,8 @@ class UtilityInputs:
     co2_kg_per_GJ: float = 0.0
     source: str = "site value"
     condensate: str | None = None  # flash recovered | flash lost | None (reported only)
-    flash_P: float | None = None  # Pa absolute the condensate is let down to (None: the atmosphere)
+    flash_P: float = ATMOSPHERE  # Pa absolute the condensate is let down to: the site's barometric pressure
+    #                              unless the utility names its flash pressure
 
     @property
     def address(self) -> str:
@@ -213,23 +215,54 @@ class Problem:
     vessels: list[str] = field(default_factory=list)
     screening: dict[str, ScreeningInputs] = field(default_factory=dict)  # vessel -> its inputs
     warnings: list[Phrase] = field(default_factory=list)
-    assumptions: list[str] = field(default_factory=list)
+    assumptions: list[str | Phrase] = field(default_factory=list)
     duration: float | None = None  # s, the batch duration a rate is applied over
     exchangers: list[ExchangerInputs] = field(default_factory=list)
     utilities: list[UtilityInputs] = field(default_factory=list)
     operating_hours: float | None = None  # s per year
     currency: str = "EUR"
+    atmosphere: float = ATMOSPHERE  # Pa: the site's barometric pressure, the reference of every gauge pressure
 
 
 # --------------------------------------------------------------------------- building
-def _si(q: Quantity, kind: str, where: str) -> float:
-    return to_si(q.value, q.unit, kind, where)
+def _si(q: Quantity, kind: str, where: str, atmosphere: float = ATMOSPHERE) -> float:
+    return to_si(q.value, q.unit, kind, where, gauge_reference=atmosphere)
 
 
-def typed_si(value: float, unit: str, kind: str, where: str) -> float:
+def typed_si(value: float, unit: str, kind: str, where: str, atmosphere: float = ATMOSPHERE) -> float:
     """A typed value in SI, with the refusals of any input (bounds, absolute zero, vacuum): for analyses that
-    write typed values into a built problem (a sweep's points)."""
-    return to_si(value, unit, kind, where)
+    write typed values into a built problem (a sweep's points). ``atmosphere``: the problem's site pressure,
+    the reference of a gauge pressure."""
+    return to_si(value, unit, kind, where, gauge_reference=atmosphere)
+
+
+#: Pa: the barometric pressures a site may enter (the standard atmosphere from 11 km up to 500 m below sea
+#: level spans 22.6 to 107.5 kPa; the weather adds a few percent)
+SITE_PRESSURES = (20e3, 110e3)
+
+
+def site_atmosphere(ws: Worksheet) -> tuple[float, Phrase]:
+    """The site's barometric pressure [Pa] and the assumption that states it: entered, from the altitude by the
+    ISO 2533 standard atmosphere, or the standard atmosphere at sea level (1.01325 bar)."""
+    site = ws.atmosphere
+    if site.barometric_pressure is not None:
+        where = "atmosphere.barometric_pressure"
+        if is_gauge(site.barometric_pressure.unit):
+            raise InputError(f"the barometric pressure is absolute; {site.barometric_pressure} is a gauge pressure "
+                             "(use bar, kPa, psia, …)", where)
+        P = _si(site.barometric_pressure, "pressure", where)
+        if not SITE_PRESSURES[0] <= P <= SITE_PRESSURES[1]:
+            raise InputError(f"a site's barometric pressure lies between {SITE_PRESSURES[0] / 1e5:g} and "
+                             f"{SITE_PRESSURES[1] / 1e5:g} bar, not {site.barometric_pressure}", where)
+        how = Phrase("the site's barometric pressure as entered")
+    elif site.altitude is not None:
+        h = _si(site.altitude, "length", "atmosphere.altitude")
+        P = standard_atmosphere_pressure(h)
+        how = Phrase("the ISO 2533 standard atmosphere at the site's altitude, {h}", {"h": str(site.altitude)})
+    else:
+        P, how = ATMOSPHERE, Phrase("the standard atmosphere at sea level; no site pressure or altitude entered")
+    return P, Phrase("Gauge pressures are relative to {P}: " + how.template + ".",
+                     {"P": Measure(P, "pressure", digits=6), **how.values})
 
 
 def basis_si(value: float, unit: str, role: str, basis: str, duration: float | None,
@@ -258,8 +291,10 @@ class _Builder:
         self.user_materials.update({f.name: _freezing_material(f) for f in ws.freezing_materials})
         self.temperatures: dict[str, float | None] = {}
         self.var_addresses: dict[str, str] = {}
-        self.assumptions = list(ASSUMPTIONS)
+        self.atmosphere, atmosphere_assumption = site_atmosphere(ws)
+        self.assumptions = [*ASSUMPTIONS, atmosphere_assumption]
         self.unknown = _the_unknown(ws)
+        self.warnings: list[Phrase] = []
 
     def _duration(self) -> float | None:
         q = self.ws.basis.duration
@@ -305,7 +340,7 @@ class _Builder:
     def state(self, state: State, key: str, address: str, line_pressure: float) -> StateSpec:
         """``line_pressure``: the line's (or vessel's) pressure, used unless the state has its own."""
         if state.pressure:
-            P, P_address = _si(state.pressure, "pressure", f"{address}.pressure"), f"{address}.pressure"
+            P, P_address = self.pressure(state.pressure, f"{address}.pressure"), f"{address}.pressure"
         else:
             P, P_address = line_pressure, f"{address.rpartition('.')[0]}.pressure"
         if "].charges[" in address and not state.pressure:  # a charge is at its vessel's pressure
@@ -321,6 +356,10 @@ class _Builder:
             spec = StateSpec(address, P, var=self.variable(key, f"{address}.temperature", state.temperature))
         spec.pressure_address = P_address
         return spec
+
+    def pressure(self, q: Quantity, where: str) -> float:
+        """A typed pressure in Pa absolute, a gauge pressure relative to the site's barometric pressure."""
+        return _si(q, "pressure", where, self.atmosphere)
 
     def _common_key(self, name: str, where: str) -> str:
         key = f"common:{name}"
@@ -386,7 +425,7 @@ class _Builder:
                        assumptions=self.assumptions, duration=self.duration,
                        exchangers=[self._exchanger(e) for e in ws.exchangers],
                        utilities=[self._utility(u) for u in ws.utilities], operating_hours=hours,
-                       currency=ws.currency)
+                       currency=ws.currency, atmosphere=self.atmosphere)
 
     def _exchanger(self, e) -> ExchangerInputs:
         where = item("exchangers", e.name)
@@ -428,16 +467,17 @@ class _Builder:
             q = getattr(u, name)
             return None if q is None else _si(q, "temperature", f"{where}.{name}")
 
-        out = UtilityInputs(u.name, u.kind, price=u.price, per=u.per, co2_kg_per_GJ=u.co2_kg_per_GJ, source=u.source)
+        out = UtilityInputs(u.name, u.kind, price=u.price, per=u.per, co2_kg_per_GJ=u.co2_kg_per_GJ, source=u.source,
+                           flash_P=self.atmosphere)
         if u.pressure is not None:
-            out.P = _si(u.pressure, "pressure", f"{where}.pressure")
+            out.P = self.pressure(u.pressure, f"{where}.pressure")
         if u.superheat is not None:
             out.superheat = _si(u.superheat, "temperature_difference", f"{where}.superheat")
             if out.superheat < 0:
                 raise InputError(f"superheat cannot be negative ({u.superheat})", f"{where}.superheat")
         out.condensate = u.condensate
         if u.flash_pressure is not None:
-            out.flash_P = _si(u.flash_pressure, "pressure", f"{where}.flash_pressure")
+            out.flash_P = self.pressure(u.flash_pressure, f"{where}.flash_pressure")
         out.condensate_T, out.supply_T, out.return_T = (temperature("condensate_temperature"),
                                                         temperature("supply_temperature"), temperature("return_limit"))
         if u.kind in ("steam", "cooling water", "chilled water"):
@@ -445,7 +485,7 @@ class _Builder:
         elif u.material is not None:
             out.material = self.material(u.material, u.mass_fraction, f"{where}.material")
         if out.P is None and out.material is not None:
-            out.P = 101325.0 + 3e5  # a coolant or oil loop at 3 barg (its enthalpy hardly depends on it)
+            out.P = self.atmosphere + 3e5  # a coolant or oil loop at 3 barg (its enthalpy hardly depends on it)
         cold = u.kind in ("cooling water", "chilled water", "brine")
         if out.supply_T is not None and out.return_T is not None:
             if cold and not out.return_T > out.supply_T:
@@ -458,7 +498,7 @@ class _Builder:
 
     def _stream(self, s) -> Line:
         where = item("streams", s.name)
-        P = _si(s.pressure, "pressure", f"{where}.pressure")
+        P = self.pressure(s.pressure, f"{where}.pressure")
         is_unknown = self.unknown.kind == "amount" and self.unknown.line == s.name and self.unknown.charge is None
         if s.material == HUMID_AIR:
             return self._humid_air_stream(s, where, P, is_unknown)
@@ -529,7 +569,7 @@ class _Builder:
 
     def _vessel(self, v) -> tuple[list[Line], list[EquipmentHeat]]:
         where = item("vessels", v.name)
-        P = _si(v.pressure, "pressure", f"{where}.pressure")
+        P = self.pressure(v.pressure, f"{where}.pressure")
         final = self.state(v.final, f"vessel:{v.name}:final", f"{where}.final", P)
         lines = []
         for c in v.charges:
@@ -673,14 +713,75 @@ class _Builder:
             used = "the entered ΔH is used; the equation gives " if r.enthalpy is not None else ""
             tables = "; ".join(f"{name} = {source}" for name, source in hess.sources.items())
             self.assumptions.append(f"{where}: {used}{hess.text}. Tables: {tables}.")
+        at_temperature = None
+        if hess is not None and r.enthalpy is None:
+            at_temperature = self._kirchhoff(r, hess, where)
+            dH = at_temperature.dH_T / hess.key_coefficient if at_temperature else dH
         reacted = self._moles(r, hess, f"{where}.amount") * r.conversion
         entered = str(r.enthalpy) if r.enthalpy is not None else \
-            f"{dH / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
+            f"{hess.dH_per_key / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
         amount_kind = basis_kinds("moles", "batch")[0] if self.basis == "batch" else "molar_flow"
-        detail = Phrase("ΔH = {entered} × {reacted} reacted (conversion {conversion})",
-                        {"entered": entered, "reacted": Measure(reacted, amount_kind),
-                         "conversion": f"{r.conversion:.0%}"})
+        values = {"entered": entered, "reacted": Measure(reacted, amount_kind), "conversion": f"{r.conversion:.0%}"}
+        template = "ΔH = {entered} × {reacted} reacted (conversion {conversion})"
+        if at_temperature is not None and at_temperature.corrected:
+            template = "ΔH = {entered} at {T} (Kirchhoff; {standard} at 25 °C by Hess's law) × {reacted} reacted " \
+                       "(conversion {conversion})"
+            values.update(entered=f"{dH / 1000:.2f} kJ/mol {hess.key_reactant}", T=Measure(at_temperature.T,
+                          "temperature", 1), standard=f"{hess.dH_per_key / 1000:.2f} kJ/mol")
+        detail = Phrase(template, values)
         return HeatTerm(r.name, "reaction", -dH * reacted, detail, vessel=r.vessel)
+
+    def _reaction_temperature(self, r) -> tuple[float | None, str]:
+        """K and the field it comes from: the reaction's own, else its vessel's screening process temperature; None
+        when neither is entered (not the vessel's final temperature: the answer must not depend on which field is
+        the unknown)."""
+        where = item("reactions", r.name)
+        if r.temperature is not None:
+            return _si(r.temperature, "temperature", f"{where}.temperature"), f"{where}.temperature"
+        vessels = [v for v in self.ws.vessels if v.name == r.vessel or (r.vessel is None and len(self.ws.vessels) == 1)]
+        if not vessels:
+            return None, ""
+        v = vessels[0]
+        if v.screening is not None and v.screening.process_temperature is not None:
+            address = item("vessels", v.name, "screening", "process_temperature")
+            return _si(v.screening.process_temperature, "temperature", address), address
+        return None, ""
+
+    def _kirchhoff(self, r, hess, where: str):
+        """ΔH of the equation at the process temperature (Kirchhoff), with its assumption or warning; None when no
+        process temperature is known (ΔH at 25 °C, said)."""
+        from .kirchhoff import correlation_source, reaction_enthalpy_at
+
+        T, source = self._reaction_temperature(r)
+        if T is None:
+            self.assumptions.append(f"{where}: ΔH at 25 °C (no Kirchhoff correction): no reaction temperature "
+                                    f"entered ({where}.temperature)")
+            return None
+        if not 100.0 <= T <= 3000.0:
+            raise InputError(Phrase("ΔH at temperature (Kirchhoff's law over the species' cp correlations) is taken "
+                                    "from 100 K to 3000 K, not at {T}", {"T": Measure(T, "temperature", 1)}), source)
+        result = reaction_enthalpy_at(hess, T)
+        if not math.isfinite(result.dH_T):
+            raise InputError(Phrase("the species' cp correlations give no finite ΔH at {T}",
+                                    {"T": Measure(T, "temperature", 1)}), source)
+        if result.missing:
+            self.warnings.append(Phrase(
+                "Reaction {name}: no heat-capacity data for {species}: ΔH is applied at its 25 °C value, not at the "
+                "process temperature {T} (no Kirchhoff correction). Enter ΔH at temperature if it matters.",
+                {"name": r.name, "species": ", ".join(result.missing), "T": Measure(T, "temperature", 1)},
+                address=f"{where}.equation"))
+            return result
+        words = "; ".join(f"{s} = {m} ({correlation_source(m)})" for s, m in result.correlations.items())
+        extrapolated = f"; extrapolated beyond its data: {', '.join(result.extrapolated)}" \
+            if result.extrapolated else ""
+        self.assumptions.append(Phrase(
+            "{where}: ΔH at {T} ({source}) by Kirchhoff's law, ΔH(T) = ΔH(25 °C) + ∫Δcp dT with each species in its "
+            "written phase: {dH_T} vs {dH_25} at 25 °C per mol {key}. cp(T) from thermo: {words}{extrapolated}.",
+            {"where": where, "T": Measure(T, "temperature", 1), "source": source,
+             "dH_T": Measure(result.dH_T / hess.key_coefficient, "molar_energy"),
+             "dH_25": Measure(hess.dH_per_key, "molar_energy"), "key": hess.key_reactant, "words": words,
+             "extrapolated": extrapolated}))
+        return result
 
     def _moles(self, r, hess, where: str) -> float:
         by_mass = r.molar_mass is not None or (
@@ -711,9 +812,15 @@ class _Builder:
             q = getattr(s, name)
             return None if q is None else _si(q, "temperature", f"{where}.{name}")
 
+        charges = [c.name for c in v.charges]
+        for c in s.components:
+            if c.charge not in charges:
+                raise InputError(f"no charge called '{c.charge}' in vessel {v.name} (charges: {', '.join(charges)})",
+                                 f"{where}.{item('components', c.charge)}")
         return ScreeningInputs(s.accumulation, temperature("T_D24"), temperature("MTT"),
                                temperature("process_temperature"), s.thermal_inertia,
-                               None if s.jacket is None else _jacket(s.jacket, f"{where}.jacket"))
+                               None if s.jacket is None else _jacket(s.jacket, f"{where}.jacket"),
+                               {c.charge: c.chemical for c in s.components}, s.activity_model)
 
     def _target(self, lines: list[Line], terms: list[HeatTerm], var: str | None) -> tuple[object, str]:
         u = self.unknown

@@ -163,6 +163,7 @@ class CoolPropFluid(Material):
         # revision, section 1); CoolProp's IF97 backend computes region 5 though its Tmax() says 1073.15 K
         self.t_max = probe.Tmax() if backend == "HEOS" else IF97_REGION5_T_MAX
         self.p_critical = probe.p_critical()
+        self.T_critical = probe.T_critical()
         self.p_triple = probe.trivial_keyed_output(CP.iP_triple)
         self.p_max = probe.pmax() if backend == "HEOS" else 100e6
         # IF97 has no data below the triple-point pressure (611.657 Pa); HEOS gases go lower.

@@ -5,7 +5,9 @@ at the edge: :func:`to_si` reads what the user typed, :func:`from_si` writes a
 result back in a unit the user chose.
 
 Gauge pressures (``barg``, ``psig``, ``kPag``, ``MPag``) are taken relative to
-the standard atmosphere, 1.01325 bar (ISO 2533), whatever the local weather.
+the site's barometric pressure (``gauge_reference``), by default the standard
+atmosphere at sea level, 1.01325 bar (ISO 2533). A site at altitude states its own
+(:func:`standard_atmosphere_pressure` converts an altitude).
 """
 from __future__ import annotations
 
@@ -19,7 +21,7 @@ from .unit_cache import kept
 
 __all__ = [
     "registry", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
-    "basis_kinds", "heat_kind",
+    "basis_kinds", "heat_kind", "is_gauge", "standard_atmosphere_pressure", "STANDARD_ATMOSPHERE_ALTITUDES",
 ]
 
 @lru_cache(maxsize=1)
@@ -185,7 +187,7 @@ def _describe(unit) -> str:
     return str(dims) if dims else "a pure number"
 
 
-def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
+def to_si(value: float, unit: str, kind: str, where: str = "", gauge_reference: float = ATMOSPHERE) -> float:
     """Convert ``value unit`` of the given kind to a plain SI float.
 
     Parameters
@@ -198,6 +200,8 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
         One of :data:`KINDS`.
     where : str
         The field, for messages.
+    gauge_reference : float
+        The site's barometric pressure [Pa] a gauge pressure is relative to (default: 1.01325 bar).
 
     Returns
     -------
@@ -216,6 +220,8 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
     --------
     >>> to_si(4, "barg", "pressure")  # 4 bar above the standard atmosphere
     501325.0
+    >>> to_si(4, "barg", "pressure", gauge_reference=85000.0)  # 4 bar above a site's 0.85 bar
+    485000.0
     >>> round(to_si(212, "degF", "temperature"), 2)
     373.15
     """
@@ -227,6 +233,8 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
         check_unit(unit, kind, where)  # the same refusal, naming the field
         raise
     si = value * scale + offset
+    if gauge_reference != ATMOSPHERE and kind == "pressure" and is_gauge(unit):
+        si += gauge_reference - ATMOSPHERE
     if not abs(si) <= BOUNDS[kind]:
         bound = from_si(BOUNDS[kind], unit, kind) if kind not in ("temperature", "pressure") else None
         limit = f"{bound:.3g} {unit}" if bound is not None else f"{BOUNDS[kind]:g} {KINDS[kind][0]}"
@@ -236,7 +244,7 @@ def to_si(value: float, unit: str, kind: str, where: str = "") -> float:
         raise InputError(f"{value:g} {unit} is below absolute zero (0 K = -273.15 °C = -459.67 °F)", where)
     if kind == "pressure" and si <= 0:
         raise InputError(f"{value:g} {unit} is at or below a perfect vacuum (absolute pressure must be > 0;"
-                         f" gauge units are relative to 1.01325 bar)", where)
+                         f" gauge units are relative to {gauge_reference / 1e5:.5g} bar)", where)
     return float(si)
 
 
@@ -261,10 +269,70 @@ def _affine_by_pint(unit: str, kind: str) -> tuple[float, float]:
     return float(scale), float(offset + gauge)
 
 
-def from_si(value: float, unit: str, kind: str) -> float:
+def from_si(value: float, unit: str, kind: str, gauge_reference: float = ATMOSPHERE) -> float:
     """Convert an SI float of the given kind to ``unit`` (the inverse of :func:`to_si`)."""
     scale, offset = _affine(unit, kind)
+    if gauge_reference != ATMOSPHERE and kind == "pressure" and is_gauge(unit):
+        offset += gauge_reference - ATMOSPHERE
     return (value - offset) / scale
+
+
+def is_gauge(unit: str) -> bool:
+    """Whether a pressure unit is a gauge unit (relative to the site's barometric pressure).
+
+    >>> is_gauge("barg"), is_gauge(" psig"), is_gauge("bar"), is_gauge("psia")
+    (True, True, False, False)
+    """
+    return unit.strip() in _GAUGE
+
+
+#: m: the altitudes the standard atmosphere's troposphere relation is used over (ISO 2533: the troposphere
+#: reaches 11 km; below sea level to the lowest inhabited land, about -430 m at the Dead Sea, with a margin)
+STANDARD_ATMOSPHERE_ALTITUDES = (-500.0, 11000.0)
+
+
+def standard_atmosphere_pressure(altitude: float) -> float:
+    """Barometric pressure at an altitude by the ISO 2533 (ICAO) standard atmosphere, troposphere.
+
+    p = 101325 Pa · (1 − 2.25577·10⁻⁵ · h)^5.25588   (h in m)
+
+    Parameters
+    ----------
+    altitude : float
+        Height above mean sea level [m].
+
+    Returns
+    -------
+    float
+        Pressure [Pa].
+
+    Raises
+    ------
+    InputError
+        Outside :data:`STANDARD_ATMOSPHERE_ALTITUDES` (the relation holds in the troposphere only).
+
+    Notes
+    -----
+    The standard atmosphere is a yearly mean at mid-latitudes (15 °C at sea level, lapse rate 6.5 K/km);
+    the weather moves the real barometric pressure by a few percent. A site that measures its own enters
+    the barometric pressure instead.
+
+    Examples
+    --------
+    >>> round(standard_atmosphere_pressure(0.0))  # ISO 2533: sea level
+    101325
+    >>> round(standard_atmosphere_pressure(1500.0))  # ISO 2533 table: 84.56 kPa at 1500 m, from memory
+    84556
+
+    References
+    ----------
+    ISO 2533:1975, Standard Atmosphere; ICAO Doc 7488/3, Manual of the ICAO Standard Atmosphere (1993).
+    """
+    low, high = STANDARD_ATMOSPHERE_ALTITUDES
+    if not low <= altitude <= high:
+        raise InputError(f"the standard atmosphere (ISO 2533, troposphere) is used from {low:g} m to {high:g} m,"
+                         f" not {altitude:g} m: enter the site's barometric pressure instead", "atmosphere.altitude")
+    return 101325.0 * (1.0 - 2.25577e-5 * altitude) ** 5.25588
 
 
 #: role -> (kind of a total, kind of a rate): what a field of that role measures

@@ -20,8 +20,8 @@ from .migrations import CURRENT_VERSION, migrate
 
 __all__ = [
     "SCHEMA_VERSION", "Quantity", "State", "Stream", "Charge", "Equipment", "Vessel", "Duty", "Loss", "LossSurface", "Insulation", "Humidity", "AirFlow",
-    "Jacket", "ScreeningInputs",
-    "Reaction", "Mixing", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
+    "Jacket", "ChargeChemical", "ScreeningInputs",
+    "Reaction", "Mixing", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "SiteAtmosphere", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
 ]
 
@@ -238,6 +238,14 @@ class Jacket(_Model):
         return self
 
 
+class ChargeChemical(_Model):
+    """What a charge is for the mixture's bubble point: the ``chemical`` (a name or CAS number the `chemicals`
+    databases know) whose vapour pressure and UNIFAC groups it has, e.g. a material defined by its cp only."""
+
+    charge: str = Field(min_length=1, max_length=80)
+    chemical: str = Field(min_length=1, max_length=120)
+
+
 class ScreeningInputs(_Model):
     """Optional inputs of the thermal screening of a vessel with a reaction (see :mod:`heatbalance.reactor`).
 
@@ -246,6 +254,9 @@ class ScreeningInputs(_Model):
     ``MTT``: maximum technical temperature, overriding the boiling point from the property data.
     ``process_temperature``: overrides the vessel's final temperature as the temperature of the process.
     ``thermal_inertia``: divide ΔT_ad by φ for the MTSR (less conservative; off by default).
+    ``components``: the chemical each charge is for the bubble point of the mixture (the MTT when not entered);
+    a catalogue fluid or glycol solution needs none. ``activity_model``: ``UNIFAC`` (where every component has
+    groups, else Raoult's law, said in the result) or ``ideal`` (Raoult's law).
     """
 
     accumulation: float = Field(default=1.0, ge=0.0, le=1.0)
@@ -254,6 +265,16 @@ class ScreeningInputs(_Model):
     process_temperature: Quantity | None = None
     thermal_inertia: bool = False
     jacket: Jacket | None = None
+    components: list[ChargeChemical] = Field(default_factory=list, max_length=50)
+    activity_model: Literal["UNIFAC", "ideal"] = "UNIFAC"
+
+    @model_validator(mode="after")
+    def _one_chemical_per_charge(self):
+        named = [c.charge for c in self.components]
+        repeated = sorted({n for n in named if named.count(n) > 1})
+        if repeated:
+            raise ValueError(f"a charge is one chemical; named more than once: {', '.join(repeated)}")
+        return self
 
 
 class Vessel(_Model):
@@ -340,6 +361,9 @@ class Reaction(_Model):
     :mod:`heatbalance.reactions`) per mole of ``key_reactant``. With both, the entered
     ΔH is used and the equation's value is reported beside it. With an equation,
     a mass ``amount`` needs no ``molar_mass`` (the key reactant's is used).
+
+    ``temperature``: where the reaction runs, for ΔH from the equation at that temperature (Kirchhoff's law);
+    default: its vessel's screening ``process_temperature``; neither: ΔH at 25 °C, said in the assumptions.
     """
 
     name: str = Field(min_length=1, max_length=80)
@@ -350,6 +374,7 @@ class Reaction(_Model):
     vessel: str | None = None
     equation: str | None = Field(default=None, max_length=500)
     key_reactant: str | None = Field(default=None, max_length=120)
+    temperature: Quantity | None = None
 
     @model_validator(mode="after")
     def _heat_given(self):
@@ -454,6 +479,23 @@ class SheetTags(_Model):
     equipment: str = Field(default="", max_length=120)
 
 
+class SiteAtmosphere(_Model):
+    """The site's barometric pressure, the reference of every gauge pressure of the worksheet.
+
+    ``barometric_pressure`` (absolute, e.g. ``"0.85 bar"``) or ``altitude`` (``"1500 m"``, converted by the
+    ISO 2533 standard atmosphere); neither: the standard atmosphere at sea level, 1.01325 bar.
+    """
+
+    barometric_pressure: Quantity | None = None
+    altitude: Quantity | None = None
+
+    @model_validator(mode="after")
+    def _one_form(self):
+        if self.barometric_pressure is not None and self.altitude is not None:
+            raise ValueError("give the site's 'barometric_pressure' or its 'altitude', not both")
+        return self
+
+
 ARRANGEMENTS = ("counter-current", "co-current", "shell-and-tube 1-2", "shell-and-tube N shells", "cross-flow")
 UTILITY_KINDS = ("steam", "cooling water", "chilled water", "brine", "hot oil", "electric")
 
@@ -552,6 +594,7 @@ class Worksheet(_Model):
     notes: str = Field(default="", max_length=20_000)
     tags: SheetTags = SheetTags()
     basis: Basis = Basis()
+    atmosphere: SiteAtmosphere = SiteAtmosphere()  # the reference of gauge pressures (default 1.01325 bar)
     materials: list[UserMaterial] = Field(default_factory=list, max_length=50)
     freezing_materials: list[FreezingMaterial] = Field(default_factory=list, max_length=50)
     common_temperatures: list[CommonTemperature] = Field(default_factory=list, max_length=50)

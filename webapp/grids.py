@@ -530,7 +530,7 @@ def _is_mass(cell: str) -> bool:
 
 
 def _reactions(tables, ws: Worksheet, problems) -> list[dict]:
-    out = []
+    out, kept = [], {r.name: r for r in ws.reactions}
     for index, row in _rows(tables, "reactions"):
         r = _Reader("reactions", index, row, problems)
         molar_mass = r.quantity("molar mass", ("molar_mass",), required=False)
@@ -541,7 +541,8 @@ def _reactions(tables, ws: Worksheet, problems) -> list[dict]:
                     "enthalpy": r.quantity("heat of reaction", ("molar_energy",), required=equation is None),
                     "equation": equation, "key_reactant": r.text("key reactant") or None,
                     "amount": r.quantity("amount", amount_kinds), "conversion": r.number("conversion", 1.0),
-                    "molar_mass": molar_mass, "vessel": r.text("vessel") or None})
+                    "molar_mass": molar_mass, "vessel": r.text("vessel") or None,
+                    "temperature": getattr(kept.get(r.text("name")), "temperature", None)})  # not a column: kept
     return out
 
 

@@ -18,7 +18,8 @@ __all__ = ["render_inputs", "table_frame", "check_marks"]
 
 _STATE_HELP = ("a temperature (55 °C, 131 °F, 328 K), or 'saturated vapour', 'saturated liquid', "
                "'vapour fraction 0.3', 'solid fraction 0.5', 'shared: <name>'; ? = the unknown")
-_PRESSURE_HELP = "barg, psig, kPag = gauge (above 1.01325 bar); bar, bara, psia, kPa, MPa = absolute"
+_PRESSURE_HELP = ("barg, psig, kPag = gauge (above the site's barometric pressure: 1.01325 bar unless set under "
+                  "Site atmosphere); bar, bara, psia, kPa, MPa = absolute")
 
 
 def _column_config(worksheet: Worksheet) -> dict:

@@ -52,7 +52,7 @@ def render_results(result: Result | None, system: str) -> None:
         st.markdown("**Sign convention**")
         st.markdown(plain(SIGN_CONVENTION))
         st.markdown("**Assumptions**")
-        st.markdown("\n".join(f"- {plain(a)}" for a in result.assumptions))
+        st.markdown("\n".join(f"- {plain(phrase_text(a, system))}" for a in result.assumptions))
     with right:
         st.markdown("**Property data**")
         st.markdown("\n".join(f"- **{plain(name)}**: {plain(source)}" for name, source in result.sources.items()))

@@ -175,8 +175,9 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
                              "(from DSC/ARC data). Needed for the criticality class.")
         c3.number_input(f"MTT [{unit}]", value=None, step=5.0, key=widget_key(index, "MTT"), **(commit or {}),
                         placeholder="boiling point from the data",
-                        help="Maximum technical temperature. Empty: the boiling point at the vessel's pressure "
-                             "from the property data.")
+                        help="Maximum technical temperature. Empty: the boiling (bubble) point of the vessel's "
+                             "liquid at its pressure, from the property data (a mixture: thermo's vapour pressures, "
+                             "UNIFAC or Raoult's law).")
         if _error_key(index) in st.session_state:
             st.error(f"These screening inputs cannot be used: {plain(st.session_state[_error_key(index)])}",
                      icon=":material/error:")

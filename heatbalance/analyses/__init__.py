@@ -13,6 +13,7 @@ from ..messages import Phrase
 from ..problem import build_problem
 from ..results import Result
 from ..worksheet import Worksheet
+from .critical import near_critical_warnings
 from .screening import JacketTime, Screening, screen
 from .utilities import UtilityTable, return_limit_warnings, utility_tables
 
@@ -81,6 +82,7 @@ def analyse(problem, result):
                 raise NoSolutionError("the exchanger or utility check gives a number that is not finite: check its "
                                       "inputs", where(record))
     result.warnings = list(result.warnings) + [w for c in result.exchangers for w in c.warnings]
+    result.warnings += near_critical_warnings(problem, result)
     return result
 
 

@@ -19,6 +19,7 @@ from ..reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, crit
                        thermal_inertia_factor)
 from ..results import Result
 from ..units import ATMOSPHERE
+from .bubble_point import GLYCOLS, bubble_point, mixture_components
 
 __all__ = ["JacketTime", "Screening", "screen", "cp_at"]
 
@@ -64,6 +65,8 @@ class Screening:
     notes: list[Phrase] = field(default_factory=list)
     jacket: JacketTime | None = None
     caution: str = CAUTION
+    MTT_composition: dict = field(default_factory=dict)  # mole fractions when MTT is the mixture's bubble point
+    MTT_model: str = ""  # the activity model of that bubble point
 
     @property
     def alarm(self) -> bool:
@@ -181,7 +184,11 @@ def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Resul
     if Q <= 0:
         notes.append(Phrase("The reaction heat is not exothermic: loss of cooling does not raise the temperature "
                             "through this reaction (MTSR = process temperature)."))
-    MTT, MTT_source = _mtt(inputs.MTT, charges, notes)
+    bubble = None
+    if inputs.MTT is None and _is_mixture(charges, inputs.chemicals):
+        MTT, MTT_source, bubble = _mixture_mtt(vessel, inputs, charges, notes, result.warnings)
+    else:
+        MTT, MTT_source = _mtt(inputs.MTT, charges, notes)
     T_D24 = inputs.T_D24
     if MTT is not None and T_D24 is not None:
         klass = criticality_class(T_process, MTSR, MTT, T_D24)
@@ -197,7 +204,8 @@ def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Resul
                             "or losses during it."))
     return Screening(vessel, sorted(names), T_process, Q, mass, cp, C_vessel, phi, dT_ad, dT_ad_phi,
                      inputs.accumulation, inputs.thermal_inertia, MTSR, MTT, MTT_source, T_D24, klass, meaning,
-                     _alarms(T_process, MTSR, MTT, T_D24, where), notes, jacket)
+                     _alarms(T_process, MTSR, MTT, T_D24, where), notes, jacket,
+                     MTT_composition=bubble.composition if bubble else {}, MTT_model=bubble.model if bubble else "")
 
 
 def _vessel_heat_capacity(problem: Problem, vessel: str, T: float, where: str) -> float:
@@ -222,6 +230,47 @@ def _mtt(entered: float | None, charges: list, notes: list[Phrase]) -> tuple[flo
                             "enter MTT from data for the mixture if it matters."))
     return T, Phrase("boiling point of {name} at {P}, the lowest among the charges ({source})",
                      {"name": material.name, "P": Measure(P, "pressure"), "source": material.source})
+
+
+def _is_mixture(charges: list, chemicals: dict) -> bool:
+    """Whether the vessel's liquid is a mixture: charges of several materials, an aqueous glycol, or charges
+    given as chemicals."""
+    return bool(chemicals) or len({model.material_name for model, _ in charges}) > 1 or \
+        any(getattr(model.material, "code", None) in GLYCOLS for model, _ in charges)
+
+
+def _mixture_mtt(vessel: str, inputs, charges: list, notes: list[Phrase], warnings: list):
+    """MTT = the bubble point of the vessel's liquid at its pressure; a charge that cannot be placed leaves MTT to
+    be entered, said loudly at its address."""
+    P = charges[0][1].final_P
+    try:
+        components = mixture_components([m for m, _ in charges], [line for _, line in charges], inputs.chemicals,
+                                        vessel)
+        bubble = bubble_point(components, P, inputs.activity_model)
+    except InputError as exc:
+        warnings.append(Phrase("Vessel {vessel}: no MTT from the mixture's bubble point ({where}): {reason}",
+                               {"vessel": vessel, "where": exc.where, "reason": exc.phrase.text}, address=exc.where))
+        return None, Phrase("{reason} (at {where})", {"reason": exc.phrase.text, "where": exc.where},
+                            address=exc.where), None
+    from thermo import __version__ as thermo_version
+
+    composition = ", ".join(f"{name} {x:.4f}" for name, x in sorted(bubble.composition.items(), key=lambda c: -c[1]))
+    methods = ", ".join(f"{name}: {method}" for name, method in bubble.vapour_pressure_methods.items())
+    source = Phrase("bubble point of the liquid mixture at {P}, {model}; mole fractions as charged: {composition}; "
+                    "vapour pressures from thermo {version} ({methods})",
+                    {"P": Measure(P, "pressure"), "model": bubble.model, "composition": composition,
+                     "version": thermo_version, "methods": methods})
+    notes.extend(bubble.notes)
+    if bubble.T < bubble.T_major - 0.05:
+        others = ", ".join(n for n in bubble.composition if n != bubble.major)
+        notes.append(Phrase(
+            "The mixture boils {dT} below pure {major} ({T_major} at the same pressure), its main component: the "
+            "more volatile components ({others}) supply {share} of the vapour pressure at {T} (Σ x·γ·P_sat = P). The composition "
+            "is as charged: reaction products are not counted.",
+            {"dT": Measure(bubble.T_major - bubble.T, "temperature_difference", decimals=1), "major": bubble.major,
+             "T_major": Measure(bubble.T_major, "temperature", 1), "others": others,
+             "share": f"{bubble.volatile_share:.0%}", "T": Measure(bubble.T, "temperature", 1)}))
+    return bubble.T, source, bubble
 
 
 def _alarms(T_process: float, MTSR: float, MTT: float | None, T_D24: float | None, where: str) -> list[Phrase]:

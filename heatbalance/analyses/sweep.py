@@ -184,7 +184,7 @@ class _FastSetter:
 
     def _pressure(self, specs):
         def apply(value: float) -> None:
-            P = typed_si(value, self.axis.unit, "pressure", self.axis.address)
+            P = typed_si(value, self.axis.unit, "pressure", self.axis.address, self.p.atmosphere)
             for spec in specs:
                 spec.P = P
         return apply

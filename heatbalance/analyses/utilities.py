@@ -36,7 +36,6 @@ from ..address import item
 from ..messages import Measure, Phrase
 from ..problem import DEFAULT_MINIMUM_APPROACH, Problem, UtilityInputs
 from ..results import Result
-from ..units import ATMOSPHERE
 from ..worksheet import Utility
 
 __all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
@@ -162,7 +161,7 @@ def _steam(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | No
 def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
     """(fraction of the condensate that flashes when let down to the flash pressure, latent heat there [J/kg]):
     x = (h_condensate − h_f) / h_fg at the flash pressure (an adiabatic let-down, IAPWS-IF97 via CoolProp)."""
-    P = ATMOSPHERE if u.flash_P is None else u.flash_P
+    P = u.flash_P
     where = f"{u.address}.flash_pressure"
     if P >= u.P:
         raise InputError(Phrase("the condensate is let down to {P}: that is not below the steam's {Ps}",

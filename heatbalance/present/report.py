@@ -37,7 +37,7 @@ def format_result(result: Result, system: str = "SI") -> str:
            _table(rows, columns), "",
            f"closure residual: {format_heat(result.residual, result.basis, system)}",
            f"sign convention: {SIGN_CONVENTION}", "", "assumptions:"]
-    out += [f"  - {a}" for a in result.assumptions]
+    out += [f"  - {phrase_text(a, system)}" for a in result.assumptions]
     out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
     out += ["warnings:"] + ([f"  ! {phrase_text(w, system)}" for w in result.warnings] or ["  (none)"])
     if result.uncertainty is not None:

@@ -191,9 +191,9 @@ def _typed(value) -> str:
     return f"{value:g}" if value is not None else ""
 
 
-def _conventions(result: Result, styles) -> list:
+def _conventions(result: Result, styles, system: str = "SI") -> list:
     out = [_p("Sign convention", styles["h2"]), _p(SIGN_CONVENTION, styles["body"]), _p("Assumptions", styles["h2"])]
-    out += [_p(f"• {a}", styles["body"]) for a in result.assumptions]
+    out += [_p(f"• {phrase_text(a, system)}", styles["body"]) for a in result.assumptions]
     out.append(_p("Property data and versions", styles["h2"]))
     out += [_p(f"• {name}: {source}", styles["body"]) for name, source in result.sources.items()]
     out.append(_p("Libraries: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()), styles["body"]))
@@ -385,7 +385,7 @@ def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision:
                     _warnings(ws, result, system, styles), _inputs(ws, styles), _contributions(result, system, styles),
                     _uncertainty(result, system, styles), _cases(ws, system, styles), _exchangers(result, system, styles),
                     _screening(result, system, styles),
-                    _waterfall(result, system, styles), _conventions(result, styles),
+                    _waterfall(result, system, styles), _conventions(result, styles, system),
                     _signoffs(signoffs or [], styles)):
         story += section
     buffer = io.BytesIO()

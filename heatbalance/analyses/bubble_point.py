@@ -1,0 +1,183 @@
+"""The bubble point of a vessel's liquid mixture at its pressure: the MTT of its thermal screening.
+
+    Σ x_i · γ_i(T, x) · P_sat,i(T) = P          solved for T (Brent's method)
+
+P_sat,i from `thermo`'s vapour-pressure correlations (each component's method is named in the result), γ_i
+from original UNIFAC (`thermo.unifac`, version 0: the published UNIFAC group parameters, groups assigned by the
+DDBST as shipped with `thermo`) when every component has groups; else γ = 1, Raoult's law, and the result says
+so. The composition is the vessel's charges as charged (mole fractions from their masses), liquids only.
+
+A charge's chemical comes from the catalogue (a pure fluid is itself; an aqueous glycol is water and the glycol
+at its mass fraction) or from the vessel's screening ``components`` (a material defined by its cp only). A
+charge the tool cannot place is refused at its address, never guessed: dissolved salts (Raoult's law does not
+hold for electrolytes), a material with no chemical named, a chemical without vapour-pressure data, a
+component above its critical temperature (a dissolved gas: Henry's law, not Raoult's).
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import lru_cache
+
+from ..address import item
+from ..errors import InputError
+from ..materials import PURE_FLUIDS
+from ..messages import Measure, Phrase
+
+__all__ = ["BubblePoint", "mixture_components", "bubble_point", "GLYCOLS", "UNIFAC_NAME", "RAOULT_NAME"]
+
+#: CoolProp incompressible code of an aqueous glycol -> the glycol, for its vapour pressure
+GLYCOLS = {"MEG": "ethylene glycol", "MPG": "propylene glycol"}
+UNIFAC_NAME = "original UNIFAC (thermo.unifac version 0, DDBST group assignments)"
+RAOULT_NAME = "Raoult's law (ideal solution, γ = 1)"
+_BLENDS = {"R-410A", "air"}  # catalogue fluids that are mixtures themselves
+
+
+@dataclass
+class BubblePoint:
+    """The bubble point of a liquid mixture, SI (K, Pa); mole fractions by the chemical's name."""
+
+    T: float
+    P: float
+    composition: dict[str, float]
+    model: str
+    vapour_pressure_methods: dict[str, str]
+    major: str  # the component with the largest mole fraction
+    T_major: float  # its pure boiling point at P, from the same vapour-pressure data
+    volatile_share: float  # the part of P the other components supply at T
+    notes: list[Phrase] = field(default_factory=list)
+
+
+def mixture_components(lines: list, results: list, chemicals: dict[str, str], vessel: str) -> list[tuple]:
+    """``(chemical, kg, address)`` of each liquid in a vessel's charges; a charge that cannot be placed is refused
+    at its address (``InputError``).
+
+    ``lines``/``results``: the vessel's charges (problem lines and their solved results, in the same order);
+    ``chemicals``: charge name -> chemical, from the screening's ``components``.
+    """
+    out = []
+    for line, solved in zip(lines, results):
+        material, where = line.material, f"{line.address}.material"
+        if solved.final_phase != "liquid" and line.charge not in chemicals:
+            continue  # a solid or a gas at the final state is not part of the boiling liquid
+        if line.charge in chemicals:
+            out.append((chemicals[line.charge], solved.amount_si, item("vessels", vessel, "screening",
+                                                                       item("components", line.charge))))
+        elif line.material_name in PURE_FLUIDS and line.material_name not in _BLENDS:
+            out.append((line.material_name, solved.amount_si, where))
+        elif getattr(material, "code", None) in GLYCOLS:
+            out.append(("water", solved.amount_si * (1.0 - material.fraction), where))
+            out.append((GLYCOLS[material.code], solved.amount_si * material.fraction, where))
+        elif getattr(material, "code", None) is not None:
+            raise InputError(f"{line.material_name} is a salt solution: Raoult's law does not hold for dissolved "
+                             f"electrolytes, so the mixture's boiling point is not computed; enter MTT "
+                             f"({item('vessels', vessel, 'screening', 'MTT')})", where)
+        else:
+            raise InputError(f"no vapour-pressure data for '{line.material_name}' (its data give cp only): name the "
+                             f"chemical this charge is in {item('vessels', vessel, 'screening', 'components')}, or "
+                             f"enter MTT ({item('vessels', vessel, 'screening', 'MTT')})", where)
+    return out
+
+
+@lru_cache(maxsize=64)
+def _constants(chemical: str):
+    """(name, CAS, molar mass kg/mol, vapour-pressure correlation, UNIFAC groups) of a chemical, from `thermo`."""
+    from thermo import ChemicalConstantsPackage, VaporPressure
+
+    c = ChemicalConstantsPackage.constants_from_IDs([chemical])
+    vp = VaporPressure(CASRN=c.CASs[0], Tb=c.Tbs[0], Tc=c.Tcs[0], Pc=c.Pcs[0], omega=c.omegas[0])
+    return c.names[0], c.CASs[0], c.MWs[0] / 1000.0, c.Tcs[0], vp, (c.UNIFAC_groups or [None])[0] or {}
+
+
+def _chemical(chemical: str, where: str):
+    try:
+        constants = _constants(chemical.strip())
+    except Exception:  # noqa: BLE001 - thermo raises ValueError/KeyError for a name it does not know
+        raise InputError(f"'{chemical}' is not a chemical the `chemicals` databases know (give its name or CAS "
+                         f"number)", where) from None
+    if constants[4].method is None:
+        raise InputError(f"no vapour-pressure data for {constants[0]} (CAS {constants[1]}): enter MTT", where)
+    return constants
+
+
+def bubble_point(components: list[tuple], P: float, activity_model: str = "UNIFAC") -> BubblePoint:
+    """The bubble point at ``P`` [Pa] of a liquid of ``components`` ``(chemical, kg, address)``.
+
+    Raises
+    ------
+    InputError
+        An unknown chemical or one without vapour-pressure data (at its address); a component above its critical
+        temperature where the mixture would boil; no bubble point in the data's range.
+
+    Examples
+    --------
+    >>> bp = bubble_point([("benzene", 39.06, ""), ("toluene", 46.07, "")], 101325.0)  # x = 0.5 each
+    >>> round(bp.T - 273.15, 1)  # 92.4 °C: McCabe, Smith & Harriott's benzene-toluene table at 1 atm, from memory
+    92.4
+    """
+    data: dict[str, list] = {}
+    for chemical, kg, where in components:
+        name, cas, M, Tc, vp, groups = _chemical(chemical, where)
+        entry = data.setdefault(name, [0.0, M, Tc, vp, groups, where])
+        entry[0] += kg / M
+    total = sum(d[0] for d in data.values())
+    if not total > 0:
+        raise InputError("the vessel holds no liquid to boil", components[0][2] if components else "")
+    names = list(data)
+    xs = [data[n][0] / total for n in names]
+    vps = [data[n][3] for n in names]
+    no_groups = [n for n in names if not data[n][4]]
+    use_unifac = activity_model == "UNIFAC" and len(names) > 1 and not no_groups
+    gammas = _gammas([data[n][4] for n in names], xs) if use_unifac else (lambda T: [1.0] * len(xs))
+
+    def excess(T: float) -> float:
+        return sum(x * g * vp(T) for x, g, vp in zip(xs, gammas(T), vps)) - P
+
+    pure = {n: _pure_boiling(data[n][3], P, n, data[n][5]) for n in names}
+    low, high = min(pure.values()) - 60.0, max(pure.values()) + 1.0
+    T = _root(excess, low, high, data, names, xs)
+    major = names[max(range(len(xs)), key=lambda i: xs[i])]
+    i_major = names.index(major)
+    share = 1.0 - xs[i_major] * gammas(T)[i_major] * vps[i_major](T) / P
+    for n in names:
+        if T >= data[n][2]:
+            raise InputError(f"{n} is above its critical temperature ({data[n][2]:.1f} K) where the mixture would "
+                             "boil: a dissolved gas follows Henry's law, not Raoult's; enter MTT", data[n][5])
+    notes = []
+    if activity_model == "UNIFAC" and no_groups and len(names) > 1:
+        notes.append(Phrase(f"No UNIFAC groups for {', '.join(no_groups)}: Raoult's law (γ = 1) is used; a real "
+                            "mixture may boil lower (positive deviation) or higher."))
+    return BubblePoint(T, P, dict(zip(names, xs)), UNIFAC_NAME if use_unifac else RAOULT_NAME,
+                       {n: str(data[n][3].method) for n in names}, major, pure[major], share, notes)
+
+
+def _gammas(groups: list[dict], xs: list[float]):
+    from thermo.unifac import UNIFAC
+
+    model = UNIFAC.from_subgroups(T=298.15, xs=xs, chemgroups=groups, version=0)
+    return lambda T: model.to_T_xs(T, xs).gammas()
+
+
+def _pure_boiling(vp, P: float, name: str, where: str) -> float:
+    try:
+        T = vp.solve_property(P)
+    except Exception:  # noqa: BLE001 - thermo raises when P lies outside the correlation
+        T = None
+    if T is None or not math.isfinite(T):
+        raise InputError(Phrase("the vapour-pressure data of {name} do not reach {P}: enter MTT",
+                                {"name": name, "P": Measure(P, "pressure")}), where)
+    return T
+
+
+def _root(excess, low: float, high: float, data: dict, names: list[str], xs: list[float]) -> float:
+    from scipy.optimize import brentq
+
+    try:
+        lo, hi = excess(low), excess(high)
+        if lo < 0 < hi:
+            return brentq(excess, low, high, xtol=1e-6)
+    except (ArithmeticError, ValueError):
+        pass
+    where = data[names[0]][5]
+    raise InputError("no bubble point found for this liquid between the components' boiling points: enter MTT",
+                     where)

@@ -1,0 +1,61 @@
+"""The site-atmosphere panel (webapp/site_panel.py) through Streamlit's AppTest, on the real app.py.
+
+The typed site lands in the worksheet the page holds and moves the boiling point of a 0 barg line (IAPWS-IF97
+via iapws at the ISO 2533 standard atmosphere's pressure); refusals are shown with their address and change
+nothing.
+"""
+import re
+
+import pytest
+from iapws import IAPWS97
+from page_helpers import held, page
+
+from heatbalance.worksheet import parse_worksheet
+from tests.sheet_factory import q, sheet, stream, temp
+from webapp.common import WORD_JOINER
+from webapp.site_panel import WIDGET, site_from_text, site_text
+from webapp.state import KEY
+
+
+def boiling_water():
+    """1 t/h of water at 20 °C takes 300 kW at 0 barg: it ends on the boiling plateau (our own scenario)."""
+    return parse_worksheet(sheet(
+        streams=[stream("Water", "water", q(1, "t/h"), temp(20), temp(90))],
+        duties=[{"name": "Heater", "value": q(300, "kW")}],
+        unknowns=[{"kind": "temperature", "line": "Water", "end": "outlet"}]))
+
+
+def shown(at, elements) -> str:
+    return re.sub(r"\\(.)", r"\1", "\n".join(e.value for e in elements)).replace(WORD_JOINER, "")
+
+
+def test_an_altitude_typed_on_the_page_moves_the_boiling_point():
+    at = page(boiling_water())
+    assert "Gauge pressures are relative to 1.01325 bar(a)" in shown(at, at.caption)
+    at.text_input(key=WIDGET).set_value("1500 m").run()
+    assert not at.exception
+    assert str(held(at).atmosphere.altitude) == "1500 m"
+    assert "0.84556 bar(a): the ISO 2533 standard atmosphere at the site's altitude, 1500 m" in shown(at, at.caption)
+    result, _ = at.session_state[KEY].solve()
+    p_site = 101325.0 * (1 - 0.0065 * 1500 / 288.15) ** 5.25588  # ISO 2533 troposphere, by hand
+    assert result.answer.value_si == pytest.approx(IAPWS97(P=p_site / 1e6, x=0).T, abs=0.01)  # iapws
+
+
+@pytest.mark.parametrize("typed, where", [
+    pytest.param("12000 m", "atmosphere.altitude", id="above-troposphere"),
+    pytest.param("2 barg", "atmosphere.barometric_pressure", id="gauge"),
+    pytest.param("warm", "atmosphere", id="not-a-quantity"),
+    pytest.param("3 kg", "atmosphere", id="wrong-kind"),
+])
+def test_a_refused_site_is_shown_with_its_address_and_not_written(typed, where):
+    at = page(boiling_water())
+    at.text_input(key=WIDGET).set_value(typed).run()
+    assert not at.exception
+    errors = shown(at, at.error)
+    assert f"Not used, at {where}:" in errors
+    assert held(at).atmosphere.altitude is None and held(at).atmosphere.barometric_pressure is None
+
+
+def test_typed_text_round_trips():
+    for text in ("1500 m", "0.85 bar", "12.3 psia", "4900 ft", ""):
+        assert site_text(site_from_text(text)) == text
