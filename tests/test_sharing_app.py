@@ -50,7 +50,7 @@ def no_traceback(at: AppTest) -> None:
 
 def answer(at: AppTest) -> str:
     """The answer's metric (other panels, e.g. the screening, add metrics of their own)."""
-    metrics = [m for m in at.main.metric if m.label.startswith("Answer")]
+    metrics = [m for m in at.sidebar.metric if m.label.startswith("Answer")]
     assert len(metrics) == 1, [e.value for e in at.error]
     return metrics[0].value
 
