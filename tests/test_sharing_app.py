@@ -142,7 +142,7 @@ def test_an_edit_saved_again_is_a_new_revision_with_the_old_one_as_parent(db):
     first = revision_id(at.session_state[KEY].worksheet)
     at.text_input(key="title_input").set_value("Glycol heater, checked").run()
     no_traceback(at)
-    assert any("Changed since revision" in c.value for c in at.caption)
+    assert any("Unsaved changes since revision" in c.value for c in at.caption)  # issue 17 wording
     at.button(key="share_save").click().run()
     second = revision_id(at.session_state[KEY].worksheet)
     assert second != first
