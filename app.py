@@ -22,6 +22,11 @@ from webapp.sidebar import render_sidebar
 from webapp.state import KEY, PageState
 
 
+SIDEBAR_PX = 360  # the answer panel's width at first (the user can drag it)
+# narrower page margins than Streamlit's wide layout, so the inputs fit a 1400 px screen beside the answer panel
+_LAYOUT_CSS = "<style>.stMainBlockContainer{padding:2.5rem 2rem 4rem 2rem;}</style>"
+
+
 def replace_worksheet(worksheet: Worksheet) -> None:
     """Put another worksheet on the page (an upload, a link)."""
     page_state().replace(worksheet)
@@ -61,19 +66,23 @@ def open_state() -> None:
 
 
 def main() -> None:
-    st.set_page_config(page_title="Heat balance worksheet", page_icon=":material/thermostat:", layout="wide")
+    st.set_page_config(page_title="Heat balance worksheet", page_icon=":material/thermostat:", layout="wide",
+                       initial_sidebar_state=SIDEBAR_PX)
+    st.html(_LAYOUT_CSS)
     guarded(open_state)
     if KEY not in st.session_state:
         return
     state = page_state()
     system = display_system()
-    guarded(render_sidebar)
     result: Result | None
     result, error = state.solve()
     worksheet = state.worksheet
+    with st.sidebar:  # always in view: the answer, its warnings, undo, save and share
+        guarded(render_answer, worksheet, result, error, system)
+        guarded(sharing.render_save, worksheet)
+        guarded(render_sidebar)
     guarded(render_header, worksheet)
     guarded(sharing.render_origin, worksheet)  # where it came from: a saved revision, a link, a sample, …
-    guarded(render_answer, worksheet, result, error, system)
     guarded(render_inputs, worksheet, system)
     guarded(render_results, result, system)
     for panel in EXTRA_PANELS:

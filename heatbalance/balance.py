@@ -464,14 +464,21 @@ def _answer(p: Problem, fraction: float | None) -> Answer:
                   p.unknown_typed_unit, fraction, plateau)
 
 
+def _equipment_words(heat: float) -> Phrase:
+    """The equipment row's words follow its sign (heat into the process +): it warms and takes heat up, or
+    cools and gives heat to the contents."""
+    if heat > 0:
+        return Phrase("heat given to the contents by the vessel and its internals as they cool (+ into the process)")
+    return Phrase("heat taken up by the vessel and its internals as they warm (− into the process)")
+
+
 def _result(p: Problem, fraction: float | None) -> Result:
     sides = {p.unknown_target: fraction} if fraction is not None else {}
     lines = [_line_result(ln, p.temperatures, sides) for ln in p.lines]
     terms = [TermResult(t.name, t.kind, t.heat, t.detail, vessel=t.vessel) for t in p.terms]
     for e in p.equipment:
-        terms.append(TermResult(e.name, "equipment", -_equipment_heat(e, p.temperatures, sides),
-                                Phrase("heat taken up by the vessel and its internals (− into the process)"),
-                                vessel=e.vessel))
+        heat = -_equipment_heat(e, p.temperatures, sides)
+        terms.append(TermResult(e.name, "equipment", heat, _equipment_words(heat), vessel=e.vessel))
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \

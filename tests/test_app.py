@@ -54,7 +54,7 @@ def engine(ws, system="SI") -> str:
 
 
 def answer_text(at) -> str:
-    metrics = at.main.metric
+    metrics = at.sidebar.metric
     assert len(metrics) == 1, [e.value for e in at.error]
     return metrics[0].value
 
@@ -92,7 +92,7 @@ def test_the_page_opens_on_a_solved_sample():
     at = page()
     no_traceback(at)
     assert answer_text(at) == engine(sample("steam_heater_glycol.json")) == "745.6 kg/h"  # engine's answer
-    assert at.main.metric[0].label == "Answer: Steam flow"
+    assert at.sidebar.metric[0].label == "Answer: Steam flow"
     assert at.selectbox(key="unknown_picker").value == "Steam: flow"
     assert errors(at) == ""
     # the page's editing state is one object under one key (no back-door keys for tests)
@@ -217,7 +217,7 @@ def test_a_wrong_unit_is_marked_and_the_inputs_are_kept():
     edit(at, "streams", {"edited_rows": {0: {"flow": "12 kW"}}})
     no_traceback(at)
     assert "Streams, row 1, flow: unit 'kW' is not a mass flow (it measures power)" in errors(at)
-    assert not at.main.metric  # no answer that would not match the page
+    assert not at.sidebar.metric  # no answer that would not match the page
     typed = rows(at, "streams")
     assert typed[0]["flow"] == "12 kW" and typed[1]["flow"] == "? kg/h" and typed[0]["outlet"] == "40 °C"
     assert list(grid(at, "streams")["check"]) == ["⚠ flow", ""]
@@ -236,7 +236,14 @@ def test_a_bad_cell_is_kept_when_the_title_or_basis_changes():
     assert held(at).title == "Glycol heater, revised"
     assert rows(at, "streams")[0]["flow"] == "12 kW"  # not reverted to the last good value
     assert "unit 'kW' is not a mass flow" in errors(at)
-    assert at.selectbox(key="unknown_picker").disabled  # fix the marked cell before moving the unknown
+    # "Solve for" stays usable (issue 17): moving the unknown changes its two cells, the bad cell stays as typed
+    picker = at.selectbox(key="unknown_picker")
+    assert not picker.disabled
+    picker.select("Glycol: outlet temperature").run()
+    typed = rows(at, "streams")
+    assert typed[0]["flow"] == "12 kW" and typed[0]["outlet"] == "? °C"
+    assert typed[1]["flow"] == "745.627 kg/h"  # the last answer, 6 figures (solved before the bad edit)
+    assert "unit 'kW' is not a mass flow" in errors(at)
 
 
 def test_a_negative_mass_is_refused_by_the_engine_and_its_cell_is_marked():

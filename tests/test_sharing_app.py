@@ -50,7 +50,7 @@ def no_traceback(at: AppTest) -> None:
 
 def answer(at: AppTest) -> str:
     """The answer's metric (other panels, e.g. the screening, add metrics of their own)."""
-    metrics = [m for m in at.main.metric if m.label.startswith("Answer")]
+    metrics = [m for m in at.sidebar.metric if m.label.startswith("Answer")]
     assert len(metrics) == 1, [e.value for e in at.error]
     return metrics[0].value
 
@@ -142,7 +142,7 @@ def test_an_edit_saved_again_is_a_new_revision_with_the_old_one_as_parent(db):
     first = revision_id(at.session_state[KEY].worksheet)
     at.text_input(key="title_input").set_value("Glycol heater, checked").run()
     no_traceback(at)
-    assert any("Changed since revision" in c.value for c in at.caption)
+    assert any("Unsaved changes since revision" in c.value for c in at.caption)  # issue 17 wording
     at.button(key="share_save").click().run()
     second = revision_id(at.session_state[KEY].worksheet)
     assert second != first

@@ -15,15 +15,19 @@ from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
 
 from .common import page_state, plain
+from .state import NEW_DUTY
 from .uncertainty_panel import key as uncertainty_key
 
-__all__ = ["render_header", "render_answer", "refusal_place"]
+__all__ = ["render_header", "render_answer", "refusal_place", "unknown_choices", "NEW_DUTY_LABEL"]
 
 
 def render_header(worksheet: Worksheet) -> None:
     st.title(plain(worksheet.title))
     if worksheet.notes:
         st.caption(plain(worksheet.notes))
+
+
+NEW_DUTY_LABEL = "a heater or cooler duty (adds a duty line)"
 
 
 def _on_unknown_pick(choices: dict[str, str]) -> None:
@@ -38,19 +42,28 @@ def _on_unknown_pick(choices: dict[str, str]) -> None:
             st.session_state.pop(uncertainty_key("refusal"), None)
 
 
-def _render_unknown_picker(worksheet: Worksheet, blocked: bool) -> None:
+def unknown_choices(worksheet: Worksheet) -> dict[str, str]:
+    """What "Solve for" offers, label -> address: every field that can be the unknown, and a new duty."""
     choices = {label: where for where, label in address.unknown_choices(worksheet)}
+    choices[NEW_DUTY_LABEL] = NEW_DUTY
+    return choices
+
+
+def _render_unknown_picker(worksheet: Worksheet) -> None:
+    """Always usable (a marked cell too: only the two cells concerned change); no clear button (index 0
+    as the widget's default with the current choice set in the session makes it not clearable)."""
+    choices = unknown_choices(worksheet)
     current = None
     if len(worksheet.unknowns) == 1:
         held = address.unknown_address(worksheet.unknowns[0])
         current = next((label for label, where in choices.items() if where == held), None)
     if st.session_state.get("unknown_picker") != current:
         st.session_state["unknown_picker"] = current
-    st.selectbox("Solve for", list(choices), index=None, key="unknown_picker", on_change=_on_unknown_pick,
-                 args=(choices,), disabled=blocked,  # fix the marked cell first: the '?' cells move
-                 placeholder="pick the one unknown quantity…",
+    st.selectbox("Solve for", list(choices), index=0 if current is not None else None, key="unknown_picker",
+                 on_change=_on_unknown_pick, args=(choices,), placeholder="pick the one unknown quantity…",
                  help="The one quantity the balance is solved for. Picking another one gives the old "
-                      "unknown its last answer as a value, in the unit typed there.")
+                      "unknown its last answer as a value, in the unit typed there (or keeps a value you "
+                      "typed into its cell).")
 
 
 def refusal_place(error: HeatBalanceError) -> str:
@@ -77,27 +90,53 @@ def _render_answer_value(result: Result, system: str) -> None:
                              "listed under \"How sure is the answer\".")
 
 
+def _on_undo() -> None:
+    page_state().undo()
+
+
+def _on_redo() -> None:
+    page_state().redo()
+
+
+def _render_undo_redo() -> None:
+    state = page_state()
+    left, right = st.columns(2)
+    left.button("Undo", key="undo", icon=":material/undo:", on_click=_on_undo, disabled=not state.past,
+                shortcut="Ctrl+Z", width="stretch", help="Undo the last change to the worksheet")
+    right.button("Redo", key="redo", icon=":material/redo:", on_click=_on_redo, disabled=not state.future,
+                 shortcut="Ctrl+Y", width="stretch", help="Redo the change undone last")
+
+
 def _render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None, system: str) -> None:
     if error is None:
         st.info("Nothing to solve yet: add a stream or a vessel below, then pick what to solve for.")
         return
+    gone = page_state().unknown_gone
+    if gone is not None:
+        line = address.parse(gone)[0][1]
+        st.error(f"**Not solved.** The quantity solved for, {plain(address.label(gone))}, belonged to "
+                 f"{plain(line)}, which is no longer on the sheet. Pick what to solve for above, or undo the "
+                 "deletion.", icon=":material/error:")
+        st.button(f"Undo: bring back {line}", key="undo_deletion", on_click=_on_undo, type="primary",
+                  disabled=not page_state().past)
+        return
     place = refusal_place(error)
     where = f"{plain(place)}: " if place else ""
     st.error(f"**Not solved.** {where}{plain(error_text(error, system))}", icon=":material/error:")
-    st.caption("The place is marked in the tables below; everything else is kept as you left it.")
+    st.caption("The place is marked in the tables; everything else is kept as you left it.")
 
 
 def render_answer(worksheet: Worksheet, result: Result | None, error: HeatBalanceError | None,
                   system: str) -> None:
+    """The answer panel (drawn in the sidebar, so it stays in view): "Solve for", the answer or why there is
+    none, undo and redo, its warnings, the one caution."""
     with st.container(key="answer", border=True):
-        left, right = st.columns([2, 3], vertical_alignment="center")
-        with left:
-            _render_unknown_picker(worksheet, blocked=bool(page_state().problems))
-        with right:
-            if result is not None:
-                _render_answer_value(result, system)
-            else:
-                _render_not_solved(worksheet, error, system)
+        _render_unknown_picker(worksheet)
+        if result is not None:
+            _render_answer_value(result, system)
+        else:
+            _render_not_solved(worksheet, error, system)
+    _render_undo_redo()
     if result is not None and result.warnings:
         listed = "\n".join(f"- {plain(phrase_text(w, system))}" for w in result.warnings)
         st.warning(f"**Read before using this answer:**\n{listed}", icon=":material/warning:")

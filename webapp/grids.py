@@ -28,6 +28,7 @@ __all__ = [
     "TABLES", "TABLE_TITLES", "COLUMNS", "DERIVED", "NUMBER_COLUMNS", "CellProblem", "worksheet_to_tables",
     "tables_to_worksheet", "apply_edits", "cell_values", "same_rows", "renamed", "follow_renames", "cell_of", "material_names",
     "pressure_reference", "format_quantity", "parse_quantity", "format_state", "parse_state", "empty_worksheet",
+    "typed_cell", "typed_into_unknown", "TYPED_INTO_UNKNOWN",
 ]
 
 UNKNOWN_MARK = "?"
@@ -139,7 +140,11 @@ def parse_quantity(text: str, kinds: tuple[str, ...], column: str) -> Quantity:
     >>> parse_quantity("55 °C", ("temperature",), "outlet")
     Quantity(value=55.0, unit='degC')
     """
-    match = QUANTITY_TEXT.match(text.replace("−", "-"))
+    text = text.replace("−", "-")
+    comma = _DECIMAL_COMMA.match(text)
+    if comma:
+        raise _CellError(column, _comma_message(text, comma))
+    match = QUANTITY_TEXT.match(text)
     if not match:
         raise _CellError(column, f"'{text}' is not a number followed by a unit (e.g. {_example(kinds)})")
     value, unit = float(match.group(1)), match.group(2)
@@ -151,6 +156,20 @@ def parse_quantity(text: str, kinds: tuple[str, ...], column: str) -> Quantity:
     except HeatBalanceError as exc:
         raise _CellError(column, exc.message) from None
     return Quantity(value=value, unit=unit)
+
+
+_DECIMAL_COMMA = re.compile(r"^\s*([-+]?\d*),(\d+)\s*(.*?)\s*$")
+
+
+def _comma_message(text: str, match: re.Match) -> str:
+    """A number written with a comma: say so, with what was typed and what to write instead."""
+    whole, part, unit = match.groups()
+    point = f"{whole or '0'}.{part} {unit}".strip()
+    message = f"'{text}' has a comma in the number: use a decimal point, e.g. '{point}'"
+    if len(part) == 3 and whole.lstrip("+-"):  # 1,200 may be a thousands separator
+        thousands = f"{whole}{part} {unit}".strip()
+        message += f" (or '{thousands}' if the comma separates thousands)"
+    return message
 
 
 _EXAMPLES = {"mass_flow": "12 t/h", "mass": "3.5 t", "pressure": "4 barg", "temperature": "40 °C",
@@ -385,6 +404,16 @@ class _Reader:
             return None
 
 
+#: the start of the message for a value typed into the unknown's cell (the page offers what to do)
+TYPED_INTO_UNKNOWN = "is typed into the cell being solved for"
+
+
+def typed_into_unknown(value: str) -> str:
+    """The message for a value typed where the unknown's ``?`` was: the value is kept, never dropped."""
+    return (f"'{value}' {TYPED_INTO_UNKNOWN}: to keep this value, pick another quantity under 'Solve for'; "
+            "to solve for this one again, type ?")
+
+
 def _row_is_blank(row: dict) -> bool:
     return all(_blank(row.get(c)) for c in row if c not in DERIVED)
 
@@ -599,13 +628,31 @@ def tables_to_worksheet(tables: dict[str, list[dict]], base: Worksheet) -> tuple
     document = base.model_dump(mode="json", exclude_none=True)
     document.update(_plain(parts))
     try:
-        return parse_worksheet(document), []
+        worksheet = parse_worksheet(document)
     except WorksheetFormatError as exc:
         if exc.address and exc.address != "worksheet":  # the refusal's address names its cell
             cell = cell_of(exc.address, base)
             if cell.table in COLUMNS:
                 return None, [CellProblem(cell.table, cell.row, cell.column, exc.message)]
         return None, [_format_problem(exc.message)]
+    typed = _value_in_unknown(tables, worksheet)
+    return (None, [typed]) if typed else (worksheet, [])
+
+
+def _value_in_unknown(tables: dict[str, list[dict]], ws: Worksheet) -> CellProblem | None:
+    """A value typed where the unknown's ``?`` was: kept in its cell and marked, never silently dropped."""
+    for unknown in ws.unknowns:
+        where = addr.unknown_address(unknown)
+        try:
+            cell = typed_cell(tables, where, ws)
+        except HeatBalanceError:
+            continue
+        if cell is not None:
+            table, row, column = cell
+            value = _text(tables[table][row].get(column))
+            if value and not value.startswith(UNKNOWN_MARK):
+                return CellProblem(table, row, column, typed_into_unknown(value))
+    return None
 
 
 def _plain(value):
@@ -806,6 +853,28 @@ def cell_of(address: str, ws: Worksheet) -> CellProblem:
             return CellProblem("vessels", _index(items, name), None, "")
         return CellProblem(table, _index(items, name), _column(table, fields), "")
     return CellProblem("worksheet", None, None, "")
+
+
+def typed_cell(tables: dict[str, list[dict]], address: str, ws: Worksheet) -> tuple[str, int, str] | None:
+    """The (table, row, column) of the typed rows that hold the field at ``address`` of ``ws``, found by
+    the item's name (typed rows may hold rows the worksheet does not have yet); None when not there.
+
+    >>> from heatbalance.worksheet import parse_worksheet
+    >>> typed_cell({"duties": [{}, {"name": "Heater"}]}, "duties[Heater].value",
+    ...            parse_worksheet({"duties": [{"name": "Heater"}]}))
+    ('duties', 1, 'heat')
+    """
+    cell = cell_of(address, ws)
+    if cell.table not in COLUMNS or cell.column is None:
+        return None
+    steps = addr.parse(address)
+    wanted = {"name": steps[0][1]}
+    if cell.table == "charges":
+        wanted = {"vessel": steps[0][1], "name": steps[1][1]}
+    for index, row in enumerate(tables.get(cell.table) or []):
+        if all(_text(row.get(k)) == v for k, v in wanted.items()):
+            return cell.table, index, cell.column
+    return None
 
 
 def empty_worksheet() -> Worksheet:

@@ -26,23 +26,23 @@ def _column_config(worksheet: Worksheet) -> dict:
     text = st.column_config.TextColumn
     number = st.column_config.NumberColumn
     pick = st.column_config.SelectboxColumn
-    return {
+    return _sized({
         "check": text("check", width="small", disabled=True,
                       help="⚠ marks a cell that cannot be used; the message is above the table"),
         "name": text("name", help="a unique name for the line or term"),
         "material": pick("material", options=grids.material_names(worksheet),
                          help="from the property library, or defined below"),
-        "mass fraction": number("mass fraction", min_value=0.0, max_value=1.0, format="%.3f",
-                                help="aqueous solutions only"),
+        "mass fraction": number("mass frac.", min_value=0.0, max_value=1.0, format="%.3f",
+                                help="mass fraction, aqueous solutions only"),
         "flow": text("flow", help="mass flow with its unit: 12 t/h, 500 kg/h, 20000 lb/h; ? = the unknown"),
         "mass": text("mass", help="mass with its unit: 7.5 t, 400 kg, 2000 lb; ? = the unknown"),
         "pressure": text("pressure", help=_PRESSURE_HELP),
         "pressure is": text("gauge/abs.", disabled=True, help="read from the pressure unit"),
         "inlet": text("inlet state", help=_STATE_HELP), "outlet": text("outlet state", help=_STATE_HELP),
         "initial": text("initial state", help=_STATE_HELP), "final": text("final state", help=_STATE_HELP),
-        "inlet pressure": text("inlet pressure", help="only if not the line pressure. " + _PRESSURE_HELP),
-        "outlet pressure": text("outlet pressure", help="only if not the line pressure (a let-down, a flash). "
-                                + _PRESSURE_HELP),
+        "inlet pressure": text("inlet p", help="inlet pressure, only if not the line pressure. " + _PRESSURE_HELP),
+        "outlet pressure": text("outlet p", help="outlet pressure, only if not the line pressure (a let-down, "
+                                "a flash). " + _PRESSURE_HELP),
         "vessel": pick("vessel", options=[v.name for v in worksheet.vessels] or [""]),
         "heat": text("heat", help="a power (kW, MW, Btu/h) or, in batch, an energy (kJ, MJ, Btu); "
                                   "duties: heater +, cooler −; losses: positive heat leaving; ? = the unknown"),
@@ -61,7 +61,17 @@ def _column_config(worksheet: Worksheet) -> dict:
         "up to": text("up to", help="the transition temperature to the next phase"),
         "latent heat": text("latent heat", help="to the next phase: 200 kJ/kg"),
         "min temperature": text("min T"), "max temperature": text("max T"), "source": text("data source"),
-    }
+    })
+
+
+#: column widths [px] that let the widest grid (streams) fit a 1400 px screen beside the answer panel
+_WIDTHS = {"check": 80, "name": 100, "material": 140, "mass fraction": 70, "flow": 85, "mass": 85, "pressure": 80,
+           "pressure is": 72, "inlet": 110, "outlet": 110, "initial": 110, "final": 110, "inlet pressure": 70,
+           "outlet pressure": 70}
+
+
+def _sized(config: dict) -> dict:
+    return {c: ({**cfg, "width": _WIDTHS[c]} if c in _WIDTHS else cfg) for c, cfg in config.items()}
 
 
 def check_marks(table: str, count: int, problems: list[grids.CellProblem]) -> list[str]:
@@ -118,21 +128,32 @@ def _on_basis_change() -> None:
     page_state().set_basis(st.session_state["basis_kind"], st.session_state.get("basis_duration"))
 
 
+def _on_notes_change() -> None:
+    page_state().set_notes(st.session_state.get("notes_input"))
+
+
 def _render_basis() -> None:
-    st.subheader("Basis")
+    st.subheader("Worksheet and basis")
     c1, c2, c3 = st.columns([3, 2, 2])
-    c1.text_input("Worksheet title", key="title_input", on_change=_on_title_change)
+    c1.text_input("Worksheet title", key="title_input", on_change=_on_title_change, max_chars=200)
     c2.selectbox("Basis", ["continuous", "batch"], key="basis_kind", on_change=_on_basis_change,
                  help="continuous: flows (kg/h) and powers (kW). batch: masses (kg) and energies (kJ).")
     c3.text_input("Batch duration", key="basis_duration", on_change=_on_basis_change,
                   placeholder="e.g. 40 min",
                   help="batch only: a duty given as a power (kW) applies over this time")
+    st.text_area("Notes", key="notes_input", on_change=_on_notes_change, height=68, max_chars=20_000,
+                 placeholder="what this worksheet is for, where the numbers come from…",
+                 help="Plain text, kept with the worksheet and printed on the calculation sheet. A sample's "
+                      "description is its notes: change them as the worksheet changes.")
     if page_state().basis_problem:
         st.error(f"Batch duration: {plain(page_state().basis_problem)}", icon=":material/error:")
 
 
 def render_inputs(worksheet: Worksheet, system: str) -> None:
-    problems = page_state().cell_problems(lambda exc: error_text(exc, system))
+    state = page_state()
+    problems = state.cell_problems(lambda exc: error_text(exc, system))
+    if state.unknown_gone is not None:  # said in plain words beside the answer, with its one-click fix
+        problems = [p for p in problems if p.table != "unknown"]
     for problem in problems:
         if problem.table in ("worksheet", "basis", "unknown"):
             st.error(plain(problem.text), icon=":material/error:")

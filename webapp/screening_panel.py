@@ -187,7 +187,8 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
             return
         for alarm in screening.alarms:
             st.error(f"**ALARM:** {plain(phrase_text(alarm, system))}", icon=":material/emergency_home:")
-        st.plotly_chart(screening_figure(screening, system), key=f"screening_chart_{index}", width="stretch")
+        st.plotly_chart(screening_figure(screening, system, caution=False), key=f"screening_chart_{index}",
+                        width="stretch")  # the page shows the one caution beside the answer
         _numbers(screening, system)
         if screening.criticality_class is not None:
             meaning = screening.class_meaning.split(": ", 1)[1]

@@ -30,7 +30,7 @@ from .common import plain
 
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
            "Origin", "note_origin", "origin_text", "render_origin", "saver", "PROBLEM", "BASE", "SAVED",
-           "OPENED_FROM", "ORIGIN"]
+           "OPENED_FROM", "ORIGIN", "render_save", "saved_state_text"]
 
 # Session-state keys of this part (apart from widget keys).
 BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
@@ -310,26 +310,12 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
         return
     left, right = st.columns(2)
     with left:
-        who = saver()
-        st.button("Save and share", key="share_save", on_click=_on_save, args=(worksheet,), type="primary",
-                  disabled=who is None,
-                  help="Saves this worksheet as a revision that is never changed, and gives a link to it. "
-                       "Saving an edited worksheet makes a new revision; the old one stays."
-                       + (" The revision records who saved it." if who else ""))
-        if who is None:
-            st.caption("This server records who saves each revision: log in to save.")
-            st.button("Log in", key="share_login", on_click=st.login)
-        elif who:
-            st.caption(f"Saving as {_plain(who)}.")
         based_on = state.get(BASE)
         if based_on and based_on == current_id:
-            st.markdown("**Link to this saved revision** (opens exactly these inputs and this result):")
-            st.code(revision_link(based_on, base), language=None)
-        elif based_on:
-            st.caption(f"Changed since revision {based_on}: save to share these changes as a new revision "
-                       "(the old one stays as it is).")
+            st.caption("The link to this saved revision (it opens exactly these inputs and this result) is "
+                       "beside the answer, under **Save and share**.")
         else:
-            st.caption("Not saved yet.")
+            st.caption("**Save and share** is beside the answer; it saves this worksheet as a new revision.")
         if based_on:
             render_history(based_on, base)
     with right:
@@ -351,6 +337,47 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
                          key="share_upload", on_change=_on_upload, args=(replace,))
         st.text_input("Open a link or revision id", key="share_link_input", on_change=_on_open_link,
                       args=(replace,), placeholder="…?ws=… or …?sheet=…, or a revision id")
+
+
+def saved_state_text(worksheet: Worksheet) -> str:
+    """Whether what is on the page is saved: the revision it is, or the one it has changed since."""
+    based_on = st.session_state.get(BASE)
+    try:
+        current_id = revision_id(worksheet)
+    except HeatBalanceError:
+        current_id = None
+    if based_on and based_on == current_id:
+        return f"Saved as revision {based_on}."
+    if based_on:
+        return (f"Unsaved changes since revision {based_on}: save to share them as a new revision "
+                "(the old one stays as it is).")
+    return "Not saved yet."
+
+
+def render_save(worksheet: Worksheet) -> None:
+    """The save button, who saves, whether the page is saved, and the link once it is (beside the answer)."""
+    state = st.session_state
+    who = saver()
+    st.button("Save and share", key="share_save", on_click=_on_save, args=(worksheet,), type="primary",
+              disabled=who is None, width="stretch",
+              help="Saves this worksheet as a revision that is never changed, and gives a link to it. "
+                   "Saving an edited worksheet makes a new revision; the old one stays."
+                   + (" The revision records who saved it." if who else ""))
+    if who is None:
+        st.caption("This server records who saves each revision: log in to save.")
+        st.button("Log in", key="share_login", on_click=st.login)
+    elif who:
+        st.caption(f"Saving as {_plain(who)}.")
+    if state.get(PROBLEM):
+        st.error(_plain(state[PROBLEM]), icon="🚫")
+    with st.container(key="saved_state"):
+        st.caption(saved_state_text(worksheet))
+    based_on = state.get(BASE)
+    try:
+        if based_on and based_on == revision_id(worksheet):
+            st.code(revision_link(based_on, base_url()), language=None)
+    except HeatBalanceError:
+        pass  # the panel says why this worksheet cannot be saved
 
 
 def render_history(rev_id: str, base: str) -> None:

@@ -1,4 +1,4 @@
-"""The sidebar: open a sample or a new sheet, the view's unit set, how it works."""
+"""The sidebar under the answer: the view's unit set, open a sample or a new sheet, how it works."""
 from __future__ import annotations
 
 import streamlit as st
@@ -14,7 +14,7 @@ _HOW = ("**How it works**  \n"
         "3. Pick the one quantity to solve for: its cell shows **?**.\n\n"
         "Type every value with its unit: `12 t/h`, `4 barg`, `55 °C`, `-110 kW`. A state can also be "
         "`saturated vapour`, `saturated liquid`, `vapour fraction 0.3` or `solid fraction 0.5`. "
-        "Values stay in the units you type; the choice below only changes how results are shown.")
+        "Values stay in the units you type; *Show results in* only changes how results are shown. A number takes a decimal point: `12.5 t/h`.")
 
 
 def _on_sample_pick() -> None:
@@ -34,12 +34,12 @@ def _on_new_worksheet() -> None:
 
 
 def render_sidebar() -> None:
-    with st.sidebar:
-        st.header("Worksheet")
-        st.selectbox("Open a sample worksheet", list(sample_files()), index=None, key="sample_picker",
-                     placeholder="choose a sample…", on_change=_on_sample_pick)
-        st.button("New, empty worksheet", key="new_worksheet", on_click=_on_new_worksheet, width="stretch")
-        st.divider()
-        st.radio("Show results in", list(UNIT_SYSTEMS), key="unit_system")
-        st.divider()
+    """Below the answer in the sidebar: the view's unit set, open a sample or a new sheet, how it works."""
+    st.radio("Show results in", list(UNIT_SYSTEMS), key="unit_system", horizontal=True)
+    st.divider()
+    st.selectbox("Open a sample worksheet", list(sample_files()), index=None, key="sample_picker",
+                 placeholder="choose a sample…", on_change=_on_sample_pick,
+                 help="A file or a link opens under Save and share, at the end of the page.")
+    st.button("New, empty worksheet", key="new_worksheet", on_click=_on_new_worksheet, width="stretch")
+    with st.expander("How it works", icon=":material/help:"):
         st.markdown(_HOW)

@@ -5,6 +5,9 @@ It holds the worksheet (the last one that reads: what is solved), the grids as t
 The callbacks call its methods; tests may call them too, through ``st.session_state[KEY]``, or put
 a :meth:`PageState.opened` state there before the first run.
 
+Every edit is remembered (:meth:`PageState.undo`, :meth:`PageState.redo`): the worksheet and the rows as typed,
+at most :data:`HISTORY` steps back, within the session.
+
 Editors keep their key while the worksheet stays loaded: each editor is given the rows it was last
 *based* on, and reports every edit since as one cumulative set (``apply_table_edit``). A grid is
 re-based (and so redrawn, losing the cursor) only when what it should show differs from what the
@@ -19,16 +22,31 @@ from heatbalance import address
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.errors import HeatBalanceError
 from heatbalance.results import Result
-from heatbalance.worksheet import Worksheet
+from heatbalance.worksheet import Duty, Worksheet
 
 from . import grids
 
-__all__ = ["KEY", "PageState", "WIDGET_KEYS"]
+__all__ = ["KEY", "PageState", "WIDGET_KEYS", "HISTORY", "NEW_DUTY"]
 
 KEY = "hb_page"  # the one session key of the page's editing state
 
 #: model-bound widgets, set from the worksheet when one is loaded
-WIDGET_KEYS = ("title_input", "basis_kind", "basis_duration", "sample_picker", "show_own_tables")
+WIDGET_KEYS = ("title_input", "notes_input", "basis_kind", "basis_duration", "sample_picker", "show_own_tables")
+HISTORY = 100  # edits that can be undone
+NEW_DUTY = "new duty"  # the address-like choice that adds a heater or cooler duty and solves for it
+
+
+@dataclass(frozen=True)
+class _Snapshot:
+    """What an undo puts back: the worksheet and the rows as typed (bad cells included)."""
+
+    worksheet: Worksheet
+    rows: dict[str, list[dict]]
+    problems: tuple
+
+
+def _copy_rows(rows: dict[str, list[dict]]) -> dict[str, list[dict]]:
+    return {t: [dict(r) for r in table] for t, table in rows.items()}
 
 
 @dataclass
@@ -41,10 +59,13 @@ class PageState:
     basis_problem: str = ""  # message for a bad duration (the typed text stays in its widget)
     result: Result | None = None  # the last solve's result: the old unknown takes its answer
     error: HeatBalanceError | None = None  # the last solve's refusal
+    solved: tuple[Worksheet, Result] | None = None  # the last worksheet that solved, and its result
     load: int = 0  # bumped when another worksheet is loaded: the editors' keys carry it
     base: dict[str, list[dict]] = field(default_factory=dict)  # the rows each editor was given
     base_marks: dict[str, list[str]] = field(default_factory=dict)  # the check marks it was given
     widgets_stale: bool = True  # the model-bound widgets must be set from the worksheet
+    past: list[_Snapshot] = field(default_factory=list)  # undo steps, oldest first
+    future: list[_Snapshot] = field(default_factory=list)  # redo steps, the next one last
 
     # ------------------------------------------------------------------ loading
     @classmethod
@@ -64,17 +85,52 @@ class PageState:
         self.base = {t: [dict(r) for r in rows] for t, rows in self.rows.items()}
         self.base_marks = {}
         self.widgets_stale = True
+        self.past, self.future = [], []
 
     def widget_values(self) -> dict:
         """The model-bound widgets' values for the loaded worksheet."""
         ws = self.worksheet
-        return {"title_input": ws.title, "basis_kind": ws.basis.kind,
+        return {"title_input": ws.title, "notes_input": ws.notes, "basis_kind": ws.basis.kind,
                 "basis_duration": grids.format_quantity(ws.basis.duration), "sample_picker": None,
                 "show_own_tables": bool(ws.materials or ws.common_temperatures)}
 
     def set_worksheet(self, worksheet: Worksheet) -> None:
         """A change made outside the grids (a panel's inputs, e.g. screening): the rows stay as typed."""
+        if worksheet != self.worksheet:
+            self.remember()
         self.worksheet = worksheet
+
+    # ------------------------------------------------------------------ undo, redo
+    def _snapshot(self) -> _Snapshot:
+        return _Snapshot(self.worksheet, _copy_rows(self.rows), tuple(self.problems))
+
+    def remember(self) -> None:
+        """Keep the state as it is now as one undo step (called before each edit); a new edit ends redo."""
+        self.past = [*self.past, self._snapshot()][-HISTORY:]
+        self.future = []
+
+    def _restore(self, snapshot: _Snapshot) -> None:
+        self.worksheet, self.rows = snapshot.worksheet, _copy_rows(snapshot.rows)
+        self.problems, self.basis_problem = list(snapshot.problems), ""
+        self.widgets_stale = True  # the title, notes and basis widgets show the restored worksheet
+
+    def undo(self) -> bool:
+        """Go back one edit; False when there is none."""
+        if not self.past:
+            return False
+        self.future = [*self.future, self._snapshot()]
+        self._restore(self.past[-1])
+        self.past = self.past[:-1]
+        return True
+
+    def redo(self) -> bool:
+        """Go forward again one undone edit; False when there is none."""
+        if not self.future:
+            return False
+        self.past = [*self.past, self._snapshot()][-HISTORY:]
+        self._restore(self.future[-1])
+        self.future = self.future[:-1]
+        return True
 
     # ------------------------------------------------------------------ editing
     def editor_key(self, table: str) -> str:
@@ -84,6 +140,7 @@ class PageState:
     def apply_table_edit(self, table: str, edits: dict) -> None:
         """A grid's edits, as its editor reports them (every edit since its rows were given), onto the model."""
         before = self.rows[table]
+        self.remember()
         after = grids.apply_edits(self.base.get(table, before), edits or {}, grids.COLUMNS[table])
         rows = {**self.rows, table: after}
         base, rows = grids.follow_renames(self.worksheet, rows, table, grids.renamed(before, after))
@@ -99,7 +156,13 @@ class PageState:
 
     def set_title(self, text: str) -> None:
         title = (text or "").strip() or "Untitled worksheet"
+        self.remember()
         self.commit(self.worksheet.model_copy(update={"title": title[:200]}))
+
+    def set_notes(self, text: str) -> None:
+        """The worksheet's notes (a sample's description too), plain text as typed."""
+        self.remember()
+        self.commit(self.worksheet.model_copy(update={"notes": (text or "").strip()[:20_000]}))
 
     def set_basis(self, kind: str, duration_text: str) -> None:
         """A new basis; a duration that does not read is kept as typed with its message."""
@@ -110,23 +173,55 @@ class PageState:
             self.basis_problem = exc.message
             return
         self.basis_problem = ""
+        self.remember()
         basis = self.worksheet.basis.model_copy(update={"kind": kind, "duration": duration})
         self.commit(self.worksheet.model_copy(update={"basis": basis}))
 
     def pick_unknown(self, new_address: str) -> None:
-        """Make ``new_address`` the unknown; the old unknown keeps the last answer, stored the same
-        whatever the view (:func:`heatbalance.address.answer_value`, in the unit typed there)."""
+        """Make ``new_address`` (or :data:`NEW_DUTY`: a new heater or cooler duty) the unknown.
+
+        The old unknown keeps the last answer, stored the same whatever the view
+        (:func:`heatbalance.address.answer_value`, in the unit typed there), or the value typed into its
+        cell. Only the two cells change: every other cell stays as typed, bad ones included."""
+        self.remember()
         old_value = None
-        if self.result is not None and len(self.worksheet.unknowns) == 1:
-            old_value = address.answer_value(self.worksheet, self.result.answer)
-        self.worksheet = address.with_unknown(self.worksheet, new_address, old_value)
-        self.rows = grids.worksheet_to_tables(self.worksheet)
-        self.problems = []
+        if self.solved is not None and _same_inputs(self.solved[0], self.worksheet) and \
+                len(self.worksheet.unknowns) == 1:
+            old_value = address.answer_value(self.worksheet, self.solved[1].answer)
+        base = self.worksheet
+        if new_address == NEW_DUTY:
+            base, new_address = _with_new_duty(base)
+            self.rows = {**self.rows, "duties": [*self.rows["duties"], {"name": base.duties[-1].name}]}
+        old_cells = [grids.typed_cell(self.rows, address.unknown_address(u), base) for u in base.unknowns
+                     if _exists(base, address.unknown_address(u))]
+        typed = {c: self.rows[c[0]][c[1]].get(c[2]) for c in old_cells if c is not None}
+        kept = {c: v for c, v in typed.items() if isinstance(v, str) and v.strip()
+                and not v.strip().startswith(grids.UNKNOWN_MARK)}  # a value typed there stays
+        worksheet = address.with_unknown(base, new_address, None if kept else old_value)
+        fresh = grids.worksheet_to_tables(worksheet)
+        rows = _copy_rows(self.rows)
+        for where in [new_address, *(address.unknown_address(u) for u in base.unknowns)]:
+            cell = grids.typed_cell(rows, where, worksheet) if _exists(worksheet, where) else None
+            shown = grids.typed_cell(fresh, where, worksheet) if cell is not None else None
+            if shown is not None and cell not in kept:
+                rows[cell[0]][cell[1]][cell[2]] = fresh[shown[0]][shown[1]][shown[2]]
+        read, self.problems = grids.tables_to_worksheet(rows, worksheet)
+        self.rows, self.worksheet = rows, read if read is not None else worksheet
+
+    @property
+    def unknown_gone(self) -> str | None:
+        """The address of the unknown when its line or term is no longer on the sheet (deleted), else None."""
+        if len(self.worksheet.unknowns) != 1:
+            return None
+        where = address.unknown_address(self.worksheet.unknowns[0])
+        return None if _exists(self.worksheet, where) else where
 
     # ------------------------------------------------------------------ solving
     def solve(self) -> tuple[Result | None, HeatBalanceError | None]:
         """Solve the worksheet unless a grid cell is bad (the answer would not match the page)."""
         self.result, self.error = self._solve()
+        if self.result is not None:
+            self.solved = (self.worksheet, self.result)
         return self.result, self.error
 
     def _solve(self) -> tuple[Result | None, HeatBalanceError | None]:
@@ -168,6 +263,29 @@ class PageState:
         self.base[table] = [dict(r) for r in self.rows[table]]
         self.base_marks[table] = list(marks)
         return self.base[table], self.base_marks[table]
+
+
+def _same_inputs(a: Worksheet, b: Worksheet) -> bool:
+    """True when two worksheets differ at most in their words (title, notes): the same answer."""
+    words = {"title": "", "notes": ""}
+    return a.model_copy(update=words) == b.model_copy(update=words)
+
+
+def _exists(worksheet: Worksheet, where: str) -> bool:
+    try:
+        address.get(worksheet, where)
+    except HeatBalanceError:
+        return False
+    return True
+
+
+def _with_new_duty(worksheet: Worksheet) -> tuple[Worksheet, str]:
+    """A copy with a new heater or cooler duty (no value yet), and its address."""
+    taken = {t.name for t in (*worksheet.duties, *worksheet.losses, *worksheet.reactions)}
+    name = next(n for n in (f"Heater or cooler {i}" if i else "Heater or cooler" for i in range(len(taken) + 1))
+                if n not in taken)
+    duty = Duty(name=name)
+    return worksheet.model_copy(update={"duties": [*worksheet.duties, duty]}), address.item("duties", name, "value")
 
 
 def _marked(marks: list[str]) -> list[tuple[int, str]]:

@@ -221,6 +221,9 @@ def _sweep_section(worksheet: Worksheet, system: str) -> None:
     if not inputs:
         st.info("This worksheet has no input to vary besides the unknown.")
         return
+    if page_state().unknown_gone is not None:  # said in plain words beside the answer
+        st.info("A sweep needs an unknown: pick what to solve for beside the answer.")
+        return
     try:
         kinds, words = _output_choices(worksheet, system)
     except HeatBalanceError as exc:

@@ -75,7 +75,7 @@ def screening_report(screenings: list[Screening], system: str = "SI", caution: b
     return out
 
 
-def screening_figure(screening: Screening, system: str = "SI"):
+def screening_figure(screening: Screening, system: str = "SI", caution: bool = True):
     """One bar chart of T_process, MTSR, MTT and T_D24, with MTT and T_D24 as dashed limits.
 
     Parameters
@@ -84,12 +84,14 @@ def screening_figure(screening: Screening, system: str = "SI"):
         One vessel's screening
     system : str
         ``"SI"`` (°C) or ``"US"`` (°F)
+    caution : bool
+        Write the caution under the plot (a page that shows it once elsewhere leaves it out here)
 
     Returns
     -------
     plotly.graph_objects.Figure
         Bars in the order T_process, MTSR, MTT, T_D24 (those known); MTSR red and "ALARM" in
-        the title when it reaches MTT or T_D24; the caution written under the plot.
+        the title when it reaches MTT or T_D24; the caution written under the plot (unless ``caution=False``).
     """
     import plotly.graph_objects as go  # only a figure needs plotly (the command line's report does not)
 
@@ -119,7 +121,8 @@ def screening_figure(screening: Screening, system: str = "SI"):
                          yaxis_title=f"temperature [{display_unit(unit)}]", showlegend=False,
                          yaxis_range=[low - 0.15 * (high - low + 10), high + 0.15 * (high - low + 10)],
                          margin={"t": 60, "b": 80, "l": 60, "r": 20}, height=400)
-    figure.add_annotation(text=CAUTION.replace("; defer", ";<br>defer"), xref="paper", yref="paper", x=0,
-                          y=-0.12, xanchor="left", yanchor="top", showarrow=False, font={"size": 10},
-                          align="left")
+    if caution:  # a page that shows the one caution elsewhere leaves it out of the figure
+        figure.add_annotation(text=CAUTION.replace("; defer", ";<br>defer"), xref="paper", yref="paper", x=0,
+                              y=-0.12, xanchor="left", yanchor="top", showarrow=False, font={"size": 10},
+                              align="left")
     return figure
