@@ -294,7 +294,6 @@ class _Builder:
         self.atmosphere, atmosphere_assumption = site_atmosphere(ws)
         self.assumptions = [*ASSUMPTIONS, atmosphere_assumption]
         self.unknown = _the_unknown(ws)
-        self.warnings: list[Phrase] = []
 
     def _duration(self) -> float | None:
         q = self.ws.basis.duration
