@@ -321,3 +321,17 @@ def test_a_cp_beyond_the_fitted_strength_is_warned():
     (warning,) = [w for w in warnings if "beyond Laliberté's fitted strength" in w.text]
     assert warning.address == "vessels[D-101].charges[Acid 98 %]"
     assert "sulfuric acid (aq) at 98.0%" in warning.text
+
+
+def test_the_calculation_sheet_carries_the_mixing():
+    import io
+
+    import pypdf
+
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = parse_worksheet(sample())
+    reader = pypdf.PdfReader(io.BytesIO(sheet_pdf_bytes(ws, solve(ws))))
+    text = " ".join(page.extract_text() for page in reader.pages)
+    assert "solute sulfuric acid, in D-101" in text
+    assert f"{BASE}.to_fraction" in text and "Table B.11" in text
