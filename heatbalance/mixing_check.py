@@ -76,8 +76,8 @@ def unstated_mixing(p: Problem, lines: list[LineResult]) -> list[Phrase]:
         for solute in {s.name: s for s, _ in found.values() if s is not None}.values():
             carriers = [i for i in members if found[i][0] is solute]
             fractions = {found[i][1] for i in carriers}
-            if not water and len(fractions) < 2:
-                continue
+            if (not water and len(fractions) < 2) or fractions == {0.0}:
+                continue  # one strength and no water, or no solute at all
             if any(t.mixing is not None and t.mixing.solute == solute.name and t.vessel in (None, vessel)
                    for t in p.terms):
                 continue
@@ -141,10 +141,10 @@ def _missing(solute: Solute, group: list[LineResult], parts: list[tuple[float, f
                       "mixing is stated; its heat could not be estimated ({reason}). Dilution heats of strong acids "
                       "and bases can raise a batch by tens of kelvin: state the mixing (mixings) or a duty.",
                       values, address)
-    values.update(Q=Measure(released, kind), x3=f"{x3:.1%}",
+    values.update(Q=Measure(released, kind), x3=f"{x3:.1%}", T=Measure(298.15, "temperature", 0),
                   rise=Measure(released / capacity, "temperature_difference", 3) if capacity else "an unknown amount")
     return Phrase("HEAT OF MIXING NOT IN THE BALANCE: {lines} bring {solute} together with water (to about {x3}) "
-                  "and no mixing is stated. Mixing releases about {Q} (integral heats of solution at 25 °C), enough "
+                  "and no mixing is stated. Mixing releases about {Q} (integral heats of solution at {T}), enough "
                   "to raise these lines by about {rise} (without the vessel); the answer does not include it. State "
                   "the mixing (mixings) so it enters the balance.", values, address)
 

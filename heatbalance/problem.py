@@ -697,10 +697,11 @@ class _Builder:
                                 + "; ".join(heat_sources(solute.name)) + ".")
         amount_kind = basis_kinds("amount", self.basis)[0]
         detail = Phrase("{solute}: {x1} mixed with {mass_b} at {x2} to {x3}; ΔH_s from {h1} to {h3} "
-                        "(integral heats of solution, 25 °C)",
+                        "(integral heats of solution at {T})",
                         {"solute": solute.formula, "x1": f"{m.from_fraction:.1%}", "x2": f"{m.with_fraction:.1%}",
                          "x3": f"{m.to_fraction:.1%}", "mass_b": Measure(heat.mass_b, amount_kind),
-                         "h1": Measure(heat.dH1, "molar_energy"), "h3": Measure(heat.dH3, "molar_energy")})
+                         "h1": Measure(heat.dH1, "molar_energy"), "h3": Measure(heat.dH3, "molar_energy"),
+                         "T": Measure(298.15, "temperature", 0)})
         return HeatTerm(m.name, "mixing", heat.released, detail, vessel=m.vessel, mixing=heat)
 
     def _reaction(self, r) -> HeatTerm:

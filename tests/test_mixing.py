@@ -321,3 +321,40 @@ def test_a_cp_beyond_the_fitted_strength_is_warned():
     (warning,) = [w for w in warnings if "beyond Laliberté's fitted strength" in w.text]
     assert warning.address == "vessels[D-101].charges[Acid 98 %]"
     assert "sulfuric acid (aq) at 98.0%" in warning.text
+
+
+def test_the_calculation_sheet_carries_the_mixing():
+    import io
+
+    import pypdf
+
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = parse_worksheet(sample())
+    reader = pypdf.PdfReader(io.BytesIO(sheet_pdf_bytes(ws, solve(ws))))
+    text = " ".join(page.extract_text() for page in reader.pages)
+    assert "solute sulfuric acid, in D-101" in text
+    assert f"{BASE}.to_fraction" in text and "Table B.11" in text
+
+
+def test_a_stated_mixing_on_a_continuous_basis_is_a_power_and_silences_the_warning():
+    ws = build(common_temperatures=[{"name": "Mix"}],
+               streams=[stream("Caustic", "sodium hydroxide (aq)", q(1, "t/h"), temp(25), {"common": "Mix"},
+                               mass_fraction=0.30),
+                        stream("Dilution water", "water", q(2, "t/h"), temp(25), {"common": "Mix"})],
+               mixings=[{"name": "Caustic dilution", "solute": "NaOH", "amount": q(1, "t/h"), "from_fraction": 0.30,
+                         "to_fraction": 0.10}],
+               unknowns=[{"kind": "temperature", "common": "Mix"}])
+    result = solve(ws)
+    (term,) = [t for t in result.terms if t.kind == "mixing"]
+    assert term.heat == pytest.approx(10.0e3, rel=0.02)  # 10.0 kW: the hand calculation of the warning test above
+    assert not any("NOT IN THE BALANCE" in w.text or w.template.startswith("The stated") for w in result.warnings)
+    # 10 kW into 3 t/h of about 3.9 kJ/(kg·K): a rise of about 3 K above 25 °C
+    assert 27.0 < result.answer.value_si - 273.15 < 29.0
+
+
+def test_a_mixing_named_like_a_duty_is_refused():
+    doc = sample()
+    doc["mixings"][0]["name"] = "Jacket cooling"
+    with pytest.raises(WorksheetFormatError, match="heat term names must be unique; repeated: Jacket cooling"):
+        parse_worksheet(doc)

@@ -9,6 +9,7 @@ import pytest
 from heatbalance.worksheet import parse_worksheet
 from page_helpers import ROOT, held, page, sample
 from webapp.mixing_panel import KEYS
+from webapp.state import KEY, PageState
 
 SAMPLE = "acid_dilution_jacketed_vessel.json"
 
@@ -59,3 +60,16 @@ def test_remove_a_stated_mixing():
     at.button(key=KEYS["remove"]).click().run()
     assert not at.exception
     assert held(at).mixings == []
+
+
+def test_the_form_follows_another_worksheet():
+    at = page(unstated())
+    at.number_input(key=KEYS["to"]).set_value(30.0).run()
+    assert at.session_state[KEYS["to"]] == pytest.approx(30.0)  # what is typed is kept while the sheet stays
+    doc = json.loads((ROOT / "sample_data" / SAMPLE).read_text(encoding="utf-8"))
+    doc.pop("mixings")
+    doc["vessels"][0]["charges"][0]["mass"] = {"value": 3920, "unit": "kg"}
+    at.session_state[KEY] = PageState.opened(parse_worksheet(doc))
+    at.run()
+    # 980 kg of H2SO4 in 4,920 kg: 19.92 % (mass balance)
+    assert at.session_state[KEYS["to"]] == pytest.approx(19.9187, abs=1e-3)

@@ -28,6 +28,7 @@ __all__ = ["panel", "render_mixing_panel", "with_mixing", "without_mixing", "KEY
 KEYS = {name: f"mixing_{name}" for name in ("name", "solute", "amount", "unit", "from", "with", "to", "vessel",
                                             "save", "remove_choice", "remove")}
 NO_VESSEL = "(streams: no vessel)"
+_SOURCE = "hb_mixing_source"  # session key: which worksheet the form was filled from
 
 
 def with_mixing(worksheet: Worksheet, mixing: dict) -> Worksheet:
@@ -69,9 +70,18 @@ def _stated_rows(worksheet: Worksheet, result: Result | None, system: str) -> li
             for m in worksheet.mixings]
 
 
-def _form(worksheet: Worksheet, system: str, set_worksheet) -> None:
+def _fill(worksheet: Worksheet) -> None:
+    """Set the form from the lines when another worksheet (or other lines) is shown; else keep what is typed."""
+    source = worksheet.model_dump_json(exclude={"mixings"})
+    if st.session_state.get(_SOURCE) == source:
+        return
+    st.session_state[_SOURCE] = source
     for field, value in _defaults(worksheet).items():
-        st.session_state.setdefault(KEYS[field], value)
+        st.session_state[KEYS[field]] = value
+
+
+def _form(worksheet: Worksheet, system: str, set_worksheet) -> None:
+    _fill(worksheet)
     vessels = [v.name for v in worksheet.vessels] + [NO_VESSEL]
     if st.session_state[KEYS["vessel"]] not in vessels:
         st.session_state[KEYS["vessel"]] = vessels[0]

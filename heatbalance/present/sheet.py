@@ -172,6 +172,8 @@ def _inputs(ws: Worksheet, styles) -> list:
     materials += [[f"{v.name} equipment", v.equipment.material or f"heat capacity {v.equipment.heat_capacity}"]
                   for v in ws.vessels if v.equipment]
     materials += [[f"reaction {r.name}", r.equation or f"ΔH {r.enthalpy}"] for r in ws.reactions]
+    materials += [[f"mixing {m.name}", f"solute {m.solute}" + (f", in {m.vessel}" if m.vessel else "")]
+                  for m in ws.mixings]
     out = [_p("Inputs (as typed)", styles["h2"]), _table(rows, [52 * mm, 30 * mm, 38 * mm, 60 * mm], styles)]
     if materials:
         out += [Spacer(1, 4), _table([["line", "material / equation"], *materials], [60 * mm, 120 * mm], styles)]
