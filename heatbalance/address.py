@@ -348,7 +348,7 @@ def with_value(ws: Worksheet, address: str, value) -> Worksheet:
     if field in _STATE_KINDS and field != "pressure" and steps[-2][0] in _STATE_ENDS:
         for other in ("temperature", "vapour_fraction", "solid_fraction", "common"):
             target.pop(other, None)
-    if steps[-2][0] == "humidity":  # a humidity is given one way
+    if len(steps) > 1 and steps[-2][0] == "humidity":  # a humidity is given one way
         for other in HUMIDITY_FORMS:
             target.pop(other, None)
     target[field] = new.model_dump() if isinstance(new, Quantity) else new

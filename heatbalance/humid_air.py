@@ -56,6 +56,14 @@ def saturation_ratio(T: float, P: float) -> float:
 
 
 def humidity_ratio(form: str, value: float, T: float, P: float, where: str = "") -> float:
+    """See :func:`_humidity_ratio`; a refusal names ``where``."""
+    try:
+        return _humidity_ratio(form, value, T, P, where)
+    except InputError as exc:
+        raise exc.located(where)
+
+
+def _humidity_ratio(form: str, value: float, T: float, P: float, where: str = "") -> float:
     """The humidity ratio [kg water/kg dry air] of air at T [K], P [Pa] with its humidity given as ``form``.
 
     ``relative_humidity`` (0–1), ``humidity_ratio`` (kg/kg), ``dew_point`` or ``wet_bulb`` [K]. Refused (at

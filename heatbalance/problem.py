@@ -476,6 +476,10 @@ class _Builder:
         elif T_in is None and form != "humidity_ratio":
             raise InputError(f"a {form.replace('_', ' ')} needs the inlet's temperature: give it, or give the "
                              "humidity as a humidity ratio or a dew point", field_where)
+        probe = HumidAir(0.0)  # the inlet's own range refusals come first, at their fields
+        probe.check_pressure(inlet.P, inlet.pressure_address)
+        if inlet.var is not None and self.temperatures.get(inlet.var) is not None:
+            probe.check_range(T_in, self.var_addresses[inlet.var])
         W = humidity_ratio(form, value, T_in if T_in is not None else 293.15, inlet.P, field_where)
         material = HumidAir(W)
         amount = self._air_amount(s, where, W, T_in, inlet.P, is_unknown)
