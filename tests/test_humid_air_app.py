@@ -15,7 +15,7 @@ from webapp.humid_air_panel import with_air_inputs
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
 SAMPLE = "humid_air_heater_steam.json"
-KEY = "air_Outdoor air"
+KEY = "air_0"
 
 
 def _sample():

@@ -59,7 +59,7 @@ def test_form_adds_a_loss_and_refuses_a_bad_value():
     at = _open(SAMPLE)
     assert at.selectbox(key="losses_pick").value == "Yard line"
     at.selectbox(key="losses_pick").set_value(NEW_LOSS).run()
-    key = NEW_LOSS
+    key = 1  # the form's keys count the choices: "Yard line", then a new loss
     at.text_input(key=f"losses_name_{key}").set_value("Header")
     at.text_input(key=f"losses_diameter_{key}").set_value("-60 mm")
     at.button(key=f"losses_apply_{key}").click().run()

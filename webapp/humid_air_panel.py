@@ -56,14 +56,14 @@ def with_air_inputs(worksheet: Worksheet, stream: str, form: str, value: str, fl
     return new
 
 
-def _form(worksheet: Worksheet, stream, set_worksheet) -> None:
+def _form(worksheet: Worksheet, stream, index: int, set_worksheet) -> None:
     humidity = stream.inlet.humidity
     form = next((k for k in HUMIDITY_FORMS if humidity is not None and getattr(humidity, k) is not None),
                 "relative_humidity")
     current = getattr(humidity, form) if humidity is not None else None
     air = stream.air_flow
     flow_form = "volume flow" if air and air.volume_flow else (air.mass_of if air else "dry air")
-    key = f"air_{stream.name}"
+    key = f"air_{index}"  # widget keys by position (names may hold any character)
     with st.form(key=f"{key}_form"):
         left, right = st.columns(2)
         chosen = left.selectbox("Inlet humidity given as", HUMIDITY_FORMS, index=HUMIDITY_FORMS.index(form),
@@ -103,9 +103,9 @@ def render_humid_air_panel(worksheet: Worksheet, result: Result | None, system: 
         if result is not None and result.humid_air:
             st.dataframe(pd.DataFrame(humid_air_rows(result, system)), hide_index=True, key="humid_air_table")
         if set_worksheet is not None:
-            for stream in streams:
+            for index, stream in enumerate(streams):
                 with st.expander(f"Inlet humidity and flow of {plain(stream.name)}", expanded=stream.inlet.humidity is None):
-                    _form(worksheet, stream, set_worksheet)
+                    _form(worksheet, stream, index, set_worksheet)
 
 
 def panel(set_worksheet=None):
