@@ -35,10 +35,10 @@ def set_worksheet(worksheet: Worksheet) -> None:
 # Panels below the results, each called as panel(worksheet, result, system) (result None when not solved).
 EXTRA_PANELS = [
     __import__("webapp.uncertainty_panel", fromlist=["panel"]).panel(set_worksheet),  # how sure (uncertainty_panel.py)
+    __import__("webapp.humid_air_panel", fromlist=["panel"]).panel(set_worksheet),  # humid air: humidity, condensate
     screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
     __import__("webapp.exchanger_panel", fromlist=["panel"]).panel(set_worksheet),  # exchangers, utilities
     __import__("webapp.losses_panel", fromlist=["panel"]).panel(set_worksheet),  # computed surface losses
-    __import__("webapp.humid_air_panel", fromlist=["panel"]).panel(set_worksheet),  # humid air: humidity, condensate
     __import__("webapp.whatif_panel", fromlist=["panel"]).panel(set_worksheet),  # what if (webapp/whatif_panel.py)
     sharing.panel(replace_worksheet),  # save and share (webapp/sharing.py)
     __import__("webapp.filing_panel", fromlist=["panel"]).panel(),  # the PDF sheet, sign-off (filing_panel.py)
