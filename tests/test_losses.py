@@ -7,6 +7,7 @@ import math
 import pytest
 
 from heatbalance import address
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.balance import solve
 from heatbalance.errors import InputError, WorksheetFormatError
 from heatbalance.losses import (PERSONNEL_PROTECTION_LIMIT, Surface, heat_loss, insulation_conductivity,
@@ -163,6 +164,13 @@ def test_report_and_json_show_the_details_and_the_caution_once():
     text = format_result(result)
     assert "SURFACE LOSSES" in text and "Churchill–Chu" in text and "personnel protection" in text
     assert text.count("a process hazard analysis") == 1
+    with open("sample_data/glycol_hydration_screening.json", encoding="utf-8") as handle:  # with a screening too
+        screened = json.load(handle)
+    screened["losses"] = [{"name": "Shell", "surface": {"shape": "vessel wall", "diameter": "2 m", "length": "3 m",
+                                                        "emissivity": 0.9, "process_temperature": "70 degC"}}]
+    both = solve_and_analyse(parse_worksheet(screened))
+    assert both.screening and both.surface_losses
+    assert format_result(both).count("a process hazard analysis") == 1
     data = result_json(result, "US")
     assert data["surface_losses"][0]["address"] == "losses[Yard line].surface"
     assert data["surface_losses"][0]["surface_T"] == pytest.approx(result.surface_losses[0].surface_T)
