@@ -34,12 +34,13 @@ def test_panel_shows_the_loss_and_follows_a_thicker_insulation(browser, app_url,
         page.locator(".st-key-losses_apply_0 button").click()
         page.wait_for_function("""() => {
             const a = document.querySelector('.st-key-answer');
-            return a !== null && !a.textContent.includes('136.7 °C') && a.textContent.includes('°C'); }""")
+            return a !== null && !a.textContent.includes('136.7 °C') && a.textContent.includes('°C'); }""",
+                               timeout=FIRST_DRAW_MS)
         idle(page)
         page.wait_for_function("""() => {
             const p = document.querySelector('.st-key-losses_panel');
             return p !== null && p.textContent.includes('Outer surface: ')
-                && !p.textContent.includes('Outer surface: 9.5 °C'); }""")
+                && !p.textContent.includes('Outer surface: 9.5 °C'); }""", timeout=FIRST_DRAW_MS)
         panel.screenshot(path=str(output_dir / "losses_panel.png"))
     finally:
         context.close()
