@@ -21,8 +21,8 @@ import pandas as pd
 
 from ..address import FRACTION, get, kinds_of, parse, unknown_address, with_value
 from ..balance import solve_problem
-from ..humid_air import HumidAir
 from ..errors import AddressError, HeatBalanceError, InputError
+from ..humid_air import HumidAir
 from ..problem import Problem, basis_si, build_problem, typed_si
 from ..units import check_unit, heat_kind, kind_of
 from ..worksheet import Quantity, Worksheet
