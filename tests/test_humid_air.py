@@ -239,3 +239,17 @@ def test_a_sweep_of_the_inlet_equals_solving_each_point(axis):
         typed = value if axis.unit == "" else (value, axis.unit)
         expected = solve_and_analyse(address.with_value(ws, axis.address, typed)).answer.value_si
         assert answer == pytest.approx(expected, rel=1e-9)
+
+
+def test_calculation_sheet_carries_the_humid_air_table():
+    """The filed PDF (read back with pypdf) shows the humid-air table with the condensate."""
+    import io
+
+    import pypdf
+
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = parse_worksheet(air_sheet(30, 14, {"relative_humidity": 0.8}))
+    pdf = sheet_pdf_bytes(ws, solve_and_analyse(ws))
+    text = " ".join(" ".join((p.extract_text() or "").split()) for p in pypdf.PdfReader(io.BytesIO(pdf)).pages)
+    assert "Humid air (per kg of dry air)" in text and "condensate" in text

@@ -252,3 +252,18 @@ def test_batch_without_duration_refused():
         solve(parse_worksheet(data))
     assert caught.value.where == "basis.duration"
     assert "a computed loss is a power" in caught.value.message
+
+
+def test_calculation_sheet_carries_the_computed_loss_and_the_caution():
+    """The filed PDF (read back with pypdf) shows the surface-loss table and the one safety caution."""
+    import io
+
+    import pypdf
+
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = parse_worksheet(sample_data())
+    pdf = sheet_pdf_bytes(ws, solve_and_analyse(ws))
+    text = " ".join(" ".join((p.extract_text() or "").split()) for p in pypdf.PdfReader(io.BytesIO(pdf)).pages)
+    assert "Surface losses (computed from geometry)" in text and "Yard line" in text
+    assert text.count("a process hazard analysis") == 1
