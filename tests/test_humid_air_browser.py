@@ -18,7 +18,7 @@ PANEL = ".st-key-humid_air_panel"
 
 def test_panel_shows_the_water_and_takes_a_dew_point(browser, app_url, output_dir):
     link = sheet_link(sample("humid_air_heater_steam.json"), app_url + "/")
-    context, page = open_page(browser, link, f"{PANEL} [data-testid='stDataFrame']", 30_000)
+    context, page = open_page(browser, link, f"{PANEL} [data-testid='stDataFrame']", FIRST_DRAW_MS)
     try:
         panel = page.locator(PANEL)
         assert "372.9 kg/h" in page.locator(".st-key-answer").text_content()

@@ -18,7 +18,7 @@ PANEL = ".st-key-losses_panel"
 
 def test_panel_shows_the_loss_and_follows_a_thicker_insulation(browser, app_url, output_dir):
     link = sheet_link(sample("insulated_hot_water_line.json"), app_url + "/")
-    context, page = open_page(browser, link, PANEL, 30_000)
+    context, page = open_page(browser, link, PANEL, FIRST_DRAW_MS)
     try:
         panel = page.locator(PANEL)
         page.wait_for_function("""() => {
