@@ -2,31 +2,23 @@
 form (and a bad value refused with its address); the form's pure function is tested directly."""
 from __future__ import annotations
 
-from pathlib import Path
-
 import pytest
 from streamlit.testing.v1 import AppTest
 
 from heatbalance.errors import HeatBalanceError
-from heatbalance.links import encode_sheet
-from heatbalance.worksheet import load_worksheet
+from page_helpers import page, sample
 from webapp.humid_air_panel import with_air_inputs
 
-ROOT = Path(__file__).resolve().parent.parent
-APP = str(ROOT / "app.py")
 SAMPLE = "humid_air_heater_steam.json"
 KEY = "air_0"
 
 
 def _sample():
-    return load_worksheet((ROOT / "sample_data" / SAMPLE).read_bytes())
+    return sample(SAMPLE)
 
 
 def _open() -> AppTest:
-    at = AppTest.from_file(APP, default_timeout=120)
-    at.query_params["sheet"] = encode_sheet(_sample())
-    at.run()
-    return at
+    return page(_sample())
 
 
 def test_with_air_inputs_sets_humidity_and_flow_form():
