@@ -41,6 +41,7 @@ def set_worksheet(worksheet: Worksheet) -> None:
 EXTRA_PANELS = [
     __import__("webapp.site_panel", fromlist=["panel"]).panel(set_worksheet),  # site atmosphere (site_panel.py)
     __import__("webapp.uncertainty_panel", fromlist=["panel"]).panel(set_worksheet),  # how sure (uncertainty_panel.py)
+    __import__("webapp.humid_air_panel", fromlist=["panel"]).panel(set_worksheet),  # humid air: humidity, condensate
     screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
     __import__("webapp.exchanger_panel", fromlist=["panel"]).panel(set_worksheet),  # exchangers, utilities
     __import__("webapp.losses_panel", fromlist=["panel"]).panel(set_worksheet),  # computed surface losses

@@ -34,6 +34,7 @@ P_MIN, P_MAX = 10e3, 10e6  # Pa: HAPropsSI's range (to 10 MPa)
 T_TRIPLE = 273.16  # K, triple point of water (IAPWS)
 FUSION = 333.55e3  # J/kg, ice at 0 °C, CRC Handbook, from memory
 CP_ICE = 2.09e3  # J/(kg·K), ice near 0 °C, CRC Handbook, from memory
+CP_VAPOUR = 1.86e3  # J/(kg·K), water vapour, ASHRAE Handbook Fundamentals ch. 1 (h_g ≈ 2501 + 1.86 t), from memory
 
 
 def _ha(output: str, T: float, P: float, key: str, value: float) -> float:
@@ -56,6 +57,14 @@ def saturation_ratio(T: float, P: float) -> float:
 
 
 def humidity_ratio(form: str, value: float, T: float, P: float, where: str = "") -> float:
+    """See :func:`_humidity_ratio`; a refusal names ``where``."""
+    try:
+        return _humidity_ratio(form, value, T, P, where)
+    except InputError as exc:
+        raise exc.located(where)
+
+
+def _humidity_ratio(form: str, value: float, T: float, P: float, where: str = "") -> float:
     """The humidity ratio [kg water/kg dry air] of air at T [K], P [Pa] with its humidity given as ``form``.
 
     ``relative_humidity`` (0–1), ``humidity_ratio`` (kg/kg), ``dew_point`` or ``wet_bulb`` [K]. Refused (at
@@ -120,8 +129,10 @@ class HumidAir(Material):
         return cp.PropsSI("H", "T", T_TRIPLE, "Q", 0, "IF97::Water") - FUSION + CP_ICE * (T - T_TRIPLE)
 
     def _vapour(self, T: float) -> float:
-        """Enthalpy of saturated water vapour [J/kg] at T (the condensate's latent heat is the difference)."""
-        return coolprop().PropsSI("H", "T", max(T, T_TRIPLE), "Q", 1, "IF97::Water")
+        """Enthalpy of water vapour [J/kg] at T (the condensate's latent heat is the difference): saturated vapour
+        above the triple point, below it that less cp_vapour = 1.86 kJ/(kg·K) (ASHRAE Fundamentals ch. 1)."""
+        h = coolprop().PropsSI("H", "T", max(T, T_TRIPLE), "Q", 1, "IF97::Water")
+        return h if T >= T_TRIPLE else h - CP_VAPOUR * (T_TRIPLE - T)
 
     def enthalpy(self, T: float, P: float) -> float:
         water = self.condensed(T, P)
@@ -164,6 +175,6 @@ def humid_air_line(name: str, address: str, material: HumidAir, amount: float, T
     W_in, W_out = material.W - water_in, material.W - water_out
     condensate = amount * (water_out - water_in)
     heat = -amount * (material.latent_content(T_out, P_out) - material.latent_content(T_in, P_in))
-    dew = _ha("D", T_in, P_in, "W", max(W_in, 1e-9))
+    dew = _ha("D", T_in, P_in, "W", W_in) if W_in > 1e-7 else T_MIN  # bone-dry air: below any data
     return HumidAirLine(name, address, amount, W_in, W_out, dew, _ha("R", T_in, P_in, "W", W_in),
                         _ha("R", T_out, P_out, "W", W_out), condensate, heat)

@@ -525,12 +525,17 @@ class _Builder:
         value = getattr(s.inlet.humidity, form)
         value = _si(value, "temperature", field_where) if isinstance(value, Quantity) else value
         T_in = self.temperatures.get(inlet.var) if inlet.var else None
+        T_humid = T_in  # the temperature the humidity is read at
         if T_in is None and form == "dew_point":
-            T_in, form, value = value, "relative_humidity", 1.0  # saturated at its dew point: the same water
+            T_humid, form, value = value, "relative_humidity", 1.0  # saturated at its dew point: the same water
         elif T_in is None and form != "humidity_ratio":
             raise InputError(f"a {form.replace('_', ' ')} needs the inlet's temperature: give it, or give the "
                              "humidity as a humidity ratio or a dew point", field_where)
-        W = humidity_ratio(form, value, T_in if T_in is not None else 293.15, inlet.P, field_where)
+        probe = HumidAir(0.0)  # the inlet's own range refusals come first, at their fields
+        probe.check_pressure(inlet.P, inlet.pressure_address)
+        if inlet.var is not None and self.temperatures.get(inlet.var) is not None:
+            probe.check_range(T_in, self.var_addresses[inlet.var])
+        W = humidity_ratio(form, value, T_humid if T_humid is not None else 293.15, inlet.P, field_where)
         material = HumidAir(W)
         amount = self._air_amount(s, where, W, T_in, inlet.P, is_unknown)
         self.assumptions.append(f"{where}: humid air, counted per kg of dry air (humidity ratio {W:.5f} kg/kg); "

@@ -7,6 +7,8 @@ import psychrolib
 import pytest
 
 from heatbalance import address
+from heatbalance.analyses import solve_and_analyse
+from heatbalance.analyses.sweep import Axis, sweep
 from heatbalance.balance import solve
 from heatbalance.errors import InputError, WorksheetFormatError
 from heatbalance.humid_air import humidity_ratio
@@ -81,6 +83,18 @@ def test_every_humidity_form_gives_the_same_water(form, value):
     W = humidity_ratio(form, value(), 298.15, P_ATM)
     assert W == pytest.approx(humidity_ratio("relative_humidity", 0.5, 298.15, P_ATM), rel=0.01)
     assert W == pytest.approx(psychrolib.GetHumRatioFromRelHum(25, 0.5, P_ATM), rel=0.01)
+
+
+def test_inlet_temperature_solved_with_a_dew_point():
+    """A dew point fixes the water without the inlet's temperature: 1 kg/s of air with a 10 °C dew point cooled
+    to 15 °C by a 10 kW cooler enters at about 25 °C (psychrolib: Δh = 10 kJ/kg dry air at W = 7.66 g/kg)."""
+    sheet = air_sheet(30, 15, {"dew_point": "10 degC"}, duty="-10 kW")
+    sheet["unknowns"] = [{"kind": "temperature", "line": "Air", "end": "inlet"}]
+    result = solve(parse_worksheet(sheet))
+    W = psychrolib.GetHumRatioFromTDewPoint(10, P_ATM)
+    T1 = psychrolib.GetTDryBulbFromEnthalpyAndHumRatio(psychrolib.GetMoistAirEnthalpy(15, W) + 10e3, W)
+    assert result.answer.value_si - 273.15 == pytest.approx(T1, abs=0.1)
+    assert result.humid_air[0].dew_point_in - 273.15 == pytest.approx(10, abs=0.01)
 
 
 def test_humid_air_mass_is_turned_into_dry_air():
@@ -178,6 +192,12 @@ def test_refusals_of_the_line():
     error = _refused(both)
     assert error.where == "streams[Air].air_flow.volume_flow" and "give the flow one way" in error.message
 
+    by_volume = air_sheet(30, 14, {"dew_point": "20 degC"}, flow=None, duty="-5 kW",
+                          air_flow={"volume_flow": "1000 m^3/h"})
+    by_volume["unknowns"] = [{"kind": "temperature", "line": "Air", "end": "inlet"}]
+    error = _refused(by_volume)  # the inlet is solved for: the volume's temperature must be given
+    assert error.where == "streams[Air].air_flow.volume_temperature"
+
     unknown_inlet = air_sheet(30, 14, {"relative_humidity": 0.5}, duty="-5 kW")
     unknown_inlet["unknowns"] = [{"kind": "temperature", "line": "Air", "end": "inlet"}]
     error = _refused(unknown_inlet)
@@ -202,3 +222,34 @@ def test_two_humidity_forms_refused_in_the_document():
         parse_worksheet(air_sheet(30, 14, {"relative_humidity": 0.5, "dew_point": "10 degC"}))
     assert caught.value.where == "streams[Air].inlet.humidity"
     assert "give the humidity one way" in caught.value.message
+
+
+@pytest.mark.parametrize("axis", [
+    Axis("streams[Outdoor air].inlet.temperature", (-20.0, -5.0, 10.0), "degC"),
+    Axis("streams[Outdoor air].pressure", (-0.05, 0.0, 0.2), "barg"),
+    Axis("streams[Outdoor air].inlet.humidity.relative_humidity", (0.2, 1.0), ""),
+], ids=lambda a: a.address)
+def test_a_sweep_of_the_inlet_equals_solving_each_point(axis):
+    """The inlet's temperature and pressure set its humidity ratio (from RH) and dry-air flow (from the volume):
+    a sweep's point must be what the public solve gives at that value."""
+    with open("sample_data/humid_air_heater_steam.json", encoding="utf-8") as handle:
+        ws = parse_worksheet(json.load(handle))
+    frame = sweep(ws, [axis], ["answer"])
+    for value, answer in zip(frame[axis.column], frame["answer"]):
+        typed = value if axis.unit == "" else (value, axis.unit)
+        expected = solve_and_analyse(address.with_value(ws, axis.address, typed)).answer.value_si
+        assert answer == pytest.approx(expected, rel=1e-9)
+
+
+def test_calculation_sheet_carries_the_humid_air_table():
+    """The filed PDF (read back with pypdf) shows the humid-air table with the condensate."""
+    import io
+
+    import pypdf
+
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = parse_worksheet(air_sheet(30, 14, {"relative_humidity": 0.8}))
+    pdf = sheet_pdf_bytes(ws, solve_and_analyse(ws))
+    text = " ".join(" ".join((p.extract_text() or "").split()) for p in pypdf.PdfReader(io.BytesIO(pdf)).pages)
+    assert "Humid air (per kg of dry air)" in text and "condensate" in text

@@ -7,6 +7,7 @@ import math
 import pytest
 
 from heatbalance import address
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.balance import solve
 from heatbalance.errors import InputError, WorksheetFormatError
 from heatbalance.losses import (PERSONNEL_PROTECTION_LIMIT, Surface, heat_loss, insulation_conductivity,
@@ -163,6 +164,13 @@ def test_report_and_json_show_the_details_and_the_caution_once():
     text = format_result(result)
     assert "SURFACE LOSSES" in text and "Churchill–Chu" in text and "personnel protection" in text
     assert text.count("a process hazard analysis") == 1
+    with open("sample_data/glycol_hydration_screening.json", encoding="utf-8") as handle:  # with a screening too
+        screened = json.load(handle)
+    screened["losses"] = [{"name": "Shell", "surface": {"shape": "vessel wall", "diameter": "2 m", "length": "3 m",
+                                                        "emissivity": 0.9, "process_temperature": "70 degC"}}]
+    both = solve_and_analyse(parse_worksheet(screened))
+    assert both.screening and both.surface_losses
+    assert format_result(both).count("a process hazard analysis") == 1
     data = result_json(result, "US")
     assert data["surface_losses"][0]["address"] == "losses[Yard line].surface"
     assert data["surface_losses"][0]["surface_T"] == pytest.approx(result.surface_losses[0].surface_T)
@@ -244,3 +252,40 @@ def test_batch_without_duration_refused():
         solve(parse_worksheet(data))
     assert caught.value.where == "basis.duration"
     assert "a computed loss is a power" in caught.value.message
+
+
+def test_calculation_sheet_carries_the_computed_loss_and_the_caution():
+    """The filed PDF (read back with pypdf) shows the surface-loss table and the one safety caution."""
+    import io
+
+    import pypdf
+
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = parse_worksheet(sample_data())
+    pdf = sheet_pdf_bytes(ws, solve_and_analyse(ws))
+    text = " ".join(" ".join((p.extract_text() or "").split()) for p in pypdf.PdfReader(io.BytesIO(pdf)).pages)
+    assert "Surface losses (computed from geometry)" in text and "Yard line" in text
+    assert text.count("a process hazard analysis") == 1
+
+
+def test_vessel_wall_loss_follows_a_batch_heat_up():
+    """A 5 t water batch heated from 20 °C with 300 kW for 1 h through a bare 2.5 m × 3 m wall: the wall loses
+    heat at the mean of the start and the solved end temperature, over the hour (hand check: without the loss,
+    ΔT = 1080 MJ / (5000 kg · 4.18 kJ/(kg·K)) = 51.7 K; with it, a little less)."""
+    sheet = {"basis": {"kind": "batch", "duration": "1 h"},
+             "vessels": [{"name": "V-1", "charges": [{"name": "Water", "material": "water", "mass": "5 t",
+                                                      "initial": {"temperature": "20 degC"}}],
+                          "final": {"temperature": "60 degC"}}],
+             "duties": [{"name": "Heater", "value": "300 kW"}],
+             "losses": [{"name": "Wall", "surface": {"shape": "vessel wall", "diameter": "2.5 m", "length": "3 m",
+                                                     "emissivity": 0.9, "line": "V-1"}}],
+             "unknowns": [{"kind": "temperature", "line": "V-1", "end": "final"}]}
+    result = solve(parse_worksheet(sheet))
+    T_end = result.answer.value_si
+    record = result.surface_losses[0]
+    assert record.process_T == pytest.approx((293.15 + T_end) / 2)
+    loss = next(t for t in result.terms if t.kind == "loss")
+    assert loss.heat == pytest.approx(-record.loss * 3600)
+    assert 20 + 40 < T_end - 273.15 < 20 + 51.7  # the loss takes a few kelvin off
+    assert abs(result.residual) < 1e-6 * 300e3 * 3600

@@ -119,7 +119,7 @@ UNITS_OF = {
     "molar_energy": ["kJ/mol"], "heat_capacity": ["kJ/K"], "specific_heat": ["kJ/(kg*K)"],
     "specific_energy": ["kJ/kg"], "molar_mass": ["g/mol"], "thermal_conductance": ["kW/K"],
     "heat_transfer_coefficient": ["W/(m**2*K)"], "area": ["m**2"], "temperature_difference": ["K", "delta_degF"],
-    "length": ["mm", "m", "in"], "velocity": ["m/s", "km/h"],
+    "length": ["mm", "m", "in"], "velocity": ["m/s", "km/h"], "volume_flow": ["m**3/h", "ft**3/min"],
 }
 magnitudes = st.one_of(st.floats(-1e4, 1e4, allow_nan=False), st.floats(-1e12, 1e12, allow_nan=False),
                        st.sampled_from([0.0, 1e-9, -1e-9, 1e30, -1e30, 273.15, -273.15, 100.0, 1e300]))

@@ -80,9 +80,9 @@ def _defaults(worksheet: Worksheet, name: str) -> dict:
 def _render_records(result: Result, system: str) -> None:
     for i, record in enumerate(result.surface_losses):
         st.markdown(f"**{plain(record.name)}**")
-        heat, surface, protection = st.columns(3)
-        heat.metric("Heat lost", measure_text(Measure(record.loss, "power"), system))
-        surface.metric("Outer surface", measure_text(Measure(record.surface_T, "temperature", 1), system))
+        heat, surface, protection = st.columns(3)  # not metrics: the page's one metric is the answer
+        heat.markdown(f"Heat lost: **{plain(measure_text(Measure(record.loss, 'power'), system))}**")
+        surface.markdown(f"Outer surface: **{plain(measure_text(Measure(record.surface_T, 'temperature', 1), system))}**")
         protection.caption(f"Personnel protection: {plain(protection_text(record, system))} (common practice; "
                            "follow local codes)")
         for note in record.notes:
@@ -92,33 +92,35 @@ def _render_records(result: Result, system: str) -> None:
 
 def _render_form(worksheet: Worksheet, set_worksheet) -> None:
     computed = [x.name for x in worksheet.losses if x.surface is not None]
-    pick = st.selectbox("Loss", [*computed, NEW_LOSS], key="losses_pick")
+    choices = [*computed, NEW_LOSS]
+    pick = st.selectbox("Loss", choices, key="losses_pick")
+    n = choices.index(pick)  # the form's widget keys (names may hold any character)
     d = _defaults(worksheet, pick)
     lines = [s.name for s in worksheet.streams] + [v.name for v in worksheet.vessels]
     insulations = [NO_INSULATION, *insulation_names()]
-    with st.form(key=f"losses_form_{pick}"):
-        name = st.text_input("Name", value="" if pick == NEW_LOSS else pick, key=f"losses_name_{pick}")
+    with st.form(key=f"losses_form_{n}"):
+        name = st.text_input("Name", value="" if pick == NEW_LOSS else pick, key=f"losses_name_{n}")
         left, middle, right = st.columns(3)
         fields = {
-            "shape": left.selectbox("Shape", SHAPES, index=SHAPES.index(d["shape"]), key=f"losses_shape_{pick}"),
-            "diameter": left.text_input("Outside diameter (bare)", d["diameter"], key=f"losses_diameter_{pick}"),
+            "shape": left.selectbox("Shape", SHAPES, index=SHAPES.index(d["shape"]), key=f"losses_shape_{n}"),
+            "diameter": left.text_input("Outside diameter (bare)", d["diameter"], key=f"losses_diameter_{n}"),
             "length": left.text_input("Length or wall height (not for a roof)", d["length"],
-                                      key=f"losses_length_{pick}"),
+                                      key=f"losses_length_{n}"),
             "emissivity": left.number_input("Surface emissivity (0–1)", 0.0, 1.0, float(d["emissivity"]), 0.05,
-                                            key=f"losses_emissivity_{pick}"),
+                                            key=f"losses_emissivity_{n}"),
             "insulation": middle.selectbox("Insulation", insulations, index=insulations.index(d["insulation"]),
-                                           key=f"losses_insulation_{pick}"),
-            "thickness": middle.text_input("Insulation thickness", d["thickness"], key=f"losses_thickness_{pick}"),
-            "ambient": right.text_input("Air temperature", d["ambient"], key=f"losses_ambient_{pick}"),
-            "wind": right.text_input("Wind speed (empty: still air)", d["wind"], key=f"losses_wind_{pick}"),
+                                           key=f"losses_insulation_{n}"),
+            "thickness": middle.text_input("Insulation thickness", d["thickness"], key=f"losses_thickness_{n}"),
+            "ambient": right.text_input("Air temperature", d["ambient"], key=f"losses_ambient_{n}"),
+            "wind": right.text_input("Wind speed (empty: still air)", d["wind"], key=f"losses_wind_{n}"),
         }
         choices = [*lines, BY_TEMPERATURE]
         fields["process"] = right.selectbox("Process side: the mean temperature of", choices,
                                             index=choices.index(d["process"]) if d["process"] in choices else 0,
-                                            key=f"losses_process_{pick}")
+                                            key=f"losses_process_{n}")
         fields["process_temperature"] = right.text_input("Process temperature (when given)",
-                                                         d["process_temperature"], key=f"losses_process_T_{pick}")
-        submitted = st.form_submit_button("Apply", key=f"losses_apply_{pick}")
+                                                         d["process_temperature"], key=f"losses_process_T_{n}")
+        submitted = st.form_submit_button("Apply", key=f"losses_apply_{n}")
     if submitted:
         try:
             new = with_surface_loss(worksheet, name, fields)

@@ -21,6 +21,7 @@ import pandas as pd
 
 from ..address import FRACTION, get, kinds_of, parse, unknown_address, with_value
 from ..errors import AddressError, HeatBalanceError, InputError
+from ..humid_air import HumidAir
 from ..problem import Problem, basis_si, build_problem, typed_si
 from ..units import check_unit, heat_kind, kind_of
 from ..worksheet import Quantity, Worksheet
@@ -139,15 +140,21 @@ class _FastSetter:
         if field in ("flow", "mass") and head in ("streams", "vessels") and len(steps) in (2, 3):
             line = next((ln for ln in p.lines if ln.amount_address == address), None)
             return None if line is None or line is p.unknown_target else self._amount(line)
+        humid_inlets = [ln.initial for ln in p.lines if isinstance(ln.material, HumidAir)]  # their humidity and
+        # volume flow were worked out at the typed inlet temperature and pressure: such a point is rebuilt
         if field == "temperature" or address.endswith(".equipment.initial_temperature"):
             var = next((v for v, a in p.var_addresses.items() if a == address), None)
-            return None if var is None or var == p.unknown_target else self._temperature(var)
+            if var is None or var == p.unknown_target or any(st.var == var for st in humid_inlets):
+                return None
+            return self._temperature(var)
         if head in ("duties", "losses") and field == "value":
             term = next((t for t in p.terms if t.kind == ("duty" if head == "duties" else "loss")
                          and t.name == steps[0][1]), None)
             return None if term is None or term is p.unknown_target else self._heat(term, head == "losses")
         if field == "pressure":
             specs = [st for ln in p.lines for st in (ln.initial, ln.final) if st.pressure_address == address]
+            if any(st in humid_inlets for st in specs):
+                return None
             return self._pressure(list({id(s): s for s in specs}.values())) if specs else None
         if field in ("vapour_fraction", "solid_fraction"):
             state = address.rpartition(".")[0]

@@ -1,6 +1,7 @@
 """Humid-air lines (:mod:`heatbalance.humid_air`) in a unit set: their water, condensate and its heat."""
 from __future__ import annotations
 
+from ..humid_air import T_MIN
 from ..messages import Measure
 from ..units import basis_kinds, heat_kind
 from .text import measure_text
@@ -17,7 +18,8 @@ def humid_air_rows(result, system: str = "SI") -> list[dict]:
 
     return [{"line": r.name, "dry air": text(r.dry_air, amount_kind),
              "humidity ratio in [g/kg]": f"{r.W_in * 1000:.2f}", "humidity ratio out [g/kg]": f"{r.W_out * 1000:.2f}",
-             "dew point in": text(r.dew_point_in, "temperature", 1), "RH in": f"{r.rh_in:.0%}",
+             "dew point in": text(r.dew_point_in, "temperature", 1) if r.dew_point_in > T_MIN
+             else "below " + text(T_MIN, "temperature", 0), "RH in": f"{r.rh_in:.0%}",
              "RH out": f"{r.rh_out:.0%}", "condensate": text(_positive(r.condensate), amount_kind),
              "condensing heat released": text(_positive(r.condensate_heat), heat), "address": r.address}
             for r in result.humid_air]

@@ -35,8 +35,9 @@ def surface_loss_rows(result, system: str = "SI") -> list[dict]:
             for r in result.surface_losses]
 
 
-def surface_loss_report(result, system: str = "SI") -> list[str]:
-    """The command line's block: each computed loss with its details, and the one safety caution."""
+def surface_loss_report(result, system: str = "SI", caution: bool = True) -> list[str]:
+    """The command line's block: each computed loss with its details, and the one safety caution (``caution=False``
+    when the report shows it elsewhere)."""
     out = ["SURFACE LOSSES (computed from geometry, as powers)"]
     for row, record in zip(surface_loss_rows(result, system), result.surface_losses):
         out.append(f"  {row['loss']}: {row['heat lost']} = convection {row['convection']} + radiation "
@@ -46,5 +47,4 @@ def surface_loss_report(result, system: str = "SI") -> list[str]:
         out.append(f"    {row['method']}")
         out.append(f"    personnel protection: {row['personnel protection']}")
         out += [f"    ! {phrase_text(note, system)}" for note in record.notes]
-    out.append(f"  Safety: {CAUTION}")
-    return out
+    return out + ([f"  Safety: {CAUTION}"] if caution else [])

@@ -47,7 +47,7 @@ def format_result(result: Result, system: str = "SI") -> str:
     if result.exchangers or result.utilities:
         out += [""] + exchanger_report(result, system)
     if result.surface_losses:
-        out += [""] + surface_loss_report(result, system)
+        out += [""] + surface_loss_report(result, system, caution=not result.screening)  # the caution once
     if result.humid_air:
         out += [""] + humid_air_report(result, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))

@@ -35,6 +35,8 @@ from ..units import from_si, heat_kind
 from .exports import slug
 from .exchangers import exchanger_rows, utility_rows, zone_rows
 from .figures import CLOSING_COLOUR, HEAT_IN_COLOUR, HEAT_OUT_COLOUR, waterfall_steps
+from .humid_air import humid_air_rows
+from .losses import surface_loss_rows
 from .screening import screening_report
 from .tables import contribution_rows
 from .text import UNIT_SETS, amount_text, answer_text, display_unit, format_heat, no_negative_zero, phrase_text
@@ -327,6 +329,20 @@ def _exchangers(result: Result, system: str, styles) -> list:
     return out
 
 
+def _losses_and_air(result: Result, system: str, styles) -> list:
+    """The computed surface losses (with the protection thickness) and the humid-air lines' water, as tables."""
+    out = []
+    for title, rows, skip in (("Surface losses (computed from geometry)", surface_loss_rows(result, system),
+                               ("address", "method", "area")),
+                              ("Humid air (per kg of dry air)", humid_air_rows(result, system), ("address",))):
+        if rows:
+            heading = [c for c in rows[0] if c not in skip]
+            out += [_p(title, styles["h2"]),
+                    _table([heading, *[[r[c] for c in heading] for r in rows]],
+                           [180 * mm / len(heading)] * len(heading), styles)]
+    return out
+
+
 def _tq_drawing(check, system: str) -> Drawing:
     """The T–Q chart as vectors: the hot curve above the cold one against heat from the cold end."""
     width, height, left, bottom = 180 * mm, 62 * mm, 16 * mm, 10 * mm
@@ -386,6 +402,7 @@ def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision:
     for section in (_identity(ws, revision, link, system, printed, styles), _answer(result, system, styles),
                     _warnings(ws, result, system, styles), _inputs(ws, styles), _contributions(result, system, styles),
                     _uncertainty(result, system, styles), _cases(ws, system, styles), _exchangers(result, system, styles),
+                    _losses_and_air(result, system, styles),
                     _screening(result, system, styles),
                     _waterfall(result, system, styles), _conventions(result, styles, system),
                     _signoffs(signoffs or [], styles)):

@@ -1,0 +1,41 @@
+"""The humid-air panel in a real browser (Debian's chromium through Playwright, headless).
+
+Opens the make-up air heater sample on a ?sheet= link, waits (on the page's own state, never a fixed sleep) for the
+panel's table, then gives the inlet humidity as a dew point through the panel's form and waits for the table to
+show the new relative humidity.
+"""
+from __future__ import annotations
+
+import pytest
+
+from heatbalance.links import sheet_link
+from page_helpers import FIRST_DRAW_MS, idle, open_page, sample
+
+pytestmark = pytest.mark.browser
+
+PANEL = ".st-key-humid_air_panel"
+
+
+def test_panel_shows_the_water_and_takes_a_dew_point(browser, app_url, output_dir):
+    link = sheet_link(sample("humid_air_heater_steam.json"), app_url + "/")
+    context, page = open_page(browser, link, f"{PANEL} [data-testid='stDataFrame']", FIRST_DRAW_MS)
+    try:
+        panel = page.locator(PANEL)
+        assert "372.9 kg/h" in page.locator(".st-key-answer").text_content()
+        panel.get_by_text("Inlet humidity and flow of Outdoor air").click()
+        value = page.locator(".st-key-air_0_value input")
+        value.wait_for()
+        value.fill("-20 degC")
+        idle(page)
+        page.locator(".st-key-air_0_form_kind").click()
+        page.get_by_role("option", name="dew point", exact=True).click()
+        page.locator(".st-key-air_0_apply button").click()
+        page.wait_for_function("""() => {
+            const a = document.querySelector('.st-key-answer');
+            return a !== null && !a.textContent.includes('372.9 kg/h') && a.textContent.includes('kg/h'); }""",
+                               timeout=FIRST_DRAW_MS)
+        idle(page)
+        assert "Not applied" not in panel.text_content()
+        panel.screenshot(path=str(output_dir / "humid_air_panel.png"))
+    finally:
+        context.close()
