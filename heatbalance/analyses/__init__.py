@@ -50,10 +50,11 @@ def solve_closed(problem) -> Result:
     return solve_problem(problem)
 
 
-def analyse(problem, result):
+def analyse(problem, result, checks: bool = True):
     """Run every analysis on a solved balance and attach its records to the result (returned).
 
     Like the balance, an analysis returns only finite numbers, or refuses at the inputs it used.
+    ``checks=False`` leaves out the exchanger check and the utility tables (a sweep that does not ask for them).
     """
     result.screening = screen(problem, result)
     for s in result.screening:
@@ -61,6 +62,9 @@ def analyse(problem, result):
             raise NoSolutionError("the thermal screening gives a number that is not finite (e.g. a jacket so small "
                                   "that the time is beyond any scale): check the screening inputs",
                                   item("vessels", s.vessel, "screening"))
+    if not checks:
+        result.exchangers, result.utilities = [], []
+        return result
     if problem.exchangers:
         from .exchangers import check_exchangers
 
