@@ -176,3 +176,48 @@ def test_an_input_that_cannot_reach_the_rated_duty_is_refused_at_sets():
     UA, C_oil, C_water = 38.1 * INCROPERA_AREA, 0.1 * 2131, 0.2 * 4178
     gap = _counterflow_effectiveness(UA / C_oil, C_oil / C_water) * C_oil * 70 - C_water * 5  # hand calculation
     assert f"{gap / 1e3:.4g} kW" in info.value.message
+
+
+def test_glycol_cooler_sample_is_closed_by_its_rating():
+    # The sample of our own invention: the cooler's UA (40 kW/K) sets the glycol outlet. Check against the
+    # counter-flow ε-NTU closed form with the mean heat-capacity flows the result implies (cp varies a little with
+    # T, so to 0.5 %): C = Q / ΔT of each side, NTU = UA / C_min, q = ε·C_min·(60 − 27 K), hand calculation.
+    from heatbalance.worksheet import load_worksheet
+
+    with open("sample_data/glycol_cooler_rated.json", encoding="utf-8") as handle:
+        result = solve_and_analyse(load_worksheet(handle.read()))
+    closure = result.rating_closure
+    assert closure.address == "streams[Glycol].outlet.temperature"
+    glycol, water = result.lines
+    Q = water.total
+    C_hot, C_cold = Q / (glycol.initial_T - glycol.final_T), Q / (water.final_T - water.initial_T)
+    C_min, C_max = min(C_hot, C_cold), max(C_hot, C_cold)
+    q = _counterflow_effectiveness(40e3 / C_min, C_min / C_max) * C_min * (60 - 27)
+    assert Q == pytest.approx(q, rel=5e-3)
+    assert closure.rated_duty == pytest.approx(Q, rel=1e-6) and glycol.final_T == pytest.approx(closure.value)
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]  # said once: rated = balance
+    assert warning.address == "utilities[Cooling water].return_limit"
+    assert "in the balance, as the exchanger's UA rates it" in warning.text
+
+
+def test_a_flow_near_where_the_balance_refuses_is_found_by_bisecting_the_edge():
+    # The methanol condenser sample (1.5 t/h condensed and subcooled to 50 °C: 475.4 kW, its own regression value)
+    # with the cooling-water flow set by the rating: below about 10.9 t/h the balance refuses (the water would leave
+    # hotter than the methanol enters), and the answer lies just above that edge, between the factor-of-two
+    # trials. The water leaves below the methanol's condensing temperature (iapws/CoolProp not needed: the rating
+    # never passes the hot inlet) and the balance closes at the rated duty.
+    import json
+
+    with open("sample_data/methanol_condenser_cooling_water.json", encoding="utf-8") as handle:
+        doc = json.load(handle)
+    doc["unknowns"] = [{"kind": "temperature", "line": "Cooling water", "end": "outlet"}]
+    doc["streams"][1]["flow"] = {"value": 31.5, "unit": "t/h"}
+    doc["exchangers"][0]["sets"] = "streams[Cooling water].flow"
+    result = solve_and_analyse(parse_worksheet(doc))
+    closure = result.rating_closure
+    methanol, water = result.lines
+    assert closure.rated_duty == pytest.approx(-methanol.total, rel=1e-6)  # the methanol's duty, as the balance has it
+    assert 2.5 < closure.value < 3.4  # kg/s: between the refused 7.9 t/h and the solved 15.75 t/h trials
+    assert water.final_T < methanol.initial_T
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]
+    assert warning.address == "utilities[Cooling water].return_limit"

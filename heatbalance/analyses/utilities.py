@@ -50,6 +50,7 @@ FLASH_RECOVERED_NOTE = ("flash steam recovered: its latent heat at the flash pre
 FLASH_LOST_NOTE = "flash steam lost (vented): no credit; its heat and water are lost"
 _GJ = 1e9
 _MWh = 3.6e9
+_SAME_OUTLET_K = 0.01  # K: the rated outlet is the balance's (the rating closes it)
 SAME_SUPPLY_K = 0.05  # K: a utility line entering within this of a utility's supply temperature is that utility
 _DEMO = "demo value of our own invention, not a site's: replace with your site's"
 
@@ -334,8 +335,11 @@ def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, P
         for line in (ln for ln in result.lines if ln.kind == "stream" and ln.name in getattr(e, e.utility_side)):
             outlets = [("in the balance", line.final_T)]
             if check.rating is not None:
-                outlets.append(("as the exchanger's UA rates it", check.rating.cold_outlet_T if cooling
-                                else check.rating.hot_outlet_T))
+                rated = check.rating.cold_outlet_T if cooling else check.rating.hot_outlet_T
+                if abs(rated - line.final_T) <= _SAME_OUTLET_K:  # the rating closes the balance: said once
+                    outlets = [("in the balance, as the exchanger's UA rates it", line.final_T)]
+                else:
+                    outlets.append(("as the exchanger's UA rates it", rated))
             for u in _utilities_of_line(problem, line, kinds):
                 if u.return_T is None:
                     continue
