@@ -221,3 +221,11 @@ def test_a_flow_near_where_the_balance_refuses_is_found_by_bisecting_the_edge():
     assert water.final_T < methanol.initial_T
     (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]
     assert warning.address == "utilities[Cooling water].return_limit"
+
+
+def test_sweeping_the_input_the_rating_sets_is_refused_at_it():
+    from heatbalance.errors import AddressError
+
+    with pytest.raises(AddressError) as info:
+        sweep(parse_worksheet(_oil_cooler()), [Axis("streams[Oil].outlet.temperature", (50.0, 60.0), "degC")])
+    assert info.value.where == "streams[Oil].outlet.temperature" and "rating sets this input" in info.value.message

@@ -270,6 +270,9 @@ def _check_axis(ws: Worksheet, axis: Axis) -> tuple[str, ...]:
     if len(ws.unknowns) == 1:
         if unknown_address(ws.unknowns[0]) == axis.address:
             raise AddressError("this is the unknown: the balance solves for it; sweep another input", axis.address)
+    setter = next((e.name for e in ws.exchangers if e.sets == axis.address), None)
+    if setter is not None:
+        raise AddressError(f"exchanger {setter}'s rating sets this input; sweep another", axis.address)
     if kinds == (FRACTION,):
         if axis.unit:
             raise AddressError(f"this input is a plain number between 0 and 1; give no unit, not '{axis.unit}'",
