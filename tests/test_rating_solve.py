@@ -67,7 +67,7 @@ def test_rating_the_incropera_oil_cooler_gives_back_its_design_outlets():
     check = result.exchangers[0]
     assert check.closure is closure and check.rating.duty == pytest.approx(q, rel=1e-6)
     assert "TOO SMALL" not in check.rating.verdict.text  # it delivers exactly the balance's duty
-    assert "set by the rating of E-1" in check.notes[0].text and "60.0 °C" in check.notes[0].text
+    assert "set by the rating of E-1" in check.notes[0].text and f"{closure.value - C0:.2f} °C" in check.notes[0].text
     text = format_result(result)
     assert "set by the rating: streams[Oil].outlet.temperature = 60.0" in text
     assert result_json(result)["rating_closure"]["value"] == closure.value
@@ -179,7 +179,8 @@ def test_an_input_that_cannot_reach_the_rated_duty_is_refused_at_sets():
 
 
 def test_glycol_cooler_sample_is_closed_by_its_rating():
-    # The sample of our own invention: the cooler's UA (40 kW/K) sets the glycol outlet. Check against the
+    # The sample of our own invention: the cooler's UA (40 kW/K) sets the glycol outlet, the balance the cooling-water
+    # flow that returns it at 40 °C. Check against the
     # counter-flow ε-NTU closed form with the mean heat-capacity flows the result implies (cp varies a little with
     # T, so to 0.5 %): C = Q / ΔT of each side, NTU = UA / C_min, q = ε·C_min·(60 − 27 K), hand calculation.
     from heatbalance.worksheet import load_worksheet
@@ -195,9 +196,20 @@ def test_glycol_cooler_sample_is_closed_by_its_rating():
     q = _counterflow_effectiveness(40e3 / C_min, C_min / C_max) * C_min * (60 - 27)
     assert Q == pytest.approx(q, rel=5e-3)
     assert closure.rated_duty == pytest.approx(Q, rel=1e-6) and glycol.final_T == pytest.approx(closure.value)
-    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]  # said once: rated = balance
+    assert water.final_T - C0 == pytest.approx(40.0) and closure.cold_outlet_T - C0 == pytest.approx(40.0, abs=1e-6)
+    assert not [w for w in result.warnings if "RETURN LIMIT" in w.text]  # the flow holds the 40 °C limit
+
+
+def test_return_limit_passed_when_the_rating_closes_is_said_once():
+    import json
+
+    with open("sample_data/glycol_cooler_rated.json", encoding="utf-8") as handle:
+        doc = json.load(handle)
+    doc["unknowns"] = [{"kind": "temperature", "line": "Cooling water", "end": "outlet"}]  # 30 t/h as typed
+    result = solve_and_analyse(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if "RETURN LIMIT PASSED" in w.text]  # rated outlet = the balance's
     assert warning.address == "utilities[Cooling water].return_limit"
-    assert "in the balance, as the exchanger's UA rates it" in warning.text
+    assert "in the balance, as the exchanger's UA rates it" in warning.text and "40.0 °C" in warning.text
 
 
 def test_a_flow_near_where_the_balance_refuses_is_found_by_bisecting_the_edge():

@@ -192,8 +192,8 @@ def _bracket(trial: _Trial) -> tuple[float, float, float, float]:
     raise NoSolutionError(_unreachable(trial, seen, candidates), trial.where)
 
 
-def _measure(kind: str, value: float) -> Measure:
-    return Measure(value, kind, 1) if kind == "temperature" else Measure(value, kind)
+def _measure(kind: str, value: float, digits: int = 1) -> Measure:
+    return Measure(value, kind, digits) if kind == "temperature" else Measure(value, kind)
 
 
 def _unreachable(trial: _Trial, seen: list[tuple[float, float]], candidates: list[float]) -> Phrase:
@@ -241,8 +241,8 @@ def solve_rated(problem: Problem) -> Result:
                             trial.evaluations)
     closure.note = Phrase("{address} is set by the rating of {exchanger} (its UA, ε-NTU per zone) to {value}, not "
                           "as typed ({typed}): the exchanger then delivers {q}, the duty of the balance",
-                          {"address": e.sets, "exchanger": e.name, "value": _measure(trial.kind, x),
-                           "typed": _measure(trial.kind, trial.typed), "q": Measure(q, "power")}, trial.where)
+                          {"address": e.sets, "exchanger": e.name, "value": _measure(trial.kind, x, 2),
+                           "typed": _measure(trial.kind, trial.typed, 2), "q": Measure(q, "power")}, trial.where)
     result.rating_closure = closure
     result.assumptions = list(result.assumptions) + [f"{e.sets}: set by the rating of exchanger {e.name} "
                                                      "(its UA closes the balance), not as typed."]
