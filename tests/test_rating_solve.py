@@ -6,6 +6,7 @@ from __future__ import annotations
 import math
 
 import pytest
+from sheet_factory import constant_cp_material
 
 from heatbalance.address import rename, with_unknown
 from heatbalance.analyses import solve_and_analyse
@@ -16,15 +17,6 @@ from heatbalance.worksheet import parse_worksheet
 
 C0 = 273.15
 INCROPERA_AREA = math.pi * 0.025 * 65.9  # m²: Incropera Example 11.1's 65.9 m of 25 mm tube (from memory)
-
-
-def _liquid(name: str, cp: str, up_to: str | None = None, latent: str | None = None, vapour_cp: str | None = None):
-    phases = [{"name": "liquid", "cp": cp}]
-    if up_to:
-        phases[0].update(up_to=up_to, latent_heat=latent)
-        phases.append({"name": "vapour", "cp": vapour_cp})
-    return {"name": name, "phases": phases, "min_temperature": "-50 degC", "max_temperature": "400 degC",
-            "source": "constant cp of a test scenario"}
 
 
 def _counterflow_effectiveness(NTU: float, Cr: float) -> float:
@@ -38,7 +30,7 @@ def _oil_cooler(**exchanger) -> dict:
     """Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, Example 11.1 (from memory): engine oil 0.1 kg/s,
     cp 2131 J/(kg·K), enters at 100 °C; water 0.2 kg/s, cp 4178 J/(kg·K), enters at 30 °C; U = 38.1 W/(m²·K);
     counter-flow. The book designs it for an oil outlet of 60 °C: q = 8524 W, water out 40.2 °C, L = 65.9 m."""
-    return {"materials": [_liquid("oil", "2131 J/(kg*K)"), _liquid("cw", "4178 J/(kg*K)")],
+    return {"materials": [constant_cp_material("oil", 2131, "J/(kg*K)", t_max=400), constant_cp_material("cw", 4178, "J/(kg*K)", t_max=400)],
             "streams": [{"name": "Oil", "material": "oil", "flow": "0.1 kg/s", "inlet": {"temperature": "100 degC"},
                          "outlet": {"temperature": "80 degC"}},  # a wrong guess: the rating sets it
                         {"name": "Water", "material": "cw", "flow": "0.2 kg/s", "inlet": {"temperature": "30 degC"},
@@ -76,7 +68,7 @@ def test_rating_the_incropera_oil_cooler_gives_back_its_design_outlets():
 def test_rating_sets_a_flow_the_exchanger_needs_for_a_target():
     # Our scenario: hot 1 kg/s, cp 1000 J/(kg·K), 150 -> 90 °C (60 kW, fixed by its typed outlet); cold cp 2000 from
     # 30 °C; UA 2 kW/K. The rating sets the cold flow, the balance solves the cold outlet.
-    doc = {"materials": [_liquid("a", "1000 J/(kg*K)"), _liquid("b", "2000 J/(kg*K)")],
+    doc = {"materials": [constant_cp_material("a", 1000, "J/(kg*K)", t_max=400), constant_cp_material("b", 2000, "J/(kg*K)", t_max=400)],
            "streams": [{"name": "Hot", "material": "a", "flow": "1 kg/s", "inlet": {"temperature": "150 degC"},
                         "outlet": {"temperature": "90 degC"}},
                        {"name": "Cold", "material": "b", "flow": "1 kg/s", "inlet": {"temperature": "30 degC"},
@@ -99,8 +91,11 @@ def test_rating_ending_on_a_condensing_plateau_is_refused_at_sets():
     # enters at 120 °C against water 5 kg/s (cp 4000) from 20 °C, UA 3 kW/K: the unit delivers more than the
     # 40 kW of desuperheating and far less than the 440 kW to condense it all, so its outlet would be part
     # condensed at 80 °C: no outlet temperature says that.
-    doc = {"materials": [_liquid("v", "2000 J/(kg*K)", "80 degC", "400 kJ/kg", "1000 J/(kg*K)"),
-                         _liquid("w", "4000 J/(kg*K)")],
+    vapour = {"name": "v", "source": "constant cp of a test scenario", "min_temperature": "-50 degC",
+              "max_temperature": "400 degC", "phases": [
+                  {"name": "liquid", "cp": "2000 J/(kg*K)", "up_to": "80 degC", "latent_heat": "400 kJ/kg"},
+                  {"name": "vapour", "cp": "1000 J/(kg*K)"}]}
+    doc = {"materials": [vapour, constant_cp_material("w", 4000, "J/(kg*K)", t_max=400)],
            "streams": [{"name": "Vapour", "material": "v", "flow": "1 kg/s", "inlet": {"temperature": "120 degC"},
                         "outlet": {"temperature": "50 degC"}},
                        {"name": "Water", "material": "w", "flow": "5 kg/s", "inlet": {"temperature": "20 degC"},

@@ -17,7 +17,7 @@ from .screening import JacketTime, Screening, screen
 from .utilities import UtilityTable, return_limit_warnings, utility_tables
 
 __all__ = ["JacketTime", "Screening", "screen", "ExchangerCheck", "check_exchangers", "UtilityTable",
-           "utility_tables", "analyse", "solve_and_analyse", "solve_closed"]
+           "utility_tables", "analyse", "solve_and_analyse", "solve_closed", "unsolved"]
 
 
 def __getattr__(name: str):
@@ -38,6 +38,17 @@ def _finite_numbers(record) -> bool:
     if isinstance(record, (list, tuple)):
         return all(_finite_numbers(x) for x in record)
     return True
+
+
+def unsolved(problem, temperatures: dict) -> None:
+    """Put a built problem back as before a solve, to solve it again: its temperatures ``temperatures`` (as built,
+    a copy), its unknown amount or duty without a value (the solver writes the answer into the problem)."""
+    problem.temperatures.clear()
+    problem.temperatures.update(temperatures)
+    if problem.unknown.kind == "amount":
+        problem.unknown_target.amount = None
+    elif problem.unknown.kind == "duty":
+        problem.unknown_target.heat = None
 
 
 def solve_closed(problem) -> Result:

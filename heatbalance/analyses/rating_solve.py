@@ -28,6 +28,7 @@ from ..messages import Measure, Phrase
 from ..problem import ExchangerInputs, Problem
 from ..results import Result
 from ..units import heat_kind
+from . import unsolved
 from .exchangers import rated_duty
 
 __all__ = ["RatingClosure", "closing_exchanger", "solve_rated", "CLOSURE_RELATIVE"]
@@ -90,12 +91,7 @@ class _Trial:
 
     def set(self, x: float) -> None:
         p = self.p
-        p.temperatures.clear()
-        p.temperatures.update(self.temperatures)
-        if p.unknown.kind == "amount":
-            p.unknown_target.amount = None
-        elif p.unknown.kind == "duty":
-            p.unknown_target.heat = None
+        unsolved(p, self.temperatures)
         if self.var is not None:
             p.temperatures[self.var] = x
         else:

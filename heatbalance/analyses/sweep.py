@@ -24,7 +24,7 @@ from ..errors import AddressError, HeatBalanceError, InputError
 from ..problem import Problem, basis_si, build_problem, typed_si
 from ..units import check_unit, heat_kind, kind_of
 from ..worksheet import Quantity, Worksheet
-from . import analyse, solve_closed
+from . import analyse, solve_closed, unsolved
 
 __all__ = ["Axis", "axis_values", "sweep", "output_names", "answer_field", "MAX_POINTS", "REFUSED_AT", "REASON",
            "WARNINGS"]
@@ -374,12 +374,7 @@ class _FastRun:
     def _solve(self, values, checks: bool = True):
         if self.fast:
             p = self.problem
-            p.temperatures.clear()
-            p.temperatures.update(self.temperatures)
-            if p.unknown.kind == "amount":
-                p.unknown_target.amount = None
-            elif p.unknown.kind == "duty":
-                p.unknown_target.heat = None
+            unsolved(p, self.temperatures)
             for setter, value in zip(self.setters, values):
                 setter(value)
             result = analyse(p, solve_closed(p), checks)
