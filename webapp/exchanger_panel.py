@@ -51,8 +51,8 @@ def render_exchanger_panel(worksheet: Worksheet, result: Result | None, system: 
             st.info("Solve the balance first: the exchanger check and the utilities run on its answer.")
             return
         if not result.exchangers:
-            st.caption("No exchanger in this worksheet: declare one under `exchangers` in the file (its hot and cold "
-                       "lines, the arrangement, optionally U, area or UA) to see its T–Q curves.")
+            st.caption("No exchanger in this worksheet: declare one below (its hot and cold lines, the arrangement, "
+                       "optionally U, area or UA) to see its T–Q curves.")
         for i, check in enumerate(result.exchangers):
             st.markdown(f"**Exchanger {plain(check.name)}**: hot {plain(', '.join(check.hot))}; "
                         f"cold {plain(', '.join(check.cold))}")
