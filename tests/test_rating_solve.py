@@ -236,3 +236,15 @@ def test_sweeping_the_input_the_rating_sets_is_refused_at_it():
     with pytest.raises(AddressError) as info:
         sweep(parse_worksheet(_oil_cooler()), [Axis("streams[Oil].outlet.temperature", (50.0, 60.0), "degC")])
     assert info.value.where == "streams[Oil].outlet.temperature" and "rating sets this input" in info.value.message
+
+
+def test_a_tolerance_on_the_set_input_is_not_used_and_said_so():
+    from heatbalance.analyses.uncertainty import suggested_tolerances
+
+    doc = _oil_cooler()
+    doc["tolerances"] = [{"address": "streams[Oil].outlet.temperature", "plus_minus": "0.5 K"}]
+    result = solve_and_analyse(parse_worksheet(doc))
+    assert result.uncertainty is None and result.uncertainty_error.where == "streams[Oil].outlet.temperature"
+    assert any("rating sets this input" in w.text for w in result.warnings)
+    offered = {t.address for t in suggested_tolerances(parse_worksheet(_oil_cooler()))}
+    assert "streams[Oil].outlet.temperature" not in offered and "streams[Oil].inlet.temperature" in offered
