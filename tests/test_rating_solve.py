@@ -248,3 +248,19 @@ def test_a_tolerance_on_the_set_input_is_not_used_and_said_so():
     assert any("rating sets this input" in w.text for w in result.warnings)
     offered = {t.address for t in suggested_tolerances(parse_worksheet(_oil_cooler()))}
     assert "streams[Oil].outlet.temperature" not in offered and "streams[Oil].inlet.temperature" in offered
+
+
+def test_cases_close_by_the_rating_and_refuse_overriding_the_set_input():
+    from heatbalance.analyses.cases import run_cases
+
+    doc = _oil_cooler()
+    doc["cases"] = [{"name": "hot oil", "overrides": [{"address": "streams[Oil].inlet.temperature",
+                                                       "value": {"value": 110, "unit": "degC"}}]},
+                    {"name": "forced", "overrides": [{"address": "streams[Oil].outlet.temperature",
+                                                      "value": {"value": 55, "unit": "degC"}}]}]
+    frame = run_cases(parse_worksheet(doc), outputs=["answer"])
+    UA, C_oil, C_water = 38.1 * INCROPERA_AREA, 0.1 * 2131, 0.2 * 4178
+    eps = _counterflow_effectiveness(UA / C_oil, C_oil / C_water)  # hand calculation, as above
+    assert frame.loc["answer", "hot oil"] - C0 == pytest.approx(30 + eps * C_oil * 80 / C_water, abs=1e-5)
+    refusal = frame.attrs["refusals"]["forced"]
+    assert refusal.where == "cases[forced]" and "rating sets this input" in refusal.message
