@@ -261,7 +261,8 @@ def _root(trial: _Trial, a: float, ga: float, b: float, gb: float, brentq) -> fl
 def _on_plateau(trial: _Trial, x: float, q: float, balance: float) -> Phrase:
     return Phrase("the duty {exchanger} delivers ({q}) is not reached by any single value of {address}: the balance "
                   "jumps at {value} (from {balance}), where a line changes phase. The outlet there is a mixture at one "
-                  "temperature (part condensed or boiled): set a flow instead, or give that line's outlet a phase "
-                  "fraction",
+                  "temperature (part condensed or boiled): {instead}",
                   {"exchanger": trial.e.name, "q": Measure(q, "power"), "address": trial.e.sets,
-                   "value": _measure(trial.kind, x), "balance": Measure(balance, "power")})
+                   "value": _measure(trial.kind, x), "balance": Measure(balance, "power"),
+                   "instead": "set a flow instead, or give that line's outlet a phase fraction"
+                   if trial.kind == "temperature" else "set another input, or check the UA"})
