@@ -165,6 +165,8 @@ def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
     x = (h_condensate − h_f) / h_fg at the flash pressure (an adiabatic let-down, IAPWS-IF97 via CoolProp)."""
     P = ATMOSPHERE if u.flash_P is None else u.flash_P
     where = f"{u.address}.flash_pressure"
+    if u.flash_P is None and P >= u.P:  # steam below the atmosphere, none said: its condensate cannot flash to it
+        return 0.0, 0.0
     if P >= u.P:
         raise InputError(Phrase("the condensate is let down to {P}: that is not below the steam's {Ps}",
                                 {"P": Measure(P, "pressure"), "Ps": Measure(u.P, "pressure")}), where)
@@ -238,6 +240,12 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
         if u.condensate == "flash recovered":
             option.flash_credit = option.flash_flow * flash_latent
             share = 1.0 - option.flash_credit / d.duty
+            if not share > 0:
+                raise InputError(Phrase("the flash steam's heat ({credit}) would be as much as the duty ({duty}): at "
+                                        "this pressure the condensate carries more heat than the steam gives, and a "
+                                        "heat-for-heat credit does not apply; price the flash steam separately",
+                                        {"credit": Measure(option.flash_credit, "power"),
+                                         "duty": Measure(d.duty, "power")}), f"{u.address}.condensate")
             option.notes.append(FLASH_RECOVERED_NOTE)
         elif u.condensate == "flash lost":
             option.notes.append(FLASH_LOST_NOTE)
