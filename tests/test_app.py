@@ -15,6 +15,7 @@ from iapws import IAPWS97
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import load_worksheet, solve
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.present.text import answer_text as written
 from heatbalance.reactor import CAUTION
 from heatbalance.worksheet import Quantity, Unknown
@@ -49,8 +50,9 @@ def rows(at, table):
 
 
 def engine(ws, system="SI") -> str:
-    """The engine's answer for ``ws``, written as the page writes it."""
-    return written(solve(ws).answer, system)
+    """The engine's answer for ``ws`` as the page gets it (an exchanger's rating may set an input), written as the
+    page writes it."""
+    return written(solve_and_analyse(ws).answer, system)
 
 
 def answer_text(at) -> str:

@@ -43,3 +43,51 @@ def test_demo_utilities_added_through_the_setter():
     state = at.session_state["hb_page"]
     assert [u.name for u in state.worksheet.utilities][:2] == ["LP steam 4 barg", "MP steam 12 barg"]
     assert str(state.worksheet.operating_hours) == "8000 h"
+
+
+# --------------------------------------------------------------------------- the exchanger editor
+def _edit(at: AppTest, choice: str, **values) -> AppTest:
+    """Set the editor's widgets for ``choice`` and save."""
+    at.selectbox(key="exchanger_edit_choice").set_value(choice).run()
+    for field, value in values.items():
+        key = f"exchanger_edit_{choice}_{field}"
+        widget = next(w for kind in (at.text_input, at.multiselect, at.selectbox, at.number_input)
+                      for w in kind if w.key == key)
+        widget.set_value(value)
+    return at.button(key="exchanger_edit_save").click().run()
+
+
+def test_editor_changes_an_exchanger_and_its_rating_closes_the_balance():
+    at = _open("steam_heater_subcooled_condensate.json")
+    _edit(at, "E-201", arrangement="counter-current", U="", area="", UA="44 kW/K",
+          sets="streams[Process water].outlet.temperature")
+    assert not at.exception
+    (e,) = at.session_state["hb_page"].worksheet.exchangers
+    assert (e.arrangement, str(e.UA), e.U, e.sets) == ("counter-current", "44 kW/K", None,
+                                                       "streams[Process water].outlet.temperature")
+    assert e.hot == ["Steam"] and e.utility_side == "hot"  # what was not edited is kept
+    frames = [d.value for d in at.dataframe]
+    rows = next(f for f in frames if "quantity" in f.columns)
+    assert "set by the rating" in list(rows["quantity"])
+
+
+def test_editor_refuses_a_wrong_side_with_its_address_and_keeps_the_sheet():
+    at = _open("steam_heater_subcooled_condensate.json")
+    before = at.session_state["hb_page"].worksheet
+    _edit(at, "(new exchanger)", name="E-9", hot=["Process water"], cold=["Steam"])
+    assert not at.exception
+    assert at.session_state["hb_page"].worksheet == before
+    errors = " ".join(e.value for e in at.error)
+    assert "This exchanger cannot be used" in errors and "exchangers\\[E\\-9\\]\\.hot" in errors
+
+
+def test_editor_adds_and_removes_an_exchanger():
+    at = _open("methanol_condenser_cooling_water.json")
+    _edit(at, "(new exchanger)", name="E-302", hot=["Methanol overhead"], cold=["Cooling water"],
+          U="600 W/(m^2*K)")
+    assert not at.exception
+    assert [e.name for e in at.session_state["hb_page"].worksheet.exchangers] == ["E-301", "E-302"]
+    at.selectbox(key="exchanger_edit_choice").set_value("E-302").run()
+    at.button(key="exchanger_edit_remove").click().run()
+    assert not at.exception
+    assert [e.name for e in at.session_state["hb_page"].worksheet.exchangers] == ["E-301"]

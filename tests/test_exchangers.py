@@ -373,3 +373,53 @@ def test_methanol_cooled_below_its_melting_line_is_refused_with_the_range():
         solve_and_analyse(parse_worksheet(doc))
     assert info.value.where == "streams[Methanol].outlet.temperature"
     assert "too much heat" not in info.value.message and "lower limit of the data for methanol" in info.value.message
+
+
+# --------------------------------------------------------------------------- exchanger outputs in a sweep
+STEAM_SAMPLE = "sample_data/steam_heater_subcooled_condensate.json"
+AREA, FLOW = "exchangers[E-201].area_required", "exchangers[E-201].utilities[LP steam 4 barg].flow"
+APPROACH, COST = "exchangers[E-201].min_approach", "exchangers[E-201].utilities[LP steam 4 barg].cost_per_hour"
+
+
+def test_exchanger_and_utility_outputs_in_a_small_sweep():
+    from heatbalance.address import with_value
+    from heatbalance.analyses.sweep import Axis, sweep
+    from heatbalance.present.whatif import sweep_table
+
+    with open(STEAM_SAMPLE, encoding="utf-8") as handle:
+        ws = load_worksheet(handle.read())
+    outlets = (70.0, 85.0)
+    frame = sweep(ws, [Axis("streams[Process water].outlet.temperature", outlets, "degC")],
+                  ["answer", APPROACH, AREA, FLOW, COST])
+    assert list(frame["refused at"]) == ["", ""]
+    T_sat = IAPWS97(P=(4e5 + 101325) / 1e6, x=1).T  # IAPWS-IF97 via iapws: the steam condenses at 151.86 °C
+    for T_out, row in zip(outlets, frame.itertuples(index=False)):
+        values = dict(zip(frame.columns, row))
+        # the pinch is at the hot end of the condensing zone: T_sat − the process outlet (hand calculation)
+        assert values[APPROACH] == pytest.approx(T_sat - (T_out + C0), abs=1e-3)
+        # the utility is the sheet's own steam (4 barg saturated, condensate at 100 °C): the same flow as the answer
+        assert values[FLOW] == pytest.approx(values["answer"], rel=1e-6)
+        assert values[COST] == pytest.approx(28.0 * values[FLOW] * 3.6, rel=1e-12)  # EUR 28 per t, by hand
+        alone = solve_and_analyse(with_value(ws, "streams[Process water].outlet.temperature", (T_out, "degC")))
+        assert values[AREA] == pytest.approx(alone.exchangers[0].area_required, rel=1e-9)
+    table = sweep_table(frame)
+    assert "E-201: area required [m²]" in table.columns and "E-201 / LP steam 4 barg: utility flow [kg/h]" in table.columns
+
+
+def test_a_sweep_not_asking_for_exchanger_outputs_skips_the_check(monkeypatch):
+    from heatbalance.analyses import exchangers
+    from heatbalance.analyses.sweep import Axis, output_names, sweep
+    from heatbalance.problem import build_problem
+
+    with open(STEAM_SAMPLE, encoding="utf-8") as handle:
+        ws = load_worksheet(handle.read())
+    names = output_names(build_problem(ws))
+    assert names[AREA] == "area" and names["exchangers[E-201].rated_duty"] == "power" and names[FLOW] == "mass_flow"
+    calls = []
+    real = exchangers.check_exchangers
+    monkeypatch.setattr(exchangers, "check_exchangers", lambda p, r: calls.append(1) or real(p, r))
+    axis = Axis("streams[Process water].outlet.temperature", (70.0, 80.0, 85.0), "degC")
+    sweep(ws, [axis], ["answer"])
+    assert calls == []  # the answer alone: no exchanger check at any point
+    sweep(ws, [axis], ["answer", AREA])
+    assert len(calls) == 3

@@ -12,7 +12,8 @@ from pathlib import Path
 import pytest
 from streamlit.testing.v1 import AppTest
 
-from heatbalance import load_worksheet, solve
+from heatbalance import load_worksheet
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
 from heatbalance.links import encode_sheet, revision_id
@@ -76,7 +77,7 @@ def test_a_saved_sample_opens_from_its_link_identical_with_the_identical_answer(
     at = page(ws=rev_id)
     no_traceback(at)
     assert at.session_state[KEY].worksheet == worksheet
-    assert answer(at) == answer_text(solve(worksheet).answer)
+    assert answer(at) == answer_text(solve_and_analyse(worksheet).answer)
     assert f"Opened saved revision {rev_id}." in successes(at)
     assert any(c.value.endswith(f"?ws={rev_id}") for c in at.code)  # its link, to pass on
 
@@ -86,7 +87,7 @@ def test_a_sheet_link_opens_the_identical_worksheet(db):
     at = page(sheet=encode_sheet(worksheet))
     no_traceback(at)
     assert at.session_state[KEY].worksheet == worksheet
-    assert answer(at) == answer_text(solve(worksheet).answer)
+    assert answer(at) == answer_text(solve_and_analyse(worksheet).answer)
 
 
 @pytest.mark.parametrize("query, message", [
@@ -182,7 +183,7 @@ def test_pasting_a_link_opens_it(db):
     at.text_input(key="share_link_input").set_value(f"https://sheets.example.invalid/?ws={rev_id}").run()
     no_traceback(at)
     assert at.session_state[KEY].worksheet == worksheet
-    assert answer(at) == answer_text(solve(worksheet).answer)
+    assert answer(at) == answer_text(solve_and_analyse(worksheet).answer)
     assert at.query_params["ws"] in (rev_id, [rev_id])  # now the pasted revision, not the saved one
 
 

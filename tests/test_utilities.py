@@ -305,3 +305,18 @@ def test_flash_pressure_not_below_the_steam_refused_and_flash_fields_only_for_st
         parse_worksheet(_cooler([cw]))
     assert info.value.where.startswith("utilities[CW]") and "belong to a steam utility" in info.value.message
     assert "flash_pressure" in {i.address.rpartition(".")[2] for i in inputs(parse_worksheet(_heater([steam])))}
+
+
+def test_steam_below_the_atmosphere_has_no_flash_and_an_impossible_credit_is_refused():
+    vacuum = {"name": "VS", "kind": "steam", "pressure": "-0.5 barg", "condensate": "flash recovered"}
+    doc = _heater([vacuum])
+    doc["streams"][0]["outlet"] = {"temperature": "60 degC"}  # 81 °C steam heats to 60 °C with a 10 K approach
+    (option,) = solve_and_analyse(parse_worksheet(doc)).utilities[0].options
+    assert option.feasible and option.flash_fraction == 0.0 and option.flash_credit == 0.0
+    # near the critical point the saturated condensate holds more heat above 100 °C than the steam gives on
+    # condensing (IAPWS-IF97 via iapws at 210 bar: h_f − h_f,atm ≈ 1,480 kJ/kg > h_fg ≈ 450 kJ/kg)
+    P = 21.0
+    assert IAPWS97(P=P, x=0).h - IAPWS97(P=ATM, x=0).h > IAPWS97(P=P, x=1).h - IAPWS97(P=P, x=0).h
+    high = {"name": "HP", "kind": "steam", "pressure": "209 barg", "condensate": "flash recovered"}
+    (option,) = solve_and_analyse(parse_worksheet(_heater([high]))).utilities[0].options
+    assert not option.feasible and option.refusal.where == "utilities[HP].condensate"

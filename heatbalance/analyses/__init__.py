@@ -18,7 +18,7 @@ from .screening import JacketTime, Screening, screen
 from .utilities import UtilityTable, return_limit_warnings, utility_tables
 
 __all__ = ["JacketTime", "Screening", "screen", "ExchangerCheck", "check_exchangers", "UtilityTable",
-           "utility_tables", "analyse", "solve_and_analyse", "solve_closed"]
+           "utility_tables", "analyse", "solve_and_analyse", "solve_closed", "unsolved"]
 
 
 def __getattr__(name: str):
@@ -41,6 +41,17 @@ def _finite_numbers(record) -> bool:
     return True
 
 
+def unsolved(problem, temperatures: dict) -> None:
+    """Put a built problem back as before a solve, to solve it again: its temperatures ``temperatures`` (as built,
+    a copy), its unknown amount or duty without a value (the solver writes the answer into the problem)."""
+    problem.temperatures.clear()
+    problem.temperatures.update(temperatures)
+    if problem.unknown.kind == "amount":
+        problem.unknown_target.amount = None
+    elif problem.unknown.kind == "duty":
+        problem.unknown_target.heat = None
+
+
 def solve_closed(problem) -> Result:
     """Solve a built problem: by the balance alone, or with an exchanger's rating setting one more input
     (:mod:`.rating_solve`, loaded only for such a sheet)."""
@@ -51,10 +62,11 @@ def solve_closed(problem) -> Result:
     return solve_problem(problem)
 
 
-def analyse(problem, result):
+def analyse(problem, result, checks: bool = True):
     """Run every analysis on a solved balance and attach its records to the result (returned).
 
     Like the balance, an analysis returns only finite numbers, or refuses at the inputs it used.
+    ``checks=False`` leaves out the exchanger check and the utility tables (a sweep that does not ask for them).
     """
     result.screening = screen(problem, result)
     for s in result.screening:
@@ -62,6 +74,9 @@ def analyse(problem, result):
             raise NoSolutionError("the thermal screening gives a number that is not finite (e.g. a jacket so small "
                                   "that the time is beyond any scale): check the screening inputs",
                                   item("vessels", s.vessel, "screening"))
+    if not checks:
+        result.exchangers, result.utilities = [], []
+        return result
     if problem.exchangers:
         from .exchangers import check_exchangers
 

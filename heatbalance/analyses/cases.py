@@ -26,6 +26,10 @@ AS_TYPED = "as typed"  # the name of the sheet without overrides, as a case
 def case_worksheet(ws: Worksheet, case: Case) -> Worksheet:
     """The worksheet with a case's overrides set; a bad override is refused at ``cases[name]`` with its address."""
     for override in case.overrides:
+        setter = next((e.name for e in ws.exchangers if e.sets == override.address), None)
+        if setter is not None:
+            raise AddressError(f"override of {override.address}: exchanger {setter}'s rating sets this input",
+                               item("cases", case.name))
         try:
             ws = with_value(ws, override.address, override.value)
         except HeatBalanceError as exc:

@@ -43,6 +43,7 @@ from pathlib import Path
 
 import ht
 import numpy as np
+from fluids.numerics import UnconvergedError
 from scipy.optimize import brentq
 
 from ..balance import T_TOL, evaluate_state
@@ -266,7 +267,7 @@ def correction_factor(arrangement: str, shells: int, Thi: float, Tho: float, Tci
             eps = 1.0 / (C_min * (Thi - Tci))
             Cr = C_min / C_max
             F = ht.NTU_from_effectiveness(eps, Cr, "counterflow") / ht.NTU_from_effectiveness(eps, Cr, "crossflow")
-    except (ValueError, ZeroDivisionError, OverflowError):
+    except (ValueError, ZeroDivisionError, OverflowError, UnconvergedError):  # no NTU reaches this ε
         return math.nan
     F = float(np.real(F))
     return F if math.isfinite(F) and 0 < F <= 1.0 + 1e-9 else math.nan
@@ -468,12 +469,18 @@ def _extended(problem: Problem, line: Line, res, towards: float, giving: bool) -
     """The line's path from its inlet on past its outlet, as far as ``towards`` (the other side's inlet)."""
     m = line.material
     T_in, h_in = res.initial_T, evaluate_state(m, line.initial, problem.temperatures, {}).h
-    T_far = max(towards, m.t_min) if giving else min(towards, m.t_max)
+    T_far = min(max(towards, m.t_min), m.t_max)
     tr = next((t for t in m.transitions(line.initial.P) if abs(t.T - T_far) < T_TOL), None)
     h_far = (tr.h_lower if giving else tr.h_upper) if tr is not None else m.enthalpy(T_far, line.initial.P)
     if giving:
         return LinePath(m, line.initial.P, res.amount_si, T_far, h_far, T_in, h_in)
     return LinePath(m, line.initial.P, res.amount_si, T_in, h_in, T_far, h_far)
+
+
+def _not_rateable(e: ExchangerInputs, hr, cr) -> NoSolutionError:
+    return NoSolutionError(Phrase("{exchanger} cannot be rated: its hot inlet ({Th}) is not hotter than its cold inlet "
+                                  "({Tc})", {"exchanger": e.name, "Th": Measure(hr.initial_T, "temperature", 1),
+                                             "Tc": Measure(cr.initial_T, "temperature", 1)}), f"{e.address}.hot")
 
 
 def _rate(problem: Problem, result: Result, e: ExchangerInputs, check: ExchangerCheck, warnings, notes) -> Rating | None:
@@ -524,6 +531,8 @@ def _pair(problem: Problem, result: Result, name: str) -> tuple[Line, object]:
 
 
 def _rated(problem: Problem, e: ExchangerInputs, hl: Line, hr, cl: Line, cr) -> tuple[float, float, float, float]:
+    if not hr.initial_T > cr.initial_T:
+        raise _not_rateable(e, hr, cr)
     hot_path = _extended(problem, hl, hr, cr.initial_T, True)
     cold_path = _extended(problem, cl, cr, hr.initial_T, False)
     hot_full, cold_full = _composite([hot_path]), _composite([cold_path])
@@ -567,9 +576,7 @@ def _rated(problem: Problem, e: ExchangerInputs, hl: Line, hr, cl: Line, cr) -> 
     q_top = min(Qh_max, Qc_max)
     low = 1e-9 * q_top
     if not q_top > 0 or gap(low) <= 0:
-        raise NoSolutionError(Phrase("{exchanger} cannot be rated: its hot inlet ({Th}) is not hotter than its cold "
-                                     "inlet ({Tc})", {"exchanger": e.name, "Th": Measure(hr.initial_T, "temperature", 1),
-                                                      "Tc": Measure(cr.initial_T, "temperature", 1)}), f"{e.address}.hot")
+        raise _not_rateable(e, hr, cr)
     try:
         if gap(q_top) <= 0:
             q_top = brentq(gap, low, q_top, xtol=1e-9 * q_top, rtol=1e-12)

@@ -28,6 +28,7 @@ from ..messages import Measure, Phrase
 from ..problem import ExchangerInputs, Problem
 from ..results import Result
 from ..units import heat_kind
+from . import unsolved
 from .exchangers import rated_duty
 
 __all__ = ["RatingClosure", "closing_exchanger", "solve_rated", "CLOSURE_RELATIVE"]
@@ -35,6 +36,7 @@ __all__ = ["RatingClosure", "closing_exchanger", "solve_rated", "CLOSURE_RELATIV
 CLOSURE_RELATIVE = 1e-6  # |Q_rated − Q_balance| at the answer, as a fraction of the duty (plus 1 mW)
 _FLOW_FACTORS = 30  # a flow is searched from the typed value × 2^±30
 _TEMPERATURE_POINTS = 12  # intervals of the first scan between the exchanger's inlets
+_EDGE_STEPS = 40  # bisections towards the edge of the values the balance can solve
 
 
 @dataclass
@@ -89,12 +91,7 @@ class _Trial:
 
     def set(self, x: float) -> None:
         p = self.p
-        p.temperatures.clear()
-        p.temperatures.update(self.temperatures)
-        if p.unknown.kind == "amount":
-            p.unknown_target.amount = None
-        elif p.unknown.kind == "duty":
-            p.unknown_target.heat = None
+        unsolved(p, self.temperatures)
         if self.var is not None:
             p.temperatures[self.var] = x
         else:
@@ -159,8 +156,10 @@ def _bracket(trial: _Trial) -> tuple[float, float, float, float]:
     else:
         start = trial.typed if trial.typed and trial.typed > 0 else 1.0
         candidates = [start * 2.0 ** (s * k) for k in range(_FLOW_FACTORS + 1) for s in ((1,) if k == 0 else (-1, 1))]
+    tried = []
     for x in candidates:
         g = trial.g(x)
+        tried.append((x, g))
         if g is not None:
             seen.append((x, g))
             pair = found()
@@ -168,22 +167,46 @@ def _bracket(trial: _Trial) -> tuple[float, float, float, float]:
                 return pair
     if not seen:  # no trial value could be solved at all: the first refusal is the reason
         raise trial.refusals[0]
+    # the answer may lie close to where the balance starts refusing (e.g. a flow so small that its outlet would
+    # pass the other side's inlet): bisect each edge between a solved and a refused trial value
+    ordered = sorted(tried)
+    for (a, ga), (b, gb) in zip(ordered, ordered[1:]):
+        if (ga is None) == (gb is None):
+            continue
+        good, bad = (a, b) if gb is None else (b, a)
+        for _ in range(_EDGE_STEPS):
+            middle = (good * bad) ** 0.5 if trial.kind == "mass_flow" and good > 0 and bad > 0 else (good + bad) / 2
+            g = trial.g(middle)
+            if g is None:
+                bad = middle
+                continue
+            good = middle
+            seen.append((middle, g))
+            pair = found()
+            if pair is not None:
+                return pair
     raise NoSolutionError(_unreachable(trial, seen, candidates), trial.where)
 
 
-def _measure(kind: str, value: float) -> Measure:
-    return Measure(value, kind, 1) if kind == "temperature" else Measure(value, kind)
+def _measure(kind: str, value: float, digits: int = 1) -> Measure:
+    return Measure(value, kind, digits) if kind == "temperature" else Measure(value, kind)
 
 
 def _unreachable(trial: _Trial, seen: list[tuple[float, float]], candidates: list[float]) -> Phrase:
     more = all(g > 0 for _, g in seen)
+    solved = [x for x, _ in seen]
+    refused = "" if not trial.refusals else \
+        "; the balance itself refuses it outside {a} to {b} (at {where}: {reason})"
     return Phrase(
         "no value of {address} from {lo} to {hi} makes the duty {exchanger} delivers with its UA equal to the duty "
-        "the balance passes through it: the unit always delivers {more} (by {gap} at best). Its UA cannot close "
-        "this balance by this input: set another input, or check the UA and the other states",
+        "the balance passes through it: the unit always delivers {more} (by {gap} at best)" + refused + ". Its UA "
+        "cannot close this balance by this input: set another input, or check the UA and the other states",
         {"address": trial.e.sets, "exchanger": trial.e.name, "lo": _measure(trial.kind, min(candidates)),
          "hi": _measure(trial.kind, max(candidates)), "more": "more" if more else "less",
-         "gap": Measure(min(abs(g) for _, g in seen), heat_kind(trial.p.basis))})
+         "gap": Measure(min(abs(g) for _, g in seen), heat_kind(trial.p.basis)),
+         "a": _measure(trial.kind, min(solved)), "b": _measure(trial.kind, max(solved)),
+         "where": trial.refusals[0].where if trial.refusals else "",
+         "reason": trial.refusals[0].phrase.text if trial.refusals else ""})
 
 
 def solve_rated(problem: Problem) -> Result:
@@ -214,8 +237,8 @@ def solve_rated(problem: Problem) -> Result:
                             trial.evaluations)
     closure.note = Phrase("{address} is set by the rating of {exchanger} (its UA, ε-NTU per zone) to {value}, not "
                           "as typed ({typed}): the exchanger then delivers {q}, the duty of the balance",
-                          {"address": e.sets, "exchanger": e.name, "value": _measure(trial.kind, x),
-                           "typed": _measure(trial.kind, trial.typed), "q": Measure(q, "power")}, trial.where)
+                          {"address": e.sets, "exchanger": e.name, "value": _measure(trial.kind, x, 2),
+                           "typed": _measure(trial.kind, trial.typed, 2), "q": Measure(q, "power")}, trial.where)
     result.rating_closure = closure
     result.assumptions = list(result.assumptions) + [f"{e.sets}: set by the rating of exchanger {e.name} "
                                                      "(its UA closes the balance), not as typed."]
@@ -238,7 +261,8 @@ def _root(trial: _Trial, a: float, ga: float, b: float, gb: float, brentq) -> fl
 def _on_plateau(trial: _Trial, x: float, q: float, balance: float) -> Phrase:
     return Phrase("the duty {exchanger} delivers ({q}) is not reached by any single value of {address}: the balance "
                   "jumps at {value} (from {balance}), where a line changes phase. The outlet there is a mixture at one "
-                  "temperature (part condensed or boiled): set a flow instead, or give that line's outlet a phase "
-                  "fraction",
+                  "temperature (part condensed or boiled): {instead}",
                   {"exchanger": trial.e.name, "q": Measure(q, "power"), "address": trial.e.sets,
-                   "value": _measure(trial.kind, x), "balance": Measure(balance, "power")})
+                   "value": _measure(trial.kind, x), "balance": Measure(balance, "power"),
+                   "instead": "set a flow instead, or give that line's outlet a phase fraction"
+                   if trial.kind == "temperature" else "set another input, or check the UA"})

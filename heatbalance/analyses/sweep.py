@@ -19,13 +19,13 @@ from dataclasses import dataclass
 
 import pandas as pd
 
-from ..address import FRACTION, get, kinds_of, parse, unknown_address, with_value
+from ..address import FRACTION, get, item, kinds_of, parse, unknown_address, with_value
 from ..errors import AddressError, HeatBalanceError, InputError
 from ..humid_air import HumidAir
 from ..problem import Problem, basis_si, build_problem, typed_si
 from ..units import check_unit, heat_kind, kind_of
 from ..worksheet import Quantity, Worksheet
-from . import analyse, solve_closed
+from . import analyse, solve_closed, unsolved
 
 __all__ = ["Axis", "axis_values", "sweep", "output_names", "answer_field", "MAX_POINTS", "REFUSED_AT", "REASON",
            "WARNINGS"]
@@ -103,7 +103,55 @@ def output_names(problem: Problem) -> dict[str, str]:
             for name, kind in (("MTSR", "temperature"), ("dT_ad", "temperature_difference"),
                                ("MTT", "temperature"), ("criticality_class", "")):
                 names[f"screening[{vessel}].{name}"] = kind
+    names.update(_check_outputs(problem))
     return names
+
+
+def _check_outputs(problem: Problem) -> dict[str, str]:
+    """The exchanger check's and the utility tables' outputs: each exchanger's duty, approach, UA, area (with U),
+    rated duty (with UA); each site utility's flow, cost and CO2 for each duty term and each exchanger with a
+    utility side (NaN at a point where that utility is not offered or cannot meet the duty)."""
+    names = {}
+    for e in problem.exchangers:
+        for field, kind in (("duty", "power"), ("min_approach", "temperature_difference"),
+                            ("UA_required", "thermal_conductance"), ("mean_dT", "temperature_difference")):
+            names[f"{item('exchangers', e.name)}.{field}"] = kind
+        if e.U is not None:
+            names[f"{item('exchangers', e.name)}.area_required"] = "area"
+        if e.UA is not None:
+            names[f"{item('exchangers', e.name)}.rated_duty"] = "power"
+    owners = [item("duties", t.name) for t in problem.terms if t.kind == "duty"]
+    owners += [item("exchangers", e.name) for e in problem.exchangers if e.utility_side]
+    for owner in owners if problem.utilities else []:
+        for u in problem.utilities:
+            for field, kind in _UTILITY_OUTPUTS:
+                names[f"{owner}.{item('utilities', u.name)}.{field}"] = kind
+    return names
+
+
+_UTILITY_OUTPUTS = (("flow", "mass_flow"), ("cost_per_hour", ""), ("cost_per_year", ""), ("co2_per_year", "mass"))
+
+
+def _asks_checks(outputs: list[str]) -> bool:
+    """Whether any output needs the exchanger check or the utility tables (else a point skips them)."""
+    return any(name.startswith(("exchangers[", "duties[")) for name in outputs)
+
+
+def _check_values(result) -> dict[str, float]:
+    values = {}
+    for c in result.exchangers:
+        head = item("exchangers", c.name)
+        for field, value in (("duty", c.duty), ("min_approach", c.min_approach), ("UA_required", c.UA_required),
+                             ("mean_dT", c.mean_dT), ("area_required", c.area_required),
+                             ("rated_duty", None if c.rating is None else c.rating.duty)):
+            values[f"{head}.{field}"] = math.nan if value is None else value
+    for table in result.utilities:
+        owner = table.demand.address.removesuffix(".value")  # a duty's value field, or the exchanger
+        for o in table.options:
+            for field, _ in _UTILITY_OUTPUTS:
+                value = getattr(o, field)
+                values[f"{owner}.{item('utilities', o.utility)}.{field}"] = math.nan if value is None else value
+    return values
 
 
 def _collect(result, screenings, outputs: list[str]) -> dict[str, float]:
@@ -121,6 +169,8 @@ def _collect(result, screenings, outputs: list[str]) -> dict[str, float]:
         values[f"screening[{s.vessel}].MTT"] = math.nan if s.MTT is None else s.MTT
         values[f"screening[{s.vessel}].criticality_class"] = \
             math.nan if s.criticality_class is None else float(s.criticality_class)
+    if _asks_checks(outputs):
+        values.update(_check_values(result))
     return {name: values.get(name, math.nan) for name in outputs}
 
 
@@ -227,6 +277,9 @@ def _check_axis(ws: Worksheet, axis: Axis) -> tuple[str, ...]:
     if len(ws.unknowns) == 1:
         if unknown_address(ws.unknowns[0]) == axis.address:
             raise AddressError("this is the unknown: the balance solves for it; sweep another input", axis.address)
+    setter = next((e.name for e in ws.exchangers if e.sets == axis.address), None)
+    if setter is not None:
+        raise AddressError(f"exchanger {setter}'s rating sets this input; sweep another", axis.address)
     if kinds == (FRACTION,):
         if axis.unit:
             raise AddressError(f"this input is a plain number between 0 and 1; give no unit, not '{axis.unit}'",
@@ -320,27 +373,22 @@ class _FastRun:
     def point(self, values: tuple[float, ...], outputs: list[str]) -> list:
         """``[*values, *outputs, refused at, reason, warnings]`` of one point."""
         try:
-            result, screenings = self._solve(values)
+            result, screenings = self._solve(values, _asks_checks(outputs))
         except HeatBalanceError as exc:
             return [*values, *[math.nan] * len(outputs), exc.where or "worksheet", exc, []]
         return [*values, *_collect(result, screenings, outputs).values(), "", None, result.warnings]
 
-    def _solve(self, values):
+    def _solve(self, values, checks: bool = True):
         if self.fast:
             p = self.problem
-            p.temperatures.clear()
-            p.temperatures.update(self.temperatures)
-            if p.unknown.kind == "amount":
-                p.unknown_target.amount = None
-            elif p.unknown.kind == "duty":
-                p.unknown_target.heat = None
+            unsolved(p, self.temperatures)
             for setter, value in zip(self.setters, values):
                 setter(value)
-            result = analyse(p, solve_closed(p))
+            result = analyse(p, solve_closed(p), checks)
             return result, result.screening
         ws = self.ws
         for axis, value, kinds in zip(self.axes, values, self.kinds):
             ws = with_value(ws, axis.address, _typed(axis, value, kinds))
         p = build_problem(ws)
-        result = analyse(p, solve_closed(p))
+        result = analyse(p, solve_closed(p), checks)
         return result, result.screening

@@ -105,7 +105,8 @@ def suggested_tolerances(ws: Worksheet) -> list[Tolerance]:
 
     out = []
     for entry in inputs(ws):
-        if entry.is_unknown or not isinstance(entry.value, Quantity):
+        if entry.is_unknown or not isinstance(entry.value, Quantity) or any(e.sets == entry.address
+                                                                              for e in ws.exchangers):
             continue
         kind = _typed_kind(entry.value.unit, entry.kinds, entry.address)
         if kind in DEFAULT_TOLERANCES:
@@ -237,6 +238,10 @@ def _entry(ws: Worksheet, tolerance: Tolerance, unknown: str) -> tuple[float, st
     if where == unknown:
         raise InputError("this is the unknown: the balance solves for it; its uncertainty is the result, not an "
                          "input", where)
+    setter = next((e.name for e in ws.exchangers if e.sets == where), None)
+    if setter is not None:
+        raise InputError(f"exchanger {setter}'s rating sets this input: it is solved, not measured; remove its "
+                         "tolerance", where)
     typed = get(ws, where)
     if typed is None:
         raise InputError("this field has no value to be uncertain about", where)

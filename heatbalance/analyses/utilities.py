@@ -49,6 +49,7 @@ FLASH_RECOVERED_NOTE = ("flash steam recovered: its latent heat at the flash pre
 FLASH_LOST_NOTE = "flash steam lost (vented): no credit; its heat and water are lost"
 _GJ = 1e9
 _MWh = 3.6e9
+_SAME_OUTLET_K = 0.01  # K: the rated outlet is the balance's (the rating closes it)
 SAME_SUPPLY_K = 0.05  # K: a utility line entering within this of a utility's supply temperature is that utility
 _DEMO = "demo value of our own invention, not a site's: replace with your site's"
 
@@ -163,6 +164,8 @@ def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
     x = (h_condensate − h_f) / h_fg at the flash pressure (an adiabatic let-down, IAPWS-IF97 via CoolProp)."""
     P = u.flash_P
     where = f"{u.address}.flash_pressure"
+    if u.flash_P is None and P >= u.P:  # steam below the atmosphere, none said: its condensate cannot flash to it
+        return 0.0, 0.0
     if P >= u.P:
         raise InputError(Phrase("the condensate is let down to {P}: that is not below the steam's {Ps}",
                                 {"P": Measure(P, "pressure"), "Ps": Measure(u.P, "pressure")}), where)
@@ -236,6 +239,12 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
         if u.condensate == "flash recovered":
             option.flash_credit = option.flash_flow * flash_latent
             share = 1.0 - option.flash_credit / d.duty
+            if not share > 0:
+                raise InputError(Phrase("the flash steam's heat ({credit}) would be as much as the duty ({duty}): at "
+                                        "this pressure the condensate carries more heat than the steam gives, and a "
+                                        "heat-for-heat credit does not apply; price the flash steam separately",
+                                        {"credit": Measure(option.flash_credit, "power"),
+                                         "duty": Measure(d.duty, "power")}), f"{u.address}.condensate")
             option.notes.append(FLASH_RECOVERED_NOTE)
         elif u.condensate == "flash lost":
             option.notes.append(FLASH_LOST_NOTE)
@@ -333,8 +342,11 @@ def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, P
         for line in (ln for ln in result.lines if ln.kind == "stream" and ln.name in getattr(e, e.utility_side)):
             outlets = [("in the balance", line.final_T)]
             if check.rating is not None:
-                outlets.append(("as the exchanger's UA rates it", check.rating.cold_outlet_T if cooling
-                                else check.rating.hot_outlet_T))
+                rated = check.rating.cold_outlet_T if cooling else check.rating.hot_outlet_T
+                if abs(rated - line.final_T) <= _SAME_OUTLET_K:  # the rating closes the balance: said once
+                    outlets = [("in the balance, as the exchanger's UA rates it", line.final_T)]
+                else:
+                    outlets.append(("as the exchanger's UA rates it", rated))
             for u in _utilities_of_line(problem, line, kinds):
                 if u.return_T is None:
                     continue

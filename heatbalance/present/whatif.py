@@ -28,8 +28,14 @@ def output_label(name: str, frame: pd.DataFrame | None = None) -> str:
         return _OUTPUT_WORDS[name]
     head, _, field = name.rpartition(".")
     owner = head[head.index("[") + 1:-1] if "[" in head else head
+    if "].utilities[" in head:  # an exchanger's or a duty's utility: both names
+        owner = head[head.index("[") + 1:head.index("].utilities[")] + " / " + head[head.index("].utilities[") + 12:-1]
     words = {"heat": "heat absorbed" if head.startswith("lines[") else "heat into the process",
-             "latent": "latent heat absorbed", "dT_ad": "ΔT_ad", "criticality_class": "criticality class"}
+             "latent": "latent heat absorbed", "dT_ad": "ΔT_ad", "criticality_class": "criticality class",
+             "min_approach": "minimum internal approach", "UA_required": "UA required", "mean_dT": "mean ΔT",
+             "area_required": "area required", "rated_duty": "rated duty", "flow": "utility flow",
+             "cost_per_hour": "cost per hour (currency)", "cost_per_year": "cost per year (currency)",
+             "co2_per_year": "CO2 per year"}
     return f"{owner}: {words.get(field, field)}"
 
 
