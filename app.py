@@ -38,6 +38,7 @@ EXTRA_PANELS = [
     screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
     __import__("webapp.exchanger_panel", fromlist=["panel"]).panel(set_worksheet),  # exchangers, utilities
     __import__("webapp.whatif_panel", fromlist=["panel"]).panel(set_worksheet),  # what if (webapp/whatif_panel.py)
+    __import__("webapp.freezing_panel", fromlist=["panel"]).panel(set_worksheet),  # freezing-range materials
     sharing.panel(replace_worksheet),  # save and share (webapp/sharing.py)
     __import__("webapp.filing_panel", fromlist=["panel"]).panel(),  # the PDF sheet, sign-off (filing_panel.py)
 ]

@@ -298,8 +298,9 @@ def solve_problem(p: Problem) -> Result:
 
 # --------------------------------------------------------------------------- the result
 def _latent_content(material: Material, point: Point, P: float) -> float:
-    """Latent heat held by a state: every transition below it, plus its own plateau fraction."""
-    total = 0.0
+    """Latent heat held by a state: every transition below it, plus its own plateau fraction (and what a
+    material that freezes over a range holds at its temperature)."""
+    total = material.latent_held(point.T, P)
     for tr in material.transitions(P):
         if point.T > tr.T + T_TOL:
             total += tr.latent

@@ -84,6 +84,11 @@ class FoodByComposition(Material):
         water = (self.fractions["water"] - ice) * _integral(CHOI_OKOS["water"], t)
         return solids + water + ice * (_integral(ICE, t) - LATENT_ICE_0C)
 
+    def latent_held(self, T: float, P: float) -> float:
+        """Latent heat of the freezable water still unfrozen at T, at L₀ (the split of a line's heat into
+        sensible and latent; the enthalpy itself uses the latent heat at the temperature the ice forms)."""
+        return (self.fractions["water"] - self.bound_water - self.ice_fraction(T)) * LATENT_ICE_0C
+
     def phase_name(self, T: float, P: float) -> str:
         return f"partly frozen ({self.ice_fraction(T):.0%} ice)" if T < self.T_freeze else "unfrozen"
 
