@@ -19,7 +19,7 @@ from __future__ import annotations
 
 from bisect import bisect_right
 
-from .properties import Material
+from .properties import EVALUATIONS, Material
 
 __all__ = ["CHOI_OKOS", "ICE", "LATENT_ICE_0C", "BOUND_WATER_PER_PROTEIN", "COMPONENTS", "FoodByComposition",
            "EnthalpyTable", "FOOD_T_MIN", "FOOD_T_MAX"]
@@ -78,6 +78,7 @@ class FoodByComposition(Material):
         return (self.fractions["water"] - self.bound_water) * (1.0 - t_f / t)
 
     def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
         t = T - C0
         solids = sum(x * _integral(CHOI_OKOS[k], t) for k, x in self.fractions.items() if k != "water")
         ice = self.ice_fraction(T)
@@ -108,6 +109,7 @@ class EnthalpyTable(Material):
         self.source = f"user-defined enthalpy table: {source}"
 
     def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
         i = min(max(bisect_right(self.temperatures, T) - 1, 0), len(self.temperatures) - 2)
         (T0, T1), (h0, h1) = self.temperatures[i:i + 2], self.enthalpies[i:i + 2]
         return h0 + (h1 - h0) * (T - T0) / (T1 - T0)
