@@ -19,11 +19,12 @@ from heatbalance.worksheet import Worksheet, item_address, parse_worksheet
 
 from .common import plain
 
-__all__ = ["panel", "parse_table", "with_material", "TEMPERATURE_UNITS", "ENTHALPY_UNITS"]
+__all__ = ["panel", "parse_table", "with_material", "material_rows", "TEMPERATURE_UNITS", "ENTHALPY_UNITS"]
 
 TEMPERATURE_UNITS = ["degC", "degF", "K"]
 ENTHALPY_UNITS = ["kJ/kg", "Btu/lb", "kcal/kg"]
 _SEPARATORS = re.compile(r"[,;\t ]+")
+_ADDED = "hb_freezing_added"  # session key: the name of the material the last run added
 
 
 def parse_table(text: str, T_unit: str, h_unit: str, where: str) -> list[dict]:
@@ -55,6 +56,16 @@ def with_material(worksheet: Worksheet, material: dict) -> Worksheet:
     return updated
 
 
+def material_rows(worksheet: Worksheet) -> list[dict]:
+    """The worksheet's freezing-range materials as rows of the panel's list."""
+    def point(m) -> str:
+        q = m.initial_freezing_point
+        return "" if q is None else f"{q.value:g} {display_unit(q.unit)}"
+
+    return [{"name": m.name, "given by": "composition" if m.composition else "enthalpy table",
+             "initial freezing point": point(m), "source": m.source} for m in worksheet.freezing_materials]
+
+
 def panel(set_worksheet):
     """The panel as the page hooks it in: a material added is written into the worksheet through the setter."""
     def draw(worksheet: Worksheet, result: Result | None, system: str) -> None:
@@ -65,11 +76,10 @@ def panel(set_worksheet):
 def render_freezing_panel(worksheet: Worksheet, set_worksheet) -> None:
     with st.expander("Materials that freeze over a range (foods, wet solids)", expanded=False):
         if worksheet.freezing_materials:
-            st.dataframe([{"name": m.name, "given by": "composition" if m.composition else "enthalpy table",
-                           "initial freezing point": "" if m.initial_freezing_point is None else
-                           f"{m.initial_freezing_point.value:g} {display_unit(m.initial_freezing_point.unit)}",
-                           "source": m.source} for m in worksheet.freezing_materials],
-                         key="freezing_list", hide_index=True)
+            st.container(key="freezing_list").table(material_rows(worksheet))  # a table: text only, never Markdown
+        added = st.session_state.pop(_ADDED, None)
+        if added:
+            st.success(plain(f"{added} added: a line can now use it as its material."))
         st.caption("Add one by its enthalpy table: one row per line, temperature and specific enthalpy (any "
                    "reference), both rising; the enthalpy is linear between rows and the table is the range.")
         with st.form("freezing_form", clear_on_submit=False):
@@ -100,4 +110,5 @@ def _add(worksheet, set_worksheet, name, source, T_unit, h_unit, freezing_point,
                  icon=":material/error:")
         return
     set_worksheet(updated)
-    st.success(plain(f"{name} added: a line can now use it as its material."))
+    st.session_state[_ADDED] = name  # said on the next run, which draws the worksheet with the material
+    st.rerun()
