@@ -71,7 +71,17 @@ class FoodByComposition(Material):
                        "ASHRAE Handbook—Refrigeration (from memory)")
 
     def ice_fraction(self, T: float) -> float:
-        """Mass fraction of ice at T [K] (0 at and above the initial freezing point)."""
+        """Mass fraction of ice at T [K] (0 at and above the initial freezing point).
+
+        Examples
+        --------
+        Hand calculation: 80 % water, 10 % protein (bound water 0.04), freezing from −1 °C; at −10 °C
+        x_ice = (0.80 − 0.04)·(1 − (−1)/(−10)) = 0.684:
+
+        >>> food = FoodByComposition("f", {"water": 0.8, "protein": 0.1, "ash": 0.1}, 272.15, "example")
+        >>> round(food.ice_fraction(263.15), 6)
+        0.684
+        """
         if T >= self.T_freeze:
             return 0.0
         t, t_f = T - C0, self.T_freeze - C0
