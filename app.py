@@ -47,6 +47,7 @@ EXTRA_PANELS = [
     __import__("webapp.losses_panel", fromlist=["panel"]).panel(set_worksheet),  # computed surface losses
     __import__("webapp.mixing_panel", fromlist=["panel"]).panel(set_worksheet),  # heats of mixing (mixing_panel.py)
     __import__("webapp.whatif_panel", fromlist=["panel"]).panel(set_worksheet),  # what if (webapp/whatif_panel.py)
+    __import__("webapp.freezing_panel", fromlist=["panel"]).panel(set_worksheet),  # freezing-range materials
     sharing.panel(replace_worksheet),  # save and share (webapp/sharing.py)
     __import__("webapp.filing_panel", fromlist=["panel"]).panel(),  # the PDF sheet, sign-off (filing_panel.py)
 ]

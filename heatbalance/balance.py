@@ -412,10 +412,11 @@ def _computed_loss_records(p: Problem) -> list:
 
 # --------------------------------------------------------------------------- the result
 def _latent_content(material: Material, point: Point, P: float) -> float:
-    """Latent heat held by a state: every transition below it, plus its own plateau fraction."""
+    """Latent heat held by a state: every transition below it, plus its own plateau fraction (and what a
+    material that freezes over a range holds at its temperature; humid air: the condensate that left it)."""
     if isinstance(material, HumidAir):  # condensate that left the vapour over a range of temperatures
         return material.latent_content(point.T, P)
-    total = 0.0
+    total = material.latent_held(point.T, P)
     for tr in material.transitions(P):
         if point.T > tr.T + T_TOL:
             total += tr.latent

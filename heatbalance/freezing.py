@@ -19,7 +19,7 @@ from __future__ import annotations
 
 from bisect import bisect_right
 
-from .properties import Material
+from .properties import EVALUATIONS, Material
 
 __all__ = ["CHOI_OKOS", "ICE", "LATENT_ICE_0C", "BOUND_WATER_PER_PROTEIN", "COMPONENTS", "FoodByComposition",
            "EnthalpyTable", "FOOD_T_MIN", "FOOD_T_MAX"]
@@ -71,18 +71,34 @@ class FoodByComposition(Material):
                        "ASHRAE Handbook—Refrigeration (from memory)")
 
     def ice_fraction(self, T: float) -> float:
-        """Mass fraction of ice at T [K] (0 at and above the initial freezing point)."""
+        """Mass fraction of ice at T [K] (0 at and above the initial freezing point).
+
+        Examples
+        --------
+        Hand calculation: 80 % water, 10 % protein (bound water 0.04), freezing from −1 °C; at −10 °C
+        x_ice = (0.80 − 0.04)·(1 − (−1)/(−10)) = 0.684:
+
+        >>> food = FoodByComposition("f", {"water": 0.8, "protein": 0.1, "ash": 0.1}, 272.15, "example")
+        >>> round(food.ice_fraction(263.15), 6)
+        0.684
+        """
         if T >= self.T_freeze:
             return 0.0
         t, t_f = T - C0, self.T_freeze - C0
         return (self.fractions["water"] - self.bound_water) * (1.0 - t_f / t)
 
     def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
         t = T - C0
         solids = sum(x * _integral(CHOI_OKOS[k], t) for k, x in self.fractions.items() if k != "water")
         ice = self.ice_fraction(T)
         water = (self.fractions["water"] - ice) * _integral(CHOI_OKOS["water"], t)
         return solids + water + ice * (_integral(ICE, t) - LATENT_ICE_0C)
+
+    def latent_held(self, T: float, P: float) -> float:
+        """Latent heat of the freezable water still unfrozen at T, at L₀ (the split of a line's heat into
+        sensible and latent; the enthalpy itself uses the latent heat at the temperature the ice forms)."""
+        return (self.fractions["water"] - self.bound_water - self.ice_fraction(T)) * LATENT_ICE_0C
 
     def phase_name(self, T: float, P: float) -> str:
         return f"partly frozen ({self.ice_fraction(T):.0%} ice)" if T < self.T_freeze else "unfrozen"
@@ -103,6 +119,7 @@ class EnthalpyTable(Material):
         self.source = f"user-defined enthalpy table: {source}"
 
     def enthalpy(self, T: float, P: float) -> float:
+        EVALUATIONS.count += 1
         i = min(max(bisect_right(self.temperatures, T) - 1, 0), len(self.temperatures) - 2)
         (T0, T1), (h0, h1) = self.temperatures[i:i + 2], self.enthalpies[i:i + 2]
         return h0 + (h1 - h0) * (T - T0) / (T1 - T0)

@@ -30,7 +30,7 @@ from .worksheet import FreezingMaterial, Quantity, State, Unknown, UserMaterial,
 
 __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "JacketInputs", "ScreeningInputs", "ExchangerInputs",
            "UtilityInputs", "DEFAULT_MINIMUM_APPROACH", "Problem",
-           "build_problem", "basis_si", "typed_si", "site_atmosphere", "ASSUMPTIONS"]
+           "build_problem", "basis_si", "typed_si", "site_atmosphere", "freezing_material", "ASSUMPTIONS"]
 
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless stated as a mixing (heats of solution table) or entered "
@@ -288,7 +288,7 @@ class _Builder:
         self.duration = self._duration()
         self.warnings: list[Phrase] = []  # defaults a checker should see (a user material's range)
         self.user_materials = {m.name: _user_material(m, self.warnings) for m in ws.materials}
-        self.user_materials.update({f.name: _freezing_material(f) for f in ws.freezing_materials})
+        self.user_materials.update({f.name: freezing_material(f) for f in ws.freezing_materials})
         self.temperatures: dict[str, float | None] = {}
         self.var_addresses: dict[str, str] = {}
         self.atmosphere, atmosphere_assumption = site_atmosphere(ws)
@@ -937,7 +937,7 @@ def _end_temperature(m: UserMaterial, field_name: str, span, warnings: list[Phra
     return T
 
 
-def _freezing_material(f: FreezingMaterial) -> Material:
+def freezing_material(f: FreezingMaterial) -> Material:
     """A material that freezes over a range, by composition or by its enthalpy table (issue 13, item 2)."""
     where = item("freezing_materials", f.name)
     T_freeze = None if f.initial_freezing_point is None else \

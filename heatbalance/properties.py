@@ -117,6 +117,10 @@ class Material:
         """The highest temperature of the data at pressure P (most materials: ``t_max`` at any pressure)."""
         return self.t_max
 
+    def latent_held(self, T: float, P: float) -> float:
+        """Latent heat [J/kg] held at T off its transitions (a material that freezes over a range); else 0."""
+        return 0.0
+
     def extrapolated(self, T: float) -> bool:
         """True when T lies in the extrapolation band of the data."""
         low = self.t_min if self.valid_min is None else self.valid_min

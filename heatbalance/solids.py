@@ -50,7 +50,15 @@ class CpTable:
         return c0 + (c1 - c0) * (T - T0) / (T1 - T0)
 
     def integral(self, T: float) -> float:
-        """∫cp dT from the first row to T [J/kg] (exact for the piecewise-linear cp)."""
+        """∫cp dT from the first row to T [J/kg] (exact for the piecewise-linear cp).
+
+        Examples
+        --------
+        Hand calculation: cp 400 J/(kg·K) at 300 K rising to 600 at 400 K; from 300 to 350 K the mean cp is 450:
+
+        >>> CpTable((300.0, 400.0), (400.0, 600.0)).integral(350.0)
+        22500.0
+        """
         i = self._segment(T)
         T0, c0 = self.temperatures[i], self.cp_values[i]
         return self._cumulative[i] + (T - T0) * (c0 + self.cp(T)) / 2

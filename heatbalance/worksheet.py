@@ -625,7 +625,8 @@ class Worksheet(_Model):
         terms = [t.name for t in (*self.duties, *self.losses, *self.reactions, *self.mixings)]
         groups = [("line", names), ("heat term", terms),
                   ("common temperature", [c.name for c in self.common_temperatures]),
-                  ("material", [m.name for m in (*self.materials, *self.freezing_materials)]), ("case", [c.name for c in self.cases]),
+                  ("material", [m.name for m in (*self.materials, *self.freezing_materials)]),
+                  ("case", [c.name for c in self.cases]),
                   ("tolerance address", [t.address for t in self.tolerances]),
                   ("exchanger", [e.name for e in self.exchangers]), ("utility", [u.name for u in self.utilities])]
         groups += [(f"charge (in vessel {v.name})", [c.name for c in v.charges]) for v in self.vessels]

@@ -52,6 +52,8 @@ def test_ice_fraction_and_the_phase_shown():
     # hand calculation (Miles/Schwartzberg): x_ice = (0.9157 − 0.4 × 0.0061) × (1 − (−0.78)/(−20)) = 0.87765
     assert result.lines[0].final_phase == "partly frozen (88% ice)"
     assert result.lines[0].initial_phase == "unfrozen"
+    # the latent part: the ice formed × L₀ = 0.87765 × 333.6 kJ/kg per kg (hand calculation, 1 kg/s)
+    assert result.lines[0].latent == pytest.approx(-(0.9157 - 0.4 * 0.0061) * (1 - 0.78 / 20) * 333.6e3, rel=1e-9)
 
 
 def test_outlet_temperature_solved_inside_the_freezing_range():

@@ -278,8 +278,9 @@ def test_every_engine_refusal_over_the_samples_lands_on_a_cell_the_grids_have():
         for field in address.inputs(ws):
             cell = tb.cell_of(field.address, ws)
             if ".screening." in field.address or field.address in ("basis.duration", "operating_hours") \
-                    or field.address.startswith(("exchangers[", "utilities[", "mixings[")):
-                continue  # not in a grid: the screening panel, the basis line, the exchanger and mixing panels, the file
+                    or field.address.startswith(("exchangers[", "utilities[", "mixings[", "freezing_materials[")):
+                continue  # not in a grid: the screening panel, the basis line, the exchanger, mixing and
+                # freezing-range materials panels, the file
             assert cell.table in tb.COLUMNS and cell.row is not None and cell.row < len(tables[cell.table]), \
                 (path.name, field.address, cell)
             assert cell.column in tb.COLUMNS[cell.table], (path.name, field.address, cell)

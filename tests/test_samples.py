@@ -15,6 +15,7 @@ SAMPLES = sorted(glob.glob("sample_data/*.json"))
 
 REGRESSION = {  # own output, regression only
     "batch_reactor_exotherm.json": "54.98 °C",
+    "berry_freezing_tunnel.json": "-200.2 kW",
     "condensate_flash.json": "111.6 °C, 12.3% vapour",
     "hot_condensate_quench.json": "5.902 t",
     "glycol_hydration_screening.json": "78.15 °C",  # 78.21 °C before issue 13: its 316 vessel now has cp(T)

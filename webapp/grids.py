@@ -251,7 +251,7 @@ def pressure_reference(text) -> str:
 
 def material_names(ws: Worksheet) -> list[str]:
     """Every material a line can use: those defined in the worksheet first, then the catalogue."""
-    own = [m.name for m in ws.materials]
+    own = [m.name for m in (*ws.materials, *ws.freezing_materials)]
     return own + [m.name for m in catalogue() if m.name not in own]
 
 
