@@ -202,3 +202,25 @@ def test_a_rename_of_the_charge_carries_its_chemical():
     renamed = rename(ws, "vessels[R-5].charges[Methanol]", "Carried-over methanol")
     assert renamed.vessels[0].screening.components[0].charge == "Carried-over methanol"
     assert solve_and_analyse(renamed).screening[0].MTT_composition["methanol"] == pytest.approx(0.1011, abs=1e-4)
+
+
+CATALOGUE_LIQUIDS = ["water", "nitrogen", "oxygen", "argon", "ammonia", "methane", "ethane", "propane", "n-butane",
+                     "n-hexane", "n-heptane", "cyclohexane", "benzene", "toluene", "methanol", "ethanol", "acetone",
+                     "R-134a", "R-32", "R-1234yf"]
+
+
+@pytest.mark.parametrize("name", CATALOGUE_LIQUIDS)
+def test_each_catalogue_fluid_is_the_right_chemical(name):
+    """Its bubble point alone (thermo's vapour pressure) is its boiling point in the property data (CoolProp):
+    the catalogue's generic name resolved to the same chemical."""
+    from heatbalance.analyses.bubble_point import catalogue_chemical
+    from heatbalance.materials import get_material
+
+    boiling = next(t.T for t in get_material(name).transitions(101325.0) if t.kind == "boiling")
+    assert bubble_point([(catalogue_chemical(name), 1.0, "x")], 101325.0).T == pytest.approx(boiling, abs=0.1)
+
+
+@pytest.mark.parametrize("gas", ["hydrogen", "helium"])
+def test_a_gas_without_vapour_pressure_data_where_water_boils_is_refused(gas):
+    with pytest.raises(InputError, match=f"no vapour pressure of {gas} at"):
+        bubble_point([(gas, 1.0, "x"), ("water", 100.0, "w")], 101325.0)

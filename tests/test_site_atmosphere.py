@@ -150,3 +150,21 @@ def test_screening_mtt_is_the_boiling_point_at_the_site():
     doc["atmosphere"] = {"altitude": q(1500, "m")}
     high = solve_and_analyse(parse_worksheet(doc)).screening[0]
     assert sea.MTT - high.MTT == pytest.approx(IAPWS97(P=0.101325, x=0).T - IAPWS97(P=0.084556, x=0).T, abs=0.05)
+
+
+def test_the_results_csv_and_the_pdf_sheet_carry_the_site_pressure():
+    from heatbalance.present.exports import results_csv_bytes
+    from heatbalance.present.sheet import sheet_pdf_bytes
+
+    ws = boiling_sheet({"altitude": q(1500, "m")})
+    result = solve(ws)
+    csv_text = results_csv_bytes(result).decode("utf-8-sig")
+    assert "# assumption: Gauge pressures are relative to 0.84556 bar(a): the ISO 2533 standard atmosphere" in csv_text
+    import io
+
+    import pypdf
+
+    pdf = pypdf.PdfReader(io.BytesIO(sheet_pdf_bytes(ws, result, "US")))  # read back by an independent library
+    text = " ".join(" ".join((page.extract_text() or "").split()) for page in pdf.pages)
+    assert "Gauge pressures are relative to 12.2638 psia: the ISO 2533 standard atmosphere" in text
+    assert "atmosphere altitude 1500 m atmosphere.altitude" in text  # the inputs as typed, with its address

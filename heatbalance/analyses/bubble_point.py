@@ -24,13 +24,16 @@ from ..errors import InputError
 from ..materials import PURE_FLUIDS
 from ..messages import Measure, Phrase
 
-__all__ = ["BubblePoint", "mixture_components", "bubble_point", "GLYCOLS", "UNIFAC_NAME", "RAOULT_NAME"]
+__all__ = ["BubblePoint", "mixture_components", "bubble_point", "catalogue_chemical", "GLYCOLS", "UNIFAC_NAME",
+           "RAOULT_NAME"]
 
 #: CoolProp incompressible code of an aqueous glycol -> the glycol, for its vapour pressure
 GLYCOLS = {"MEG": "ethylene glycol", "MPG": "propylene glycol"}
 UNIFAC_NAME = "original UNIFAC (thermo.unifac version 0, DDBST group assignments)"
 RAOULT_NAME = "Raoult's law (ideal solution, γ = 1)"
 _BLENDS = {"R-410A", "air"}  # catalogue fluids that are mixtures themselves
+_TABLE_CHEMICALS = {"ice (melting to water)": "water"}  # rows of the shipped table that are one chemical
+_CATALOGUE_IDS = {"R-32": "75-10-5"}  # catalogue names the `chemicals` search does not know: CAS (difluoromethane)
 
 
 @dataclass
@@ -48,6 +51,17 @@ class BubblePoint:
     notes: list[Phrase] = field(default_factory=list)
 
 
+def catalogue_chemical(material: str) -> str | None:
+    """The chemical (name or CAS for `chemicals`) a catalogue material is, or None (a blend, a solution, a solid).
+
+    >>> catalogue_chemical("toluene"), catalogue_chemical("R-32"), catalogue_chemical("air")
+    ('toluene', '75-10-5', None)
+    """
+    if material in PURE_FLUIDS and material not in _BLENDS:
+        return _CATALOGUE_IDS.get(material, material)
+    return _TABLE_CHEMICALS.get(material)
+
+
 def mixture_components(lines: list, results: list, chemicals: dict[str, str], vessel: str) -> list[tuple]:
     """``(chemical, kg, address)`` of each liquid in a vessel's charges; a charge that cannot be placed is refused
     at its address (``InputError``).
@@ -63,8 +77,8 @@ def mixture_components(lines: list, results: list, chemicals: dict[str, str], ve
         if line.charge in chemicals:
             out.append((chemicals[line.charge], solved.amount_si, item("vessels", vessel, "screening",
                                                                        item("components", line.charge))))
-        elif line.material_name in PURE_FLUIDS and line.material_name not in _BLENDS:
-            out.append((line.material_name, solved.amount_si, where))
+        elif catalogue_chemical(line.material_name) is not None:
+            out.append((catalogue_chemical(line.material_name), solved.amount_si, where))
         elif getattr(material, "code", None) in GLYCOLS:
             out.append(("water", solved.amount_si * (1.0 - material.fraction), where))
             out.append((GLYCOLS[material.code], solved.amount_si * material.fraction, where))
@@ -125,7 +139,7 @@ def bubble_point(components: list[tuple], P: float, activity_model: str = "UNIFA
         raise InputError("the vessel holds no liquid to boil", components[0][2] if components else "")
     names = list(data)
     xs = [data[n][0] / total for n in names]
-    vps = [data[n][3] for n in names]
+    vps = [_checked(data[n][3], n, data[n][5]) for n in names]
     no_groups = [n for n in names if not data[n][4]]
     use_unifac = activity_model == "UNIFAC" and len(names) > 1 and not no_groups
     gammas = _gammas([data[n][4] for n in names], xs) if use_unifac else (lambda T: [1.0] * len(xs))
@@ -149,6 +163,17 @@ def bubble_point(components: list[tuple], P: float, activity_model: str = "UNIFA
                             "mixture may boil lower (positive deviation) or higher."))
     return BubblePoint(T, P, dict(zip(names, xs)), UNIFAC_NAME if use_unifac else RAOULT_NAME,
                        {n: str(data[n][3].method) for n in names}, major, pure[major], share, notes)
+
+
+def _checked(vp, name: str, where: str):
+    """P_sat(T) [Pa] of a correlation, refusing (at ``where``) a temperature it gives no number at."""
+    def P_sat(T: float) -> float:
+        value = vp(T)
+        if value is None or not math.isfinite(value):
+            raise InputError(Phrase("no vapour pressure of {name} at {T} in its data: enter MTT",
+                                    {"name": name, "T": Measure(T, "temperature", 1)}), where)
+        return value
+    return P_sat
 
 
 def _gammas(groups: list[dict], xs: list[float]):
@@ -176,7 +201,9 @@ def _root(excess, low: float, high: float, data: dict, names: list[str], xs: lis
         lo, hi = excess(low), excess(high)
         if lo < 0 < hi:
             return brentq(excess, low, high, xtol=1e-6)
-    except (ArithmeticError, ValueError):
+    except InputError:
+        raise
+    except (ArithmeticError, ValueError):  # a correlation failing inside the bracket: no root found
         pass
     where = data[names[0]][5]
     raise InputError("no bubble point found for this liquid between the components' boiling points: enter MTT",

@@ -30,6 +30,7 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
               f"# closure residual: {format_heat(result.residual, result.basis, system)}",
               f"# sign convention: {result.sign_convention}"]
     header += [f"# warning: {phrase_text(w, system)}" for w in result.warnings]
+    header += [f"# assumption: {phrase_text(a, system)}" for a in result.assumptions]  # the gauge reference among them
     out.write("\n".join(line.replace("\n", " ") for line in header) + "\n")
     columns = list(rows[0]) if rows else ["item"]
     writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")
