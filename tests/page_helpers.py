@@ -34,8 +34,11 @@ def held(at):
 
 
 def idle(browser_page) -> None:
-    """The script run has finished: Streamlit's running indicator is gone."""
+    """The script run has finished: Streamlit's running indicator is gone and no element is left stale
+    (a short run may end before the indicator shows; its elements are stale until it does)."""
     browser_page.wait_for_selector("[data-testid='stStatusWidget']", state="hidden")
+    browser_page.wait_for_function(
+        "() => !document.querySelector(\"[data-testid='stElementContainer'][data-stale='true']\")")
 
 
 def open_page(browser, url: str, ready: str, timeout_ms: int):
@@ -69,3 +72,79 @@ def choose(browser_page, widget: str, option: str, shown, attempts: int = 5) -> 
             if attempt == attempts - 1:
                 raise
             browser_page.keyboard.press("Escape")
+
+
+# -- the editable grids in a real browser ------------------------------------------------------------------------
+TEXT_EDITOR = "textarea.gdg-input"
+PICKER_EDITOR = "input[role='combobox']"
+
+
+def grid(browser_page, table: str):
+    """The editable grid of ``table`` (its editor's key is ``editor_<table>_<load>``)."""
+    return browser_page.locator(f"[class*='st-key-editor_{table}_'] [data-testid='stDataFrameResizable']")
+
+
+def cell_text(browser_page, table: str, row: int, column: int) -> str:
+    """What a grid cell shows, read from the grid's accessible table (columns from 0 = the first shown)."""
+    return grid(browser_page, table).locator(f"[data-testid='glide-cell-{column + 1}-{row}']").text_content()
+
+
+def selected_cell(browser_page, table: str) -> tuple[int, int] | None:
+    """(row, column) of the grid's selected cell, from its accessible table; None when none is selected."""
+    found = grid(browser_page, table).locator("td[aria-selected='true']")
+    if found.count() != 1:
+        return None
+    column, row = (int(n) for n in found.get_attribute("data-testid").split("-")[-2:])
+    return row, column - 1
+
+
+def wait_for_cell(browser_page, table: str, row: int, column: int, text: str) -> None:
+    """Wait until a grid cell shows ``text``."""
+    browser_page.wait_for_function(
+        "([sel, t]) => { const e = document.querySelector(sel); return e && e.textContent === t; }",
+        arg=[f"[class*='st-key-editor_{table}_'] [data-testid='glide-cell-{column + 1}-{row}']", text])
+
+
+def open_cell_editor(browser_page, table: str, row: int, column: int, editor: str = TEXT_EDITOR,
+                     attempts: int = 6) -> None:
+    """Click the grid's first cell, walk to (row, column) by keyboard, open its editor.
+
+    The grid's script loads lazily and a click before it is ready is lost, so a slow machine gets
+    a few tries, each waiting for the grid's canvas and then for the cell editor to appear.
+    """
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
+    box_of = grid(browser_page, table)
+    for attempt in range(attempts):
+        box_of.locator("canvas").first.wait_for(state="visible")
+        box_of.scroll_into_view_if_needed()
+        box = box_of.bounding_box()
+        browser_page.mouse.click(box["x"] + 60, box["y"] + 52)  # first row, first column (past the row markers)
+        for _ in range(column):
+            browser_page.keyboard.press("ArrowRight")
+        for _ in range(row):
+            browser_page.keyboard.press("ArrowDown")
+        browser_page.keyboard.press("Enter")
+        try:
+            browser_page.wait_for_selector(editor, timeout=5000)
+            return
+        except PlaywrightTimeout:
+            if attempt == attempts - 1:
+                raise
+            browser_page.keyboard.press("Escape")
+
+
+def type_and_commit(browser_page, text: str) -> None:
+    """Replace the text of the open cell editor with ``text`` and commit it with Enter."""
+    browser_page.keyboard.press("Control+a")
+    browser_page.keyboard.type(text)
+    browser_page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
+    browser_page.keyboard.press("Enter")
+    browser_page.wait_for_selector(TEXT_EDITOR, state="detached")  # the cell took the text
+
+
+def type_into_cell(browser_page, table: str, row: int, column: int, text: str) -> None:
+    """Select a grid cell by keyboard from the grid's first cell, open it, replace its text."""
+    idle(browser_page)
+    open_cell_editor(browser_page, table, row, column)
+    type_and_commit(browser_page, text)

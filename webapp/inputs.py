@@ -74,11 +74,16 @@ def _sized(config: dict) -> dict:
     return {c: ({**cfg, "width": _WIDTHS[c]} if c in _WIDTHS else cfg) for c, cfg in config.items()}
 
 
-def check_marks(table: str, count: int, problems: list[grids.CellProblem]) -> list[str]:
-    """The 'check' column: ⚠ and the bad column(s) on each row with a problem."""
-    marks = [""] * count
+def check_marks(table: str, rows: list[dict], problems: list[grids.CellProblem]) -> list[str]:
+    """The 'check' column: ⚠ and the bad column(s) on each row with a problem.
+
+    A cell left empty gets no mark (the message above the table names it): a row being typed, name
+    first, would otherwise redraw its grid and lose the cursor before its next cell is reached."""
+    marks = [""] * len(rows)
     for p in problems:
-        if p.table == table and p.row is not None and p.row < count:
+        if p.table == table and p.row is not None and p.row < len(rows):
+            if p.column is not None and grids.cell_values([rows[p.row]], [p.column])[0][0] is None:
+                continue
             place = p.column or "row"
             marks[p.row] = f"{marks[p.row]}, {place}" if marks[p.row] else f"⚠ {place}"
     return marks
@@ -110,9 +115,9 @@ def _render_table(table: str, config: dict, problems: list[grids.CellProblem], c
         st.caption(caption)
     for problem in (p for p in problems if p.table == table):
         st.error(plain(problem.text), icon=":material/error:")
-    key = state.editor_key(table)
-    marks = check_marks(table, len(state.rows[table]), problems)
-    rows, given_marks = state.editor_rows(table, marks, st.session_state.get(key))
+    marks = check_marks(table, state.rows[table], problems)
+    rows, given_marks = state.editor_rows(table, marks, st.session_state.get(state.editor_key(table)))
+    key = state.editor_key(table)  # a new one when an undo had to redraw the grid
     frame = table_frame(table, rows, given_marks)
     shown = (["check"] if frame["check"].any() else []) + grids.COLUMNS[table]  # 'check' only when needed
     st.data_editor(frame, key=key, on_change=_on_table_edit, args=(table,), num_rows="dynamic",

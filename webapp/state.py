@@ -64,6 +64,7 @@ class PageState:
     base: dict[str, list[dict]] = field(default_factory=dict)  # the rows each editor was given
     base_marks: dict[str, list[str]] = field(default_factory=dict)  # the check marks it was given
     widgets_stale: bool = True  # the model-bound widgets must be set from the worksheet
+    redraws: dict[str, int] = field(default_factory=dict)  # per grid: forced fresh editors (see editor_rows)
     past: list[_Snapshot] = field(default_factory=list)  # undo steps, oldest first
     future: list[_Snapshot] = field(default_factory=list)  # redo steps, the next one last
 
@@ -84,6 +85,7 @@ class PageState:
         self.load += 1
         self.base = {t: [dict(r) for r in rows] for t, rows in self.rows.items()}
         self.base_marks = {}
+        self.redraws = {}
         self.widgets_stale = True
         self.past, self.future = [], []
 
@@ -134,8 +136,10 @@ class PageState:
 
     # ------------------------------------------------------------------ editing
     def editor_key(self, table: str) -> str:
-        """The widget key of a grid's editor: stable while this worksheet stays loaded."""
-        return f"editor_{table}_{self.load}"
+        """The widget key of a grid's editor: stable while this worksheet stays loaded (and no undo had to
+        redraw it)."""
+        redraws = self.redraws.get(table, 0)
+        return f"editor_{table}_{self.load}" + (f"_{redraws}" if redraws else "")
 
     def apply_table_edit(self, table: str, edits: dict) -> None:
         """A grid's edits, as its editor reports them (every edit since its rows were given), onto the model."""
@@ -260,6 +264,11 @@ class PageState:
             if grids.same_rows(shown, self.rows[table], columns) and \
                     _marked(self.base_marks.get(table, [])) == _marked(marks):
                 return base, self.base_marks.get(table, [])
+        if base is not None and edits and grids.same_rows(base, self.rows[table], columns) and \
+                _marked(self.base_marks.get(table, [])) == _marked(marks):
+            # the same data as before (an undo back to it) keeps the editor's identity, and so its edits:
+            # a new key gives a fresh editor (the cursor goes; what it shows is right)
+            self.redraws[table] = self.redraws.get(table, 0) + 1
         self.base[table] = [dict(r) for r in self.rows[table]]
         self.base_marks[table] = list(marks)
         return self.base[table], self.base_marks[table]
