@@ -224,3 +224,22 @@ def test_each_catalogue_fluid_is_the_right_chemical(name):
 def test_a_gas_without_vapour_pressure_data_where_water_boils_is_refused(gas):
     with pytest.raises(InputError, match=f"no vapour pressure of {gas} at"):
         bubble_point([(gas, 1.0, "x"), ("water", 100.0, "w")], 101325.0)
+
+
+def test_the_page_shows_the_mixtures_MTT_and_its_class():
+    """The screening panel on the real page (AppTest): class 3 with the alarm, the MTT line names the model and
+    the composition, and the note says why it is below water's boiling point."""
+    import re
+
+    from page_helpers import page
+    from heatbalance.worksheet import load_worksheet
+
+    at = page(load_worksheet((SAMPLES / "dissolved_solvent_screening.json").read_bytes()))
+    assert not at.exception, [e.value for e in at.exception]
+    shown = re.sub(r"\\(.)", r"\1", "\n".join(m.value for m in at.markdown)).replace("\u2060", "")
+    assert "Criticality class 3" in shown
+    assert "MTT: bubble point of the liquid mixture at 1.013 bar(a), original UNIFAC" in shown
+    assert "mole fractions as charged: water 0.8989, methanol 0.1011" in shown
+    assert "The mixture boils 12.4 K below pure water" in shown
+    alarms = re.sub(r"\\(.)", r"\1", "\n".join(e.value for e in at.error))
+    assert "reaches MTT 87.6 °C" in alarms

@@ -149,7 +149,7 @@ def bubble_point(components: list[tuple], P: float, activity_model: str = "UNIFA
 
     pure = {n: _pure_boiling(data[n][3], P, n, data[n][5]) for n in names}
     low, high = min(pure.values()) - 60.0, max(pure.values()) + 1.0
-    T = _root(excess, low, high, data, names, xs)
+    T = _root(excess, low, high, data, names)
     major = names[max(range(len(xs)), key=lambda i: xs[i])]
     i_major = names.index(major)
     share = 1.0 - xs[i_major] * gammas(T)[i_major] * vps[i_major](T) / P
@@ -194,7 +194,7 @@ def _pure_boiling(vp, P: float, name: str, where: str) -> float:
     return T
 
 
-def _root(excess, low: float, high: float, data: dict, names: list[str], xs: list[float]) -> float:
+def _root(excess, low: float, high: float, data: dict, names: list[str]) -> float:
     from scipy.optimize import brentq
 
     try:
