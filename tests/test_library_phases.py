@@ -91,14 +91,19 @@ def test_refusals_name_the_phase_address(phase, expected):
     assert error_text(caught.value).startswith(expected)
 
 
+def refusal(material) -> tuple[str, str]:
+    """Where and what: the refusal of a thawing line of ``material``."""
+    with pytest.raises(InputError) as caught:
+        solve(thawing(material))
+    return caught.value.where, error_text(caught.value)
+
+
 def test_a_phase_reaching_past_the_library_data_is_refused():
     # our solid melts at -5 °C into water's liquid, whose data begin at 0 °C (IAPWS-IF97's lowest temperature)
     material = frozen_product()
     material["phases"][0]["up_to"] = q(-5, "degC")
-    with pytest.raises(InputError) as caught:
-        solve(thawing(material))
-    assert caught.value.where == "materials[product].phases[liquid].from_library"
-    assert error_text(caught.value) == (
+    assert refusal(material) == (
+        "materials[product].phases[liquid].from_library",
         "water's liquid phase at 1 atm covers 0.00 °C to 99.97 °C; "
         "this phase would span -5.00 °C to 99.97 °C: move its transitions or the min/max temperature inside")
 
@@ -106,10 +111,8 @@ def test_a_phase_reaching_past_the_library_data_is_refused():
 def test_own_data_at_an_end_needs_its_temperature():
     material = frozen_product()
     del material["min_temperature"]
-    with pytest.raises(InputError) as caught:
-        solve(thawing(material))
-    assert caught.value.where == "materials[product].min_temperature"
-    assert error_text(caught.value) == (
+    assert refusal(material) == (
+        "materials[product].min_temperature",
         "give the min temperature: the solid phase is this worksheet's own data, "
         "so its range is not known (a phase taken from the library brings its own)")
 

@@ -33,13 +33,19 @@ def test_superheater_to_1200C_through_the_solver():
     assert answer_value(solve(ws).answer) == pytest.approx(reference, rel=1e-8)
 
 
+def outlet_for_duty(P_MPa: float, T_in_C: float, T_out_C: float) -> float:
+    """The outlet [°C] solved for 1 t/h of water heated at P by the duty IAPWS-IF97 (iapws) gives from T_in to
+    T_out: the answer should be T_out."""
+    duty = 1000 / 3600 * (IAPWS97(P=P_MPa, T=T_out_C + C).h - IAPWS97(P=P_MPa, T=T_in_C + C).h)  # kW
+    ws = build(streams=[stream("Steam", "water", q(1, "t/h"), temp(T_in_C), temp(20), pressure=q(P_MPa, "MPa"))],
+               duties=[{"name": "Heater", "value": q(duty, "kW")}],
+               unknowns=[{"kind": "temperature", "line": "Steam", "end": "outlet"}])
+    return answer_value(solve(ws).answer)
+
+
 def test_outlet_temperature_solved_in_region_5():
     # the same heater, its outlet the unknown: the duty found above gives back 1500 °C
-    duty = 1000 / 3600 * (IAPWS97(P=0.1, T=1773.15).h - IAPWS97(P=0.1, T=1473.15).h)
-    ws = build(streams=[stream("Flue steam", "water", q(1, "t/h"), temp(1200), temp(20), pressure=q(1, "bar"))],
-               duties=[{"name": "Heater", "value": q(duty, "kW")}],
-               unknowns=[{"kind": "temperature", "line": "Flue steam", "end": "outlet"}])
-    assert answer_value(solve(ws).answer) == pytest.approx(1500, abs=1e-5)
+    assert outlet_for_duty(0.1, 1200, 1500) == pytest.approx(1500, abs=1e-5)
 
 
 def test_above_800C_over_50MPa_is_refused_with_the_limits():
@@ -56,9 +62,5 @@ def test_above_800C_over_50MPa_is_refused_with_the_limits():
 def test_solving_a_temperature_over_50MPa_stays_below_800C():
     # at 60 MPa the data end at 800 °C (regions 1-3): a temperature solve below it is not refused by the
     # region-5 limit; 1 t/h heated from 300 °C by the duty IAPWS-IF97 (iapws) gives to 700 °C (region 2)
-    duty = 1000 / 3600 * (IAPWS97(P=60, T=973.15).h - IAPWS97(P=60, T=573.15).h)
-    ws = build(streams=[stream("HP water", "water", q(1, "t/h"), temp(300), temp(20), pressure=q(600, "bar"))],
-               duties=[{"name": "Heater", "value": q(duty, "kW")}],
-               unknowns=[{"kind": "temperature", "line": "HP water", "end": "outlet"}])
-    assert answer_value(solve(ws).answer) == pytest.approx(700, abs=1e-5)
+    assert outlet_for_duty(60.0, 300, 700) == pytest.approx(700, abs=1e-5)
     assert WATER.t_max_at(60e6) == pytest.approx(1073.15) and WATER.t_max_at(5e6) == pytest.approx(2273.15)
