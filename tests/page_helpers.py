@@ -77,4 +77,3 @@ def choose(browser_page, widget: str, option: str, shown, attempts: int = 5) -> 
             if attempt == attempts - 1:
                 raise
             browser_page.keyboard.press("Escape")
-
