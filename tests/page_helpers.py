@@ -52,6 +52,14 @@ def open_page(browser, url: str, ready: str, timeout_ms: int):
     return context, opened
 
 
+def answer_shows(browser_page, text: str, instead_of: str | None = None) -> None:
+    """Wait until the answer block shows ``text`` (and no longer ``instead_of``): it redraws as a run goes on."""
+    browser_page.wait_for_function(
+        """([text, old]) => { const a = document.querySelector('.st-key-answer');
+            return a !== null && a.textContent.includes(text) && (old === null || !a.textContent.includes(old)); }""",
+        arg=[text, instead_of], timeout=FIRST_DRAW_MS)
+
+
 def choose(browser_page, widget: str, option: str, shown, attempts: int = 5) -> None:
     """Pick ``option`` in the select box keyed ``widget``; ``shown(page)`` waits until the page shows the choice.
 
