@@ -142,17 +142,32 @@ def open_cell_editor(browser_page, table: str, row: int, column: int, editor: st
             browser_page.keyboard.press("Escape")
 
 
-def type_and_commit(browser_page, text: str) -> None:
-    """Replace the text of the open cell editor with ``text`` and commit it with Enter."""
+def type_and_commit(browser_page, text: str, commit: str = "Enter", timeout_ms: float | None = None) -> None:
+    """Replace the text of the open cell editor with ``text`` and commit it (Enter: the selection moves down;
+    Tab: to the next cell of the row)."""
     browser_page.keyboard.press("Control+a")
     browser_page.keyboard.type(text)
-    browser_page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
-    browser_page.keyboard.press("Enter")
+    browser_page.wait_for_function("t => { const e = document.querySelector('textarea.gdg-input'); "
+                                   "return e && e.value === t; }", arg=text, timeout=timeout_ms)
+    browser_page.keyboard.press(commit)
     browser_page.wait_for_selector(TEXT_EDITOR, state="detached")  # the cell took the text
 
 
-def type_into_cell(browser_page, table: str, row: int, column: int, text: str) -> None:
-    """Select a grid cell by keyboard from the grid's first cell, open it, replace its text."""
-    idle(browser_page)
-    open_cell_editor(browser_page, table, row, column)
-    type_and_commit(browser_page, text)
+def type_into_cell(browser_page, table: str, row: int, column: int, text: str, commit: str = "Enter",
+                   attempts: int = 4) -> None:
+    """Select a grid cell by keyboard from the grid's first cell, open it, replace its text, commit it.
+
+    An editor that closes before the text is in it (the page's run redrew the grid under it) is opened
+    again, at most ``attempts`` times; each try waits on the editor's own text."""
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
+
+    for attempt in range(attempts):
+        idle(browser_page)
+        open_cell_editor(browser_page, table, row, column)
+        try:
+            type_and_commit(browser_page, text, commit, timeout_ms=5_000)
+            return
+        except PlaywrightTimeout:
+            if attempt == attempts - 1:
+                raise
+            browser_page.keyboard.press("Escape")

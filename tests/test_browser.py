@@ -18,7 +18,7 @@ from conftest import playwright_or_skip
 from heatbalance import load_worksheet, solve
 from heatbalance.present.tables import contribution_rows
 from heatbalance.present.text import answer_text
-from page_helpers import PICKER_EDITOR, choose, idle, open_cell_editor, type_into_cell
+from page_helpers import FIRST_DRAW_MS, PICKER_EDITOR, choose, idle, open_cell_editor, type_into_cell
 
 pytestmark = pytest.mark.browser
 
@@ -33,7 +33,7 @@ def page(browser, app_url):
     opened = context.new_page()
     opened.set_default_timeout(TIMEOUT_MS)
     opened.goto(app_url)
-    opened.wait_for_selector(ANSWER)
+    opened.wait_for_selector(ANSWER, timeout=FIRST_DRAW_MS)  # the first run on a cold server loads the libraries
     _wait_until_drawn(opened)
     yield opened
     context.close()

@@ -65,9 +65,12 @@ def _column_config(worksheet: Worksheet) -> dict:
 
 
 #: column widths [px] that let the widest grid (streams) fit a 1400 px screen beside the answer panel
-_WIDTHS = {"check": 80, "name": 100, "material": 140, "mass fraction": 70, "flow": 85, "mass": 85, "pressure": 80,
+_WIDTHS = {"check": 80, "name": 100, "material": 130, "mass fraction": 70, "flow": 85, "mass": 85, "pressure": 80,
            "pressure is": 72, "inlet": 110, "outlet": 110, "initial": 110, "final": 110, "inlet pressure": 70,
-           "outlet pressure": 70}
+           "outlet pressure": 70, "vessel": 90, "heat of reaction": 100, "equation": 185, "key reactant": 100,
+           "amount": 90, "conversion": 80, "molar mass": 85, "phase": 70, "cp": 100, "cp per K": 75,
+           "cp per K²": 75, "up to": 75, "latent heat": 95, "min temperature": 70, "max temperature": 70,
+           "source": 150}
 
 
 def _sized(config: dict) -> dict:
