@@ -190,6 +190,7 @@ class UtilityInputs:
     condensate: str | None = None  # flash recovered | flash lost | None (reported only)
     flash_P: float = ATMOSPHERE  # Pa absolute the condensate is let down to: the site's barometric pressure
     #                              unless the utility names its flash pressure
+    flash_stated: bool = False  # the utility names its flash pressure (else the site's atmosphere)
 
     @property
     def address(self) -> str:
@@ -477,6 +478,7 @@ class _Builder:
         out.condensate = u.condensate
         if u.flash_pressure is not None:
             out.flash_P = self.pressure(u.flash_pressure, f"{where}.flash_pressure")
+            out.flash_stated = True
         out.condensate_T, out.supply_T, out.return_T = (temperature("condensate_temperature"),
                                                         temperature("supply_temperature"), temperature("return_limit"))
         if u.kind in ("steam", "cooling water", "chilled water"):

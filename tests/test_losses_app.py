@@ -37,7 +37,7 @@ def test_panel_shows_the_computed_loss_and_the_caution_once():
     at = _open()
     assert not at.exception
     assert "Surface losses (computed from geometry)" in [s.value for s in at.subheader]
-    assert len(at.main.metric) == 1  # the answer's; the panel writes its numbers as text
+    assert len(at.main.metric) == 0  # the answer is in the side panel; this panel writes its numbers as text
     shown = " ".join(m.value for m in at.markdown)
     assert "Outer surface: **9\\.5 °C**" in shown  # own output (regression); the physics is in test_losses.py
     table = next(d.value for d in at.dataframe if "heat lost" in d.value.columns)

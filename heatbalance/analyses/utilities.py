@@ -164,7 +164,7 @@ def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
     x = (h_condensate − h_f) / h_fg at the flash pressure (an adiabatic let-down, IAPWS-IF97 via CoolProp)."""
     P = u.flash_P
     where = f"{u.address}.flash_pressure"
-    if u.flash_P is None and P >= u.P:  # steam below the atmosphere, none said: its condensate cannot flash to it
+    if not u.flash_stated and P >= u.P:  # steam below the atmosphere, none said: its condensate cannot flash to it
         return 0.0, 0.0
     if P >= u.P:
         raise InputError(Phrase("the condensate is let down to {P}: that is not below the steam's {Ps}",
