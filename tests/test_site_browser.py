@@ -21,7 +21,7 @@ pytestmark = pytest.mark.browser
 SAMPLE = Path(__file__).resolve().parent.parent / "sample_data" / "steam_heater_glycol.json"
 PANEL = ".st-key-site_panel"
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
-TIMEOUT_MS = 30_000
+TIMEOUT_MS = 60_000  # two cores shared with other runs: a script run can take tens of seconds
 
 
 @pytest.fixture
