@@ -162,3 +162,16 @@ def test_the_screening_temperature_is_reported_with_its_uncertainty():
     u = result.output_uncertainties["screening[R-7].MTSR"]
     assert u.value == pytest.approx(result.screening[0].MTSR, rel=1e-12) and u.standard > 0
     assert f"R-7: MTSR = {uncertainty_text(u, 'SI')}" in format_result(result, "SI")
+
+
+@pytest.mark.parametrize("tolerance, expected_barg", [("0.1 bar", 0.1), ("0.1 barg", 0.1), ("10 kPa", 0.1),
+                                                      ("1.450377 psi", 0.1)])
+def test_a_tolerance_on_a_gauge_pressure_is_a_difference_not_an_absolute_pressure(tolerance, expected_barg):
+    from heatbalance.analyses.uncertainty import check_tolerance
+    from heatbalance.worksheet import Tolerance
+
+    ws = load_worksheet(open("sample_data/steam_heater_glycol.json", "rb").read())  # Steam at 4 barg
+    # ±0.1 bar on a pressure typed in barg is ±0.1 barg (hand calculation: 1 bar = 1 barg as a difference;
+    # 1 psi = 6894.757 Pa); before, one barg was taken as 2.01325 bar and the tolerance came out halved
+    half_width = check_tolerance(ws, Tolerance(address="streams[Steam].pressure", plus_minus=tolerance))
+    assert half_width == pytest.approx(expected_barg, rel=1e-6)

@@ -142,8 +142,9 @@ def _half_width(tolerance: Tolerance, typed, kinds: tuple[str, ...]) -> float:
     except HeatBalanceError as exc:
         raise InputError(f"tolerance {size}: {exc.message}" + (" (a temperature's tolerance is a temperature "
                          "difference: K or °F)" if kind == "temperature" else ""), where) from None
-    a_si = typed_si(size.value, size.unit, difference, where)
-    one_si = typed_si(1.0, typed.unit, difference, where)  # how much SI one typed unit is, as a difference
+    # sizes as differences between two values (a gauge unit's offset, e.g. barg's atmosphere, cancels)
+    a_si = typed_si(1.0 + size.value, size.unit, difference, where) - typed_si(1.0, size.unit, difference, where)
+    one_si = typed_si(2.0, typed.unit, difference, where) - typed_si(1.0, typed.unit, difference, where)
     return a_si / one_si
 
 
