@@ -140,7 +140,7 @@ def _half_width(tolerance: Tolerance, typed, kinds: tuple[str, ...]) -> float:
     try:
         check_unit(size.unit, difference, where)
     except HeatBalanceError as exc:
-        raise InputError(f"tolerance {size}: {exc.message}" + (" (a temperature's tolerance is a temperature "
+        raise InputError(f"tolerance '{size}': {exc.message}" + (" (a temperature's tolerance is a temperature "
                          "difference: K or °F)" if kind == "temperature" else ""), where) from None
     # sizes as differences between two values (a gauge unit's offset, e.g. barg's atmosphere, cancels)
     a_si = typed_si(1.0 + size.value, size.unit, difference, where) - typed_si(1.0, size.unit, difference, where)
