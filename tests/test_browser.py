@@ -146,7 +146,7 @@ def test_the_material_picker_is_searchable(page, output_dir):
     options = page.get_by_role("option")
     # typing filters the engine's catalogue; waited on until the list shows the filter's result (it was read
     # while still filtering about one run in three)
-    expect(options).to_have_text(["propylene glycol (aq)"])
+    expect(options).to_have_text(["propylene glycol (aq)"], timeout=TIMEOUT_MS)
     assert options.all_inner_texts() == ["propylene glycol (aq)"]
     page.screenshot(path=str(output_dir / "browser_material_search.png"))
     page.keyboard.press("Escape")
