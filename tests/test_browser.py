@@ -142,11 +142,14 @@ def test_the_material_picker_is_searchable(page, output_dir):
     # the default sample's first stream; streams columns: name, material
     _wait_until_drawn(page)
     open_cell_editor(page, "streams", row=0, column=1, editor=PICKER_EDITOR)
+    # the picker takes keys once its input has the focus (before, the first letters were lost: "yl" matched
+    # both glycols)
+    page.wait_for_function("s => document.activeElement && document.activeElement.matches(s)", arg=PICKER_EDITOR)
     page.keyboard.type("propyl")
     options = page.get_by_role("option")
     # typing filters the engine's catalogue; waited on until the list shows the filter's result (it was read
     # while still filtering about one run in three)
-    expect(options).to_have_text(["propylene glycol (aq)"])
+    expect(options).to_have_text(["propylene glycol (aq)"], timeout=TIMEOUT_MS)
     assert options.all_inner_texts() == ["propylene glycol (aq)"]
     page.screenshot(path=str(output_dir / "browser_material_search.png"))
     page.keyboard.press("Escape")
