@@ -28,6 +28,9 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
+sys.path.insert(0, str(ROOT / "tests"))
+
+from page_helpers import idle, open_cell_editor  # noqa: E402  (the browser tests' own waits)
 from playwright.sync_api import sync_playwright  # noqa: E402
 
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
@@ -90,34 +93,23 @@ def _idle(page) -> None:
     page.wait_for_selector(RUNNING, state="hidden")
 
 
-def _edit_cell(page, text: str) -> None:
-    """The first stream's flow cell (streams grid: row 0, column 3), replaced by ``text``."""
-    grid = page.locator("[class*='st-key-editor_streams_'] [data-testid='stDataFrameResizable']")
-    grid.locator("canvas").first.wait_for(state="visible")
-    box = grid.bounding_box()
-    page.mouse.click(box["x"] + 60, box["y"] + 52)
-    for _ in range(3):
-        page.keyboard.press("ArrowRight")
-    page.keyboard.press("Enter")
-    page.wait_for_selector("textarea.gdg-input")
-    page.keyboard.press("Control+a")
-    page.keyboard.type(text)
-    page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
-
-
 def edit_round_trips(page, edits: int) -> list[float]:
-    """Type ``edits`` flows into the first stream; the time from Enter to a new answer on screen."""
+    """Type ``edits`` flows into the first stream (streams grid, row 0, column 3); the time from Enter to a
+    new answer on screen."""
     times = []
     for i in range(edits):
-        _idle(page)
+        idle(page)
         before = page.inner_text(ANSWER).strip()
-        _edit_cell(page, f"{6 + (i % 7) * 0.5} t/h")
+        open_cell_editor(page, "streams", 0, 3)
+        text = f"{6 + (i % 7) * 0.5} t/h"
+        page.keyboard.press("Control+a")
+        page.keyboard.type(text)
+        page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
         start = time.perf_counter()
         page.keyboard.press("Enter")
         page.wait_for_function("([sel, old]) => { const e = document.querySelector(sel); "
                                "return e && e.innerText.trim() !== old; }", arg=[ANSWER, before])
         times.append(time.perf_counter() - start)
-        page.wait_for_selector("textarea.gdg-input", state="detached")
     return times
 
 
