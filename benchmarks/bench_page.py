@@ -30,7 +30,7 @@ sys.path.insert(0, str(ROOT))
 
 sys.path.insert(0, str(ROOT / "tests"))
 
-from page_helpers import idle, open_cell_editor  # noqa: E402  (the browser tests' own waits)
+from page_helpers import idle, open_cell_editor, painted  # noqa: E402  (the browser tests' own waits)
 from playwright.sync_api import sync_playwright  # noqa: E402
 
 ANSWER = ".st-key-answer [data-testid='stMetricValue']"
@@ -105,6 +105,7 @@ def edit_round_trips(page, edits: int) -> list[float]:
         page.keyboard.press("Control+a")
         page.keyboard.type(text)
         page.wait_for_function("t => document.querySelector('textarea.gdg-input').value === t", arg=text)
+        painted(page)  # the editor's own state has the text (else Enter may commit the old text)
         start = time.perf_counter()
         page.keyboard.press("Enter")
         page.wait_for_function("([sel, old]) => { const e = document.querySelector(sel); "

@@ -142,6 +142,13 @@ def open_cell_editor(browser_page, table: str, row: int, column: int, editor: st
             browser_page.keyboard.press("Escape")
 
 
+def painted(browser_page) -> None:
+    """Two animation frames have passed: the page has drawn what its last events changed (a grid's cell
+    editor holds typed text in its own state, which is read on commit; a commit before the next frame can
+    take the old text)."""
+    browser_page.evaluate("() => new Promise(done => requestAnimationFrame(() => requestAnimationFrame(done)))")
+
+
 def type_and_commit(browser_page, text: str, commit: str = "Enter", timeout_ms: float | None = None) -> None:
     """Replace the text of the open cell editor with ``text`` and commit it (Enter: the selection moves down;
     Tab: to the next cell of the row)."""
@@ -149,6 +156,7 @@ def type_and_commit(browser_page, text: str, commit: str = "Enter", timeout_ms: 
     browser_page.keyboard.type(text)
     browser_page.wait_for_function("t => { const e = document.querySelector('textarea.gdg-input'); "
                                    "return e && e.value === t; }", arg=text, timeout=timeout_ms)
+    painted(browser_page)
     browser_page.keyboard.press(commit)
     browser_page.wait_for_selector(TEXT_EDITOR, state="detached")  # the cell took the text
 

@@ -15,7 +15,7 @@ import pytest
 from heatbalance import address, load_worksheet, solve
 from heatbalance.present.text import answer_text
 from heatbalance.worksheet import Duty, Quantity
-from page_helpers import (FIRST_DRAW_MS, TEXT_EDITOR, cell_text, choose, grid, idle, selected_cell,
+from page_helpers import (FIRST_DRAW_MS, TEXT_EDITOR, cell_text, choose, grid, idle, painted, selected_cell,
                           type_and_commit, type_into_cell, wait_for_cell)
 
 pytestmark = pytest.mark.browser
@@ -63,6 +63,7 @@ def test_a_blank_new_row_takes_typing_at_the_first_try(page, output_dir):
     page.keyboard.type("Heater")
     page.wait_for_function("() => { const t = document.querySelector('textarea.gdg-input'); "
                            "return t && t.value === 'Heater'; }")
+    painted(page)  # the editor's own state has the text before it is committed
     page.keyboard.press("Enter")
     page.wait_for_selector(TEXT_EDITOR, state="detached")
     wait_for_cell(page, "duties", 0, 0, "Heater")
