@@ -178,9 +178,24 @@ def test_switching_the_unknown_stores_the_same_value_whatever_the_view():
     assert held(us) == held(si)
     assert held(us).streams[0].outlet.temperature == Quantity(value=40.0, unit="degC")  # stays as typed
     assert rows(us, "streams")[0]["outlet"] == "40 °C"
-    # the answer is in the unit typed for the field (kg/h), with the view's equivalent beside it
-    assert answer_text(us) == answer_text(si) == "745.6 kg/h"
-    assert "= 1,644 lb/h" in [_unescaped(c.value) for c in us.caption]  # 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
+    # issue 17: the answer is a result, in the view's unit: 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
+    assert answer_text(si) == "745.6 kg/h" and answer_text(us) == "1,644 lb/h"
+
+
+def test_the_unknowns_cell_shows_the_views_unit_and_the_typed_unit_is_kept():
+    """Issue 17: in the US view the unknown's cell read '? kg/h' and the answer stayed in kg/h."""
+    at = page()
+    at.radio(key="unit_system").set_value(US).run()
+    no_traceback(at)
+    assert grid(at, "streams")["flow"].tolist() == ["12 t/h", "? lb/h"]  # a typed value stays as typed
+    assert rows(at, "streams")[1]["flow"] == "? kg/h" and held(at) == sample("steam_heater_glycol.json")
+    assert answer_text(at) == "1,644 lb/h"  # 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
+    edit(at, "streams", {"edited_rows": {0: {"flow": "6 t/h"}}})  # an edit elsewhere keeps the '?' cell's unit
+    assert held(at).streams[1].flow.unit == "kg/h" and grid(at, "streams")["flow"].tolist() == ["6 t/h", "? lb/h"]
+    at.selectbox(key="unknown_picker").select("Glycol: outlet temperature").run()
+    assert grid(at, "streams")["outlet"][0] == "? °F"
+    at.radio(key="unit_system").set_value("SI (°C, kg, kW)").run()
+    assert grid(at, "streams")["outlet"][0] == "? °C"
 
 
 def test_a_typed_celsius_value_stays_celsius_when_the_view_changes():
@@ -209,9 +224,10 @@ def test_the_display_unit_system_converts_the_results_not_the_inputs():
     at = page()
     at.radio(key="unit_system").set_value(US).run()
     no_traceback(at)
-    assert answer_text(at) == "745.6 kg/h"  # the steam flow's unit is typed in the sheet (its '?' cell)
+    assert answer_text(at) == "1,644 lb/h"  # the answer is a result: 745.627 kg/h / 0.45359237 kg/lb (NIST SP 811)
     assert "heat into process [Btu/h]" in contributions(at).columns
-    assert held(at) == sample("steam_heater_glycol.json")
+    typed = sample("steam_heater_glycol.json")
+    assert held(at).streams[0] == typed.streams[0] and held(at).duties == typed.duties  # the inputs as typed
 
 
 def test_a_wrong_unit_is_marked_and_the_inputs_are_kept():

@@ -131,3 +131,12 @@ def test_a_value_typed_into_the_unknowns_cell_is_not_lost(page):
     assert solve(ws).answer.value_si - 273.15 > 40
     wait_for_cell(page, "streams", 0, column("outlet"), "? °C")
     assert cell_text(page, "streams", 1, flow) == "800 kg/h"
+
+
+def test_the_unknowns_cell_and_the_answer_follow_the_view(page):
+    flow = column("flow")
+    page.get_by_text("US customary (°F, lb, Btu)").click()
+    wait_for_cell(page, "streams", 1, flow, "? lb/h")
+    wait_for_answer(page, answer_text(solve(sheet()).answer, "US"))
+    assert page.inner_text(ANSWER).strip() == "1,644 lb/h"  # 745.627 kg/h / 0.45359237 kg/lb (exact, NIST SP 811)
+    assert cell_text(page, "streams", 0, flow) == "12 t/h"  # a typed value stays as typed

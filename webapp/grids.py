@@ -20,15 +20,15 @@ from dataclasses import dataclass
 from heatbalance import address as addr
 from heatbalance.errors import HeatBalanceError, InputError, WorksheetFormatError
 from heatbalance.materials import catalogue
-from heatbalance.present.text import UNIT_SETS, display_unit
+from heatbalance.present.text import UNIT_SETS, display_unit, shown_unit
 from heatbalance.units import ATMOSPHERE, KINDS, basis_kinds, check_unit, kind_of, to_si
 from heatbalance.worksheet import QUANTITY_TEXT, Quantity, State, Worksheet, parse_worksheet
 
 __all__ = [
     "TABLES", "TABLE_TITLES", "COLUMNS", "DERIVED", "NUMBER_COLUMNS", "CellProblem", "worksheet_to_tables",
-    "tables_to_worksheet", "apply_edits", "cell_values", "same_rows", "renamed", "follow_renames", "cell_of", "material_names",
-    "pressure_reference", "format_quantity", "parse_quantity", "format_state", "parse_state", "empty_worksheet",
-    "typed_cell", "typed_into_unknown", "TYPED_INTO_UNKNOWN",
+    "in_view", "exists", "tables_to_worksheet", "apply_edits", "cell_values", "same_rows", "renamed",
+    "follow_renames", "cell_of", "material_names", "pressure_reference", "format_quantity", "parse_quantity",
+    "format_state", "parse_state", "empty_worksheet", "typed_cell", "typed_into_unknown", "TYPED_INTO_UNKNOWN",
 ]
 
 UNKNOWN_MARK = "?"
@@ -272,6 +272,31 @@ def _quantity_cell(q: Quantity | None, unknown: bool) -> str:
 
 def _state_cell(state: State, unknown: bool) -> str:
     return _unknown_cell(state.temperature) if unknown else format_state(state)
+
+
+def in_view(table: str, rows: list[dict], ws: Worksheet, system: str) -> list[dict]:
+    """The rows of ``table`` as a view shows them: an unknown's '?' cell in the unit its answer is shown in
+    (``? kg/h`` reads ``? lb/h`` in the US view; a unit of its own, ``? t/h``, stays). Only the shown text
+    changes: the typed rows, and so the worksheet, keep the unit typed."""
+    shown = rows
+    for where in _unknowns(ws):
+        cell = typed_cell({table: shown}, where, ws) if exists(ws, where) else None
+        typed = addr.get(ws, where) if cell is not None else None
+        if not isinstance(typed, Quantity) or not str(shown[cell[1]].get(cell[2]) or "").startswith(UNKNOWN_MARK):
+            continue
+        unit = shown_unit(typed.unit, addr.kinds_of(where, ws.basis.kind)[0], system)
+        shown = [dict(r) for r in shown]
+        shown[cell[1]][cell[2]] = f"{UNKNOWN_MARK} {display_unit(unit)}"
+    return shown
+
+
+def exists(ws: Worksheet, where: str) -> bool:
+    """True when the worksheet has a field at ``where``."""
+    try:
+        addr.get(ws, where)
+    except HeatBalanceError:
+        return False
+    return True
 
 
 def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:

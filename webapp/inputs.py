@@ -12,7 +12,7 @@ from heatbalance.present.text import error_text
 from heatbalance.worksheet import Worksheet
 
 from . import grids
-from .common import page_state, plain
+from .common import display_system, page_state, plain
 
 __all__ = ["render_inputs", "table_frame", "check_marks"]
 
@@ -119,7 +119,8 @@ def _render_table(table: str, config: dict, problems: list[grids.CellProblem], c
     for problem in (p for p in problems if p.table == table):
         st.error(plain(problem.text), icon=":material/error:")
     marks = check_marks(table, state.rows[table], problems)
-    rows, given_marks = state.editor_rows(table, marks, st.session_state.get(state.editor_key(table)))
+    rows, given_marks = state.editor_rows(table, marks, st.session_state.get(state.editor_key(table)),
+                                          display_system())  # the unknown's '?' cell in the view's unit
     key = state.editor_key(table)  # a new one when an undo had to redraw the grid
     frame = table_frame(table, rows, given_marks)
     shown = (["check"] if frame["check"].any() else []) + grids.COLUMNS[table]  # 'check' only when needed

@@ -63,6 +63,7 @@ class PageState:
     load: int = 0  # bumped when another worksheet is loaded: the editors' keys carry it
     base: dict[str, list[dict]] = field(default_factory=dict)  # the rows each editor was given
     base_marks: dict[str, list[str]] = field(default_factory=dict)  # the check marks it was given
+    base_views: dict[str, str] = field(default_factory=dict)  # the unit set it was shown in
     widgets_stale: bool = True  # the model-bound widgets must be set from the worksheet
     redraws: dict[str, int] = field(default_factory=dict)  # per grid: forced fresh editors (see editor_rows)
     past: list[_Snapshot] = field(default_factory=list)  # undo steps, oldest first
@@ -84,7 +85,7 @@ class PageState:
         self.result = self.error = None
         self.load += 1
         self.base = {t: [dict(r) for r in rows] for t, rows in self.rows.items()}
-        self.base_marks = {}
+        self.base_marks, self.base_views = {}, {}
         self.redraws = {}
         self.widgets_stale = True
         self.past, self.future = [], []
@@ -197,7 +198,7 @@ class PageState:
             base, new_address = _with_new_duty(base)
             self.rows = {**self.rows, "duties": [*self.rows["duties"], {"name": base.duties[-1].name}]}
         old_cells = [grids.typed_cell(self.rows, address.unknown_address(u), base) for u in base.unknowns
-                     if _exists(base, address.unknown_address(u))]
+                     if grids.exists(base, address.unknown_address(u))]
         typed = {c: self.rows[c[0]][c[1]].get(c[2]) for c in old_cells if c is not None}
         kept = {c: v for c, v in typed.items() if isinstance(v, str) and v.strip()
                 and not v.strip().startswith(grids.UNKNOWN_MARK)}  # a value typed there stays
@@ -205,7 +206,7 @@ class PageState:
         fresh = grids.worksheet_to_tables(worksheet)
         rows = _copy_rows(self.rows)
         for where in [new_address, *(address.unknown_address(u) for u in base.unknowns)]:
-            cell = grids.typed_cell(rows, where, worksheet) if _exists(worksheet, where) else None
+            cell = grids.typed_cell(rows, where, worksheet) if grids.exists(worksheet, where) else None
             shown = grids.typed_cell(fresh, where, worksheet) if cell is not None else None
             if shown is not None and cell not in kept:
                 rows[cell[0]][cell[1]][cell[2]] = fresh[shown[0]][shown[1]][shown[2]]
@@ -218,7 +219,7 @@ class PageState:
         if len(self.worksheet.unknowns) != 1:
             return None
         where = address.unknown_address(self.worksheet.unknowns[0])
-        return None if _exists(self.worksheet, where) else where
+        return None if grids.exists(self.worksheet, where) else where
 
     # ------------------------------------------------------------------ solving
     def solve(self) -> tuple[Result | None, HeatBalanceError | None]:
@@ -254,16 +255,18 @@ class PageState:
         return [grids.CellProblem(cell.table, cell.row, cell.column, message(self.error))]
 
     # ------------------------------------------------------------------ drawing a grid
-    def editor_rows(self, table: str, marks: list[str], edits: dict | None) -> tuple[list[dict], list[str]]:
-        """The rows and marks to give a grid's editor: its base, re-based only when the browser
-        (base + ``edits``, the editor's own state) would not show the rows and marks wanted."""
+    def editor_rows(self, table: str, marks: list[str], edits: dict | None,
+                    system: str = "SI") -> tuple[list[dict], list[str]]:
+        """The rows (as the view ``system`` shows them: :func:`grids.in_view`) and marks to give a grid's
+        editor: its base, re-based only when the browser (base + ``edits``, the editor's own state) would
+        not show the rows, marks and view wanted."""
         columns = grids.COLUMNS[table]
         base = self.base.get(table)
-        if base is not None:
+        if base is not None and self.base_views.get(table, "SI") == system:
             shown = grids.apply_edits(base, edits or {}, columns, derive=False)
             if grids.same_rows(shown, self.rows[table], columns) and \
                     _marked(self.base_marks.get(table, [])) == _marked(marks):
-                return base, self.base_marks.get(table, [])
+                return grids.in_view(table, base, self.worksheet, system), self.base_marks.get(table, [])
         if base is not None and edits and grids.same_rows(base, self.rows[table], columns) and \
                 _marked(self.base_marks.get(table, [])) == _marked(marks):
             # the same data as before (an undo back to it) keeps the editor's identity, and so its edits:
@@ -271,21 +274,14 @@ class PageState:
             self.redraws[table] = self.redraws.get(table, 0) + 1
         self.base[table] = [dict(r) for r in self.rows[table]]
         self.base_marks[table] = list(marks)
-        return self.base[table], self.base_marks[table]
+        self.base_views[table] = system
+        return grids.in_view(table, self.base[table], self.worksheet, system), self.base_marks[table]
 
 
 def _same_inputs(a: Worksheet, b: Worksheet) -> bool:
     """True when two worksheets differ at most in their words (title, notes): the same answer."""
     words = {"title": "", "notes": ""}
     return a.model_copy(update=words) == b.model_copy(update=words)
-
-
-def _exists(worksheet: Worksheet, where: str) -> bool:
-    try:
-        address.get(worksheet, where)
-    except HeatBalanceError:
-        return False
-    return True
 
 
 def _with_new_duty(worksheet: Worksheet) -> tuple[Worksheet, str]:

@@ -14,7 +14,7 @@ from ..results import Answer
 from ..units import check_unit, from_si, heat_kind
 
 __all__ = ["UNIT_SETS", "display_unit", "measure_text", "phrase_text", "error_text",
-           "temperature_text", "pressure_text", "heat_text", "format_heat", "answer_unit", "answer_value",
+           "temperature_text", "pressure_text", "heat_text", "format_heat", "answer_unit", "answer_value", "shown_unit",
            "answer_text", "amount_text", "no_negative_zero"]
 
 #: Display units of each unit set, per kind.
@@ -116,15 +116,26 @@ def amount_text(value: float) -> str:
     return f"{round(value, decimals):,.{decimals}f}"
 
 
+def shown_unit(typed_unit: str | None, kind: str, system: str = "SI") -> str:
+    """The unit a result of ``kind`` is shown in: a unit of its own typed for it (MMBtu/h, t/h) if it
+    measures that kind, else the view's; a unit set's own unit (kg/h, lb/h, °C) is the view's to choose.
+
+    >>> shown_unit("kg/h", "mass_flow", "US"), shown_unit("t/h", "mass_flow", "US"), shown_unit(None, "power")
+    ('lb/h', 't/h', 'kW')
+    """
+    view = _unit_set(system)[kind]
+    if not typed_unit or typed_unit in {units[kind] for units in UNIT_SETS.values()}:
+        return view
+    try:
+        check_unit(typed_unit, kind)
+        return typed_unit
+    except UnitError:  # e.g. a rate typed for a batch amount
+        return view
+
+
 def answer_unit(answer: Answer, system: str = "SI") -> str:
-    """The unit the answer is shown in: the one typed for its field if it measures the answer, else the view's."""
-    if answer.typed_unit:
-        try:
-            check_unit(answer.typed_unit, answer.si_kind)
-            return answer.typed_unit
-        except UnitError:  # e.g. a rate typed for a batch amount
-            pass
-    return _unit_set(system)[answer.si_kind]
+    """The unit the answer is shown in (:func:`shown_unit` of the unit typed in its '?' cell)."""
+    return shown_unit(answer.typed_unit, answer.si_kind, system)
 
 
 def answer_value(answer: Answer, system: str = "SI") -> float:
