@@ -107,11 +107,11 @@ def test_us_customary_display_keeps_the_typed_unit_and_converts_the_results(page
     before = _answer(page)
     assert before == answer_text(solve(sheet).answer) == "745.6 kg/h"  # the page opens on this sample
     page.get_by_text("US customary (°F, lb, Btu)").click()
-    # the answer stays in the unit of its field (kg/h), its view-unit equivalent beside it:
+    # the answer is a result, so it follows the view (issue 17); the typed inputs stay as typed:
     # 745.6 kg/h ÷ 0.45359237 kg/lb (exact, NIST SP 811) ≈ 1,644 lb/h
-    page.locator(".st-key-answer").get_by_text("= 1,644 lb/h").wait_for()
+    page.locator(".st-key-answer").get_by_text("1,644 lb/h", exact=True).wait_for()
     _wait_until_drawn(page)
-    assert _answer(page) == answer_text(solve(sheet).answer, "US") == "745.6 kg/h"
+    assert _answer(page) == answer_text(solve(sheet).answer, "US") == "1,644 lb/h"
     page.get_by_text("heat into the process [Btu/h]").first.wait_for()
     page.screenshot(path=str(output_dir / "browser_us_units.png"), full_page=True)
 
