@@ -114,7 +114,8 @@ def test_above_the_limit_is_refused_at_the_address(name, T2_C, limits):
 
 
 @pytest.mark.parametrize("name, T2_C, text", [
-    ("fireclay brick", 1300, "1300.0 °C is outside the validated range of the data for fireclay brick (0 °C to 1200 °C)"),
+    ("fireclay brick", 1300,
+     "1300.0 °C is outside the validated range of the data for fireclay brick (0 °C to 1200 °C)"),
     ("borosilicate glass", 480,
      "480.0 °C is outside the validated range of the data for borosilicate glass (0 °C to 450 °C)")])
 def test_extrapolation_band_is_warned(name, T2_C, text):

@@ -286,7 +286,7 @@ def in_view(table: str, rows: list[dict], ws: Worksheet, system: str) -> list[di
             continue
         unit = shown_unit(typed.unit, addr.kinds_of(where, ws.basis.kind)[0], system)
         shown = [dict(r) for r in shown]
-        shown[cell[1]][cell[2]] = f"{UNKNOWN_MARK} {display_unit(unit)}"
+        shown[cell[1]][cell[2]] = _unknown_cell(typed.model_copy(update={"unit": unit}))
     return shown
 
 

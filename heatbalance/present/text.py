@@ -14,8 +14,8 @@ from ..results import Answer
 from ..units import check_unit, from_si, heat_kind
 
 __all__ = ["UNIT_SETS", "display_unit", "measure_text", "phrase_text", "error_text",
-           "temperature_text", "pressure_text", "heat_text", "format_heat", "answer_unit", "answer_value", "shown_unit",
-           "answer_text", "amount_text", "no_negative_zero"]
+           "temperature_text", "pressure_text", "heat_text", "format_heat", "shown_unit", "answer_unit",
+           "answer_value", "answer_text", "amount_text", "no_negative_zero"]
 
 #: Display units of each unit set, per kind.
 UNIT_SETS: dict[str, dict[str, str]] = {
