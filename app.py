@@ -9,22 +9,23 @@ calls :func:`replace_worksheet`, one that changes an input outside the grids :fu
 """
 from __future__ import annotations
 
+import importlib
+
 import streamlit as st
 
 from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
-from webapp import screening_panel, sharing
+from webapp import sharing
 from webapp.answer import render_answer, render_header
 from webapp.common import DEFAULT_SAMPLE, SAMPLES_DIR, display_system, guarded, load_sample, page_state
-from webapp.inputs import render_inputs
-from webapp.results import render_results
-from webapp.sidebar import render_sidebar
 from webapp.state import KEY, PageState
 
 
 SIDEBAR_PX = 360  # the answer panel's width at first (the user can drag it)
-# narrower page margins than Streamlit's wide layout, so the inputs fit a 1400 px screen beside the answer panel
-_LAYOUT_CSS = "<style>.stMainBlockContainer{padding:2.5rem 2rem 4rem 2rem;}</style>"
+# narrower page margins than Streamlit's wide layout, so the inputs fit a 1400 px screen beside the answer panel;
+# the answer's value as large as a metric's
+_LAYOUT_CSS = ("<style>.stMainBlockContainer{padding:2.5rem 2rem 4rem 2rem;}"
+               ".st-key-answer_value p{font-size:2.25rem;line-height:1.25;margin:0;}</style>")
 
 
 def replace_worksheet(worksheet: Worksheet) -> None:
@@ -37,20 +38,30 @@ def set_worksheet(worksheet: Worksheet) -> None:
     page_state().set_worksheet(worksheet)
 
 
-# Panels below the results, each called as panel(worksheet, result, system) (result None when not solved).
+# Panels below the results, each called as panel(worksheet, result, system) (result None when not solved);
+# (module, argument of its ``panel``), imported when the page first draws them: after the answer is on screen
 EXTRA_PANELS = [
-    __import__("webapp.site_panel", fromlist=["panel"]).panel(set_worksheet),  # site atmosphere (site_panel.py)
-    __import__("webapp.uncertainty_panel", fromlist=["panel"]).panel(set_worksheet),  # how sure (uncertainty_panel.py)
-    __import__("webapp.humid_air_panel", fromlist=["panel"]).panel(set_worksheet),  # humid air: humidity, condensate
-    screening_panel.panel(set_worksheet),  # thermal screening (webapp/screening_panel.py)
-    __import__("webapp.exchanger_panel", fromlist=["panel"]).panel(set_worksheet),  # exchangers, utilities
-    __import__("webapp.losses_panel", fromlist=["panel"]).panel(set_worksheet),  # computed surface losses
-    __import__("webapp.mixing_panel", fromlist=["panel"]).panel(set_worksheet),  # heats of mixing (mixing_panel.py)
-    __import__("webapp.whatif_panel", fromlist=["panel"]).panel(set_worksheet),  # what if (webapp/whatif_panel.py)
-    __import__("webapp.freezing_panel", fromlist=["panel"]).panel(set_worksheet),  # freezing-range materials
-    sharing.panel(replace_worksheet),  # save and share (webapp/sharing.py)
-    __import__("webapp.filing_panel", fromlist=["panel"]).panel(),  # the PDF sheet, sign-off (filing_panel.py)
+    ("webapp.site_panel", set_worksheet),  # site atmosphere
+    ("webapp.uncertainty_panel", set_worksheet),  # how sure
+    ("webapp.humid_air_panel", set_worksheet),  # humid air: humidity, condensate
+    ("webapp.screening_panel", set_worksheet),  # thermal screening
+    ("webapp.exchanger_panel", set_worksheet),  # exchangers, utilities
+    ("webapp.losses_panel", set_worksheet),  # computed surface losses
+    ("webapp.mixing_panel", set_worksheet),  # heats of mixing
+    ("webapp.whatif_panel", set_worksheet),  # what if
+    ("webapp.freezing_panel", set_worksheet),  # freezing-range materials
+    ("webapp.sharing", replace_worksheet),  # save and share
+    ("webapp.filing_panel", None),  # the PDF sheet, sign-off
 ]
+
+
+def extra_panels() -> list:
+    """The panels of :data:`EXTRA_PANELS` (each module is imported once per process)."""
+    panels = []
+    for module, argument in EXTRA_PANELS:
+        make = importlib.import_module(module).panel
+        panels.append(make() if argument is None else make(argument))
+    return panels
 
 
 def open_state() -> None:
@@ -81,13 +92,19 @@ def main() -> None:
     worksheet = state.worksheet
     with st.sidebar:  # always in view: the answer, its warnings, undo, save and share
         guarded(render_answer, worksheet, result, error, system)
+    # the rest of the page needs pandas, plotly, SQLAlchemy…: loaded once the answer is drawn (its first run)
+    from webapp.inputs import render_inputs
+    from webapp.results import render_results
+    from webapp.sidebar import render_sidebar
+
+    with st.sidebar:
         guarded(sharing.render_save, worksheet)
         guarded(render_sidebar)
     guarded(render_header, worksheet)
     guarded(sharing.render_origin, worksheet)  # where it came from: a saved revision, a link, a sample, …
     guarded(render_inputs, worksheet, system)
     guarded(render_results, result, system)
-    for panel in EXTRA_PANELS:
+    for panel in extra_panels():
         guarded(panel, worksheet, result, system)
 
 

@@ -30,10 +30,9 @@ sys.path.insert(0, str(ROOT))
 
 sys.path.insert(0, str(ROOT / "tests"))
 
-from page_helpers import idle, open_cell_editor, painted  # noqa: E402  (the browser tests' own waits)
+from page_helpers import ANSWER, idle, open_cell_editor, painted  # noqa: E402  (the browser tests' own waits)
 from playwright.sync_api import sync_playwright  # noqa: E402
 
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 RUNNING = "[data-testid='stStatusWidget']"
 MINIMAL = '''import streamlit as st
 value = st.number_input("value", value=1.0, key="value")

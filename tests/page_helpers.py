@@ -8,6 +8,10 @@ APP = str(ROOT / "app.py")
 FIRST_DRAW_MS = 90_000  # the first run on a cold server loads the libraries
 
 
+# the answer's value on the page (webapp.answer.ANSWER_KEY's container); its text as shown, e.g. "745.6 kg/h"
+ANSWER = ".st-key-answer_value [data-testid='stMarkdownContainer']"
+
+
 def sample(name: str):
     """A bundled sample worksheet, by file name."""
     from heatbalance.worksheet import load_worksheet
@@ -31,6 +35,29 @@ def held(at):
     from webapp.state import KEY
 
     return at.session_state[KEY].worksheet
+
+
+def shown_answer(at) -> tuple[str, str] | None:
+    """The answer panel's (label, value) as read on screen (AppTest), or None when there is no answer."""
+    import re
+
+    from webapp.answer import ANSWER_KEY
+
+    def unescaped(text: str) -> str:
+        return re.sub(r"\\(.)", r"\1", text)
+
+    def find(node, label=None):
+        for child in getattr(node, "children", {}).values():
+            if child.type == "caption" and child.value.startswith("Answer"):
+                label = child.value
+            if str(getattr(getattr(child, "proto", None), "id", "")).endswith("-" + ANSWER_KEY):
+                return unescaped(label), unescaped(child.children[0].value)
+            found = find(child, label)
+            if found is not None:
+                return found
+        return None
+
+    return find(at.sidebar)
 
 
 def idle(browser_page) -> None:

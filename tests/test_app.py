@@ -22,6 +22,8 @@ from heatbalance.worksheet import Quantity, Unknown
 from webapp.common import WORD_JOINER, plain
 from webapp.state import KEY, PageState
 
+from page_helpers import shown_answer
+
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
 SAMPLES = {p.name: p for p in sorted((ROOT / "sample_data").glob("*.json"))}
@@ -56,9 +58,9 @@ def engine(ws, system="SI") -> str:
 
 
 def answer_text(at) -> str:
-    metrics = at.sidebar.metric
-    assert len(metrics) == 1, [e.value for e in at.error]
-    return metrics[0].value
+    shown = shown_answer(at)
+    assert shown is not None, [e.value for e in at.error]
+    return shown[1]
 
 
 def _unescaped(text: str) -> str:
@@ -94,7 +96,7 @@ def test_the_page_opens_on_a_solved_sample():
     at = page()
     no_traceback(at)
     assert answer_text(at) == engine(sample("steam_heater_glycol.json")) == "745.6 kg/h"  # engine's answer
-    assert at.sidebar.metric[0].label == "Answer: Steam flow"
+    assert shown_answer(at)[0] == "Answer: Steam flow"
     assert at.selectbox(key="unknown_picker").value == "Steam: flow"
     assert errors(at) == ""
     # the page's editing state is one object under one key (no back-door keys for tests)
@@ -235,7 +237,7 @@ def test_a_wrong_unit_is_marked_and_the_inputs_are_kept():
     edit(at, "streams", {"edited_rows": {0: {"flow": "12 kW"}}})
     no_traceback(at)
     assert "Streams, row 1, flow: unit 'kW' is not a mass flow (it measures power)" in errors(at)
-    assert not at.sidebar.metric  # no answer that would not match the page
+    assert shown_answer(at) is None  # no answer that would not match the page
     typed = rows(at, "streams")
     assert typed[0]["flow"] == "12 kW" and typed[1]["flow"] == "? kg/h" and typed[0]["outlet"] == "40 °C"
     assert list(grid(at, "streams")["check"]) == ["⚠ flow", ""]
@@ -377,7 +379,6 @@ def _markdown_values(at) -> list[str]:
     out = []
     for kind in ("title", "header", "subheader", "markdown", "caption", "error", "warning", "info", "success"):
         out += [(kind, e.value) for e in getattr(at, kind)]
-    out += [("metric label", m.label) for m in at.metric]
     return out
 
 

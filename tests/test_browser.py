@@ -18,12 +18,11 @@ from conftest import playwright_or_skip
 from heatbalance import load_worksheet, solve
 from heatbalance.present.tables import contribution_rows
 from heatbalance.present.text import answer_text
-from page_helpers import FIRST_DRAW_MS, PICKER_EDITOR, choose, idle, open_cell_editor, type_into_cell
+from page_helpers import ANSWER, FIRST_DRAW_MS, PICKER_EDITOR, choose, idle, open_cell_editor, type_into_cell
 
 pytestmark = pytest.mark.browser
 
 SAMPLES = Path(__file__).resolve().parent.parent / "sample_data"
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 TIMEOUT_MS = 30_000
 
 

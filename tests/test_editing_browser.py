@@ -15,13 +15,12 @@ import pytest
 from heatbalance import address, load_worksheet, solve
 from heatbalance.present.text import answer_text
 from heatbalance.worksheet import Duty, Quantity
-from page_helpers import (FIRST_DRAW_MS, TEXT_EDITOR, cell_text, choose, grid, idle, painted, selected_cell,
+from page_helpers import (ANSWER, FIRST_DRAW_MS, TEXT_EDITOR, cell_text, choose, grid, idle, painted, selected_cell,
                           type_and_commit, type_into_cell, wait_for_cell)
 
 pytestmark = pytest.mark.browser
 
 SAMPLE = Path(__file__).resolve().parent.parent / "sample_data" / "steam_heater_glycol.json"
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 TIMEOUT_MS = 30_000
 STREAM_COLUMNS = ["name", "material", "mass fraction", "flow", "pressure", "pressure is", "inlet", "outlet"]
 

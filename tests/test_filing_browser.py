@@ -15,7 +15,7 @@ from pathlib import Path
 
 import pypdf
 import pytest
-from page_helpers import choose, idle, open_page
+from page_helpers import ANSWER, choose, idle, open_page
 
 from conftest import running_app
 from heatbalance import load_worksheet, solve
@@ -27,7 +27,6 @@ from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 pytestmark = pytest.mark.browser
 
 SAMPLE = Path(__file__).resolve().parent.parent / "sample_data" / "solvent_condenser_cooling_water.json"
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 PLUS_MINUS = ".st-key-answer_uncertainty"
 TIMEOUT_MS = 30_000
 SIGNER = "Rosa Okafor"

@@ -16,6 +16,7 @@ from pathlib import Path
 import pytest
 
 from conftest import running_app
+from page_helpers import ANSWER
 from heatbalance import address
 from heatbalance.links import sheet_link
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB
@@ -26,7 +27,6 @@ pytestmark = pytest.mark.browser
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLE = ROOT / "sample_data" / "batch_reactor_exotherm.json"
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 NOT_SOLVED = ".st-key-answer [data-testid='stAlert']"
 TIMEOUT_MS = 30_000
 FIRST_DRAW_MS = 120_000  # the first page of a fresh server (imports, property tables) on a busy machine

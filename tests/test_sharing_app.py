@@ -20,6 +20,8 @@ from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 from webapp.common import WORD_JOINER
 
+from page_helpers import shown_answer
+
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
 KEY = "hb_page"  # app.py's one session key: the page state (webapp.state.PageState)
@@ -50,10 +52,10 @@ def no_traceback(at: AppTest) -> None:
 
 
 def answer(at: AppTest) -> str:
-    """The answer's metric (other panels, e.g. the screening, add metrics of their own)."""
-    metrics = [m for m in at.sidebar.metric if m.label.startswith("Answer")]
-    assert len(metrics) == 1, [e.value for e in at.error]
-    return metrics[0].value
+    """The answer's value as shown."""
+    shown = shown_answer(at)
+    assert shown is not None, [e.value for e in at.error]
+    return shown[1]
 
 
 def shown(text: str) -> str:

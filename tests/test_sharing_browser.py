@@ -14,6 +14,7 @@ from pathlib import Path
 import pytest
 
 from conftest import running_app
+from page_helpers import ANSWER
 from heatbalance import load_worksheet, solve
 from heatbalance.present.text import answer_text
 from heatbalance.links import revision_id, sheet_link
@@ -22,7 +23,6 @@ from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 pytestmark = pytest.mark.browser
 
 ROOT = Path(__file__).resolve().parent.parent
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 SAMPLE = ROOT / "sample_data" / "condensate_flash.json"
 TIMEOUT_MS = 30_000
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from page_helpers import idle, open_page
+from page_helpers import ANSWER, idle, open_page
 
 from heatbalance import load_worksheet, solve
 from heatbalance.address import with_value
@@ -20,7 +20,6 @@ pytestmark = pytest.mark.browser
 
 SAMPLE = Path(__file__).resolve().parent.parent / "sample_data" / "steam_heater_glycol.json"
 PANEL = ".st-key-site_panel"
-ANSWER = ".st-key-answer [data-testid='stMetricValue']"
 TIMEOUT_MS = 60_000  # two cores shared with other runs: a script run can take tens of seconds
 
 

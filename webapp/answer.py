@@ -16,9 +16,10 @@ from heatbalance.worksheet import Worksheet
 
 from .common import page_state, plain
 from .state import NEW_DUTY
-from .uncertainty_panel import key as uncertainty_key
 
-__all__ = ["render_header", "render_answer", "refusal_place", "unknown_choices", "NEW_DUTY_LABEL"]
+__all__ = ["render_header", "render_answer", "refusal_place", "unknown_choices", "NEW_DUTY_LABEL", "ANSWER_KEY"]
+
+ANSWER_KEY = "answer_value"  # the container holding the answer's value alone (its look: app.py's CSS)
 
 
 def render_header(worksheet: Worksheet) -> None:
@@ -31,6 +32,8 @@ NEW_DUTY_LABEL = "a heater or cooler duty (adds a duty line)"
 
 
 def _on_unknown_pick(choices: dict[str, str]) -> None:
+    from .uncertainty_panel import key as uncertainty_key  # (pandas comes with it: not before the answer)
+
     new = choices.get(st.session_state.get("unknown_picker"))
     if new is not None:
         state = page_state()
@@ -79,7 +82,10 @@ def refusal_place(error: HeatBalanceError) -> str:
 def _render_answer_value(result: Result, system: str) -> None:
     answer = result.answer
     shown = answer_text(answer, system)
-    st.metric(f"Answer: {plain(answer.label)}", shown)
+    # plain Markdown, not a metric widget: the page's first draw waits for no script of the browser's own,
+    # so the answer is on screen before the grids and charts are (the metric's look comes from the page's CSS)
+    st.caption(f"Answer: {plain(answer.label)}")
+    st.container(key=ANSWER_KEY).markdown(plain(shown))
     in_view = answer_text(dataclasses.replace(answer, typed_unit=None), system)
     if in_view != shown:  # typed in another unit than the view's: show both
         st.caption(f"= {plain(in_view)}")

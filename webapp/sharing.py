@@ -14,7 +14,7 @@ in :mod:`heatbalance.store`, :mod:`heatbalance.links` and :mod:`heatbalance.pres
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Callable
+from typing import TYPE_CHECKING, Callable
 from urllib.parse import urlsplit, urlunsplit
 
 import streamlit as st
@@ -23,10 +23,12 @@ from heatbalance.errors import HeatBalanceError, WorksheetFormatError
 from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link
 from heatbalance.results import Result
-from heatbalance.store import RevisionInfo, WorksheetStore, database_url
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
 from .common import plain
+
+if TYPE_CHECKING:  # SQLAlchemy loads at the store's first use, after the answer is on screen
+    from heatbalance.store import RevisionInfo, WorksheetStore
 
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
            "Origin", "note_origin", "origin_text", "render_origin", "saver", "PROBLEM", "BASE", "SAVED",
@@ -62,11 +64,15 @@ class Origin:
 
 @st.cache_resource(show_spinner=False)
 def _store(url: str) -> WorksheetStore:
+    from heatbalance.store import WorksheetStore
+
     return WorksheetStore(url)
 
 
 def get_store() -> WorksheetStore:
     """The worksheet store named by the environment, one per process (SQLAlchemy engines are thread-safe)."""
+    from heatbalance.store import database_url
+
     return _store(database_url())
 
 
