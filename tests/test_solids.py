@@ -83,12 +83,12 @@ def test_every_table_is_sourced_and_covers_its_materials_validated_range():
 def test_cp_tables_are_pinned():
     """A silent edit of the shipped cp(T) table fails here: update the checksum only with a reviewed change."""
     tables = cp_tables()
-    assert len(tables) == 14 and sum(len(t.temperatures) for t in tables.values()) == 152
+    assert len(tables) == 17 and sum(len(t.temperatures) for t in tables.values()) == 171
     column = ",".join(f"{c:.6g}" for t in tables.values() for c in t.cp_values)
     assert hashlib.sha256(column.encode()).hexdigest()[:16] == CP_TABLES_CHECKSUM, CP_TABLES_FILE
 
 
-CP_TABLES_CHECKSUM = "ee2af48e45e8ea58"  # fireclay, borosilicate glass, glass fibre by Neumann-Kopp (tools/neumann_kopp.py)
+CP_TABLES_CHECKSUM = "551af61df6cc75e2"  # + concrete, dry and moist, by EN 1992-1-2
 
 
 def oven(material, final_C, mass="1 t"):
@@ -111,6 +111,47 @@ def test_extrapolation_band_is_warned():
     result = solve_and_analyse(oven("copper", 1020))  # valid to 1000 °C, refused above 1050 °C
     assert any("1020.0 °C is outside the validated range of the data for copper (-170 °C to 1000 °C)" in w.text
                for w in result.warnings)
+
+
+# Concrete: EN 1992-1-2:2004, 3.3.2 Eq. (3.9) (from memory): cp = 900 J/(kg·K) to 100 °C, 900 + (θ − 100) to
+# 200 °C, 1000 + (θ − 200)/2 to 400 °C, 1100 to 1200 °C (dry, u = 0 %); with moisture u a peak over 100-115 °C
+# (1470 at 1.5 %, 2020 at 3 %) falling linearly to 1000 at 200 °C. Hand calculations of the integrals:
+#   20->100 °C: 900·80 = 72.0 kJ/kg; 100->200: 900·100 + 100²/2 = 95.0; 200->400: 1000·200 + 200²/4 = 210.0;
+#   400->1000: 1100·600 = 660.0 kJ/kg
+CONCRETE_CASES = [("concrete", 100, 72.0e3), ("concrete", 200, 167.0e3), ("concrete", 400, 377.0e3),
+                  ("concrete", 1000, 1037.0e3),
+                  # 3 %: 72.0 + 2020·15 = 30.3 + 85·(2020 + 1000)/2 = 128.35 -> 230.65 kJ/kg to 200 °C
+                  ("concrete (3 % moisture)", 200, 230.65e3),
+                  # 1.5 %: 72.0 + 1470·15 = 22.05 + 85·(1470 + 1000)/2 = 104.975 -> 199.025 kJ/kg
+                  ("concrete (1.5 % moisture)", 200, 199.025e3)]
+
+
+@pytest.mark.parametrize("name, T2, expected", CONCRETE_CASES, ids=[f"{n}-{t}C" for n, t, _ in CONCRETE_CASES])
+def test_concrete_follows_the_eurocode_curve(name, T2, expected):
+    # the standard's step at 100 °C is shipped as a 0.01 K ramp: (2020 − 900)·0.01/2 = 5.6 J/kg at most
+    assert enthalpy_change(name, 20, T2) == pytest.approx(expected, abs=6.0)
+
+
+def test_the_moisture_allowance_is_about_the_waters_latent_heat():
+    """A physical check of the moist curves: their heat above the dry curve is close to evaporating the water."""
+    from iapws import IAPWS97
+
+    latent = (IAPWS97(T=373.15, x=1).h - IAPWS97(T=373.15, x=0).h) * 1e3  # J/kg at 100 °C, IAPWS-IF97 via iapws
+    for name, water in (("concrete (1.5 % moisture)", 0.015), ("concrete (3 % moisture)", 0.03)):
+        excess = enthalpy_change(name, 20, 400) - enthalpy_change("concrete", 20, 400)
+        # 3 %: 63.65 kJ/kg against 0.03 × 2256.5 = 67.7 (94 %); 1.5 %: 32.0 against 33.8 (95 %) (hand calculation)
+        assert excess == pytest.approx(water * latent, rel=0.08), name
+
+
+def test_concrete_outside_the_standards_curve():
+    with pytest.raises(PropertyRangeError) as caught:
+        solve_and_analyse(oven("concrete", 1250))
+    assert error_text(caught.value) == ("temperature 1250.00 °C is outside the property data of concrete "
+                                        "(-50.00 °C to 1200.00 °C)")
+    cold = solve_and_analyse(oven("concrete", 5))  # below 20 °C the 20-100 °C value is continued, warned
+    assert cold.answer.value_si == pytest.approx(-1000 * 900 * 15, rel=1e-9)  # 1 t × 900 J/(kg·K) × 15 K
+    assert any("outside the validated range of the data for concrete (20 °C to 1200 °C)" in w.text
+               for w in cold.warnings)
 
 
 def reactor(equipment, screening=None):
