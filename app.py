@@ -16,7 +16,7 @@ import streamlit as st
 from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
 from webapp import sharing
-from webapp.answer import render_answer, render_header
+from webapp.answer import ANSWER_KEY, render_answer, render_header
 from webapp.common import DEFAULT_SAMPLE, SAMPLES_DIR, display_system, guarded, load_sample, page_state
 from webapp.state import KEY, PageState
 
@@ -25,7 +25,7 @@ SIDEBAR_PX = 360  # the answer panel's width at first (the user can drag it)
 # narrower page margins than Streamlit's wide layout, so the inputs fit a 1400 px screen beside the answer panel;
 # the answer's value as large as a metric's
 _LAYOUT_CSS = ("<style>.stMainBlockContainer{padding:2.5rem 2rem 4rem 2rem;}"
-               ".st-key-answer_value p{font-size:2.25rem;line-height:1.25;margin:0;}</style>")
+               f".st-key-{ANSWER_KEY} p{{font-size:2.25rem;line-height:1.25;margin:0;}}</style>")
 
 
 def replace_worksheet(worksheet: Worksheet) -> None:
