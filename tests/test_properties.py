@@ -118,13 +118,13 @@ def test_glycol_solution_heat_capacity_is_plausible():
 def test_solid_table_is_pinned():
     """A silent edit of the shipped table fails here: update the checksum only with a reviewed change."""
     rows = solid_table()
-    assert len(rows) == 16 and len(rows[0]) == 10
+    assert len(rows) == 18 and len(rows[0]) == 10
     assert all(row["source"].strip() for row in rows)
     cp_column = ",".join(row["cp_low_kJ_kgK"] for row in rows)
     assert hashlib.sha256(cp_column.encode()).hexdigest()[:16] == CP_CHECKSUM, SOLIDS_FILE
 
 
-CP_CHECKSUM = "91cab8a2ae6dc023"  # fireclay 0.96 -> 0.759, borosilicate 0.83 -> 0.783, glass fibre 0.795 -> 0.820 (25 °C of the Neumann-Kopp cp(T) rows); issue 13: four rows added (glass-lined steel, magnesia, fireclay brick, glass fibre), generic austenitic 0.50 -> 0.477 (AISI 304)
+CP_CHECKSUM = "af2bb83867de1686"  # concrete 0.88 -> 0.90 (EN 1992-1-2) and its two moist variants added; before: fireclay 0.96 -> 0.759, borosilicate 0.83 -> 0.783, glass fibre 0.795 -> 0.820 (25 °C of the Neumann-Kopp cp(T) rows); issue 13: four rows added (glass-lined steel, magnesia, fireclay brick, glass fibre), generic austenitic 0.50 -> 0.477 (AISI 304)
 
 
 def test_catalogue_lists_generic_names_only():
