@@ -60,6 +60,13 @@ def shown_answer(at) -> tuple[str, str] | None:
     return find(at.sidebar)
 
 
+def answer_value(at) -> str:
+    """The answer's value as shown (the page's refusals in the failure message when there is none)."""
+    shown = shown_answer(at)
+    assert shown is not None, [e.value for e in at.error]
+    return shown[1]
+
+
 def idle(browser_page) -> None:
     """The script run has finished: Streamlit's running indicator is gone and no element is left stale
     (a short run may end before the indicator shows; its elements are stale until it does)."""

@@ -22,7 +22,7 @@ from heatbalance.worksheet import Quantity, Unknown
 from webapp.common import WORD_JOINER, plain
 from webapp.state import KEY, PageState
 
-from page_helpers import shown_answer
+from page_helpers import answer_value, shown_answer
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -57,10 +57,7 @@ def engine(ws, system="SI") -> str:
     return written(solve_and_analyse(ws).answer, system)
 
 
-def answer_text(at) -> str:
-    shown = shown_answer(at)
-    assert shown is not None, [e.value for e in at.error]
-    return shown[1]
+answer_text = answer_value
 
 
 def _unescaped(text: str) -> str:
@@ -413,6 +410,7 @@ def _markdown_values(at) -> list[str]:
     out = []
     for kind in ("title", "header", "subheader", "markdown", "caption", "error", "warning", "info", "success"):
         out += [(kind, e.value) for e in getattr(at, kind)]
+    out += [("metric label", m.label) for m in at.metric]  # none today: the answer is Markdown
     return out
 
 

@@ -17,7 +17,7 @@ from heatbalance.links import revision_id
 from heatbalance.present.text import answer_text as written
 from heatbalance.reactor import CAUTION
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB
-from page_helpers import held, page, sample, shown_answer
+from page_helpers import answer_value, held, page, sample, shown_answer
 from webapp.answer import NEW_DUTY_LABEL
 from webapp.grids import TYPED_INTO_UNKNOWN
 from webapp.state import KEY
@@ -25,10 +25,7 @@ from webapp.state import KEY
 GLYCOL = "steam_heater_glycol.json"  # 12 t/h glycol 5 -> 40 °C on 4 barg steam: 745.6 kg/h of steam
 
 
-def answer(at) -> str:
-    shown = shown_answer(at)
-    assert shown is not None, [e.value for e in at.error]
-    return shown[1]
+answer = answer_value
 
 
 def errors(at) -> str:

@@ -20,7 +20,7 @@ from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 from webapp.common import WORD_JOINER
 
-from page_helpers import shown_answer
+from page_helpers import answer_value
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -51,11 +51,7 @@ def no_traceback(at: AppTest) -> None:
     assert not at.exception, [e.value for e in at.exception]
 
 
-def answer(at: AppTest) -> str:
-    """The answer's value as shown."""
-    shown = shown_answer(at)
-    assert shown is not None, [e.value for e in at.error]
-    return shown[1]
+answer = answer_value
 
 
 def shown(text: str) -> str:

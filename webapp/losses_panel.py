@@ -80,7 +80,7 @@ def _defaults(worksheet: Worksheet, name: str) -> dict:
 def _render_records(result: Result, system: str) -> None:
     for i, record in enumerate(result.surface_losses):
         st.markdown(f"**{plain(record.name)}**")
-        heat, surface, protection = st.columns(3)  # not metrics: the page's one metric is the answer
+        heat, surface, protection = st.columns(3)  # text, as the answer is (no metric widgets)
         heat.markdown(f"Heat lost: **{plain(measure_text(Measure(record.loss, 'power'), system))}**")
         surface.markdown(f"Outer surface: **{plain(measure_text(Measure(record.surface_T, 'temperature', 1), system))}**")
         protection.caption(f"Personnel protection: {plain(protection_text(record, system))} (common practice; "

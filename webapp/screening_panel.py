@@ -223,7 +223,7 @@ def _current(index: int, worksheet: Worksheet, screening: Screening, system: str
 
 
 def _numbers(s: Screening, system: str) -> None:
-    """The numbers as one small table (markdown: the page keeps ``st.metric`` for its one answer)."""
+    """The numbers as one small table (markdown, like the answer)."""
     dt = temperature_difference_text
 
     def t(value: float | None) -> str:
