@@ -161,6 +161,18 @@ def test_a_salt_solution_is_refused_at_its_material():
     assert "Raoult's law does not hold for dissolved electrolytes" in s.MTT_source.text
 
 
+@pytest.mark.parametrize("material, fraction, words", [
+    ("sulfuric acid (aq)", 0.25, "is an electrolyte solution: Raoult's law does not hold"),
+    ("ammonia (aq)", 0.2, "is a solution of a dissolved gas (Henry's law, not Raoult's)")])
+def test_an_acid_base_or_ammonia_solution_is_refused_at_its_material(material, fraction, words):
+    doc = reactor([charge("Solution", material, mass_fraction=fraction, initial=temp(20)),
+                   charge("Water", "water", initial=temp(20))])
+    doc["vessels"][0]["final"] = temp(30)  # ammonia (aq)'s data end at 35 °C
+    _, s = screening(doc)
+    assert s.MTT is None and s.MTT_source.address == "vessels[R].charges[Solution].material"
+    assert words in s.MTT_source.text and "enter MTT (vessels[R].screening.MTT)" in s.MTT_source.text
+
+
 def test_an_unknown_chemical_is_refused_at_its_component():
     _, s = screening(reactor([charge("Water", "water"), charge("X", "solvent X")],
                              {"components": [{"charge": "X", "chemical": "unobtainium"}]}, [CP_ONLY]))

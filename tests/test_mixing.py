@@ -358,3 +358,99 @@ def test_a_mixing_named_like_a_duty_is_refused():
     doc["mixings"][0]["name"] = "Jacket cooling"
     with pytest.raises(WorksheetFormatError, match="heat term names must be unique; repeated: Jacket cooling"):
         parse_worksheet(doc)
+
+
+# --------------------------------------------------------------------------- thermal screening of a dilution
+def screened(doc: dict):
+    from heatbalance.analyses import solve_and_analyse
+
+    return solve_and_analyse(parse_worksheet(doc))
+
+
+def test_a_dilution_vessel_is_screened_with_its_heat_of_mixing():
+    from thermo.electrochem import Laliberte_heat_capacity
+
+    result = screened(sample())
+    (s,) = result.screening
+    (mixing,) = [t for t in result.terms if t.kind == "mixing"]
+    assert s.vessel == "D-101" and s.reactions == ["Dilution 98 % to 25 %"]
+    assert s.Q_mixing == s.Q_reaction == mixing.heat
+    # the mixed 25 % acid counts with its own cp: Laliberté (2009) as computed by thermo.electrochem directly
+    # (1e-4: the water it replaces is counted at IAPWS-IF97's cp, 0.23 J/(kg·K) above Laliberté's water term)
+    assert s.cp == pytest.approx(Laliberte_heat_capacity(313.15, [0.25], ["7664-93-9"]), rel=1e-4)
+    # hand calculation: 656,021 kJ / (3,920 kg × 3.3057 kJ/(kg·K)) = 50.63 K; MTSR = 40 °C + 50.63 K (100 %)
+    assert s.dT_ad == pytest.approx(50.63, abs=0.01)
+    assert s.MTSR - 273.15 == pytest.approx(90.63, abs=0.01)
+    assert any("counts in ΔT_ad" in n.text for n in s.notes)
+    # an electrolyte's boiling point is not computed by Raoult's law: MTT is left to be entered, at its address
+    assert s.MTT is None and "electrolyte solution" in s.MTT_source.text
+    assert "vessels[D-101].screening.MTT" in s.MTT_source.text
+    from heatbalance.present.screening import screening_report
+
+    report = screening_report(result.screening)
+    assert "  heat of mixing released    656,020.8 kJ" in report
+    assert not any(line.startswith("  reaction heat released") for line in report)
+
+
+def test_the_accumulation_applies_to_the_heat_of_mixing():
+    doc = sample()
+    doc["vessels"][0]["screening"] = {"accumulation": 0.4, "MTT": q(105, "degC"), "T_D24": q(200, "degC")}
+    (s,) = screened(doc).screening
+    # hand calculation: 40 °C + 0.4 × 50.63 K = 60.25 °C, below MTT 105 °C and T_D24 200 °C: class 1 (Stoessel)
+    assert s.MTSR - 273.15 == pytest.approx(60.25, abs=0.01)
+    assert s.criticality_class == 1
+
+
+def test_reaction_and_mixing_heat_add_up_in_one_vessel():
+    doc = sample()
+    doc["reactions"] = [{"name": "Side reaction", "enthalpy": q(-100, "kJ/mol"), "amount": q(1000, "mol"),
+                         "vessel": "D-101"}]
+    (s,) = screened(doc).screening
+    # 100 kJ/mol × 1000 mol = 100,000 kJ on top of the 656,021 kJ of dilution
+    assert (s.Q_reaction - s.Q_mixing) / 1e3 == pytest.approx(100_000, rel=1e-9)
+    assert s.Q_mixing / 1e3 == pytest.approx(656_021, rel=1e-4)
+    assert sorted(s.reactions) == ["Dilution 98 % to 25 %", "Side reaction"]
+
+
+def test_a_solid_solute_beyond_the_solution_data_keeps_the_charges_cps_and_says_so():
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "T-1", "charges": [
+                   {"name": "Water", "material": "water", "mass": q(1000, "kg"), "initial": temp(20)},
+                   {"name": "Lye 40 %", "material": "lye 40 %",
+                    "mass": q(100, "kg"), "initial": temp(20)}],
+                   "final": temp(30)}],
+               materials=[constant_cp_material("lye 40 %", cp=3.2)],
+               mixings=[{"name": "Lye dilution", "solute": "sodium hydroxide", "amount": q(100, "kg"),
+                         "from_fraction": 0.4, "with_fraction": 0.0, "to_fraction": 0.0364, "vessel": "T-1"}],
+               duties=[{"name": "Cooling"}], unknowns=[{"kind": "duty", "term": "Cooling"}])
+    from heatbalance.analyses import solve_and_analyse
+
+    (s,) = solve_and_analyse(ws).screening
+    # 40 % NaOH lies beyond Laliberté's fitted 30 %: the mixed solution's cp cannot replace its parts'
+    assert any("the charges' own cps are used" in n.text for n in s.notes)
+    assert s.Q_mixing > 0
+
+
+def test_a_mixing_naming_no_vessel_on_a_two_vessel_sheet_is_warned_at_its_address():
+    doc = sample()
+    second = json.loads(json.dumps(doc["vessels"][0]))
+    second["name"] = "D-102"
+    doc["vessels"].append(second)
+    doc["mixings"][0].pop("vessel")
+    result = screened(doc)
+    assert result.screening == []
+    (warning,) = [w for w in result.warnings if w.text.startswith("Mixing")]
+    assert warning.address == f"{BASE}.vessel" and "gets no thermal screening" in warning.text
+
+
+def test_a_sweep_collects_the_dilution_screening():
+    from heatbalance.analyses.sweep import Axis, sweep
+
+    ws = parse_worksheet(sample())
+    frame = sweep(ws, [Axis(f"{BASE}.amount", (500.0, 1000.0), "kg")],
+                  ["screening[D-101].MTSR", "screening[D-101].dT_ad"])
+    for amount, dT_ad, MTSR in zip(frame[f"{BASE}.amount"], frame["screening[D-101].dT_ad"],
+                                   frame["screening[D-101].MTSR"]):
+        (alone,) = screened(with_value(ws, f"{BASE}.amount", (amount, "kg")).model_dump(mode="json")).screening
+        assert (dT_ad, MTSR) == pytest.approx((alone.dT_ad, alone.MTSR), rel=1e-9)
+    assert frame["screening[D-101].dT_ad"].iloc[1] == pytest.approx(50.63, abs=0.01)  # the sample, above

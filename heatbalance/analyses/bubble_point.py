@@ -23,6 +23,7 @@ from ..address import item
 from ..errors import InputError
 from ..materials import PURE_FLUIDS
 from ..messages import Measure, Phrase
+from ..mixing import ElectrolyteSolution
 
 __all__ = ["BubblePoint", "mixture_components", "bubble_point", "catalogue_chemical", "GLYCOLS", "UNIFAC_NAME",
            "RAOULT_NAME"]
@@ -31,6 +32,7 @@ __all__ = ["BubblePoint", "mixture_components", "bubble_point", "catalogue_chemi
 GLYCOLS = {"MEG": "ethylene glycol", "MPG": "propylene glycol"}
 UNIFAC_NAME = "original UNIFAC (thermo.unifac version 0, DDBST group assignments)"
 RAOULT_NAME = "Raoult's law (ideal solution, γ = 1)"
+_NOT_RAOULT = ("an electrolyte solution", "a solution of a dissolved gas (Henry's law, not Raoult's)")
 _BLENDS = {"R-410A", "air"}  # catalogue fluids that are mixtures themselves
 _TABLE_CHEMICALS = {"ice (melting to water)": "water"}  # rows of the shipped table that are one chemical
 _CATALOGUE_IDS = {"R-32": "75-10-5"}  # catalogue names the `chemicals` search does not know: CAS (difluoromethane)
@@ -82,6 +84,10 @@ def mixture_components(lines: list, results: list, chemicals: dict[str, str], ve
         elif getattr(material, "code", None) in GLYCOLS:
             out.append(("water", solved.amount_si * (1.0 - material.fraction), where))
             out.append((GLYCOLS[material.code], solved.amount_si * material.fraction, where))
+        elif isinstance(material, ElectrolyteSolution):
+            raise InputError(f"{line.material_name} is {_NOT_RAOULT[material.solute.name == 'ammonia']}: Raoult's "
+                             f"law does not hold, so the mixture's boiling point is not computed; enter MTT "
+                             f"({item('vessels', vessel, 'screening', 'MTT')})", where)
         elif getattr(material, "code", None) is not None:
             raise InputError(f"{line.material_name} is a salt solution: Raoult's law does not hold for dissolved "
                              f"electrolytes, so the mixture's boiling point is not computed; enter MTT "

@@ -1,11 +1,13 @@
-"""Thermal screening of every vessel with a reaction, on a solved balance (SI only).
+"""Thermal screening of every vessel with a reaction or a stated heat of mixing, on a solved balance (SI only).
 
 The published relations are in :mod:`heatbalance.reactor`; this module gathers their
-inputs from the solved problem and result (reaction heat, masses, cp at the process
+inputs from the solved problem and result (reaction heat, heat of mixing, masses, cp at the process
 temperature, the vessel's equipment, boiling points) and returns typed records. The
 report and the figure are :mod:`heatbalance.present.screening`.
 
-A reaction belongs to the vessel it names in ``vessel``, or to the only vessel.
+A reaction or a mixing belongs to the vessel it names in ``vessel``, or to the only vessel. A heat of mixing
+(dilution, solution, neutralisation) is released as the liquids meet, like a fast reaction: on loss of cooling it
+raises the temperature the same way, so it counts in ΔT_ad beside the reaction heat.
 """
 from __future__ import annotations
 
@@ -14,11 +16,12 @@ from dataclasses import dataclass, field
 from ..address import item
 from ..errors import HeatBalanceError, InputError, NoSolutionError
 from ..messages import Measure, Phrase
+from ..mixing import SOLUTES, ElectrolyteSolution
 from ..problem import JacketInputs, Problem
 from ..reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, criticality_class, jacket_time, mtsr,
                        thermal_inertia_factor)
 from ..results import Result
-from ..units import ATMOSPHERE
+from ..units import ATMOSPHERE, heat_kind
 from .bubble_point import GLYCOLS, bubble_point, mixture_components
 
 __all__ = ["JacketTime", "Screening", "screen", "cp_at"]
@@ -41,12 +44,12 @@ class JacketTime:
 
 @dataclass
 class Screening:
-    """The thermal screening of one vessel with a reaction, SI (K, J, kg, J/(kg·K), J/K)."""
+    """The thermal screening of one vessel with a reaction or a heat of mixing, SI (K, J, kg, J/(kg·K), J/K)."""
 
     vessel: str
-    reactions: list[str]
+    reactions: list[str]  # the reactions' and the mixings' names
     T_process: float
-    Q_reaction: float  # J released by the reactions (+ exothermic)
+    Q_reaction: float  # J released by the reactions and the mixings (+ exothermic): what ΔT_ad is made of
     mass: float  # kg of reaction mass (all charges)
     cp: float  # J/(kg·K), mass-weighted at the process temperature
     heat_capacity_vessel: float  # J/K
@@ -67,6 +70,7 @@ class Screening:
     caution: str = CAUTION
     MTT_composition: dict = field(default_factory=dict)  # mole fractions when MTT is the mixture's bubble point
     MTT_model: str = ""  # the activity model of that bubble point
+    Q_mixing: float = 0.0  # J of Q_reaction released by stated heats of mixing
 
     @property
     def alarm(self) -> bool:
@@ -92,22 +96,27 @@ def cp_at(material, T: float, P: float, where: str = "") -> float:
     return (material.enthalpy(hi, P) - material.enthalpy(lo, P)) / (hi - lo)
 
 
-def _vessel_reactions(problem: Problem) -> dict[str, list]:
+_RELEASES = {"reaction": "reactions", "mixing": "mixings"}  # the terms a screening counts -> their list
+
+
+def _vessel_releases(problem: Problem) -> dict[str, list]:
+    """Each vessel's reactions and stated mixings (a term naming no vessel belongs to the only one)."""
     found: dict[str, list] = {name: [] for name in problem.vessels}
-    for term in (t for t in problem.terms if t.kind == "reaction"):
+    for term in (t for t in problem.terms if t.kind in _RELEASES):
         if term.vessel is None:
             if len(problem.vessels) == 1:
                 found[problem.vessels[0]].append(term)
             continue
         if term.vessel not in found:
             raise InputError(f"names vessel '{term.vessel}', which is not a vessel of this worksheet "
-                             f"(vessels: {', '.join(problem.vessels)})", item("reactions", term.name, "vessel"))
+                             f"(vessels: {', '.join(problem.vessels)})", item(_RELEASES[term.kind], term.name,
+                                                                               "vessel"))
         found[term.vessel].append(term)
     return found
 
 
 def screen(problem: Problem, result: Result) -> list[Screening]:
-    """The thermal screening of every vessel of a solved balance that has a reaction.
+    """The thermal screening of every vessel of a solved balance that has a reaction or a stated heat of mixing.
 
     Parameters
     ----------
@@ -125,19 +134,21 @@ def screen(problem: Problem, result: Result) -> list[Screening]:
     Raises
     ------
     InputError
-        A reaction naming no vessel of the worksheet (at ``reactions[R].vessel``).
+        A reaction or a mixing naming no vessel of the worksheet (at ``reactions[R].vessel``,
+        ``mixings[M].vessel``).
     NoSolutionError
         A jacket target the utility cannot reach (at ``vessels[V].screening.jacket.target_temperature``).
     """
     if not problem.vessels:
         return []
-    by_vessel = _vessel_reactions(problem)
+    by_vessel = _vessel_releases(problem)
     if len(problem.vessels) > 1:
         for term in problem.terms:
-            if term.kind == "reaction" and term.vessel is None:
+            if term.kind in _RELEASES and term.vessel is None:
+                what = "Reaction" if term.kind == "reaction" else "Mixing"
                 result.warnings.append(Phrase(
-                    f"Reaction {term.name} names no vessel and the worksheet has {len(problem.vessels)}: it gets no "
-                    "thermal screening. Set its vessel.", address=item("reactions", term.name, "vessel")))
+                    f"{what} {term.name} names no vessel and the worksheet has {len(problem.vessels)}: it gets no "
+                    "thermal screening. Set its vessel.", address=item(_RELEASES[term.kind], term.name, "vessel")))
     return [_located(_screen_vessel, name, by_vessel[name], problem, result)
             for name in problem.vessels if by_vessel[name]]
 
@@ -147,12 +158,12 @@ def _located(screen_vessel, vessel: str, *args) -> Screening:
     try:
         return screen_vessel(vessel, *args)
     except HeatBalanceError as exc:
-        if not exc.where.startswith(("vessels[", "reactions[")):
+        if not exc.where.startswith(("vessels[", "reactions[", "mixings[")):
             exc.address = item("vessels", vessel, "screening")
         raise
 
 
-def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Result) -> Screening:
+def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result) -> Screening:
     where = item("vessels", vessel, "screening")
     inputs = problem.screening[vessel]
     charges = [(model, line) for model, line in zip(problem.lines, result.lines) if model.vessel == vessel]
@@ -164,13 +175,16 @@ def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Resul
         T_process = charges[0][1].final_T
         notes.append(Phrase("Process temperature = the vessel's final temperature, {T}.",
                             {"T": Measure(T_process, "temperature", 1)}))
-    names = {t.name for t in reactions}
-    Q = sum(t.heat for t in result.terms if t.kind == "reaction" and t.name in names)
+    names = {t.name for t in releases}
+    Q_mixing = sum(t.heat for t in result.terms if t.kind == "mixing" and t.name in names)
+    Q = Q_mixing + sum(t.heat for t in result.terms if t.kind == "reaction" and t.name in names)
+    if any(t.kind == "mixing" for t in releases):
+        notes.append(_mixing_note(Q_mixing, result.basis))
     mass = sum(line.amount_si for _, line in charges)
     if mass <= 0:
         raise InputError("the vessel holds no mass: the screening needs the charges' masses", where)
-    cp = sum(line.amount_si * cp_at(model.material, T_process, line.final_P, where)
-             for model, line in charges) / mass
+    capacity = sum(line.amount_si * cp_at(model.material, T_process, line.final_P, where) for model, line in charges)
+    cp = (capacity + _mixed_solution_capacity(releases, T_process, notes)) / mass
     notes.append(Phrase("cp of the reaction mass at the process temperature, mass-weighted from the property data: "
                         "{cp}; ΔT_ad assumes it constant over the rise.", {"cp": Measure(cp, "specific_heat")}))
     C_vessel = _vessel_heat_capacity(problem, vessel, T_process, where)
@@ -182,8 +196,8 @@ def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Resul
                         + (" / φ (thermal inertia of the vessel included)." if inputs.thermal_inertia
                            else " (vessel left out, φ = 1: conservative).")))
     if Q <= 0:
-        notes.append(Phrase("The reaction heat is not exothermic: loss of cooling does not raise the temperature "
-                            "through this reaction (MTSR = process temperature)."))
+        notes.append(Phrase("The heat released is not exothermic: loss of cooling does not raise the temperature "
+                            "through it (MTSR = process temperature)."))
     bubble = None
     if inputs.MTT is None and _is_mixture(charges, inputs.chemicals):
         MTT, MTT_source, bubble = _mixture_mtt(vessel, inputs, charges, notes, result.warnings)
@@ -205,7 +219,42 @@ def _screen_vessel(vessel: str, reactions: list, problem: Problem, result: Resul
     return Screening(vessel, sorted(names), T_process, Q, mass, cp, C_vessel, phi, dT_ad, dT_ad_phi,
                      inputs.accumulation, inputs.thermal_inertia, MTSR, MTT, MTT_source, T_D24, klass, meaning,
                      _alarms(T_process, MTSR, MTT, T_D24, where), notes, jacket,
-                     MTT_composition=bubble.composition if bubble else {}, MTT_model=bubble.model if bubble else "")
+                     MTT_composition=bubble.composition if bubble else {}, MTT_model=bubble.model if bubble else "",
+                     Q_mixing=Q_mixing)
+
+
+def _mixed_solution_capacity(releases: list, T: float, notes: list[Phrase]) -> float:
+    """Δ(m·cp) [J/K] of each stated mixing at T: its mixed solution's m·cp (Laliberté's cp at the final strength)
+    in place of its two parts' (each at its own strength), as the parts' own data would count them."""
+    change = 0.0
+    for heat in (t.mixing for t in releases if t.kind == "mixing" and t.mixing is not None):
+        solute = SOLUTES[heat.solute]
+        try:
+            if not solute.t_min <= T <= solute.t_max:
+                raise InputError("outside the solution data's temperatures")
+            cp_a, cp_b, cp_mixed = (ElectrolyteSolution(solute, x).cp(T) for x in (heat.x1, heat.x2, heat.x3))
+        except InputError:
+            notes.append(Phrase("cp of the mixed {solute} solution is not in its data here ({x3} at {T}): the "
+                                "charges' own cps are used, which may overstate the mixture's and understate "
+                                "ΔT_ad.", {"solute": solute.formula, "x3": f"{heat.x3:.1%}",
+                                           "T": Measure(T, "temperature", 1)}))
+            continue
+        change += (heat.mass_a + heat.mass_b) * cp_mixed - heat.mass_a * cp_a - heat.mass_b * cp_b
+        notes.append(Phrase("The mixed {solute} solution ({x3}) counts with its own cp, {cp} (Laliberté, 2009), in "
+                            "place of its parts' ({x1}: {cp_a}; {x2}: {cp_b}).",
+                            {"solute": solute.formula, "x3": f"{heat.x3:.1%}", "x1": f"{heat.x1:.1%}",
+                             "x2": f"{heat.x2:.1%}", "cp": Measure(cp_mixed, "specific_heat"),
+                             "cp_a": Measure(cp_a, "specific_heat"), "cp_b": Measure(cp_b, "specific_heat")}))
+    return change
+
+
+def _mixing_note(Q_mixing: float, basis: str) -> Phrase:
+    return Phrase("The stated heat of mixing ({Q}) counts in ΔT_ad with any reaction heat: it is released as the "
+                  "liquids meet, so on loss of cooling it heats the batch like a fast reaction. The accumulation "
+                  "applies to it too: 100 % is all of it released with no cooling (everything mixed at once, or "
+                  "dosing that goes on after the cooling has failed); dosing stopped when cooling fails releases "
+                  "no more.",
+                  {"Q": Measure(Q_mixing, heat_kind(basis), decimals=0)})
 
 
 def _vessel_heat_capacity(problem: Problem, vessel: str, T: float, where: str) -> float:

@@ -98,7 +98,8 @@ def output_names(problem: Problem) -> dict[str, str]:
     for e in problem.equipment:
         names[f"terms[{e.name}].heat"] = heat
     for vessel in problem.vessels:
-        if any(t.kind == "reaction" and (t.vessel == vessel or (t.vessel is None and len(problem.vessels) == 1))
+        if any(t.kind in ("reaction", "mixing") and (t.vessel == vessel or (t.vessel is None and
+                                                                          len(problem.vessels) == 1))
                for t in problem.terms):
             for name, kind in (("MTSR", "temperature"), ("dT_ad", "temperature_difference"),
                                ("MTT", "temperature"), ("criticality_class", "")):

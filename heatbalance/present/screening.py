@@ -49,9 +49,8 @@ def screening_report(screenings: list[Screening], system: str = "SI", caution: b
         for alarm in s.alarms:
             out.append(f"  !!! ALARM: {phrase_text(alarm, system)}")
         units = UNIT_SETS[system]
+        out += _released_lines(s, units)
         out += [
-            f"  reaction heat released     {from_si(s.Q_reaction, units['energy'], 'energy'):,.1f} "
-            f"{display_unit(units['energy'])}",
             f"  reaction mass              {from_si(s.mass, units['mass'], 'mass'):,.1f} {units['mass']}, "
             f"cp {from_si(s.cp, units['specific_heat'], 'specific_heat'):.3f} {display_unit(units['specific_heat'])}",
             f"  thermal inertia factor φ   {s.phi:.4f}",
@@ -73,6 +72,19 @@ def screening_report(screenings: list[Screening], system: str = "SI", caution: b
         out += [f"  note: {phrase_text(n, system)}" for n in s.notes]
         out.append("")
     return out
+
+
+def _released_lines(s: Screening, units: dict) -> list[str]:
+    """The heat released: the reactions', and the stated mixings' where there are any."""
+    def energy(Q: float) -> str:
+        return f"{from_si(Q, units['energy'], 'energy'):,.1f} {display_unit(units['energy'])}"
+
+    if not s.Q_mixing:
+        return [f"  reaction heat released     {energy(s.Q_reaction)}"]
+    lines = [f"  heat of mixing released    {energy(s.Q_mixing)}"]
+    if s.Q_reaction != s.Q_mixing:
+        lines.append(f"  reaction heat released     {energy(s.Q_reaction - s.Q_mixing)}")
+    return lines
 
 
 def screening_figure(screening: Screening, system: str = "SI", caution: bool = True):
