@@ -14,6 +14,7 @@ from heatbalance.reactor import CAUTION
 from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
 
+from . import sharing
 from .common import page_state, plain
 from .state import NEW_DUTY
 
@@ -97,11 +98,11 @@ def _render_answer_value(result: Result, system: str) -> None:
 
 
 def _on_undo() -> None:
-    page_state().undo()
+    sharing.put_back(page_state().undo(sharing.provenance()))  # across a load: where that sheet came from
 
 
 def _on_redo() -> None:
-    page_state().redo()
+    sharing.put_back(page_state().redo(sharing.provenance()))
 
 
 def _render_undo_redo() -> None:

@@ -25,14 +25,14 @@ from heatbalance.links import decode_sheet, parse_link, revision_id, revision_li
 from heatbalance.results import Result
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-from .common import plain
+from .common import page_state, plain
 
 if TYPE_CHECKING:  # SQLAlchemy loads at the store's first use, after the answer is on screen
     from heatbalance.store import RevisionInfo, WorksheetStore
 
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
            "Origin", "note_origin", "origin_text", "render_origin", "saver", "PROBLEM", "BASE", "SAVED",
-           "OPENED_FROM", "ORIGIN", "render_save", "saved_state_text"]
+           "OPENED_FROM", "ORIGIN", "render_save", "saved_state_text", "provenance", "put_back", "loaded"]
 
 # Session-state keys of this part (apart from widget keys).
 BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
@@ -201,6 +201,41 @@ def forget_revision() -> None:
             del st.query_params[kind]
 
 
+_RECORD = (ORIGIN, BASE, SAVED)  # where the worksheet came from, and the saved revision it is based on
+_LINKS = ("ws", "sheet")  # the address bar's query parameters naming a worksheet
+
+
+def provenance() -> dict:
+    """This part's record of the worksheet on the page: where it came from, the saved revision it is based on,
+    the last save and the address bar's link; what :func:`put_back` takes."""
+    state, query = st.session_state, st.query_params
+    return {"session": {key: state[key] for key in _RECORD if key in state},
+            "query": {kind: query[kind] for kind in _LINKS if kind in query}}
+
+
+def put_back(record: dict | None) -> None:
+    """Make ``record`` (from :func:`provenance`) the page's again, as undo or redo across a load brings its
+    worksheet back; None (an edit): nothing to do. An empty record: origin unknown, based on no revision."""
+    if record is None:
+        return
+    for key in (*_RECORD, NOTICE, PROBLEM):
+        st.session_state.pop(key, None)
+    st.session_state.update(record.get("session", {}))
+    links = record.get("query", {})
+    for kind in _LINKS:
+        if kind in links:
+            st.query_params[kind] = links[kind]
+        elif kind in st.query_params:
+            del st.query_params[kind]
+
+
+def loaded(before: dict) -> None:
+    """Another worksheet was put on the page: undoing that brings back ``before`` (:func:`provenance` taken
+    before the load) with the one it replaced; the new one descends from no saved revision."""
+    page_state().note_replaced(before)
+    forget_revision()
+
+
 # --------------------------------------------------------------------------- who saves
 def _user_info() -> dict:
     """``st.user`` as a dict: empty without a login configured (``is_logged_in`` exists only with one)."""
@@ -263,8 +298,9 @@ def _on_upload(replace: Callable[[Worksheet], None]) -> None:
     except HeatBalanceError as exc:
         state[PROBLEM] = f"{upload.name} was not opened: {exc}"
         return
+    before = provenance()
     replace(worksheet)
-    forget_revision()
+    loaded(before)
     note_origin("upload", worksheet, upload.name)
     state[NOTICE] = f"Opened {upload.name}."
 
@@ -275,13 +311,14 @@ def _on_open_link(replace: Callable[[Worksheet], None]) -> None:
     text = (state.get("share_link_input") or "").strip()
     if not text:
         return
+    before = provenance()  # taken first: opening a saved revision records its origin
     try:
         worksheet, rev_id = open_link(*parse_link(text))
     except HeatBalanceError as exc:
         state[PROBLEM] = f"The link could not be opened: {exc.message}"
         return
     replace(worksheet)
-    forget_revision()
+    loaded(before)
     if rev_id is None:  # a saved revision's origin is recorded by open_link
         note_origin("link", worksheet)
     state[BASE] = rev_id

@@ -3,6 +3,8 @@ from __future__ import annotations
 
 import streamlit as st
 
+from heatbalance.worksheet import Worksheet
+
 from . import grids, sharing
 from .common import UNIT_SYSTEMS, load_sample, page_state, sample_files
 
@@ -17,20 +19,22 @@ _HOW = ("**How it works**  \n"
         "Values stay in the units you type; *Show results in* only changes how results are shown. A number takes a decimal point: `12.5 t/h`.")
 
 
+def _open(worksheet: Worksheet, kind: str, name: str = "") -> None:
+    """Put ``worksheet`` on the page; Undo brings back the one it replaces, and where that came from."""
+    before = sharing.provenance()
+    page_state().replace(worksheet)
+    sharing.loaded(before)
+    sharing.note_origin(kind, worksheet, name)
+
+
 def _on_sample_pick() -> None:
     path = sample_files().get(st.session_state.get("sample_picker"))
     if path is not None:
-        worksheet = load_sample(path)
-        page_state().replace(worksheet)
-        sharing.forget_revision()
-        sharing.note_origin("sample", worksheet, path.name)
+        _open(load_sample(path), "sample", path.name)
 
 
 def _on_new_worksheet() -> None:
-    worksheet = grids.empty_worksheet()
-    page_state().replace(worksheet)
-    sharing.forget_revision()
-    sharing.note_origin("new", worksheet)
+    _open(grids.empty_worksheet(), "new")
 
 
 def render_sidebar() -> None:

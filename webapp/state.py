@@ -6,7 +6,8 @@ The callbacks call its methods; tests may call them too, through ``st.session_st
 a :meth:`PageState.opened` state there before the first run.
 
 Every edit is remembered (:meth:`PageState.undo`, :meth:`PageState.redo`): the worksheet and the rows as typed,
-at most :data:`HISTORY` steps back, within the session.
+at most :data:`HISTORY` steps back, within the session. Loading another worksheet is a step too: undoing it
+brings back the one it replaced, with where that one came from (the sharing part's record, opaque here).
 
 Editors keep their key while the worksheet stays loaded: each editor is given the rows it was last
 *based* on, and reports every edit since as one cumulative set (``apply_table_edit``). A grid is
@@ -16,6 +17,7 @@ the charges. Loading another worksheet bumps the token, so every editor starts a
 """
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 from heatbalance import address
@@ -43,6 +45,7 @@ class _Snapshot:
     worksheet: Worksheet
     rows: dict[str, list[dict]]
     problems: tuple
+    provenance: dict | None = None  # either side of a load: where that worksheet came from; None: an edit
 
 
 def _copy_rows(rows: dict[str, list[dict]]) -> dict[str, list[dict]]:
@@ -72,23 +75,36 @@ class PageState:
     # ------------------------------------------------------------------ loading
     @classmethod
     def opened(cls, worksheet: Worksheet) -> "PageState":
-        """A state with ``worksheet`` loaded."""
+        """A state with ``worksheet`` loaded (nothing to undo)."""
         state = cls(worksheet=worksheet, rows={})
-        state.replace(worksheet)
+        state._load(worksheet)
         return state
 
     def replace(self, worksheet: Worksheet) -> None:
-        """Put another worksheet on the page (a sample, a new sheet, an upload, a link)."""
+        """Put another worksheet on the page (a sample, a new sheet, an upload, a link). The one it replaces
+        stays one undo step back, with its rows as typed (where it came from: :meth:`note_replaced`)."""
+        self.remember(provenance={})
+        self._load(worksheet)
+
+    def note_replaced(self, provenance: dict) -> None:
+        """Where the worksheet the last :meth:`replace` put away came from: undoing that load hands it back."""
+        if self.past and self.past[-1].provenance is not None:
+            self.past[-1] = dataclasses.replace(self.past[-1], provenance=provenance)
+
+    def _load(self, worksheet: Worksheet) -> None:
         self.worksheet = worksheet
         self.rows = grids.worksheet_to_tables(worksheet)
         self.problems, self.basis_problem = [], ""
         self.result = self.error = None
+        self._fresh_editors()
+        self.widgets_stale = True
+
+    def _fresh_editors(self) -> None:
+        """Every grid's editor starts afresh (a new key) on the rows now held."""
         self.load += 1
-        self.base = {t: [dict(r) for r in rows] for t, rows in self.rows.items()}
+        self.base = _copy_rows(self.rows)
         self.base_marks, self.base_views = {}, {}
         self.redraws = {}
-        self.widgets_stale = True
-        self.past, self.future = [], []
 
     def widget_values(self) -> dict:
         """The model-bound widgets' values for the loaded worksheet."""
@@ -104,36 +120,47 @@ class PageState:
         self.worksheet = worksheet
 
     # ------------------------------------------------------------------ undo, redo
-    def _snapshot(self) -> _Snapshot:
-        return _Snapshot(self.worksheet, _copy_rows(self.rows), tuple(self.problems))
+    def _snapshot(self, provenance: dict | None = None) -> _Snapshot:
+        return _Snapshot(self.worksheet, _copy_rows(self.rows), tuple(self.problems), provenance)
 
-    def remember(self) -> None:
-        """Keep the state as it is now as one undo step (called before each edit); a new edit ends redo."""
-        self.past = [*self.past, self._snapshot()][-HISTORY:]
+    def remember(self, provenance: dict | None = None) -> None:
+        """Keep the state as it is now as one undo step (called before each edit); a new edit ends redo.
+        ``provenance`` (a load only): where the worksheet being put away came from."""
+        self.past = [*self.past, self._snapshot(provenance)][-HISTORY:]
         self.future = []
 
     def _restore(self, snapshot: _Snapshot) -> None:
         self.worksheet, self.rows = snapshot.worksheet, _copy_rows(snapshot.rows)
         self.problems, self.basis_problem = list(snapshot.problems), ""
         self.widgets_stale = True  # the title, notes and basis widgets show the restored worksheet
+        if snapshot.provenance is not None:  # back or forward across a load: another worksheet
+            self.result = self.error = None
+            self._fresh_editors()
 
-    def undo(self) -> bool:
-        """Go back one edit; False when there is none."""
+    def _leaving(self, step: _Snapshot, provenance: dict | None) -> _Snapshot:
+        """The state now, to come back to; across a load it keeps ``provenance``, where this worksheet came from."""
+        return self._snapshot(None if step.provenance is None else (provenance or {}))
+
+    def undo(self, provenance: dict | None = None) -> dict | None:
+        """Go back one step. Undoing a load returns where the worksheet it brings back came from
+        (``provenance``, that of the one leaving, is kept for redo); an edit undone, or none: None."""
         if not self.past:
-            return False
-        self.future = [*self.future, self._snapshot()]
-        self._restore(self.past[-1])
+            return None
+        step = self.past[-1]
+        self.future = [*self.future, self._leaving(step, provenance)]
+        self._restore(step)
         self.past = self.past[:-1]
-        return True
+        return step.provenance
 
-    def redo(self) -> bool:
-        """Go forward again one undone edit; False when there is none."""
+    def redo(self, provenance: dict | None = None) -> dict | None:
+        """Go forward again one undone step; like :meth:`undo`, a load redone returns where its worksheet came from."""
         if not self.future:
-            return False
-        self.past = [*self.past, self._snapshot()][-HISTORY:]
-        self._restore(self.future[-1])
+            return None
+        step = self.future[-1]
+        self.past = [*self.past, self._leaving(step, provenance)][-HISTORY:]
+        self._restore(step)
         self.future = self.future[:-1]
-        return True
+        return step.provenance
 
     # ------------------------------------------------------------------ editing
     def editor_key(self, table: str) -> str:
@@ -151,8 +178,8 @@ class PageState:
         base, rows = grids.follow_renames(self.worksheet, rows, table, grids.renamed(before, after))
         worksheet, self.problems = grids.tables_to_worksheet(rows, base)
         self.rows = rows
-        if worksheet is not None:
-            self.worksheet = worksheet
+        # a bad cell keeps the last worksheet that read, renames carried: fields not in the grids follow the name
+        self.worksheet = worksheet if worksheet is not None else base
 
     def commit(self, base: Worksheet) -> None:
         """Read the grids, as the user left them, onto ``base`` (a new title or basis); bad cells stay."""
