@@ -9,6 +9,8 @@ an unstated heat of mixing are the answer block's (they are in the result's warn
 """
 from __future__ import annotations
 
+import json
+
 import pandas as pd
 import streamlit as st
 
@@ -28,7 +30,9 @@ __all__ = ["panel", "render_mixing_panel", "with_mixing", "without_mixing", "KEY
 KEYS = {name: f"mixing_{name}" for name in ("name", "solute", "amount", "unit", "from", "with", "to", "vessel",
                                             "save", "remove_choice", "remove")}
 NO_VESSEL = "(streams: no vessel)"
-_SOURCE = "hb_mixing_source"  # session key: which worksheet the form was filled from
+_SOURCE = "hb_mixing_source"  # session key: which lines the form was filled from
+_OFFERED = "hb_mixing_vessels"  # session key: the vessels the form last offered
+_FIELDS = ("name", "solute", "amount", "unit", "from", "with", "to", "vessel")  # the form's fields, set by _fill
 
 
 def with_mixing(worksheet: Worksheet, mixing: dict) -> Worksheet:
@@ -70,21 +74,37 @@ def _stated_rows(worksheet: Worksheet, result: Result | None, system: str) -> li
             for m in worksheet.mixings]
 
 
+def _lines(worksheet: Worksheet) -> str:
+    """What the form's defaults come from: the basis and the lines, whatever their names (a rename is no other line)."""
+    data = worksheet.model_dump(mode="json", include={"basis", "streams", "vessels", "materials"})
+    for line in (*data["streams"], *data["vessels"], *(c for v in data["vessels"] for c in v["charges"])):
+        line.pop("name")
+    return json.dumps(data, sort_keys=True)
+
+
 def _fill(worksheet: Worksheet) -> None:
-    """Set the form from the lines when another worksheet (or other lines) is shown; else keep what is typed."""
-    source = worksheet.model_dump_json(exclude={"mixings"})
-    if st.session_state.get(_SOURCE) == source:
+    """Set the form from the lines when other lines are shown (or its fields were cleared); else keep what is typed."""
+    source = _lines(worksheet)
+    if st.session_state.get(_SOURCE) == source and all(k in st.session_state for k in map(KEYS.get, _FIELDS)):
         return
     st.session_state[_SOURCE] = source
     for field, value in _defaults(worksheet).items():
         st.session_state[KEYS[field]] = value
 
 
+def _follow_vessel(vessels: list[str]) -> None:
+    """The form's vessel follows a rename (the same place in the list offered); a vessel gone: the first."""
+    chosen, offered = st.session_state[KEYS["vessel"]], st.session_state.get(_OFFERED, [])
+    if chosen not in vessels:
+        renamed = len(offered) == len(vessels) and chosen in offered
+        st.session_state[KEYS["vessel"]] = vessels[offered.index(chosen)] if renamed else vessels[0]
+    st.session_state[_OFFERED] = vessels
+
+
 def _form(worksheet: Worksheet, system: str, set_worksheet) -> None:
     _fill(worksheet)
     vessels = [v.name for v in worksheet.vessels] + [NO_VESSEL]
-    if st.session_state[KEYS["vessel"]] not in vessels:
-        st.session_state[KEYS["vessel"]] = vessels[0]
+    _follow_vessel(vessels)
     left, middle, right = st.columns(3)
     left.text_input("Name", key=KEYS["name"], max_chars=80)
     left.selectbox("Solute", list(SOLUTES), key=KEYS["solute"])
