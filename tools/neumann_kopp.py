@@ -4,12 +4,15 @@ cp_mix(T) = Σ w_i · cp_i(T): the mass-weighted sum of the constituent oxides' 
 ``chemicals`` 1.5.2: Perry's Table 2-151 (Kelley's cp = 4.184·(a + bT + c/T²) J/(mol·K), evaluated with
 ``chemicals.heat_capacity.Perry_151``, coefficients from ``Cp_dict_PerryI``) for vitreous SiO2 and Al2O3, and
 the NIST-JANAF tables (``Cp_dict_JANAF_solid``, linear between the tabulated rows) for the other oxides.
-The solve never runs this: it reads the rows this writes (``python -m tools.neumann_kopp`` from the repo root).
+The solve never runs this: it reads the rows this writes (``python -m tools.neumann_kopp --write`` from the repo
+root; without ``--write`` it only says whether the shipped table matches).
 """
 from __future__ import annotations
 
+import argparse
 import csv
 import io
+import sys
 from bisect import bisect_left
 from dataclasses import dataclass
 from functools import lru_cache
@@ -114,5 +117,29 @@ def rewrite_table(path: Path = TABLE) -> str:
     return out.getvalue()
 
 
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="python -m tools.neumann_kopp",
+        description="Neumann-Kopp cp(T) rows of " + ", ".join(b.name for b in BLENDS) + f" in {TABLE.name}. "
+                    "Without --write: say whether the table matches them (exit status 1 when it does not).")
+    parser.add_argument("--write", action="store_true", help="rewrite those rows of the table (other rows are kept)")
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """The command line: check the table (exit status 1 when out of date), or rewrite it with ``--write``."""
+    args = _parser().parse_args(argv)
+    fresh = rewrite_table(TABLE)
+    if args.write:
+        TABLE.write_text(fresh, encoding="utf-8")
+        print(f"wrote {TABLE}")
+        return 0
+    if TABLE.read_text(encoding="utf-8") == fresh:
+        print(f"{TABLE.name} matches the Neumann-Kopp rows")
+        return 0
+    print(f"{TABLE.name} differs from the Neumann-Kopp rows: run with --write to rewrite them", file=sys.stderr)
+    return 1
+
+
 if __name__ == "__main__":
-    TABLE.write_text(rewrite_table(), encoding="utf-8")
+    raise SystemExit(main())
