@@ -24,7 +24,8 @@ from .humid_air import HumidAir, humid_air_line
 from .losses import check_service, heat_loss, surface_loss
 from .materials import get_material
 from .messages import Measure, Phrase
-from .mixing_check import unstated_mixing
+from .mixing import REFERENCE_T, released_at
+from .mixing_check import mixing_groups, unstated_mixing
 from .problem import ComputedLoss, EquipmentHeat, HeatTerm, Line, Problem, StateSpec, build_problem
 from .properties import IncompressibleSolution, Material, Transition, property_library_versions
 from .results import Answer, LineResult, Result, TermResult
@@ -160,17 +161,55 @@ def _loss_failed(c: ComputedLoss, exc: Exception) -> NoSolutionError:
                            f"({exc.__class__.__name__}): check the sizes, the wind and the temperatures", c.address)
 
 
-def _set_computed_losses(p: Problem, temperatures: dict, var: str | None = None) -> list[HeatTerm]:
-    """Set each computed loss's heat from the temperatures; return those that move with ``var`` instead."""
-    moving = []
+def _state_T(material: Material, state: StateSpec, temperatures: dict) -> float:
+    return temperatures[state.var] if state.plateau is None else _plateau_transition(material, state).T
+
+
+def _mixing_line(p: Problem, term: HeatTerm) -> Line | None:
+    """The line whose final temperature is a stated mixing's: a charge of its vessel (or of the only vessel), or
+    a line of the group of streams ending at one temperature that carries its solute; None: none is known."""
+    vessel = term.vessel or (p.vessels[0] if len(p.vessels) == 1 else None)
+    if vessel is not None:
+        return next((ln for ln in p.lines if ln.vessel == vessel), None)
+    for group_vessel, members in mixing_groups(p):
+        solutes = {getattr(getattr(p.lines[i].material, "solute", None), "name", None) for i in members}
+        if group_vessel is None and term.mixing.solute in solutes:
+            return p.lines[members[0]]
+    return None
+
+
+def _mixing_heat(term: HeatTerm, line: Line, temperatures: dict) -> float:
+    """A stated mixing's heat at its mixture's temperature (Kirchhoff); at 25 °C where the data do not reach."""
+    term.mixing_T = T = _state_T(line.material, line.final, temperatures)
+    heat = released_at(term.mixing, T)
+    term.mixing_at_25 = heat is None
+    return term.mixing.released if heat is None else heat
+
+
+def _moving_terms(p: Problem, var: str | None) -> list[tuple]:
+    """The heat terms set from the temperatures (computed losses, stated mixings): (term, heat(temperatures),
+    whether it moves with ``var``)."""
+    found = []
     for term in p.terms:
-        c = term.computed
-        if c is None:
-            continue
-        if var is not None and c.line is not None and _depends(c.line, var):
-            moving.append(term)
+        if term.computed is not None:
+            found.append((term, lambda temps, c=term.computed: _computed_heat(c, temps),
+                          term.computed.line is not None and _depends(term.computed.line, var)))
+        elif term.mixing is not None:
+            line = _mixing_line(p, term)
+            if line is not None:
+                found.append((term, lambda temps, t=term, ln=line: _mixing_heat(t, ln, temps), line.final.var == var))
+    return found
+
+
+def _set_term_heats(p: Problem, temperatures: dict, var: str | None = None) -> list:
+    """Set each computed loss's and stated mixing's heat from the temperatures; return those that move with
+    ``var`` instead, as (term, heat(temperatures))."""
+    moving = []
+    for term, heat, moves in _moving_terms(p, var):
+        if var is not None and moves:
+            moving.append((term, heat))
         else:
-            term.heat = _computed_heat(c, temperatures)
+            term.heat = heat(temperatures)
     return moving
 
 
@@ -178,7 +217,7 @@ def _set_computed_losses(p: Problem, temperatures: dict, var: str | None = None)
 def _solve_linear(p: Problem) -> None:
     """Solve an amount or duty unknown directly (they enter the balance linearly)."""
     temps = p.temperatures
-    _set_computed_losses(p, temps)
+    _set_term_heats(p, temps)
     absorbed = sum(ln.amount * _line_dh(ln, temps, {}) for ln in p.lines if ln.amount is not None)
     absorbed += sum(_equipment_heat(e, temps, {}) for e in p.equipment)
     supplied = sum(t.heat for t in p.terms if t.heat is not None)
@@ -220,8 +259,9 @@ def _solve_temperature(p: Problem) -> float | None:
         raise InputError("no line's state depends on this temperature", p.unknown_address)
     fixed = sum(ln.amount * _line_dh(ln, temps, {}) for ln in p.lines if not _depends(ln, var))
     fixed += sum(_equipment_heat(e, temps, {}) for e in p.equipment if e not in equipment_dep)
-    losses = _set_computed_losses(p, temps, var)  # a computed loss on a line at this temperature moves with it
-    fixed -= sum(t.heat for t in p.terms if t not in losses)
+    movers = _set_term_heats(p, temps, var)  # a computed loss or a mixing at this temperature moves with it
+    moving_terms = [t for t, _ in movers]
+    fixed -= sum(t.heat for t in p.terms if t not in moving_terms)
     # the states that move with T, each with its line's amount and sign; the others' enthalpies are fixed
     moving = []
     for ln in dependent:
@@ -246,7 +286,7 @@ def _solve_temperature(p: Problem) -> float | None:
 
     def residual(T: float, side: float | None = None) -> float:
         temps[var] = T
-        lost = -sum(_computed_heat(t.computed, temps) for t in losses) if losses else 0.0
+        lost = -sum(heat(temps) for _, heat in movers) if movers else 0.0
         if side is None and fast:  # off every plateau, inside every material's range (the bracket's bounds)
             value = fixed + lost
             for key, enthalpy, P, weight in plain:
@@ -370,6 +410,7 @@ def solve_problem(p: Problem) -> Result:
     token = _SOLVE_ENTHALPIES.set({})
     try:
         fraction = _solve_temperature(p) if p.unknown.kind == "temperature" else _solve_linear(p)
+        _set_term_heats(p, p.temperatures)  # the moving terms at the answer
         records = _computed_loss_records(p)
         result = _result(p, fraction)
     except HeatBalanceError as exc:  # a property refusal met while searching (no field of its own): the unknown's
@@ -476,18 +517,41 @@ def _equipment_words(heat: float) -> Phrase:
 def _result(p: Problem, fraction: float | None) -> Result:
     sides = {p.unknown_target: fraction} if fraction is not None else {}
     lines = [_line_result(ln, p.temperatures, sides) for ln in p.lines]
-    terms = [TermResult(t.name, t.kind, t.heat, t.detail, vessel=t.vessel) for t in p.terms]
+    terms = [TermResult(t.name, t.kind, t.heat, _term_detail(t, p.basis), vessel=t.vessel) for t in p.terms]
     for e in p.equipment:
         heat = -_equipment_heat(e, p.temperatures, sides)
         terms.append(TermResult(e.name, "equipment", heat, _equipment_words(heat), vessel=e.vessel))
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
-        + _range_warnings(p, lines) + unstated_mixing(p, lines)
+        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
                   sources, property_library_versions())
+
+
+def _term_detail(term: HeatTerm, basis: str) -> Phrase:
+    """A term's words; a mixing taken to its temperature says so, beside its 25 °C value."""
+    if term.mixing is None or term.mixing_at_25:
+        return term.detail
+    return Phrase(term.detail.template + "; at {T_mixed}: {Q_T} (at 25 °C: {Q_25}; Kirchhoff with the solutions' "
+                  "Laliberté cp)", {**term.detail.values, "T_mixed": Measure(term.mixing_T, "temperature", 1),
+                                    "Q_T": Measure(term.heat, heat_kind(basis), decimals=0),
+                                    "Q_25": Measure(term.mixing.released, heat_kind(basis), decimals=0)},
+                  term.detail.address)
+
+
+def _mixing_warnings(p: Problem) -> list[Phrase]:
+    """A mixing whose heat stays at 25 °C although its mixture ends elsewhere (the cp data do not reach)."""
+    return [Phrase("Heat of mixing {name} is taken at 25 °C although the mixture ends at {T}: the solutions' heat "
+                   "capacity data (Laliberté) do not reach {strengths} there, so its change with temperature "
+                   "(Kirchhoff) is left out; expect a few percent.",
+                   {"name": t.name, "T": Measure(t.mixing_T, "temperature", 1),
+                    "strengths": ", ".join(f"{x:.1%}" for x in (t.mixing.x1, t.mixing.x2, t.mixing.x3))},
+                   item("mixings", t.name))
+            for t in p.terms if t.mixing is not None and t.mixing_at_25 and t.mixing_T is not None
+            and abs(t.mixing_T - REFERENCE_T) > 0.5]
 
 
 def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> None:

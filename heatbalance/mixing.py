@@ -33,7 +33,7 @@ from .properties import Material
 __all__ = ["Solute", "SOLUTES", "TABLE_FILE", "HeatRow", "heat_table", "solute_named", "water_per_solute",
            "integral_heat", "sources", "MixingHeat", "mixing_heat", "NEUTRALISATION_J_PER_MOL", "NEUTRALISATION_SOURCE",
            "ElectrolyteSolution", "solution_names", "solution_material", "solute_of_material", "M_WATER",
-           "molar_mass", "pure_state"]
+           "molar_mass", "pure_state", "released_at"]
 
 TABLE_FILE = "heats_of_solution.csv"
 M_WATER = 0.018015  # kg/mol (IUPAC atomic weights)
@@ -325,3 +325,42 @@ def solute_of_material(material: Material, name: str) -> tuple[Solute | None, fl
             return s, None
     return None, None
 
+
+
+# --------------------------------------------------------------------------- the heat of mixing at temperature
+@lru_cache(maxsize=256)
+def _solutions(solute: str, strengths: tuple[float, ...]) -> tuple[ElectrolyteSolution, ...] | None:
+    try:
+        return tuple(ElectrolyteSolution(SOLUTES[solute], x) for x in strengths)
+    except InputError:
+        return None
+
+
+def released_at(heat: MixingHeat, T: float) -> float | None:
+    """Heat released by the mixing when it happens at T [K] rather than at 25 °C: Kirchhoff's law.
+
+    released(T) = released(25 °C) − [(m_A + m_B)·h(x3, T) − m_A·h(x1, T) − m_B·h(x2, T)]
+
+    with h(x, T) the solution's enthalpy from 25 °C (Laliberté's cp, :class:`ElectrolyteSolution`): the path
+    mixes the parts at 25 °C and heats the mixed solution with its own cp, as the enthalpy-table method for
+    solutions does (Felder & Rousseau, ch. 8, reference states at 25 °C). The balance's lines heat their
+    parts with their own cps, so the difference is the mixing's.
+
+    Parameters
+    ----------
+    heat : MixingHeat  The mixing at 25 °C (:func:`mixing_heat`)
+    T : float  The mixture's temperature [K]
+
+    Returns
+    -------
+    float or None  [J, or W on a rate basis], + when heat is given off; None where the solutions' cp data
+    do not reach a strength (a solid or gaseous solute, a caustic beyond Laliberté's fit) or T.
+    """
+    solute = SOLUTES[heat.solute]
+    if not solute.t_min <= T <= solute.t_max:
+        return None
+    parts = _solutions(heat.solute, (heat.x1, heat.x2, heat.x3))
+    if parts is None:
+        return None
+    h1, h2, h3 = (s.enthalpy(T, 101325.0) for s in parts)
+    return heat.released - ((heat.mass_a + heat.mass_b) * h3 - heat.mass_a * h1 - heat.mass_b * h2)

@@ -97,12 +97,14 @@ class EquipmentHeat:
 @dataclass
 class HeatTerm:
     name: str
-    kind: str  # duty | loss | reaction
+    kind: str  # duty | loss | reaction | mixing
     heat: float | None  # + into the process; None: the unknown
     detail: Phrase = field(default_factory=lambda: Phrase(""))
     vessel: str | None = None  # a reaction's vessel, as named
     computed: ComputedLoss | None = None  # a loss computed from its surface (heat set by the solver)
     mixing: MixingHeat | None = None  # a stated mixing: its solute, strengths and amounts (heatbalance.mixing)
+    mixing_T: float | None = None  # K: that mixing's final temperature, set by the solver (None: not known)
+    mixing_at_25: bool = True  # its heat is the 25 °C one (the solutions' cp data do not reach, or no mixing_T)
 
 
 @dataclass
@@ -699,9 +701,10 @@ class _Builder:
                              f"{', '.join(v.name for v in self.ws.vessels) or 'none'})", f"{where}.vessel")
         amount = self.amount(m.amount, f"{where}.amount", False)
         heat = mixing_heat(solute.name, amount, m.from_fraction, m.with_fraction, m.to_fraction, where)
-        self.assumptions.append(f"{where}: heat of mixing from integral heats of solution at 25 °C applied as "
-                                "entered (each line keeps its own cp; no excess heat capacity). Table: "
-                                + "; ".join(heat_sources(solute.name)) + ".")
+        self.assumptions.append(f"{where}: heat of mixing from integral heats of solution at 25 °C, taken to the "
+                                "mixture's final temperature by Kirchhoff's law with the solutions' cp (Laliberté): "
+                                "the mixed solution's cp in place of its parts' where their data reach, else at "
+                                "25 °C with a warning. Table: " + "; ".join(heat_sources(solute.name)) + ".")
         amount_kind = basis_kinds("amount", self.basis)[0]
         detail = Phrase("{solute}: {x1} mixed with {mass_b} at {x2} to {x3}; ΔH_s from {h1} to {h3} "
                         "(integral heats of solution at {T})",

@@ -124,19 +124,27 @@ def adiabatic(doc: dict) -> dict:
 
 def test_dilution_solved_to_its_final_temperature():
     result = solve(parse_worksheet(adiabatic(sample())))
-    # hand calculation: heat capacities water 2920 × 4.18 = 12,206 kJ/K (common practice), 98 % acid 1000 × 1.50
-    # = 1,500 kJ/K (Laliberté bridged to the pure acid, as shipped), steel 4500 × 0.434 = 1,953 kJ/K (Incropera
-    # A.1); 656,021 kJ released: T = (656,021 + 12,206×20 + 1,500×25 + 1,953×20)/15,659 = 62.4 °C
-    assert result.answer.value_si - 273.15 == pytest.approx(62.4, abs=0.3)
+    # hand calculation by the enthalpy-table method for solutions (Felder & Rousseau ch. 8: reference states at
+    # 25 °C; mix there, heat the mixed solution with its own cp): in, water 2920 kg × 4.18 kJ/(kg·K) × (20 − 25 K)
+    # = −61,030 kJ and steel 4500 × 0.434 = 1,953 kJ/K (Incropera A.1) × (−5 K) = −9,765 kJ; out, −656,021 kJ
+    # + (3920 kg × 3.30 kJ/(kg·K), 25 % acid, Laliberté + 1,953 kJ/K) × (T − 25 K):
+    # T = 25 + (656,021 − 70,795) / 14,889 = 64.3 °C. (Heating the parts with their own cps instead, the earlier
+    # model, gave 62.4 °C: 2 K low, the unsafe side.)
+    assert result.answer.value_si - 273.15 == pytest.approx(64.3, abs=0.3)
     (mixing,) = [t for t in result.terms if t.kind == "mixing"]
-    assert mixing.heat / 1e3 == pytest.approx(656_021, rel=1e-4)
+    # at 64.4 °C: 656,021 kJ − Δ(m·cp) × 39.4 K, Δ(m·cp) = 3920 × 3.284 − 2920 × 4.179 − 1000 × 1.490 = −819 kJ/K
+    # (cp at the mean, 45 °C): 688,300 kJ
+    assert mixing.heat / 1e3 == pytest.approx(688_300, rel=2e-3)
+    assert "at 25 °C: 656,021 kJ" in mixing.detail.text
     assert not any("HEAT OF MIXING" in w.text for w in result.warnings)
 
 
 def test_jacket_duty_of_the_sample():
     result = solve(parse_worksheet(sample()))
-    # hand calculation with the heat capacities above: 12,206×20 + 1,500×15 + 1,953×20 − 656,021 = −350,341 kJ
-    assert result.answer.value_si / 1e3 == pytest.approx(-350_341, rel=1e-3)
+    # hand calculation with the heat capacities above (98 % acid 1000 × 1.50 kJ/K from 25 °C) and the heat of
+    # mixing at 40 °C: 656,021 − Δ(m·cp) × 15 K, Δ(m·cp) = 3920 × 3.329 − 2920 × 4.179 − 1000 × 1.500 = −653 kJ/K
+    # (Laliberté's cps at the mean, 32.5 °C) → 665,816 kJ; 12,206×20 + 1,500×15 + 1,953×20 − 665,816 = −360,136 kJ
+    assert result.answer.value_si / 1e3 == pytest.approx(-360_136, rel=1e-3)
 
 
 def test_warning_fires_with_an_estimate_when_no_mixing_is_stated():
@@ -347,7 +355,10 @@ def test_a_stated_mixing_on_a_continuous_basis_is_a_power_and_silences_the_warni
                unknowns=[{"kind": "temperature", "common": "Mix"}])
     result = solve(ws)
     (term,) = [t for t in result.terms if t.kind == "mixing"]
-    assert term.heat == pytest.approx(10.0e3, rel=0.02)  # 10.0 kW: the hand calculation of the warning test above
+    # 10.0 kW at 25 °C (the hand calculation of the warning test above), at the mixture's 27.8 °C by Kirchhoff:
+    # Δ(m·cp) = 0.833 kg/s × 3.79 − 0.278 × 3.54 − 0.556 × 4.18 kJ/(kg·K) = −0.145 kW/K (Laliberté's cps, NaOH
+    # 10 % and 30 %, at 26 °C, and water): +0.145 × 2.8 K = +0.41 kW
+    assert term.heat == pytest.approx(10.45e3, rel=0.02)
     assert not any("NOT IN THE BALANCE" in w.text or w.template.startswith("The stated") for w in result.warnings)
     # 10 kW into 3 t/h of about 3.9 kJ/(kg·K): a rise of about 3 K above 25 °C
     assert 27.0 < result.answer.value_si - 273.15 < 29.0
@@ -378,9 +389,10 @@ def test_a_dilution_vessel_is_screened_with_its_heat_of_mixing():
     # the mixed 25 % acid counts with its own cp: Laliberté (2009) as computed by thermo.electrochem directly
     # (1e-4: the water it replaces is counted at IAPWS-IF97's cp, 0.23 J/(kg·K) above Laliberté's water term)
     assert s.cp == pytest.approx(Laliberte_heat_capacity(313.15, [0.25], ["7664-93-9"]), rel=1e-4)
-    # hand calculation: 656,021 kJ / (3,920 kg × 3.3057 kJ/(kg·K)) = 50.63 K; MTSR = 40 °C + 50.63 K (100 %)
-    assert s.dT_ad == pytest.approx(50.63, abs=0.01)
-    assert s.MTSR - 273.15 == pytest.approx(90.63, abs=0.01)
+    # hand calculation: 666,013 kJ at 40 °C (test_jacket_duty_of_the_sample) / (3,920 kg × 3.3057 kJ/(kg·K))
+    # = 51.40 K; MTSR = 40 °C + 51.40 K (100 %)
+    assert s.dT_ad == pytest.approx(51.40, abs=0.01)
+    assert s.MTSR - 273.15 == pytest.approx(91.40, abs=0.01)
     assert any("counts in ΔT_ad" in n.text for n in s.notes)
     # an electrolyte's boiling point is not computed by Raoult's law: MTT is left to be entered, at its address
     assert s.MTT is None and "electrolyte solution" in s.MTT_source.text
@@ -388,7 +400,7 @@ def test_a_dilution_vessel_is_screened_with_its_heat_of_mixing():
     from heatbalance.present.screening import screening_report
 
     report = screening_report(result.screening)
-    assert "  heat of mixing released    656,020.8 kJ" in report
+    assert "  heat of mixing released    666,013.0 kJ" in report
     assert not any(line.startswith("  reaction heat released") for line in report)
 
 
@@ -396,8 +408,8 @@ def test_the_accumulation_applies_to_the_heat_of_mixing():
     doc = sample()
     doc["vessels"][0]["screening"] = {"accumulation": 0.4, "MTT": q(105, "degC"), "T_D24": q(200, "degC")}
     (s,) = screened(doc).screening
-    # hand calculation: 40 °C + 0.4 × 50.63 K = 60.25 °C, below MTT 105 °C and T_D24 200 °C: class 1 (Stoessel)
-    assert s.MTSR - 273.15 == pytest.approx(60.25, abs=0.01)
+    # hand calculation: 40 °C + 0.4 × 51.40 K = 60.56 °C, below MTT 105 °C and T_D24 200 °C: class 1 (Stoessel)
+    assert s.MTSR - 273.15 == pytest.approx(60.56, abs=0.01)
     assert s.criticality_class == 1
 
 
@@ -406,9 +418,9 @@ def test_reaction_and_mixing_heat_add_up_in_one_vessel():
     doc["reactions"] = [{"name": "Side reaction", "enthalpy": q(-100, "kJ/mol"), "amount": q(1000, "mol"),
                          "vessel": "D-101"}]
     (s,) = screened(doc).screening
-    # 100 kJ/mol × 1000 mol = 100,000 kJ on top of the 656,021 kJ of dilution
+    # 100 kJ/mol × 1000 mol = 100,000 kJ on top of the 666,013 kJ of dilution at 40 °C
     assert (s.Q_reaction - s.Q_mixing) / 1e3 == pytest.approx(100_000, rel=1e-9)
-    assert s.Q_mixing / 1e3 == pytest.approx(656_021, rel=1e-4)
+    assert s.Q_mixing / 1e3 == pytest.approx(666_013, rel=1e-4)
     assert sorted(s.reactions) == ["Dilution 98 % to 25 %", "Side reaction"]
 
 
@@ -453,4 +465,46 @@ def test_a_sweep_collects_the_dilution_screening():
                                    frame["screening[D-101].MTSR"]):
         (alone,) = screened(with_value(ws, f"{BASE}.amount", (amount, "kg")).model_dump(mode="json")).screening
         assert (dT_ad, MTSR) == pytest.approx((alone.dT_ad, alone.MTSR), rel=1e-9)
-    assert frame["screening[D-101].dT_ad"].iloc[1] == pytest.approx(50.63, abs=0.01)  # the sample, above
+    assert frame["screening[D-101].dT_ad"].iloc[1] == pytest.approx(51.40, abs=0.01)  # the sample, above
+
+
+# --------------------------------------------------------------------------- the heat of mixing at temperature
+def test_at_25_c_the_heat_of_mixing_is_the_tables():
+    from heatbalance.mixing import released_at
+
+    heat = mixing_heat("sulfuric acid", 1000.0, 0.98, 0.0, 0.25)
+    assert released_at(heat, 298.15) == heat.released  # Kirchhoff's correction vanishes at the table's temperature
+
+
+def test_a_heat_of_mixing_the_cp_data_cannot_carry_stays_at_25_c_with_a_warning():
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "T-1", "charges": [
+                   {"name": "Water", "material": "water", "mass": q(1000, "kg"), "initial": temp(20)},
+                   {"name": "Lye 40 %", "material": "lye 40 %", "mass": q(100, "kg"), "initial": temp(20)}],
+                   "final": temp(40)}],
+               materials=[constant_cp_material("lye 40 %", cp=3.2)],
+               mixings=[{"name": "Lye dilution", "solute": "sodium hydroxide", "amount": q(100, "kg"),
+                         "from_fraction": 0.4, "with_fraction": 0.0, "to_fraction": 0.0364, "vessel": "T-1"}],
+               duties=[{"name": "Cooling"}], unknowns=[{"kind": "duty", "term": "Cooling"}])
+    result = solve(ws)
+    (term,) = [t for t in result.terms if t.kind == "mixing"]
+    # 40 % NaOH is beyond Laliberté's fitted 30 %: the table's 25 °C heat, said at the mixing's address
+    assert term.heat == mixing_heat("sodium hydroxide", 100.0, 0.4, 0.0, 0.0364).released
+    (warning,) = [w for w in result.warnings if w.template.startswith("Heat of mixing")]
+    assert warning.address == "mixings[Lye dilution]"
+    assert "taken at 25 °C although the mixture ends at 40.0 °C" in warning.text and "40.0%" in warning.text
+
+
+def test_a_sweep_of_the_final_temperature_matches_single_solves():
+    from heatbalance.analyses import solve_and_analyse
+    from heatbalance.analyses.sweep import Axis, sweep
+
+    ws = parse_worksheet(sample())
+    address = "vessels[D-101].final.temperature"
+    frame = sweep(ws, [Axis(address, (30.0, 50.0), "degC")], ["answer", f"terms[{BASE[8:-1]}].heat"])
+    for T, answer, heat in zip(frame[address], frame["answer"], frame[f"terms[{BASE[8:-1]}].heat"]):
+        alone = solve_and_analyse(with_value(ws, address, (T, "degC")))
+        (mixing,) = [t for t in alone.terms if t.kind == "mixing"]
+        assert (answer, heat) == pytest.approx((alone.answer.value_si, mixing.heat), rel=1e-9)
+    # the mixing releases more the hotter it ends (Δ(m·cp) < 0 for this dilution)
+    assert frame[f"terms[{BASE[8:-1]}].heat"].is_monotonic_increasing
