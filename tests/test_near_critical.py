@@ -65,3 +65,12 @@ def test_boiling_water_near_the_critical_point_and_ordinary_steam():
 ])
 def test_the_rule_at_its_edges(T, P, expected):
     assert near_critical(T, P, 304.13, 7.3773e6) == expected
+
+
+def test_a_sweep_warns_at_the_near_critical_points_only():
+    from heatbalance.analyses.sweep import WARNINGS, Axis, sweep
+
+    # 60 bar is 0.81 p_c, 72 bar 0.976 p_c (the rule's 0.97, above); the warning rides with each point
+    frame = sweep(co2_cooler(60.0, 60, 50), [Axis("streams[CO2].pressure", (60.0, 72.0), "bar")])
+    far, near = ([w.text for w in ws if w.text.startswith("Near the critical point")] for ws in frame[WARNINGS])
+    assert far == [] and len(near) == 2

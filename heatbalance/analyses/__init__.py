@@ -74,6 +74,7 @@ def analyse(problem, result, checks: bool = True):
             raise NoSolutionError("the thermal screening gives a number that is not finite (e.g. a jacket so small "
                                   "that the time is beyond any scale): check the screening inputs",
                                   item("vessels", s.vessel, "screening"))
+    result.warnings = list(result.warnings) + near_critical_warnings(problem, result)
     if not checks:
         result.exchangers, result.utilities = [], []
         return result
@@ -96,8 +97,7 @@ def analyse(problem, result, checks: bool = True):
             if not _finite_numbers(record):
                 raise NoSolutionError("the exchanger or utility check gives a number that is not finite: check its "
                                       "inputs", where(record))
-    result.warnings = list(result.warnings) + [w for c in result.exchangers for w in c.warnings]
-    result.warnings += near_critical_warnings(problem, result)
+    result.warnings += [w for c in result.exchangers for w in c.warnings]
     return result
 
 
