@@ -6,6 +6,8 @@ widgets -> the page's editing state (:mod:`webapp.state`, one session key) -> th
 
 Another panel hooks in with one line in :data:`EXTRA_PANELS`; a panel that opens another worksheet
 calls :func:`replace_worksheet`, one that changes an input outside the grids :func:`set_worksheet`.
+Each extra panel is a fragment (:func:`webapp.common.fragment_panel`): its own widgets rerun it alone,
+and a change of the worksheet made there reruns the whole page.
 """
 from __future__ import annotations
 
@@ -17,7 +19,8 @@ from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
 from webapp import sharing
 from webapp.answer import ANSWER_KEY, render_answer, render_header
-from webapp.common import DEFAULT_SAMPLE, SAMPLES_DIR, display_system, guarded, load_sample, page_state
+from webapp.common import (DEFAULT_SAMPLE, SAMPLES_DIR, display_system, fragment_panel, guarded, load_sample,
+                           page_state)
 from webapp.state import KEY, PageState
 
 
@@ -56,11 +59,11 @@ EXTRA_PANELS = [
 
 
 def extra_panels() -> list:
-    """The panels of :data:`EXTRA_PANELS` (each module is imported once per process)."""
+    """The panels of :data:`EXTRA_PANELS`, each a fragment (each module is imported once per process)."""
     panels = []
     for module, argument in EXTRA_PANELS:
         make = importlib.import_module(module).panel
-        panels.append(make() if argument is None else make(argument))
+        panels.append(fragment_panel(make() if argument is None else make(argument)))
     return panels
 
 
@@ -105,7 +108,7 @@ def main() -> None:
     guarded(render_inputs, worksheet, system)
     guarded(render_results, result, system)
     for panel in extra_panels():
-        guarded(panel, worksheet, result, system)
+        panel(worksheet, result, system)  # guarded inside the fragment, which may rerun alone
 
 
 main()

@@ -1,9 +1,13 @@
-"""Small helpers every part of the page uses: the state, the view's unit set, plain text, a guard."""
+"""Small helpers every part of the page uses: the state, the view's unit set, plain text, a guard, a panel
+drawn as a fragment, and figures built once per content."""
 from __future__ import annotations
 
+import hashlib
 import json
+import pickle
 import re
 import string
+from collections import OrderedDict
 from pathlib import Path
 
 import streamlit as st
@@ -14,7 +18,7 @@ from heatbalance.worksheet import Worksheet, load_worksheet
 from .state import KEY, PageState
 
 __all__ = ["UNIT_SYSTEMS", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system", "plain", "guarded",
-           "sample_files", "load_sample"]
+           "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample"]
 
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
 SAMPLES_DIR = Path(__file__).resolve().parent.parent / "sample_data"
@@ -24,6 +28,8 @@ WORD_JOINER = "\u2060"  # invisible, no width: breaks an autolink's pattern with
 # The page's Markdown turns text that looks like an address into a link *after* escapes are read
 # (GFM autolink literals: ``http://…``, ``www.…``, ``name@host.tld``): a word joiner goes inside each pattern.
 _AUTOLINK = re.compile(r"(?<=:)(?=//)|(?i:(?<=www)(?=\.))|(?=@)")
+_BUILT = "built_by_content"  # session key: what `built` made, by builder and the digest of its inputs (a cache)
+BUILT_KEPT = 12  # figures and tables `built` keeps per session (the least recently used go first)
 
 
 def page_state() -> PageState:
@@ -64,6 +70,44 @@ def guarded(draw, *args) -> None:
     except Exception as exc:  # noqa: BLE001 - the page must never show a traceback
         st.error(f"Something went wrong while drawing this part of the page ({exc.__class__.__name__}). "
                  "Your inputs are kept; try undoing the last change.", icon=":material/error:")
+
+
+def fragment_panel(draw):
+    """A panel's ``draw(worksheet, result, system)`` as a fragment: a change of one of its own widgets reruns the
+    panel alone, on the worksheet and result of the page's last run.
+
+    A change that reaches the worksheet (a callback of the panel that calls ``set_worksheet`` or
+    ``replace_worksheet``) reruns the whole page, so the answer, the grids and the results follow it: a callback
+    inside a fragment would otherwise rerun only the fragment."""
+    @st.fragment
+    def panel(worksheet: Worksheet, result, system: str) -> None:
+        if page_state().worksheet is not worksheet:
+            st.rerun(scope="app")
+        guarded(draw, worksheet, result, system)
+    return panel
+
+
+def built(builder, *inputs):
+    """``builder(*inputs)``, made once per session while the inputs' content stays the same.
+
+    Keyed on a digest of the inputs' pickle: a solved Result pickles in tens of microseconds, a plotly figure
+    takes milliseconds to build, and a Result is a new object on every run. Equal bytes are equal content, so a
+    changed result never gets the figure of the old one (equal content that pickles differently is only built
+    again); inputs that do not pickle are built every time. ``builder`` must be pure, and its output is shared
+    between runs: never changed by the caller."""
+    try:
+        digest = hashlib.sha256(pickle.dumps(inputs, protocol=pickle.HIGHEST_PROTOCOL)).digest()
+    except (pickle.PicklingError, TypeError, AttributeError, RecursionError):
+        return builder(*inputs)
+    kept = st.session_state.setdefault(_BUILT, OrderedDict())
+    key = (builder, digest)  # the function itself: a module reloaded while developing builds afresh
+    if key in kept:
+        kept.move_to_end(key)
+        return kept[key]
+    kept[key] = made = builder(*inputs)
+    while len(kept) > BUILT_KEPT:
+        kept.popitem(last=False)
+    return made
 
 
 def sample_files() -> dict[str, Path]:

@@ -24,7 +24,7 @@ from heatbalance.present.text import error_text, phrase_text
 from heatbalance.results import Result
 from heatbalance.worksheet import ARRANGEMENTS, Worksheet, parse_worksheet
 
-from .common import plain
+from .common import built, plain
 
 __all__ = ["panel", "render_exchanger_panel", "with_demo_utilities", "with_exchanger", "NEW", "NONE"]
 
@@ -61,7 +61,7 @@ def render_exchanger_panel(worksheet: Worksheet, result: Result | None, system: 
                          icon=":material/warning:")
             for note in check.notes:
                 st.caption(plain(phrase_text(note, system)))
-            st.plotly_chart(tq_figure(check, system), key=f"exchanger_tq_{i}", width="stretch")
+            st.plotly_chart(built(tq_figure, check, system), key=f"exchanger_tq_{i}", width="stretch")
             st.dataframe(pd.DataFrame(exchanger_rows(check, system)), hide_index=True, key=f"exchanger_rows_{i}")
             st.dataframe(pd.DataFrame(zone_rows(check, system)), hide_index=True, key=f"exchanger_zones_{i}")
             if check.rating is not None:

@@ -1,4 +1,6 @@
-"""The results: the waterfall, every contribution, the closure, sign convention, sources, warnings."""
+"""The results: the waterfall, every contribution, the closure, sign convention, sources, warnings.
+
+The waterfall and the contribution table are built once per result content (:func:`webapp.common.built`)."""
 from __future__ import annotations
 
 import pandas as pd
@@ -9,7 +11,7 @@ from heatbalance.present.tables import contribution_rows
 from heatbalance.present.text import format_heat, no_negative_zero, phrase_text
 from heatbalance.results import SIGN_CONVENTION, Result
 
-from .common import plain
+from .common import built, plain
 
 __all__ = ["render_results"]
 
@@ -24,16 +26,23 @@ def _number(value: float | None) -> str:
     return "" if value is None else no_negative_zero(f"{value:,.2f}")
 
 
-def _render_contributions(result: Result, system: str) -> None:
+def _contribution_table(result: Result, system: str) -> tuple[pd.DataFrame, list[str], list[str]]:
+    """The contribution table as shown (heats written as text), its column order (the heat first) and its heat
+    columns (pure)."""
     rows = contribution_rows(result, system)
     heats = [c for c in rows[0] if "[" in c]
-    order = ["item", "type", heats[-1], *heats[:-1], "material", "amount", "from", "to"]  # the heat first
+    order = ["item", "type", heats[-1], *heats[:-1], "material", "amount", "from", "to"]
+    shown = [{k: (_number(v) if k in heats else v) for k, v in row.items()} for row in rows]
+    return pd.DataFrame(shown), order, heats
+
+
+def _render_contributions(result: Result, system: str) -> None:
+    table, order, heats = built(_contribution_table, result, system)
     st.markdown("**Every contribution** (heat into the process; a line that absorbs heat shows as −)")
     config = {c: st.column_config.TextColumn(c, alignment="right") for c in heats}
     config.update({"from": st.column_config.TextColumn("from / detail", width="large"),
                    "to": st.column_config.TextColumn("to", width="medium")})
-    shown = [{k: (_number(v) if k in heats else v) for k, v in row.items()} for row in rows]
-    st.dataframe(pd.DataFrame(shown), key="contributions", hide_index=True, width="stretch", column_order=order,
+    st.dataframe(table, key="contributions", hide_index=True, width="stretch", column_order=order,
                  column_config=config)
 
 
@@ -42,7 +51,7 @@ def render_results(result: Result | None, system: str) -> None:
     if result is None:
         st.info("The results appear here once the balance solves.")
         return
-    st.plotly_chart(energy_waterfall(result, system), key="waterfall", width="stretch")
+    st.plotly_chart(built(energy_waterfall, result, system), key="waterfall", width="stretch")
     st.caption(_WATERFALL_CAPTION)
     _render_contributions(result, system)
     st.markdown(f"**Closure residual:** {format_heat(result.residual, result.basis, system)} "

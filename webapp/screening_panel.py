@@ -24,7 +24,7 @@ from heatbalance.results import Result
 from heatbalance.units import from_si, to_si
 from heatbalance.worksheet import Quantity, ScreeningInputs, Worksheet
 
-from .common import plain
+from .common import built, plain
 
 __all__ = ["panel", "render_screening_panel", "what_if_worksheet", "widget_key"]
 
@@ -187,8 +187,8 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
             return
         for alarm in screening.alarms:
             st.error(f"**ALARM:** {plain(phrase_text(alarm, system))}", icon=":material/emergency_home:")
-        st.plotly_chart(screening_figure(screening, system, caution=False), key=f"screening_chart_{index}",
-                        width="stretch")  # the page shows the one caution beside the answer
+        figure = built(screening_figure, screening, system, False)  # the page shows the one caution beside the answer
+        st.plotly_chart(figure, key=f"screening_chart_{index}", width="stretch")
         _numbers(screening, system)
         if screening.criticality_class is not None:
             meaning = screening.class_meaning.split(": ", 1)[1]
