@@ -1,6 +1,13 @@
 """Time of one full script run of the page (AppTest) per sample, next to the engine's own solve time.
 
     python benchmarks/bench_app.py [--repeat 7]
+    python benchmarks/bench_app.py --rerun [--repeat 21]   # the default sample: a rerun, a panel-only change
+
+``--rerun`` times, on the default sample and inside the script thread (the script runner's start to stop
+event: callbacks and drawing, not AppTest's parsing), a rerun of the page with nothing changed and a change
+of the what-if panel's number of points (sent as the browser sends it: a run of the panel's fragment when it
+has one, ``tests/fragment_runs.py``), each as a ratio of an empty page's rerun timed the same way; then where a
+rerun's time goes (cProfile of app.py in the script thread, cumulative ms per run).
 
 For each sample: the median of ``repeat`` runs of
   * solve: ``heatbalance.analyses.solve_and_analyse`` of the worksheet (what the page runs) (warm: properties and imports loaded);
@@ -14,6 +21,7 @@ and also reports the page net of it. Not part of pytest.
 from __future__ import annotations
 
 import argparse
+import pstats
 import statistics
 import sys
 import time
@@ -21,7 +29,9 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(ROOT / "tests"))
 
+from fragment_runs import browser_runs  # noqa: E402  (runs as the browser asks for them, timed)
 from streamlit.testing.v1 import AppTest  # noqa: E402
 
 from heatbalance import load_worksheet  # noqa: E402
@@ -30,6 +40,18 @@ from webapp.state import KEY, PageState  # noqa: E402
 
 APP = str(ROOT / "app.py")
 TARGET_ADDED_MS = 150.0
+DEFAULT_SAMPLE = "steam_heater_glycol.json"
+POINTS = "whatif_count_0"  # the what-if panel's number of points: changes no input of the worksheet
+# app.py run under cProfile inside the script thread; each run's profile kept in the session
+PROFILED_APP = f"""import cProfile, runpy
+import streamlit as st
+profile = cProfile.Profile()
+profile.runcall(runpy.run_path, {APP!r}, run_name="__main__")
+st.session_state.setdefault("bench_profiles", []).append(profile)
+"""
+PARTS = ("main", "solve", "render_answer", "render_inputs", "render_results", "render_sidebar", "render_save",
+         "render_origin", "render_panel", "_render_contributions")
+BUILDERS = ("energy_waterfall", "contribution_rows", "tq_figure", "screening_figure")  # pure figure/table builders
 
 
 def _ms(action) -> float:
@@ -69,10 +91,80 @@ def _verdict(ms: float) -> str:
     return "within target" if ms <= TARGET_ADDED_MS else "OVER target"
 
 
+def _opened(source: str | None = None) -> AppTest:
+    """A fresh AppTest of app.py (or of ``source``) on the default sample, after its first run."""
+    page = AppTest.from_file(APP, default_timeout=60) if source is None else \
+        AppTest.from_string(source, default_timeout=60)
+    page.session_state[KEY] = PageState.opened(load_worksheet((ROOT / "sample_data" / DEFAULT_SAMPLE).read_bytes()))
+    page.run()
+    if page.exception:
+        raise SystemExit(f"the page failed: {[e.value for e in page.exception]}")
+    return page
+
+
+def script_ms(repeat: int) -> dict[str, float]:
+    """Median ms in the script thread: an empty page's rerun, the page's rerun, a panel-only change."""
+    with browser_runs() as runs:
+        empty = AppTest.from_string("import streamlit as st\nst.write('empty page')\n", default_timeout=60)
+        empty.run()
+        for _ in range(repeat):
+            empty.run()
+        empty_ms = statistics.median(runs.seconds[1:]) * 1e3
+        page = _opened()
+        start = len(runs.seconds)
+        for _ in range(repeat):
+            page.run()
+        rerun_ms = statistics.median(runs.seconds[start:]) * 1e3
+        start = len(runs.kinds)
+        changes = []
+        for i in range(repeat):
+            points = page.number_input(key=POINTS)
+            points.set_value(12 if i % 2 == 0 else 11)
+            page = runs.interact(points)
+            changes.append(runs.seconds[-1])
+        kinds = sorted(set(runs.kinds[start:]))
+    return {"empty": empty_ms, "rerun": rerun_ms, "panel": statistics.median(changes) * 1e3,
+            "panel runs": "+".join(kinds)}
+
+
+def rerun_profile(repeat: int) -> list[tuple[str, float]]:
+    """Cumulative ms per run of the page's parts and of each extra panel, from cProfile in the script thread."""
+    page = _opened(PROFILED_APP)
+    for _ in range(repeat):
+        page.run()
+    stats = pstats.Stats(*page.session_state["bench_profiles"][1:])
+    parts = {}
+    for (path, _, name), (_, _, _, cumulative, _) in stats.stats.items():
+        page_part = Path(path).name == "app.py" or "/webapp/" in path
+        panel = path.endswith("_panel.py") and name.startswith("render_") and name.endswith("_panel")
+        if (page_part and (name in PARTS or panel)) or name in BUILDERS:
+            parts[f"{Path(path).stem}.{name}"] = cumulative * 1e3 / repeat
+    return sorted(parts.items(), key=lambda item: -item[1])
+
+
+def report_rerun(repeat: int) -> None:
+    ms = script_ms(repeat)
+    print(f"default sample ({DEFAULT_SAMPLE}), medians of {repeat}, in the script thread (start -> stop event)")
+    print(f"  empty page rerun (baseline)          {ms['empty']:7.1f} ms")
+    print(f"  page rerun, nothing changed          {ms['rerun']:7.1f} ms  "
+          f"{ms['rerun'] / ms['empty']:6.1f}x the baseline")
+    changed = f"what-if points changed ({ms['panel runs']} run)"
+    print(f"  {changed:36s} {ms['panel']:7.1f} ms  {ms['panel'] / ms['empty']:6.1f}x the baseline, "
+          f"{ms['panel'] / ms['rerun']:.2f}x a page rerun")
+    print("\nwhere a rerun's time goes (cProfile, cumulative ms per run; profiling slows every call):")
+    for label, cumulative in rerun_profile(repeat):
+        print(f"  {label:48s} {cumulative:7.1f}")
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--repeat", type=int, default=7)
+    parser.add_argument("--repeat", type=int, default=None, help="runs per figure (7; 21 with --rerun)")
+    parser.add_argument("--rerun", action="store_true", help="the default sample's rerun and a panel-only change")
     args = parser.parse_args(argv)
+    if args.rerun:
+        report_rerun(args.repeat or 21)
+        return 0
+    args.repeat = args.repeat or 7
     samples = sorted((ROOT / "sample_data").glob("*.json"))
     warm = AppTest.from_file(APP, default_timeout=60)
     warm.run()  # imports, CoolProp, plotly: loaded once, as on a running server
