@@ -8,6 +8,7 @@ import pytest
 
 from heatbalance.worksheet import parse_worksheet
 from page_helpers import ROOT, held, page, sample
+from webapp.common import plain
 from webapp.mixing_panel import KEYS
 from webapp.state import KEY, PageState
 
@@ -73,3 +74,15 @@ def test_the_form_follows_another_worksheet():
     at.run()
     # 980 kg of H2SO4 in 4,920 kg: 19.92 % (mass balance)
     assert at.session_state[KEYS["to"]] == pytest.approx(19.9187, abs=1e-3)
+
+
+def test_the_dilution_vessel_gets_its_thermal_screening():
+    at = page(sample(SAMPLE))
+    assert not at.exception
+    assert "Thermal screening (loss of cooling)" in [h.value for h in at.header]
+    assert f"Vessel {plain('D-101')}" in [s.value for s in at.subheader]
+    # MTSR = 40 °C + 100 % × 51.4 K (hand calculation in test_mixing.py), the dilution's heat in ΔT_ad
+    numbers = next(m.value for m in at.markdown if m.value.startswith("| T_process"))
+    assert "**91.4 °C**" in numbers and "51.4 K" in numbers
+    notes = next(m.value for m in at.markdown if "The stated heat of mixing" in m.value)
+    assert plain("The stated heat of mixing (666,013 kJ) counts in ΔT_ad") in notes

@@ -1,4 +1,4 @@
-"""The page's thermal-screening panel: one per vessel with a reaction.
+"""The page's thermal-screening panel: one per vessel with a reaction or a stated heat of mixing.
 
 Hooked into ``app.py`` as one of its extra panels, called as
 ``render_screening_panel(worksheet, result, system)``. It shows the screening the engine
@@ -139,13 +139,14 @@ def _refusal(exc: Exception, system: str) -> str:
 
 def render_screening_panel(worksheet: Worksheet, result: Result | None, system: str = "SI",
                            set_worksheet=None, caution: bool = True) -> None:
-    """Draw the screening of every vessel with a reaction (nothing when there is none or no result).
+    """Draw the screening of every vessel with a reaction or a heat of mixing (nothing when none, or no result).
 
     ``caution=False`` when the page already shows the one safety caution."""
     if result is None:
-        if worksheet.vessels and worksheet.reactions:
+        if worksheet.vessels and (worksheet.reactions or worksheet.mixings):
             st.header("Thermal screening (loss of cooling)")
-            st.info("The thermal screening of the vessels with a reaction appears here once the balance solves.")
+            st.info("The thermal screening of the vessels with a reaction or a heat of mixing appears here once "
+                    "the balance solves.")
         return
     if not getattr(result, "screening", None):
         return
@@ -167,8 +168,8 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
         c1, c2, c3 = st.columns(3)
         c1.number_input("Accumulation at cooling failure [%]", min_value=0.0, max_value=100.0, step=5.0,
                         key=widget_key(index, "accumulation"), **(commit or {}),
-                        help="Share of the reaction heat not yet released when cooling fails (100 % = batch "
-                             "with everything charged).")
+                        help="Share of the reaction heat (and heat of mixing) not yet released when cooling "
+                             "fails (100 % = batch with everything charged).")
         c2.number_input(f"T_D24 [{unit}]", value=None, step=5.0, key=widget_key(index, "T_D24"), **(commit or {}),
                         placeholder="from calorimetry",
                         help="Temperature at which the decomposition's time to maximum rate is 24 h "
