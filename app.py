@@ -19,8 +19,8 @@ from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
 from webapp import sharing
 from webapp.answer import ANSWER_KEY, render_answer, render_header
-from webapp.common import (DEFAULT_SAMPLE, SAMPLES_DIR, display_system, fragment_panel, guarded, load_sample,
-                           page_state)
+from webapp.common import (DEFAULT_SAMPLE, SAMPLES_DIR, display_system, fragment_panel, guarded,
+                           keep_loaded_libraries_out_of_gc, load_sample, page_state)
 from webapp.state import KEY, PageState
 
 
@@ -109,6 +109,7 @@ def main() -> None:
     guarded(render_results, result, system)
     for panel in extra_panels():
         panel(worksheet, result, system)  # guarded inside the fragment, which may rerun alone
+    keep_loaded_libraries_out_of_gc()  # every library the page uses is loaded by now
 
 
 main()

@@ -2,6 +2,8 @@
 drawn as a fragment, and figures built once per content."""
 from __future__ import annotations
 
+import functools
+import gc
 import hashlib
 import json
 import pickle
@@ -18,7 +20,7 @@ from heatbalance.worksheet import Worksheet, load_worksheet
 from .state import KEY, PageState
 
 __all__ = ["UNIT_SYSTEMS", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system", "plain", "guarded",
-           "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample"]
+           "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample", "keep_loaded_libraries_out_of_gc"]
 
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
 SAMPLES_DIR = Path(__file__).resolve().parent.parent / "sample_data"
@@ -108,6 +110,21 @@ def built(builder, *inputs):
     while len(kept) > BUILT_KEPT:
         kept.popitem(last=False)
     return made
+
+
+@functools.cache
+def keep_loaded_libraries_out_of_gc() -> None:
+    """Once per server process, when the page's libraries are loaded: leave every object alive now out of the
+    garbage collector's passes (``gc.freeze``).
+
+    Streamlit collects garbage after every run (``runner.postScriptGC``): a full pass over the libraries' objects
+    (CoolProp, pint, pandas, plotly…: about 196,000) took 65-100 ms and held the interpreter while the run's last
+    messages waited. Frozen, they are not walked again (a pass then takes well under a millisecond); what the runs
+    make is collected as before. Objects frozen here that later become unreachable through a cycle only are not
+    reclaimed: the libraries' live for the process anyway, and the first session's are a bounded, one-off amount.
+    """
+    gc.collect()  # what is already garbage goes first
+    gc.freeze()
 
 
 def sample_files() -> dict[str, Path]:
