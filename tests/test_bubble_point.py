@@ -121,6 +121,16 @@ def test_the_hydration_sample_uses_raoult_for_ethylene_oxide_and_says_so():
     total = (1 - x_eo) * IAPWS97(T=s.MTT, x=0).P * 1e6 + x_eo * PropsSI("P", "T", s.MTT, "Q", 0, "EthyleneOxide")
     assert total == pytest.approx(301325.0, rel=5e-3)
     assert s.MTT < IAPWS97(P=0.301325, x=0).T - 10  # more than 10 K below water's 133.7 °C
+    # the class rests on Raoult's law and on the vessel venting at its pressure: both said beside it
+    assert s.criticality_class is not None
+    assert [c.text.split(" ", 3)[:3] for c in s.class_caveats] == [["MTT", "is", "the"], ["MTT", "comes", "from"]]
+    assert "relief set pressure" in s.class_caveats[0].text and "may boil lower" in s.class_caveats[1].text
+
+
+def test_an_entered_MTT_carries_no_caveat():
+    doc = sample("glycol_hydration_screening.json")
+    doc["vessels"][0]["screening"]["MTT"] = "110 degC"
+    assert screening(doc)[1].class_caveats == []
 
 
 def reactor(charges: list, screening_inputs: dict | None = None, materials: list | None = None):

@@ -182,6 +182,30 @@ def screening_of(ws):
     return result.screening[0]
 
 
+def adiabatic_scenario(screening=None, jacket="0 kJ"):
+    """The scenario with the batch's final temperature solved for and the jacket's duty given."""
+    ws = scenario(screening).model_dump(mode="json")
+    ws["duties"] = [{"name": "Jacket", "value": jacket}]
+    ws["unknowns"] = [{"kind": "temperature", "line": "R", "end": "final"}]
+    return build(**{k: v for k, v in ws.items() if k != "schema_version"})
+
+
+def _counted_twice(result):
+    return [w for w in result.warnings if "counts twice" in w.text]
+
+
+def test_a_process_temperature_the_uncooled_balance_solved_for_is_warned_as_counted_twice():
+    result = solve(adiabatic_scenario())
+    (s,) = result.screening
+    # hand: 382.5 MJ over 32 + 1.75 MJ/K: the batch ends 11.33 K up, at 71.33 °C; MTSR adds 11.95 K on top
+    assert s.T_process - C == pytest.approx(60 + 382.5 / 33.75, abs=1e-3)
+    (warning,) = _counted_twice(result)
+    assert warning.address == "vessels[R].screening.process_temperature"
+    # entered, or with a cooling duty, the process temperature is the cooling's: no warning
+    assert _counted_twice(solve(adiabatic_scenario({"process_temperature": "60 degC"}))) == []
+    assert _counted_twice(solve(adiabatic_scenario(jacket="-100 MJ"))) == []
+
+
 def test_worksheet_screening_numbers_by_hand():
     s = screening_of(scenario({"MTT": "90 degC", "T_D24": "150 degC"}))
     assert s.vessel == "R" and s.reactions == ["Rx"]

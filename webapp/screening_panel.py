@@ -195,6 +195,8 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
             meaning = screening.class_meaning.split(": ", 1)[1]
             st.markdown(f"**Criticality class {screening.criticality_class}** (Stoessel). "
                         f"{plain(meaning[:1].upper() + meaning[1:])}", help=_CLASS_HELP)
+            for caveat in screening.class_caveats:
+                st.caption(plain(phrase_text(caveat, system)))
         else:
             st.info(plain(screening.class_meaning))
         if screening.jacket is not None:

@@ -22,7 +22,7 @@ from ..reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, crit
                        thermal_inertia_factor)
 from ..results import Result
 from ..units import ATMOSPHERE, heat_kind
-from .bubble_point import GLYCOLS, bubble_point, mixture_components
+from .bubble_point import GLYCOLS, RAOULT_NAME, bubble_point, mixture_components
 
 __all__ = ["JacketTime", "Screening", "screen", "cp_at"]
 
@@ -71,6 +71,7 @@ class Screening:
     MTT_composition: dict = field(default_factory=dict)  # mole fractions when MTT is the mixture's bubble point
     MTT_model: str = ""  # the activity model of that bubble point
     Q_mixing: float = 0.0  # J of Q_reaction released by stated heats of mixing
+    class_caveats: list[Phrase] = field(default_factory=list)  # what the class rests on that may not hold
 
     @property
     def alarm(self) -> bool:
@@ -175,6 +176,8 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
         T_process = charges[0][1].final_T
         notes.append(Phrase("Process temperature = the vessel's final temperature, {T}.",
                             {"T": Measure(T_process, "temperature", 1)}))
+        if _solved_without_cooling(problem, result, charges[0][0].final.var):
+            result.warnings.append(_solved_process_temperature(vessel, T_process))
     names = {t.name for t in releases}
     Q_mixing = sum(t.heat for t in result.terms if t.kind == "mixing" and t.name in names)
     Q = Q_mixing + sum(t.heat for t in result.terms if t.kind == "reaction" and t.name in names)
@@ -204,9 +207,11 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
     else:
         MTT, MTT_source = _mtt(inputs.MTT, charges, notes)
     T_D24 = inputs.T_D24
+    caveats = []
     if MTT is not None and T_D24 is not None:
         klass = criticality_class(T_process, MTSR, MTT, T_D24)
         meaning = CLASS_MEANINGS[klass]
+        caveats = _class_caveats(inputs.MTT is not None, bubble)
     else:
         klass = None
         missing = " and ".join(n for n, v in (("MTT", MTT), ("T_D24 (from calorimetry)", T_D24)) if v is None)
@@ -220,7 +225,20 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
                      inputs.accumulation, inputs.thermal_inertia, MTSR, MTT, MTT_source, T_D24, klass, meaning,
                      _alarms(T_process, MTSR, MTT, T_D24, where), notes, jacket,
                      MTT_composition=bubble.composition if bubble else {}, MTT_model=bubble.model if bubble else "",
-                     Q_mixing=Q_mixing)
+                     Q_mixing=Q_mixing, class_caveats=caveats)
+
+
+def _class_caveats(MTT_entered: bool, bubble) -> list[Phrase]:
+    """What a class from a computed MTT rests on: the vessel venting at its pressure; Raoult's law, if used."""
+    if MTT_entered:
+        return []
+    caveats = [Phrase("MTT is the boiling point at the vessel's pressure, as for a vessel that vents there; for a "
+                      "closed vessel it is the temperature at which the pressure reaches the relief set pressure: "
+                      "enter that MTT.")]
+    if bubble is not None and bubble.model == RAOULT_NAME:
+        caveats.append(Phrase("MTT comes from Raoult's law (γ = 1), for want of activity-model data for a "
+                              "component: a real mixture may boil lower, and this class rests on it."))
+    return caveats
 
 
 def _mixed_solution_capacity(releases: list, T: float, notes: list[Phrase]) -> float:
@@ -255,6 +273,23 @@ def _mixing_note(Q_mixing: float, basis: str) -> Phrase:
                   "dosing that goes on after the cooling has failed); dosing stopped when cooling fails releases "
                   "no more.",
                   {"Q": Measure(Q_mixing, heat_kind(basis), decimals=0)})
+
+
+def _solved_without_cooling(problem: Problem, result: Result, final_var: str | None) -> bool:
+    """Whether the vessel's final temperature is the solved unknown of a balance that no duty cools: it is then
+    where the released heat took the batch, not a temperature the cooling holds."""
+    solved = problem.unknown.kind == "temperature" and final_var is not None and problem.unknown_target == final_var
+    return solved and not any(t.kind == "duty" and t.heat < 0 for t in result.terms)
+
+
+def _solved_process_temperature(vessel: str, T: float) -> Phrase:
+    return Phrase("Vessel {vessel}: the screening's process temperature is the final temperature the balance solved "
+                  "for with no cooling ({T}), which already holds the heat released in the balance; MTSR adds ΔT_ad "
+                  "on top, so that "
+                  "heat counts twice (on the safe side, but not a temperature the batch can reach). Enter the "
+                  "temperature the cooling holds as the process temperature.",
+                  {"vessel": vessel, "T": Measure(T, "temperature", 1)},
+                  address=item("vessels", vessel, "screening", "process_temperature"))
 
 
 def _vessel_heat_capacity(problem: Problem, vessel: str, T: float, where: str) -> float:

@@ -64,6 +64,7 @@ def screening_report(screenings: list[Screening], system: str = "SI", caution: b
             f"  criticality class          {s.criticality_class if s.criticality_class else '-'}: "
             f"{s.class_meaning}",
         ]
+        out += [f"  caveat: {phrase_text(c, system)}" for c in s.class_caveats]
         if s.jacket is not None:
             j = s.jacket
             out.append(f"  jacket {j.direction} time        {j.time / 60:,.1f} min from {_t(j.start_T, system)} to "
