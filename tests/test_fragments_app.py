@@ -230,3 +230,15 @@ def test_built_builds_inputs_that_do_not_pickle_every_time_and_keeps_a_bounded_n
     built(figure, BUILT_KEPT + 4)  # among the most recent: kept
     built(figure, 0)  # the oldest: built again
     assert len(made) == count + 1
+
+
+def test_an_unexpected_failure_is_shown_plainly_and_logged_with_its_traceback(caplog):
+    from webapp.common import guarded
+
+    def broken_panel():
+        raise TypeError("a defect")
+
+    with caplog.at_level("ERROR", logger="heatbalance.page"):
+        guarded(broken_panel)  # no traceback reaches the page (bare mode: no page to draw on)
+    (record,) = [r for r in caplog.records if r.name == "heatbalance.page"]
+    assert "broken_panel" in record.getMessage() and record.exc_info[0] is TypeError

@@ -6,6 +6,7 @@ import functools
 import gc
 import hashlib
 import json
+import logging
 import pickle
 import re
 import string
@@ -30,6 +31,7 @@ WORD_JOINER = "\u2060"  # invisible, no width: breaks an autolink's pattern with
 # The page's Markdown turns text that looks like an address into a link *after* escapes are read
 # (GFM autolink literals: ``http://…``, ``www.…``, ``name@host.tld``): a word joiner goes inside each pattern.
 _AUTOLINK = re.compile(r"(?<=:)(?=//)|(?i:(?<=www)(?=\.))|(?=@)")
+_LOG = logging.getLogger("heatbalance.page")
 _BUILT = "built_by_content"  # session key: what `built` made, by builder and the digest of its inputs (a cache)
 BUILT_KEPT = 12  # figures and tables `built` keeps per session (the least recently used go first)
 
@@ -70,6 +72,7 @@ def guarded(draw, *args) -> None:
     except HeatBalanceError as exc:
         st.error(plain(str(exc)), icon=":material/error:")
     except Exception as exc:  # noqa: BLE001 - the page must never show a traceback
+        _LOG.exception("drawing %s failed", getattr(draw, "__qualname__", draw))  # the server's log keeps it
         st.error(f"Something went wrong while drawing this part of the page ({exc.__class__.__name__}). "
                  "Your inputs are kept; try undoing the last change.", icon=":material/error:")
 
