@@ -193,6 +193,9 @@ def test_glycol_cooler_sample_is_closed_by_its_rating():
     assert closure.rated_duty == pytest.approx(Q, rel=1e-6) and glycol.final_T == pytest.approx(closure.value)
     assert water.final_T - C0 == pytest.approx(40.0) and closure.cold_outlet_T - C0 == pytest.approx(40.0, abs=1e-6)
     assert not [w for w in result.warnings if "RETURN LIMIT" in w.text]  # the flow holds the 40 °C limit
+    # the grid shows the outlet as typed (45 °C): beside the answer, a warning says the rating's value is used
+    (said,) = [w for w in result.warnings if w.address == "exchangers[E-401].sets"]
+    assert "is set by the rating of E-401" in said.text and "not as typed (45.00 °C)" in said.text
 
 
 def test_return_limit_passed_when_the_rating_closes_is_said_once():

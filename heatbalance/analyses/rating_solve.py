@@ -242,6 +242,7 @@ def solve_rated(problem: Problem) -> Result:
     result.rating_closure = closure
     result.assumptions = list(result.assumptions) + [f"{e.sets}: set by the rating of exchanger {e.name} "
                                                      "(its UA closes the balance), not as typed."]
+    result.warnings = list(result.warnings) + [closure.note]  # beside the answer: the grid shows the typed value
     return result
 
 
