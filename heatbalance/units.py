@@ -38,6 +38,7 @@ def registry():
     ureg.define("MBtu = 1e3 * Btu")
     ureg.define("TR = ton_of_refrigeration")
     ureg.define("tonne_per_hour = tonne / hour = tph")
+    ureg.define("gpm = gallon / minute")  # US gallons per minute, as pumps and meters are rated
     return ureg
 
 
@@ -112,10 +113,14 @@ _DIFFERENCE_ALIASES = {"K": "K", "degC": "delta_degC", "°C": "delta_degC", "C":
                        "R": "delta_degF", "°R": "delta_degF", "degR": "delta_degF"}
 
 
+_POWER_OF_LENGTH = re.compile(r"\b(m|dm|cm|mm|ft|in)([23])\b")  # an area or volume typed without "^"
+
+
 def _normalise(unit: str) -> str:
     """Write typographic forms the way pint reads them: ``kJ/(kg·K)`` -> ``kJ/(kg*K)``."""
-    text = unit.strip().replace("·", "*").replace("⋅", "*").replace("²", "**2").replace("°", "deg")
-    text = text.replace("deg C", "degC").replace("deg F", "degF").replace("deg R", "degR")
+    text = unit.strip().replace("·", "*").replace("⋅", "*").replace("²", "**2").replace("³", "**3")
+    text = text.replace("°", "deg").replace("deg C", "degC").replace("deg F", "degF").replace("deg R", "degR")
+    text = _POWER_OF_LENGTH.sub(r"\1**\2", text)  # m3/h -> m**3/h
     return re.sub(r"\s+", " ", text)
 
 
@@ -152,7 +157,17 @@ def check_unit(unit: str, kind: str, where: str = "") -> None:
 def _check_by_pint(unit: str, kind: str, where: str = "") -> None:
     parsed, _ = _parse(unit, kind, where)
     if parsed.dimensionality != _unit(KINDS[kind][0]).dimensionality:
-        raise UnitError(unit, KINDS[kind][1], where, detail=f"it measures {_describe(parsed)}")
+        detail = f"it measures {_describe(parsed)}"
+        if kind in ("mass", "mass_flow") and parsed.dimensionality in (_unit("m**3").dimensionality,
+                                                                       _unit("m**3/s").dimensionality):
+            detail += _VOLUME_HINT[kind]
+        raise UnitError(unit, KINDS[kind][1], where, detail=detail)
+
+
+# a volume typed where a mass is needed: the tool does not guess a density (common-practice figures for water)
+_VOLUME_HINT = {"mass_flow": "; give the mass flow, e.g. kg/h, t/h or lb/h: for water near 20 °C, 1 m³/h is "
+                             "about 998 kg/h and 1 US gpm about 500 lb/h",
+                "mass": "; give the mass, e.g. kg, t or lb: for water near 20 °C, 1 m³ is about 998 kg"}
 
 
 @lru_cache(maxsize=1024)
@@ -184,7 +199,11 @@ def _describe(unit) -> str:
     for kind, (si, words) in KINDS.items():
         if _unit(si).dimensionality == dims:
             return words[words.index(" ") + 1:] if " " in words else words
-    return str(dims) if dims else "a pure number"
+    named = next((words for si, words in _OTHER_DIMENSIONS.items() if _unit(si).dimensionality == dims), None)
+    return named or (str(dims) if dims else "a pure number")
+
+
+_OTHER_DIMENSIONS = {"m**3": "volume (e.g. m^3)", "kg/m**3": "density (e.g. kg/m^3)"}  # named in refusals only
 
 
 def to_si(value: float, unit: str, kind: str, where: str = "", gauge_reference: float = ATMOSPHERE) -> float:

@@ -2,7 +2,7 @@
 import pytest
 
 from heatbalance.errors import InputError, UnitError
-from heatbalance.units import from_si, kind_of, to_si
+from heatbalance.units import check_unit, from_si, kind_of, to_si
 
 CASES = [
     # value, unit, kind, SI value, source of the factor
@@ -76,3 +76,24 @@ def test_kind_of_picks_mass_or_flow():
     assert kind_of("t", ("mass", "mass_flow")) == "mass"
     with pytest.raises(UnitError, match=r"is not a mass or a mass flow"):
         kind_of("kW", ("mass", "mass_flow"), "x")
+
+
+@pytest.mark.parametrize("unit", ["m3/h", "m³/h", "m^3/h", "gpm", "gal/min", "L/min"])
+def test_a_volume_flow_where_a_mass_flow_is_needed_is_refused_with_the_way_to_give_it(unit):
+    with pytest.raises(UnitError) as refused:
+        check_unit(unit, "mass_flow", "streams[Water].flow")
+    assert refused.value.where == "streams[Water].flow"
+    assert "it measures volume flow" in refused.value.message and "give the mass flow, e.g. kg/h" in refused.value.message
+
+
+def test_volume_flows_typed_the_ways_engineers_type_them():
+    # 1 US gallon = 3.785411784 L exactly (NIST SP 811); humid air's flows are volume flows
+    assert to_si(100, "gpm", "volume_flow") == pytest.approx(100 * 3.785411784e-3 / 60, rel=1e-12)
+    assert to_si(3600, "m3/h", "volume_flow") == pytest.approx(1.0, rel=1e-12)
+    assert to_si(3600, "m³/h", "volume_flow") == pytest.approx(1.0, rel=1e-12)
+
+
+def test_a_volume_where_a_mass_is_needed_is_named_a_volume():
+    with pytest.raises(UnitError) as refused:
+        check_unit("m3", "mass", "vessels[V].charges[W].mass")
+    assert "it measures volume (e.g. m^3); give the mass, e.g. kg" in refused.value.message
