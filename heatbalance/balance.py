@@ -528,7 +528,7 @@ def _result(p: Problem, fraction: float | None) -> Result:
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
-                  sources, property_library_versions())
+                  sources, property_library_versions(), duration=p.duration)
 
 
 def _term_detail(term: HeatTerm, basis: str) -> Phrase:

@@ -82,6 +82,7 @@ class Result:
     sources: dict[str, str] = field(default_factory=dict)
     versions: dict[str, str] = field(default_factory=dict)
     sign_convention: str = SIGN_CONVENTION
+    duration: float | None = None  # s: a batch's duration, when given (None: continuous, or not given)
     # filled by the analyses (this module may not import them): one analyses.screening.Screening per vessel
     # with a reaction
     screening: list = field(default_factory=list)
