@@ -21,6 +21,15 @@ def test_solve_prints_the_answer_and_every_contribution(capsys):
     assert "IAPWS-IF97" in out
 
 
+@pytest.mark.parametrize("units", ["SI", "US"])
+def test_a_heat_that_rounds_to_zero_is_written_without_a_sign(capsys, units):
+    # the flash is adiabatic: the line's heat into the process is a rounding residue, -0.00 before the fix
+    assert main(["solve", FLASH, "--units", units]) == 0
+    out = capsys.readouterr().out
+    row = next(line for line in out.splitlines() if line.startswith("Condensate return"))
+    assert row.split()[-1] == "0.00" and "-0.00" not in out
+
+
 def test_json_output_carries_the_full_result(capsys):
     assert main(["solve", FLASH, "--json"]) == 0
     data = json.loads(capsys.readouterr().out)

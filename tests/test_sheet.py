@@ -110,6 +110,30 @@ def test_user_text_is_printed_as_text_not_markup():
     assert b"/URI" not in pdf  # no link was made from the notes
 
 
+def test_the_hostile_sheet_prints_every_user_text_exactly_as_typed():
+    from test_plain_text_browser import TEXTS, TITLE, hostile_worksheet
+
+    ws = hostile_worksheet()
+    pdf = sheet_pdf_bytes(ws, solve_and_analyse(ws), "SI")
+    pages = [folded(page.extract_text() or "") for page in pypdf.PdfReader(io.BytesIO(pdf)).pages]
+    text = " ".join(pages)
+    for typed in TEXTS:  # title, notes, names and a source: markup, entities, Markdown, all as typed
+        assert folded(typed) in text, typed
+    assert all(folded(TITLE[:120]) in page for page in pages)  # the running header, drawn as a string
+    # the typed texts hold no "&lt;" and one "&amp;" (the vessel's): an escape shown is one added by the sheet
+    assert "&lt;" not in text and "&gt;" not in text and "&amp;amp;" not in text
+    assert b"/URI" not in pdf
+
+
+def test_the_exchanger_sheet_writes_its_tables_in_the_view_units():
+    ws = sample("sample_data/steam_heater_subcooled_condensate.json")
+    result = solve_and_analyse(ws)
+    text = text_of(sheet_pdf_bytes(ws, result, "US"))
+    electric = next(o for o in result.utilities[0].options if o.kind == "electric")
+    assert f"Electric heating electric yes — {electric.cost_per_hour:,.2f} {electric.cost_per_year:,.0f}" in text
+    assert "e+" not in text and "None" not in text
+
+
 def test_the_file_name_says_the_revision():
     ws = sample(CONDENSER)
     assert sheet_filename(ws, REVISION) == "toluene_overhead_condenser_cooling_water_demand_rev_01234567.pdf"

@@ -18,7 +18,8 @@ from heatbalance.address import item
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.analyses.exchangers import typical_U
 from heatbalance.analyses.utilities import demo_utilities
-from heatbalance.present.exchangers import exchanger_rows, tq_figure, utility_rows, zone_rows
+from heatbalance.present.exchangers import (exchanger_rows, number_columns, tq_figure, typical_U_rows, utility_rows,
+                                            zone_rows)
 from heatbalance.errors import HeatBalanceError
 from heatbalance.present.text import error_text, phrase_text
 from heatbalance.results import Result
@@ -63,14 +64,14 @@ def render_exchanger_panel(worksheet: Worksheet, result: Result | None, system: 
                 st.caption(plain(phrase_text(note, system)))
             st.plotly_chart(built(tq_figure, check, system), key=f"exchanger_tq_{i}", width="stretch")
             st.dataframe(pd.DataFrame(exchanger_rows(check, system)), hide_index=True, key=f"exchanger_rows_{i}")
-            st.dataframe(pd.DataFrame(zone_rows(check, system)), hide_index=True, key=f"exchanger_zones_{i}")
+            _numbers_table(zone_rows(check, system), f"exchanger_zones_{i}")
             if check.rating is not None:
                 st.markdown(plain(phrase_text(check.rating.verdict, system)))
             st.caption(plain("; ".join(check.sources)))
         for j, table in enumerate(result.utilities):
             d = table.demand
             st.markdown(f"**Utilities for {plain(d.label)}** ({d.sense})")
-            st.dataframe(pd.DataFrame(utility_rows(table, system)), hide_index=True, key=f"utility_table_{j}")
+            _numbers_table(utility_rows(table, system), f"utility_table_{j}")
         if not worksheet.utilities:
             st.caption("No site utility list in this worksheet.")
             if set_worksheet is not None and st.button("Add the demo site utilities (our own invention)",
@@ -80,7 +81,13 @@ def render_exchanger_panel(worksheet: Worksheet, result: Result | None, system: 
         if set_worksheet is not None:
             _editor(worksheet, system, set_worksheet)
         with st.expander("Typical overall coefficients U (guidance only)"):
-            st.dataframe(pd.DataFrame(typical_U()), hide_index=True, key="exchanger_typical_U")
+            _numbers_table(typical_U_rows(typical_U(), system), "exchanger_typical_U")
+
+
+def _numbers_table(rows: list[dict], key: str) -> None:
+    """Rows written by the presentation (numbers as text in the view's units), their number columns right-aligned."""
+    config = {c: st.column_config.TextColumn(c, alignment="right") for c in number_columns(rows)}
+    st.dataframe(pd.DataFrame(rows), hide_index=True, key=key, column_config=config)
 
 
 def panel(set_worksheet=None):

@@ -9,10 +9,11 @@ from html import escape
 
 from ..messages import Measure
 from ..units import from_si
-from .text import UNIT_SETS, display_unit, measure_text, phrase_text
+from .text import (NOT_APPLICABLE, UNIT_SETS, display_unit, measure_text, no_negative_zero, percent_text, phrase_text,
+                   significant_text)
 
-__all__ = ["exchanger_rows", "zone_rows", "utility_rows", "exchanger_report", "tq_figure", "HOT_COLOUR",
-           "COLD_COLOUR"]
+__all__ = ["exchanger_rows", "zone_rows", "utility_rows", "typical_U_rows", "number_columns", "exchanger_report",
+           "tq_figure", "HOT_COLOUR", "COLD_COLOUR"]
 
 HOT_COLOUR = "#c8553d"  # the hot side
 COLD_COLOUR = "#2f6690"  # the cold side
@@ -21,6 +22,28 @@ _ZONE_FILLS = ("rgba(200, 85, 61, 0.07)", "rgba(47, 102, 144, 0.07)")
 
 def _m(value: float | None, kind: str, system: str, **how) -> str:
     return "" if value is None else measure_text(Measure(value, kind, **how), system)
+
+
+def _figures(value: float | None, kind: str, system: str, digits: int = 4) -> str:
+    """A table cell: an SI value in the view's unit of ``kind`` (named in the heading), significant figures."""
+    if value is None:
+        return NOT_APPLICABLE
+    return significant_text(from_si(value, UNIT_SETS[system][kind], kind), digits)
+
+
+def _tonnes(kg: float | None) -> str:
+    return NOT_APPLICABLE if kg is None else significant_text(kg / 1000.0)
+
+
+def _fixed(value: float | None, decimals: int) -> str:
+    """A table cell with a fixed number of decimals (money, a factor): ``563,326``, ``70.42``, ``0.995``."""
+    return NOT_APPLICABLE if value is None else no_negative_zero(f"{value:,.{decimals}f}")
+
+
+def _difference(value: float, system: str) -> str:
+    """A temperature difference cell, one decimal as the approaches are written: ``106.0``."""
+    unit = UNIT_SETS[system]["temperature_difference"]
+    return _fixed(from_si(value, unit, "temperature_difference"), 1)
 
 
 def exchanger_rows(check, system: str = "SI") -> list[dict]:
@@ -61,37 +84,35 @@ def exchanger_rows(check, system: str = "SI") -> list[dict]:
 
 
 def zone_rows(check, system: str = "SI") -> list[dict]:
-    """Each zone: services, duty, terminal temperatures, F, ΔT_lm and UA."""
+    """Each zone: services, duty, terminal temperatures, F, ΔT_lm and UA, written in the view's units."""
     t = UNIT_SETS[system]
     out = []
     for z in check.zones:
         out.append({
             "zone": z.index, "hot side": z.hot_service, "cold side": z.cold_service,
-            f"duty [{display_unit(t['power'])}]": from_si(z.duty, t["power"], "power"),
+            f"duty [{display_unit(t['power'])}]": _figures(z.duty, "power", system),
             "hot in → out": f"{_m(z.hot_in, 'temperature', system, digits=1)} → "
                             f"{_m(z.hot_out, 'temperature', system, digits=1)}",
             "cold in → out": f"{_m(z.cold_in, 'temperature', system, digits=1)} → "
                              f"{_m(z.cold_out, 'temperature', system, digits=1)}",
-            "F": round(z.F, 4),
-            f"ΔT_lm [{display_unit(t['temperature_difference'])}]":
-                from_si(z.lmtd, t["temperature_difference"], "temperature_difference"),
-            f"UA [{display_unit(t['thermal_conductance'])}]":
-                None if z.UA is None else from_si(z.UA, t["thermal_conductance"], "thermal_conductance"),
+            "F": _fixed(z.F, 3),
+            f"ΔT_lm [{display_unit(t['temperature_difference'])}]": _difference(z.lmtd, system),
+            f"UA [{display_unit(t['thermal_conductance'])}]": _figures(z.UA, "thermal_conductance", system),
         })
     return out
 
 
 def utility_rows(table, system: str = "SI") -> list[dict]:
-    """Each utility for one duty: flow, cost per hour and year, CO2 per year, or why it cannot."""
+    """Each utility for one duty: flow, cost per hour and year, CO2 per year (a dash where one does not apply),
+    or why it cannot; written in the view's units, money in the worksheet's currency."""
     t = UNIT_SETS[system]
     currency = table.currency
     out = []
     for o in table.options:
         row = {"utility": o.utility, "kind": o.kind, "feasible": "yes" if o.feasible else "NO",
-               f"flow [{display_unit(t['mass_flow'])}]":
-                   None if o.flow is None else from_si(o.flow, t["mass_flow"], "mass_flow"),
-               f"cost [{currency}/h]": o.cost_per_hour, f"cost [{currency}/year]": o.cost_per_year,
-               "CO2 [t/year]": None if o.co2_per_year is None else o.co2_per_year / 1000.0}
+               f"flow [{display_unit(t['mass_flow'])}]": _figures(o.flow, "mass_flow", system),
+               f"cost [{currency}/h]": _fixed(o.cost_per_hour, 2),
+               f"cost [{currency}/year]": _fixed(o.cost_per_year, 0), "CO2 [t/year]": _tonnes(o.co2_per_year)}
         notes = []
         if o.supply_T is not None:
             notes.append(f"{'condenses at' if o.kind == 'steam' else 'supply'} "
@@ -99,9 +120,9 @@ def utility_rows(table, system: str = "SI") -> list[dict]:
                          f"{'condensate' if o.kind == 'steam' else 'return'} "
                          f"{_m(o.return_T, 'temperature', system, digits=1)}")
         if o.flash_fraction is not None:
-            notes.append(f"condensate flashes {o.flash_fraction:.1%} ({_m(o.flash_flow, 'mass_flow', system)} of "
-                         "flash steam)" + (f", credited {_m(o.flash_credit, 'power', system)}"
-                                            if o.flash_credit is not None else ""))
+            credit = "" if o.flash_credit is None else f", credited {_m(o.flash_credit, 'power', system)}"
+            notes.append(f"condensate flashes {percent_text(o.flash_fraction)} "
+                         f"({_m(o.flash_flow, 'mass_flow', system)} of flash steam){credit}")
         notes += o.notes
         if o.refusal is not None:
             notes.append(f"{phrase_text(o.refusal.phrase, system)} [{o.refusal.where}]")
@@ -111,20 +132,31 @@ def utility_rows(table, system: str = "SI") -> list[dict]:
     return out
 
 
+def typical_U_rows(rows, system: str = "SI") -> list[dict]:
+    """The typical overall coefficients (``analyses.exchangers.typical_U()``) in the view's unit of U."""
+    heading = f"[{display_unit(UNIT_SETS[system]['heat_transfer_coefficient'])}]"
+    return [{"type": r["type"], "hot side": r["hot_side"], "cold side": r["cold_side"],
+             f"U low {heading}": _figures(r["U_low_W_m2K"], "heat_transfer_coefficient", system, 3),
+             f"U high {heading}": _figures(r["U_high_W_m2K"], "heat_transfer_coefficient", system, 3),
+             "source": r["source"]} for r in rows]
+
+
+def number_columns(rows: list[dict]) -> list[str]:
+    """The columns of zone or utility rows that hold numbers (their unit in the heading, and F): right-aligned."""
+    return [c for c in (rows[0] if rows else {}) if "[" in c or c == "F"]
+
+
 def _table(rows: list[dict]) -> list[str]:
     if not rows:
         return []
-    columns = list(rows[0])
-
-    def cell(v) -> str:
-        if v is None:
-            return ""
-        return f"{v:,.2f}" if isinstance(v, float) else str(v)
-
-    cells = [[cell(r[c]) for c in columns] for r in rows]
+    columns, numbers = list(rows[0]), set(number_columns(rows))
+    cells = [[str(r[c]) for c in columns] for r in rows]
     widths = [max(len(c), *(len(row[i]) for row in cells)) for i, c in enumerate(columns)]
-    return ["  ".join(c.ljust(w) for c, w in zip(columns, widths)), "  ".join("-" * w for w in widths)] + \
-        ["  ".join(v.ljust(w) for v, w in zip(row, widths)).rstrip() for row in cells]
+
+    def line(values: list[str]) -> str:
+        return "  ".join(v.rjust(w) if c in numbers else v.ljust(w) for v, w, c in zip(values, widths, columns))
+
+    return [line(columns).rstrip(), "  ".join("-" * w for w in widths)] + [line(row).rstrip() for row in cells]
 
 
 def exchanger_report(result, system: str = "SI") -> list[str]:

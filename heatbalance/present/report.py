@@ -7,7 +7,7 @@ from .humid_air import humid_air_report
 from .losses import protection_text, surface_loss_report
 from .screening import screening_report
 from .tables import contribution_rows
-from .text import answer_text, answer_unit, answer_value, format_heat, phrase_text
+from .text import answer_text, answer_unit, answer_value, format_heat, no_negative_zero, phrase_text
 from .uncertainty import contribution_rows as uncertainty_rows
 from .uncertainty import monte_carlo_text, output_uncertainty_lines, uncertainty_text
 
@@ -18,7 +18,7 @@ def _table(rows: list[dict], columns: list[str]) -> str:
     def cell(value) -> str:
         if value is None:
             return ""
-        return f"{value:,.2f}" if isinstance(value, float) else str(value)
+        return no_negative_zero(f"{value:,.2f}") if isinstance(value, float) else str(value)
 
     cells = [[cell(r.get(c)) for c in columns] for r in rows]
     widths = [max(len(c), *(len(row[i]) for row in cells)) for i, c in enumerate(columns)]

@@ -8,7 +8,8 @@ sign-offs of the revision ("unchecked" where there are none). A header and "page
 
 reportlab was chosen over an HTML-to-PDF route because it is pure Python with no system libraries (the
 README's one ``pip install`` is enough), draws the figures as vectors, and its output is deterministic.
-User text is escaped before it reaches reportlab's paragraph markup: it is shown, never interpreted.
+User text is escaped once, where it reaches reportlab's paragraph markup (``_plain``), and never where it is drawn
+as a string (``_glyphs``: the page header, the charts' labels): it is shown as typed, never interpreted.
 """
 from __future__ import annotations
 
@@ -70,11 +71,15 @@ def _font() -> tuple[str, str]:
     return "Sheet", "Sheet-Bold"
 
 
-def _plain(text) -> str:
-    """User or engine text made safe for a paragraph: escaped markup, glyphs the font lacks spelled out."""
+def _glyphs(text) -> str:
+    """Text as typed, glyphs the font lacks spelled out: for drawn strings, which read no markup."""
     face = pdfmetrics.getFont(_font()[0]).face
-    out = "".join(ch if ord(ch) in face.charToGlyph or ch in "\n\t" else _FALLBACK.get(ch, "?") for ch in str(text))
-    return escape(out)
+    return "".join(ch if ord(ch) in face.charToGlyph or ch in "\n\t" else _FALLBACK.get(ch, "?") for ch in str(text))
+
+
+def _plain(text) -> str:
+    """User or engine text made safe for a paragraph (which reads markup): escaped once, shown as typed."""
+    return escape(_glyphs(text))
 
 
 def _styles():
@@ -268,7 +273,7 @@ def _waterfall(result: Result, system: str, styles) -> list:
         x = left + i * bar + bar * 0.15
         drawing.add(Rect(x, min(y(a), y(b)), bar * 0.7, max(abs(y(b) - y(a)), 0.5),
                          fillColor=colors.HexColor(colour), strokeColor=None))
-        name = _plain(step["label"])[:18]
+        name = _glyphs(step["label"])[:18]
         drawing.add(String(x, 2, name, fontName=regular, fontSize=6))
         shown = step["heat"] if abs(step["heat"]) > 1e-9 * (high - low or 1.0) else 0.0  # the closing sum: 0
         drawing.add(String(x, max(y(a), y(b)) + 1.5, no_negative_zero(amount_text(shown)), fontName=regular,
@@ -284,12 +289,12 @@ def _cases(ws: Worksheet, system: str, styles) -> list:
     if not ws.cases:
         return []
     from ..analyses.cases import run_cases
-    from .whatif import case_table
+    from .whatif import case_table_text
 
     frame = run_cases(ws)
-    table = case_table(frame, system)
+    table = case_table_text(frame, system)
     names = list(frame.attrs["cases"])
-    rows = [["output", *names]] + [[index, *(amount_text(table.loc[index, n]) for n in names)] for index in table.index]
+    rows = [["output", *names]] + [[index, *(table.loc[index, n] for n in names)] for index in table.index]
     width = 180 * mm
     out = [_p("Cases (what if)", styles["h2"]),
            _table(rows, [52 * mm] + [(width - 52 * mm) / len(names)] * len(names), styles, numbers_from=1)]
@@ -313,7 +318,7 @@ def _exchangers(result: Result, system: str, styles) -> list:
         zones = zone_rows(check, system)
         if zones:
             heading = list(zones[0])
-            body = [[amount_text(r[c]) if isinstance(r[c], float) else r[c] for c in heading] for r in zones]
+            body = [[r[c] for c in heading] for r in zones]
             out += [Spacer(1, 3), _table([heading, *body], [180 * mm / len(heading)] * len(heading), styles)]
         out += [_p(f"• {phrase_text(n, system)}", styles["small"]) for n in check.notes]
         out.append(_tq_drawing(check, system))
@@ -322,8 +327,7 @@ def _exchangers(result: Result, system: str, styles) -> list:
         if not rows:
             continue
         heading = [c for c in rows[0] if c != "source"]
-        body = [["" if r[c] is None else amount_text(r[c]) if isinstance(r[c], float) else r[c] for c in heading]
-                for r in rows]
+        body = [[r[c] for c in heading] for r in rows]
         out += [_p(f"Utilities for {table.demand.label}", styles["h2"]),
                 _table([heading, *body], [180 * mm / len(heading)] * len(heading), styles)]
     return out
@@ -364,11 +368,11 @@ def _tq_drawing(check, system: str) -> Drawing:
     drawing.add(Line(left, bottom, width, bottom, strokeColor=colors.black, strokeWidth=0.5))
     drawing.add(Line(left, bottom, left, height - 6, strokeColor=colors.black, strokeWidth=0.5))
     drawing.add(String(0, height - 8, f"T [{display_unit(unit)}]", fontName=regular, fontSize=6.5))
-    for t in (t_low, t_high):
-        drawing.add(String(0, xy(0.0, t)[1] - 2, f"{t:.0f}", fontName=regular, fontSize=6.5))
-    drawing.add(String(left, height - 8, f"{_plain(check.name)}: T–Q chart (red: hot side, blue: cold side), "
-                       f"{t_low:.0f} to {t_high:.0f} {display_unit(unit)}".replace("–", "-"), fontName=regular,
-                       fontSize=6.5))
+    low, high = (no_negative_zero(f"{t:.0f}") for t in (t_low, t_high))
+    for t, shown in ((t_low, low), (t_high, high)):
+        drawing.add(String(0, xy(0.0, t)[1] - 2, shown, fontName=regular, fontSize=6.5))
+    drawing.add(String(left, height - 8, f"{_glyphs(check.name)}: T-Q chart (red: hot side, blue: cold side), "
+                       f"{low} to {high} {display_unit(unit)}", fontName=regular, fontSize=6.5))
     drawing.add(String(width - 60 * mm, 1, "heat from the cold end →".replace("→", "->"), fontName=regular,
                        fontSize=6.5))
     return drawing
@@ -408,7 +412,7 @@ def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision:
                     _signoffs(signoffs or [], styles)):
         story += section
     buffer = io.BytesIO()
-    header = _plain(f"{ws.title} | {ws.tags.job or 'no job'} | {ws.tags.equipment or 'no equipment tag'} | "
+    header = _glyphs(f"{ws.title} | {ws.tags.job or 'no job'} | {ws.tags.equipment or 'no equipment tag'} | "
                     f"revision {revision or 'not saved'}")
     document = SimpleDocTemplate(buffer, pagesize=A4, leftMargin=15 * mm, rightMargin=15 * mm, topMargin=18 * mm,
                                  bottomMargin=15 * mm, title=ws.title, author="heat-balance worksheet",

@@ -15,7 +15,11 @@ from ..units import check_unit, from_si, heat_kind
 
 __all__ = ["UNIT_SETS", "display_unit", "measure_text", "phrase_text", "error_text",
            "temperature_text", "pressure_text", "heat_text", "format_heat", "shown_unit", "answer_unit",
-           "answer_value", "answer_text", "amount_text", "no_negative_zero"]
+           "answer_value", "answer_text", "amount_text", "no_negative_zero", "significant_text", "percent_text",
+           "NOT_APPLICABLE"]
+
+#: What a table cell shows where a quantity does not apply (an electric utility's flow).
+NOT_APPLICABLE = "—"
 
 #: Display units of each unit set, per kind.
 UNIT_SETS: dict[str, dict[str, str]] = {
@@ -58,15 +62,43 @@ def measure_text(measure: Measure, system: str = "SI") -> str:
     """A measure in the view's unit: temperatures with ``digits`` decimals, the rest significant figures."""
     unit = _unit_set(system).get(measure.kind)
     if unit is None:
-        return f"{measure.value:g}"
+        return significant_text(measure.value, 6)
     value = from_si(measure.value, unit, measure.kind)
     if not math.isfinite(value):
-        return f"{value} {display_unit(unit)}"
+        return f"{NOT_APPLICABLE} {display_unit(unit)}"  # never a non-finite number shown
     if measure.decimals is not None:
         return f"{value:,.{measure.decimals}f} {display_unit(unit)}"
     if measure.kind == "temperature":
         return f"{value:.{min(measure.digits, 2)}f} {display_unit(unit)}"
-    return f"{value:,.{measure.digits}g} {display_unit(unit)}"
+    return f"{significant_text(value, measure.digits)} {display_unit(unit)}"
+
+
+def significant_text(value: float, digits: int = 4) -> str:
+    """``value`` to ``digits`` significant figures, never in exponent form, trailing zeros dropped
+    (a dash for a non-finite value).
+
+    >>> significant_text(1708123.0), significant_text(745.63), significant_text(15.0), significant_text(0.00001234)
+    ('1,708,000', '745.6', '15', '0.00001234')
+    """
+    if not math.isfinite(value):
+        return NOT_APPLICABLE  # never a non-finite number shown
+    if value == 0:
+        return "0"  # never "-0"
+    rounded = float(f"{value:.{digits - 1}e}")  # 9999.5 -> 10000: the exponent after rounding
+    decimals = max(0, digits - 1 - math.floor(math.log10(abs(rounded))))
+    text = f"{rounded:,.{decimals}f}"
+    return text.rstrip("0").rstrip(".") if decimals else text
+
+
+def percent_text(fraction: float, decimals: int = 1) -> str:
+    """A fraction as a percentage; a small one that would round to zero keeps two significant figures.
+
+    >>> percent_text(0.1753), percent_text(0.00018), percent_text(0.0)
+    ('17.5%', '0.018%', '0.0%')
+    """
+    if fraction != 0 and abs(fraction) * 100 < 0.5 * 10 ** -decimals:
+        return f"{significant_text(fraction * 100, 2)}%"
+    return no_negative_zero(f"{fraction * 100:.{decimals}f}") + "%"
 
 
 def phrase_text(phrase: Phrase | str, system: str = "SI") -> str:

@@ -11,10 +11,10 @@ from ..address import label as address_label
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
 from ..errors import HeatBalanceError
 from ..units import check_unit, from_si
-from .text import UNIT_SETS, display_unit, error_text, phrase_text
+from .text import NOT_APPLICABLE, UNIT_SETS, display_unit, error_text, no_negative_zero, phrase_text
 
 __all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
-           "refusal_rows"]
+           "case_table_text", "refusal_rows"]
 
 _OUTPUT_WORDS = {"answer": "answer", "answer.phase_fraction": "phase fraction of the answer", "residual": "residual"}
 
@@ -167,3 +167,23 @@ def case_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
     table = pd.DataFrame(rows).T
     table.index.name = "output"
     return table
+
+
+def case_table_text(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
+    """The case table written for people: every number of one output (its cases and differences) with the same
+    decimals, four significant figures of the row's largest, thousands separated; a refused case a dash."""
+    return case_table(frame, system).apply(_row_text, axis=1)
+
+
+def _row_text(row: pd.Series) -> pd.Series:
+    finite = [float(v) for v in row if math.isfinite(v)]
+    decimals = _row_decimals(finite)
+    return row.map(lambda v: no_negative_zero(f"{v:,.{decimals}f}") if math.isfinite(v) else NOT_APPLICABLE)
+
+
+def _row_decimals(values: list[float]) -> int:
+    """Decimals giving the largest value four significant figures (none for whole numbers, e.g. a class)."""
+    largest = max((abs(v) for v in values), default=0.0)
+    if largest == 0 or all(v.is_integer() for v in values):
+        return 0
+    return max(0, 3 - math.floor(math.log10(largest)))
