@@ -195,13 +195,14 @@ def _cases(args) -> int:
     import io
 
     from .analyses.cases import AS_TYPED, run_cases
-    from .present.whatif import case_table
+    from .present.whatif import case_table, case_table_text
 
     frame = run_cases(_worksheet_of(args.worksheet), args.base or AS_TYPED, args.output or None)
     table = case_table(frame, args.units)
     buffer = io.StringIO()
     table.to_csv(buffer, lineterminator="\n")
-    _print_frame(table, args, buffer.getvalue().encode("utf-8-sig"))
+    shown = table if args.json or args.csv else case_table_text(frame, args.units)  # people: one format a row
+    _print_frame(shown, args, buffer.getvalue().encode("utf-8-sig"))
     if not (args.json or args.csv):
         for name, exc in frame.attrs["refusals"].items():
             print(f"refused: {name}: {exc.where}: {error_text(exc, args.units)}")

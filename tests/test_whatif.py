@@ -246,6 +246,10 @@ def test_cli_cases_and_a_bad_vary(capsys):
     assert main(["cases", CONDENSER, "--base", "design", "--csv"]) == 0
     rows = list(csv.reader(io.StringIO(capsys.readouterr().out)))
     assert rows[0][:4] == ["output", AS_TYPED, "winter", "design"]
+    # the table for people writes each output's cases and differences alike (hand: 28.31 t/h as typed)
+    assert main(["cases", CONDENSER]) == 0
+    flow = next(line for line in capsys.readouterr().out.splitlines() if line.startswith("Cooling water flow"))
+    assert flow.split()[4:6] == ["28.31", "15.72"]
     assert main(["sweep", GLYCOL, "--vary", "streams[Glycol].flow=6:18:x t/h"]) == 2
     assert capsys.readouterr().err.startswith("error: --vary: 'streams[Glycol].flow=6:18:x t/h' is not ADDRESS=")
     assert main(["sweep", GLYCOL, "--vary", "streams[Glycol].flow=6,12 kW"]) == 1
