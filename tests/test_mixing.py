@@ -508,3 +508,15 @@ def test_a_sweep_of_the_final_temperature_matches_single_solves():
         assert (answer, heat) == pytest.approx((alone.answer.value_si, mixing.heat), rel=1e-9)
     # the mixing releases more the hotter it ends (Δ(m·cp) < 0 for this dilution)
     assert frame[f"terms[{BASE[8:-1]}].heat"].is_monotonic_increasing
+
+
+def test_a_batch_jacket_duty_is_also_given_as_its_average_power():
+    from heatbalance.present.report import format_result
+    from heatbalance.present.text import average_power_text
+
+    result = solve(parse_worksheet(sample()))
+    # hand: −360,182 kJ over the sample's 2 h batch = −50.03 kW (−170,700 Btu/h at 3.412 Btu/h per W)
+    assert average_power_text(result) == "-50.03 kW on average over the batch's 120 min"
+    assert average_power_text(result, "US") == "-170,700 Btu/h on average over the batch's 120 min"
+    assert "ANSWER  duty Jacket cooling = -360,182 kJ  (-50.03 kW on average" in format_result(result)
+    assert average_power_text(solve(parse_worksheet(adiabatic(sample())))) is None  # a temperature answer

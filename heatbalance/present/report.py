@@ -7,7 +7,8 @@ from .humid_air import humid_air_report
 from .losses import protection_text, surface_loss_report
 from .screening import screening_report
 from .tables import contribution_rows
-from .text import answer_text, answer_unit, answer_value, format_heat, no_negative_zero, phrase_text
+from .text import (answer_text, answer_unit, answer_value, average_power_text, format_heat, no_negative_zero,
+                   phrase_text)
 from .uncertainty import contribution_rows as uncertainty_rows
 from .uncertainty import monte_carlo_text, output_uncertainty_lines, uncertainty_text
 
@@ -32,8 +33,10 @@ def format_result(result: Result, system: str = "SI") -> str:
     """A readable report of a solved worksheet in a unit set."""
     rows = contribution_rows(result, system)
     columns = ["item", "type", "from", "to", *[k for k in rows[0] if "[" in k]]
+    average = average_power_text(result, system)
     out = [result.title, "=" * len(result.title),
-           f"ANSWER  {result.answer.label} = {answer_text(result.answer, system)}", "",
+           f"ANSWER  {result.answer.label} = {answer_text(result.answer, system)}"
+           + (f"  ({average})" if average else ""), "",
            _table(rows, columns), "",
            f"closure residual: {format_heat(result.residual, result.basis, system)}",
            f"sign convention: {SIGN_CONVENTION}", "", "assumptions:"]

@@ -16,7 +16,7 @@ from ..units import check_unit, from_si, heat_kind
 __all__ = ["UNIT_SETS", "display_unit", "measure_text", "phrase_text", "error_text",
            "temperature_text", "pressure_text", "heat_text", "format_heat", "shown_unit", "answer_unit",
            "answer_value", "answer_text", "amount_text", "no_negative_zero", "significant_text", "percent_text",
-           "NOT_APPLICABLE"]
+           "NOT_APPLICABLE", "average_power_text"]
 
 #: What a table cell shows where a quantity does not apply (an electric utility's flow).
 NOT_APPLICABLE = "—"
@@ -186,3 +186,15 @@ def answer_text(answer: Answer, system: str = "SI") -> str:
         else:
             text += f", {1 - answer.phase_fraction:.1%} still solid"
     return text
+
+
+def average_power_text(result, system: str = "SI") -> str | None:
+    """A batch duty's mean power over the batch duration, for sizing the jacket or heater: ``-50.03 kW on average
+    over the batch's 2 h`` (None when the answer is not a batch duty or no duration is given). The peak, set by
+    the dosing or heating rate, is higher."""
+    answer = result.answer
+    if result.basis != "batch" or not result.duration or answer.kind != "duty":
+        return None
+    power = Measure(answer.value_si / result.duration, "power")
+    hours = Measure(result.duration, "duration")
+    return f"{measure_text(power, system)} on average over the batch's {measure_text(hours, system)}"
