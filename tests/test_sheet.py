@@ -167,3 +167,10 @@ def test_an_exchanger_sheet_carries_its_check_its_t_q_chart_and_the_utilities():
     assert f"Exchanger {check.name}" in text and "minimum internal approach" in text and "UA required" in text
     assert f"{check.name}: T-Q chart" in text
     assert "Utilities for" in text and result.utilities[0].options[0].utility in text
+
+
+def test_a_batch_duty_is_printed_with_its_average_power():
+    ws = sample("sample_data/acid_dilution_jacketed_vessel.json")
+    text = text_of(sheet_pdf_bytes(ws, solve_and_analyse(ws), "SI"))
+    # hand: −360,182 kJ over 2 h = −50.03 kW (test_mixing.py)
+    assert "= -50.03 kW on average over the batch's 120 min" in text

@@ -40,7 +40,8 @@ from .humid_air import humid_air_rows
 from .losses import surface_loss_rows
 from .screening import screening_report
 from .tables import contribution_rows
-from .text import UNIT_SETS, amount_text, answer_text, display_unit, format_heat, no_negative_zero, phrase_text
+from .text import (UNIT_SETS, amount_text, answer_text, average_power_text, display_unit, format_heat,
+                   no_negative_zero, phrase_text)
 from .uncertainty import contribution_rows as uncertainty_rows
 from .uncertainty import monte_carlo_text, output_uncertainty_lines, tolerance_text, uncertainty_text
 
@@ -148,6 +149,9 @@ def _answer(result: Result, system: str, styles) -> list:
     if in_view != answer_text(result.answer, system):  # typed in another unit than the view's: both
         out.append(_p(f"= {in_view} (in the sheet's units; the answer is given in the unit typed for it)",
                       styles["body"]))
+    average = average_power_text(result, system)
+    if average:
+        out.append(_p(f"= {average} (the peak, set by the dosing or heating rate, is higher)", styles["body"]))
     out.append(_p(f"Closure residual: {format_heat(result.residual, result.basis, system)} (zero when the "
                   "balance closes)", styles["body"]))
     return out
