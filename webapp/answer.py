@@ -71,8 +71,9 @@ def _render_unknown_picker(worksheet: Worksheet) -> None:
 
 
 def refusal_place(error: HeatBalanceError) -> str:
-    """Where a refusal is, in words (from its address): ``Quench pit / Hot condensate mass``."""
-    if not error.address or error.address == "worksheet":
+    """Where a refusal is, in words (from its address): ``Quench pit / Hot condensate mass``; empty when it is
+    not one field (the worksheet, the unknown: the message says it)."""
+    if not error.address or error.address in ("worksheet", "unknown", "unknowns"):
         return ""
     try:
         return address.label(error.address)
@@ -128,8 +129,8 @@ def _render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None, sys
                   disabled=not page_state().past)
         return
     place = refusal_place(error)
-    where = f"{plain(place)}: " if place else ""
-    st.error(f"**Not solved.** {where}{plain(error_text(error, system))}", icon=":material/error:")
+    lead = f"**Not solved.** {plain(place)}: " if place else "**Not solved** — "  # the message as written
+    st.error(lead + plain(error_text(error, system)), icon=":material/error:")
     st.caption("The place is marked in the tables; everything else is kept as you left it.")
 
 

@@ -29,6 +29,7 @@ __all__ = [
     "in_view", "exists", "tables_to_worksheet", "apply_edits", "cell_values", "same_rows", "renamed",
     "follow_renames", "cell_of", "material_names", "pressure_reference", "format_quantity", "parse_quantity",
     "format_state", "parse_state", "empty_worksheet", "typed_cell", "typed_into_unknown", "TYPED_INTO_UNKNOWN",
+    "FRACTION_COLUMNS", "format_fraction", "parse_fraction", "typed_names",
 ]
 
 UNKNOWN_MARK = "?"
@@ -57,7 +58,9 @@ TABLE_TITLES = {
 }
 #: columns the page shows read-only (derived from other cells)
 DERIVED = {"pressure is"}
-NUMBER_COLUMNS = frozenset({"mass fraction", "conversion", "cp per K", "cp per K²"})  # plain-number cells
+NUMBER_COLUMNS = frozenset({"cp per K", "cp per K²"})  # plain-number cells (no limits: nothing to clamp)
+#: fraction cells, as text: a number from 0 to 1 or a percentage; -> an example of each
+FRACTION_COLUMNS = {"mass fraction": ("0.98", "98 %"), "conversion": ("0.9", "90 %")}
 _FRACTION_TEXT = re.compile(r"^(vapou?r|solid)(?:\s+(?:fraction|quality))?\s*[:=]?\s*([-+]?[\d.]+)\s*(%?)$")
 
 
@@ -233,6 +236,51 @@ def _fraction(number: str, percent: str, column: str) -> float:
     return value
 
 
+_FRACTION_CELL = re.compile(r"^([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(%?)$")
+
+
+def format_fraction(value: float | None) -> str:
+    """A fraction as a cell, every digit kept: ``0.98``; ``1``.
+
+    >>> format_fraction(0.98), format_fraction(1.0), format_fraction(None)
+    ('0.98', '1', '')
+    """
+    if value is None:
+        return ""
+    text = repr(float(value))
+    return text[:-2] if text.endswith(".0") else text
+
+
+def parse_fraction(text: str, column: str) -> float:
+    """Read a fraction cell: a number from 0 to 1 (``0.98``) or a percentage (``98 %``).
+
+    A bare number above 1 is refused with the two ways to write it, never clamped nor read as a percentage
+    (``98`` may be 98 % or a slip).
+
+    >>> parse_fraction("0.98", "mass fraction"), parse_fraction("98 %", "mass fraction")
+    (0.98, 0.98)
+    """
+    text = text.strip().replace("−", "-")
+    comma = _DECIMAL_COMMA.match(text)
+    if comma:
+        raise _CellError(column, _comma_message(text, comma))
+    match = _FRACTION_CELL.match(text)
+    value = float(match.group(1)) if match else math.nan
+    if match and match.group(2):
+        if 0.0 <= value <= 100.0:
+            return value / 100.0
+        raise _CellError(column, f"'{text}' is not a {column}: a percentage lies between 0 % and 100 %")
+    if 0.0 <= value <= 1.0:
+        return value
+    if 1.0 < value <= 100.0:
+        number = _number_text(value)
+        raise _CellError(column, f"'{text}' is not a {column} (0 to 1): for {number} % type "
+                                 f"{_number_text(value / 100.0)} or {number} %")
+    fraction, percent = FRACTION_COLUMNS.get(column, ("0.5", "50 %"))
+    raise _CellError(column, f"'{text}' is not a {column}: type a number from 0 to 1 ({fraction}) "
+                             f"or a percentage ({percent})")
+
+
 def pressure_reference(text) -> str:
     """``gauge`` or ``absolute`` for a pressure cell (empty if unreadable), by the engine's reading.
 
@@ -249,9 +297,20 @@ def pressure_reference(text) -> str:
         return "absolute"
 
 
-def material_names(ws: Worksheet) -> list[str]:
-    """Every material a line can use: those defined in the worksheet first, then the catalogue."""
-    own = [m.name for m in (*ws.materials, *ws.freezing_materials)]
+def typed_names(rows: list[dict], column: str = "name") -> list[str]:
+    """The names typed in one column of a grid, each once, in order; a row that does not read yet counts.
+
+    >>> typed_names([{"name": "V-1"}, {"name": " "}, {"name": "V-2 "}, {"name": "V-1"}])
+    ['V-1', 'V-2']
+    """
+    return list(dict.fromkeys(name for name in (_text(row.get(column)) for row in rows) if name))
+
+
+def material_names(ws: Worksheet, own_rows: list[dict] | None = None) -> list[str]:
+    """Every material a line can use: the worksheet's own first (as typed in its materials grid, ``own_rows``,
+    when given), its freezing-range materials, then the catalogue."""
+    defined = typed_names(own_rows, "material") if own_rows is not None else [m.name for m in ws.materials]
+    own = list(dict.fromkeys([*defined, *(m.name for m in ws.freezing_materials)]))
     return own + [m.name for m in catalogue() if m.name not in own]
 
 
@@ -307,7 +366,7 @@ def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:
     for s in ws.streams:
         pressure = format_quantity(s.pressure)
         tables["streams"].append({
-            "name": s.name, "material": s.material, "mass fraction": s.mass_fraction,
+            "name": s.name, "material": s.material, "mass fraction": format_fraction(s.mass_fraction),
             "flow": _quantity_cell(s.flow, item("streams", s.name, "flow") in unknown),
             "pressure": pressure, "pressure is": pressure_reference(pressure),
             "inlet": _state_cell(s.inlet, item("streams", s.name, "inlet", "temperature") in unknown),
@@ -323,7 +382,8 @@ def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:
         for c in v.charges:
             charge = item("vessels", v.name, item("charges", c.name))
             tables["charges"].append({
-                "vessel": v.name, "name": c.name, "material": c.material, "mass fraction": c.mass_fraction,
+                "vessel": v.name, "name": c.name, "material": c.material,
+                "mass fraction": format_fraction(c.mass_fraction),
                 "mass": _quantity_cell(c.mass, f"{charge}.mass" in unknown),
                 "initial": _state_cell(c.initial, f"{charge}.initial.temperature" in unknown)})
         if v.equipment is not None:
@@ -341,7 +401,8 @@ def worksheet_to_tables(ws: Worksheet) -> dict[str, list[dict]]:
     for r in ws.reactions:
         tables["reactions"].append({
             "name": r.name, "heat of reaction": format_quantity(r.enthalpy), "equation": r.equation,
-            "key reactant": r.key_reactant, "amount": format_quantity(r.amount), "conversion": r.conversion,
+            "key reactant": r.key_reactant, "amount": format_quantity(r.amount),
+            "conversion": format_fraction(r.conversion),
             "molar mass": format_quantity(r.molar_mass), "vessel": r.vessel})
     for c in ws.common_temperatures:
         is_unknown = item("common_temperatures", c.name, "temperature") in unknown
@@ -418,6 +479,17 @@ class _Reader:
             self.report(exc.column, exc.message)
             return None
 
+    def fraction(self, column: str, default: float | None = None) -> float | None:
+        """A fraction cell (:func:`parse_fraction`); a bad one is reported as typed, never changed."""
+        cell = self.row.get(column)
+        if _blank(cell):
+            return default
+        try:
+            return parse_fraction(format_fraction(cell) if isinstance(cell, (int, float)) else str(cell), column)
+        except _CellError as exc:
+            self.report(exc.column, exc.message)
+            return None
+
     def number(self, column: str, default: float | None = None) -> float | None:
         cell = self.row.get(column)
         if _blank(cell):
@@ -464,7 +536,7 @@ def _streams(tables, ws: Worksheet, problems) -> list[dict]:
         at = lambda *fields: addr.item("streams", name, *fields) in unknown  # noqa: E731
         out.append({
             "name": name, "material": r.text("material", required=True),
-            "mass_fraction": r.number("mass fraction"),
+            "mass_fraction": r.fraction("mass fraction"),
             "flow": r.quantity("flow", basis_kinds("amount", ws.basis.kind), old.flow if old else None,
                                required=False, unknown=at("flow")),
             "pressure": r.quantity("pressure", ("pressure",), required=False) or Quantity(value=0, unit="barg"),
@@ -513,7 +585,7 @@ def _charges(tables, ws: Worksheet, vessels: dict, problems) -> None:
         charge_address = addr.item("vessels", vessel, addr.item("charges", name))
         charge = {
             "name": name, "material": r.text("material", required=True),
-            "mass_fraction": r.number("mass fraction"),
+            "mass_fraction": r.fraction("mass fraction"),
             "mass": r.quantity("mass", basis_kinds("amount", ws.basis.kind), old.mass if old else None,
                                required=False, unknown=f"{charge_address}.mass" in unknown),
             "initial": r.state("initial", f"{charge_address}.initial.temperature" in unknown,
@@ -594,7 +666,7 @@ def _reactions(tables, ws: Worksheet, problems) -> list[dict]:
         out.append({"name": r.text("name", required=True),
                     "enthalpy": r.quantity("heat of reaction", ("molar_energy",), required=equation is None),
                     "equation": equation, "key_reactant": r.text("key reactant") or None,
-                    "amount": r.quantity("amount", amount_kinds), "conversion": r.number("conversion", 1.0),
+                    "amount": r.quantity("amount", amount_kinds), "conversion": r.fraction("conversion", 1.0),
                     "molar_mass": molar_mass, "vessel": r.text("vessel") or None,
                     "temperature": getattr(kept.get(r.text("name")), "temperature", None)})  # not a column: kept
     return out

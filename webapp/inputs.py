@@ -18,11 +18,14 @@ __all__ = ["render_inputs", "table_frame", "check_marks"]
 
 _STATE_HELP = ("a temperature (55 °C, 131 °F, 328 K), or 'saturated vapour', 'saturated liquid', "
                "'vapour fraction 0.3', 'solid fraction 0.5', 'shared: <name>'; ? = the unknown")
+_FRACTION_HELP = "a number from 0 to 1 ({}) or a percentage ({})"
 _PRESSURE_HELP = ("barg, psig, kPag = gauge (above the site's barometric pressure: 1.01325 bar unless set under "
                   "Site atmosphere); bar, bara, psia, kPa, MPa = absolute")
 
 
-def _column_config(worksheet: Worksheet) -> dict:
+def _column_config(worksheet: Worksheet, rows: dict[str, list[dict]]) -> dict:
+    """Every grid's column settings; the dropdowns offer the names as typed in the grids (``rows``), so a
+    vessel or material typed a moment ago is offered before the worksheet reads."""
     text = st.column_config.TextColumn
     number = st.column_config.NumberColumn
     pick = st.column_config.SelectboxColumn
@@ -30,10 +33,11 @@ def _column_config(worksheet: Worksheet) -> dict:
         "check": text("check", width="small", disabled=True,
                       help="⚠ marks a cell that cannot be used; the message is above the table"),
         "name": text("name", help="a unique name for the line or term"),
-        "material": pick("material", options=grids.material_names(worksheet),
+        "material": pick("material", options=grids.material_names(worksheet, rows["materials"]),
                          help="from the property library, or defined below"),
-        "mass fraction": number("mass frac.", min_value=0.0, max_value=1.0, format="%.3f",
-                                help="mass fraction, aqueous solutions only"),
+        "own material": text("material", help="a name for your material; one row per phase"),
+        "mass fraction": text("mass frac.", help="aqueous solutions only: " + _FRACTION_HELP.format(
+                              *grids.FRACTION_COLUMNS["mass fraction"])),
         "flow": text("flow", help="mass flow with its unit: 12 t/h, 500 kg/h, 20000 lb/h; ? = the unknown"),
         "mass": text("mass", help="mass with its unit: 7.5 t, 400 kg, 2000 lb; ? = the unknown"),
         "pressure": text("pressure", help=_PRESSURE_HELP),
@@ -43,12 +47,14 @@ def _column_config(worksheet: Worksheet) -> dict:
         "inlet pressure": text("inlet p", help="inlet pressure, only if not the line pressure. " + _PRESSURE_HELP),
         "outlet pressure": text("outlet p", help="outlet pressure, only if not the line pressure (a let-down, "
                                 "a flash). " + _PRESSURE_HELP),
-        "vessel": pick("vessel", options=[v.name for v in worksheet.vessels] or [""]),
+        "vessel": pick("vessel", options=grids.typed_names(rows["vessels"]),
+                       help="one of the vessels named in the Vessels grid"),
         "heat": text("heat", help="a power (kW, MW, Btu/h) or, in batch, an energy (kJ, MJ, Btu); "
                                   "duties: heater +, cooler −; losses: positive heat leaving; ? = the unknown"),
         "heat of reaction": text("ΔH reaction", help="per mole of key reactant, negative when exothermic: -92 kJ/mol"),
         "amount": text("amount fed", help="moles of key reactant (4.2 kmol), or a mass with a molar mass"),
-        "conversion": number("conversion", min_value=0.0, max_value=1.0, format="%.2f"),
+        "conversion": text("conversion", help="the part of the amount fed that reacts: " + _FRACTION_HELP.format(
+                           *grids.FRACTION_COLUMNS["conversion"])),
         "molar mass": text("molar mass", help="only when the amount is a mass: 58 g/mol"),
         "heat capacity": text("heat capacity", help="instead of material and mass: 1600 kJ/K"),
         "initial temperature": text("initial temperature", help="default: the first charge's initial temperature"),
@@ -75,6 +81,18 @@ _WIDTHS = {"check": 80, "name": 100, "material": 130, "mass fraction": 70, "flow
 
 def _sized(config: dict) -> dict:
     return {c: ({**cfg, "width": _WIDTHS[c]} if c in _WIDTHS else cfg) for c, cfg in config.items()}
+
+
+def _table_config(table: str, config: dict) -> dict:
+    """The column settings of one grid: in the materials grid the material is a name to type, not a pick."""
+    if table == "materials":
+        return {**config, "material": {**config["own material"], "width": _WIDTHS["material"]}}
+    return config
+
+
+def _dropdown_options(config: dict, columns: list[str]) -> tuple:
+    """The options of a grid's dropdowns (part of its editor's identity: see ``PageState.editor_rows``)."""
+    return tuple(tuple(config[c].get("type_config", {}).get("options") or ()) for c in columns if c in config)
 
 
 def check_marks(table: str, rows: list[dict], problems: list[grids.CellProblem]) -> list[str]:
@@ -112,6 +130,7 @@ def _on_table_edit(table: str) -> None:
 def _render_table(table: str, config: dict, problems: list[grids.CellProblem], caption: str,
                   title: bool = True) -> None:
     state = page_state()
+    config = _table_config(table, config)
     if title:
         st.markdown(f"**{grids.TABLE_TITLES[table]}** — {caption}")
     else:
@@ -120,7 +139,8 @@ def _render_table(table: str, config: dict, problems: list[grids.CellProblem], c
         st.error(plain(problem.text), icon=":material/error:")
     marks = check_marks(table, state.rows[table], problems)
     rows, given_marks = state.editor_rows(table, marks, st.session_state.get(state.editor_key(table)),
-                                          display_system())  # the unknown's '?' cell in the view's unit
+                                          display_system(),  # the unknown's '?' cell in the view's unit
+                                          _dropdown_options(config, grids.COLUMNS[table]))
     key = state.editor_key(table)  # a new one when an undo had to redraw the grid
     frame = table_frame(table, rows, given_marks)
     shown = (["check"] if frame["check"].any() else []) + grids.COLUMNS[table]  # 'check' only when needed
@@ -161,13 +181,13 @@ def _render_basis() -> None:
 def render_inputs(worksheet: Worksheet, system: str) -> None:
     state = page_state()
     problems = state.cell_problems(lambda exc: error_text(exc, system))
-    if state.unknown_gone is not None:  # said in plain words beside the answer, with its one-click fix
-        problems = [p for p in problems if p.table != "unknown"]
+    # the unknown's refusal is said once, in the answer panel beside "Solve for" (where it is fixed)
+    problems = [p for p in problems if p.table != "unknown"]
     for problem in problems:
-        if problem.table in ("worksheet", "basis", "unknown"):
+        if problem.table in ("worksheet", "basis"):
             st.error(plain(problem.text), icon=":material/error:")
     _render_basis()
-    config = _column_config(worksheet)
+    config = _column_config(worksheet, state.rows)
     batch = worksheet.basis.kind == "batch" or bool(worksheet.vessels)
     if batch:
         st.subheader("Vessels", help="batch basis: the charges of a vessel are mixed and end at its final state")

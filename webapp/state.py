@@ -67,6 +67,7 @@ class PageState:
     base: dict[str, list[dict]] = field(default_factory=dict)  # the rows each editor was given
     base_marks: dict[str, list[str]] = field(default_factory=dict)  # the check marks it was given
     base_views: dict[str, str] = field(default_factory=dict)  # the unit set it was shown in
+    base_options: dict[str, tuple] = field(default_factory=dict)  # the dropdown options it was given
     widgets_stale: bool = True  # the model-bound widgets must be set from the worksheet
     redraws: dict[str, int] = field(default_factory=dict)  # per grid: forced fresh editors (see editor_rows)
     past: list[_Snapshot] = field(default_factory=list)  # undo steps, oldest first
@@ -103,7 +104,7 @@ class PageState:
         """Every grid's editor starts afresh (a new key) on the rows now held."""
         self.load += 1
         self.base = _copy_rows(self.rows)
-        self.base_marks, self.base_views = {}, {}
+        self.base_marks, self.base_views, self.base_options = {}, {}, {}
         self.redraws = {}
 
     def widget_values(self) -> dict:
@@ -282,14 +283,16 @@ class PageState:
         return [grids.CellProblem(cell.table, cell.row, cell.column, message(self.error))]
 
     # ------------------------------------------------------------------ drawing a grid
-    def editor_rows(self, table: str, marks: list[str], edits: dict | None,
-                    system: str = "SI") -> tuple[list[dict], list[str]]:
+    def editor_rows(self, table: str, marks: list[str], edits: dict | None, system: str = "SI",
+                    options: tuple = ()) -> tuple[list[dict], list[str]]:
         """The rows (as the view ``system`` shows them: :func:`grids.in_view`) and marks to give a grid's
         editor: its base, re-based only when the browser (base + ``edits``, the editor's own state) would
-        not show the rows, marks and view wanted."""
+        not show the rows, marks and view wanted, or when its dropdowns' ``options`` change (the editor is
+        then a new one, showing only the rows it is given: they must be the rows as typed)."""
         columns = grids.COLUMNS[table]
         base = self.base.get(table)
-        if base is not None and self.base_views.get(table, "SI") == system:
+        same_options = self.base_options.setdefault(table, options) == options  # a fresh editor: the ones given
+        if base is not None and self.base_views.get(table, "SI") == system and same_options:
             shown = grids.apply_edits(base, edits or {}, columns, derive=False)
             if grids.same_rows(shown, self.rows[table], columns) and \
                     _marked(self.base_marks.get(table, [])) == _marked(marks):
@@ -302,6 +305,7 @@ class PageState:
         self.base[table] = [dict(r) for r in self.rows[table]]
         self.base_marks[table] = list(marks)
         self.base_views[table] = system
+        self.base_options[table] = options
         return grids.in_view(table, self.base[table], self.worksheet, system), self.base_marks[table]
 
 
