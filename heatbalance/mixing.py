@@ -33,7 +33,7 @@ from .properties import Material
 __all__ = ["Solute", "SOLUTES", "TABLE_FILE", "HeatRow", "heat_table", "solute_named", "water_per_solute",
            "integral_heat", "sources", "MixingHeat", "mixing_heat", "NEUTRALISATION_J_PER_MOL", "NEUTRALISATION_SOURCE",
            "ElectrolyteSolution", "solution_names", "solution_material", "solute_of_material", "M_WATER",
-           "molar_mass", "pure_state", "released_at"]
+           "molar_mass", "pure_state", "released_at", "solution_cps"]
 
 TABLE_FILE = "heats_of_solution.csv"
 M_WATER = 0.018015  # kg/mol (IUPAC atomic weights)
@@ -356,11 +356,23 @@ def released_at(heat: MixingHeat, T: float) -> float | None:
     float or None  [J, or W on a rate basis], + when heat is given off; None where the solutions' cp data
     do not reach a strength (a solid or gaseous solute, a caustic beyond Laliberté's fit) or T.
     """
-    solute = SOLUTES[heat.solute]
-    if not solute.t_min <= T <= solute.t_max:
-        return None
-    parts = _solutions(heat.solute, (heat.x1, heat.x2, heat.x3))
+    parts = _solutions_at(heat, T)
     if parts is None:
         return None
     h1, h2, h3 = (s.enthalpy(T, 101325.0) for s in parts)
     return heat.released - ((heat.mass_a + heat.mass_b) * h3 - heat.mass_a * h1 - heat.mass_b * h2)
+
+
+def solution_cps(heat: MixingHeat, T: float) -> tuple[float, float, float] | None:
+    """cp [J/(kg·K)] at T [K] of the mixing's A, B and mixed solution (Laliberté); None where the solutions' data
+    do not reach a strength or T (as for :func:`released_at`)."""
+    parts = _solutions_at(heat, T)
+    return None if parts is None else tuple(s.cp(T) for s in parts)
+
+
+def _solutions_at(heat: MixingHeat, T: float) -> tuple[ElectrolyteSolution, ...] | None:
+    """A, B and the mixed solution as materials, when their data reach T and every strength."""
+    solute = SOLUTES[heat.solute]
+    if not solute.t_min <= T <= solute.t_max:
+        return None
+    return _solutions(heat.solute, (heat.x1, heat.x2, heat.x3))

@@ -16,7 +16,7 @@ from dataclasses import dataclass, field
 from ..address import item
 from ..errors import HeatBalanceError, InputError, NoSolutionError
 from ..messages import Measure, Phrase
-from ..mixing import SOLUTES, ElectrolyteSolution
+from ..mixing import SOLUTES, solution_cps
 from ..problem import JacketInputs, Problem
 from ..reactor import (CAUTION, CLASS_MEANINGS, adiabatic_temperature_rise, criticality_class, jacket_time, mtsr,
                        thermal_inertia_factor)
@@ -247,16 +247,14 @@ def _mixed_solution_capacity(releases: list, T: float, notes: list[Phrase]) -> f
     change = 0.0
     for heat in (t.mixing for t in releases if t.kind == "mixing" and t.mixing is not None):
         solute = SOLUTES[heat.solute]
-        try:
-            if not solute.t_min <= T <= solute.t_max:
-                raise InputError("outside the solution data's temperatures")
-            cp_a, cp_b, cp_mixed = (ElectrolyteSolution(solute, x).cp(T) for x in (heat.x1, heat.x2, heat.x3))
-        except InputError:
+        cps = solution_cps(heat, T)
+        if cps is None:
             notes.append(Phrase("cp of the mixed {solute} solution is not in its data here ({x3} at {T}): the "
                                 "charges' own cps are used, which may overstate the mixture's and understate "
                                 "ΔT_ad.", {"solute": solute.formula, "x3": f"{heat.x3:.1%}",
                                            "T": Measure(T, "temperature", 1)}))
             continue
+        cp_a, cp_b, cp_mixed = cps
         change += (heat.mass_a + heat.mass_b) * cp_mixed - heat.mass_a * cp_a - heat.mass_b * cp_b
         notes.append(Phrase("The mixed {solute} solution ({x3}) counts with its own cp, {cp} (Laliberté, 2009), in "
                             "place of its parts' ({x1}: {cp_a}; {x2}: {cp_b}).",
@@ -285,9 +283,8 @@ def _solved_without_cooling(problem: Problem, result: Result, final_var: str | N
 def _solved_process_temperature(vessel: str, T: float) -> Phrase:
     return Phrase("Vessel {vessel}: the screening's process temperature is the final temperature the balance solved "
                   "for with no cooling ({T}), which already holds the heat released in the balance; MTSR adds ΔT_ad "
-                  "on top, so that "
-                  "heat counts twice (on the safe side, but not a temperature the batch can reach). Enter the "
-                  "temperature the cooling holds as the process temperature.",
+                  "on top, so that heat counts twice (on the safe side, but not a temperature the batch can "
+                  "reach). Enter the temperature the cooling holds as the process temperature.",
                   {"vessel": vessel, "T": Measure(T, "temperature", 1)},
                   address=item("vessels", vessel, "screening", "process_temperature"))
 
