@@ -1,6 +1,7 @@
 """What the page tests share: a sample, the real page on a worksheet (AppTest), and the browser's waits."""
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -28,6 +29,38 @@ def page(ws):
     at = AppTest.from_file(APP, default_timeout=60)
     at.session_state[KEY] = PageState.opened(ws)
     return at.run()
+
+
+def unescaped(text: str) -> str:
+    """Markdown source as read on screen (user text is shown escaped, as plain text; the invisible word joiners
+    that break autolinks are not seen)."""
+    from webapp.common import WORD_JOINER
+
+    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
+
+
+def errors(at) -> str:
+    """Every error box of the page, as read on screen, one a line."""
+    return unescaped("\n".join(e.value for e in at.error))
+
+
+def edit(at, table: str, edits: dict):
+    """A grid's edits, as its editor reports them, then a run of the page."""
+    from webapp.state import KEY
+
+    at.session_state[KEY].apply_table_edit(table, edits)
+    return at.run()
+
+
+def typed(at, table: str) -> list[dict]:
+    """A grid's rows as typed."""
+    from webapp.state import KEY
+
+    return at.session_state[KEY].rows[table]
+
+
+def no_traceback(at) -> None:
+    assert not at.exception, [e.value for e in at.exception]
 
 
 def held(at):

@@ -26,7 +26,7 @@ from heatbalance.worksheet import Quantity, Unknown
 from webapp.common import WORD_JOINER, plain
 from webapp.state import KEY, PageState
 
-from page_helpers import answer_value, shown_answer
+from page_helpers import answer_value, edit, errors, no_traceback, shown_answer, unescaped
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -64,33 +64,14 @@ def engine(ws, system="SI") -> str:
 answer_text = answer_value
 
 
-def _unescaped(text: str) -> str:
-    """Markdown source as read on screen (user text is shown escaped, as plain text; the invisible word
-    joiners that break autolinks are not seen)."""
-    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
-
-
-def errors(at) -> str:
-    return _unescaped("\n".join(e.value for e in at.error))
-
-
 def contributions(at):
     """The results table (the one data frame that is not an editable table)."""
     return next(d for d in at.dataframe if not (d.key or "").startswith("editor_")).value
 
 
-def edit(at, table, edits) -> AppTest:
-    at.session_state[KEY].apply_table_edit(table, edits)
-    return at.run()
-
-
 def grid(at, table):
     """The frame the editor of a grid was given (its 'check' column marks bad cells)."""
     return next(d for d in at.dataframe if (d.key or "").startswith(f"editor_{table}_")).value
-
-
-def no_traceback(at):
-    assert not at.exception, [e.value for e in at.exception]
 
 
 def test_the_page_opens_on_a_solved_sample():
@@ -111,7 +92,7 @@ def test_the_picker_loads_every_sample_solved(name):
     title = sample(name).title
     at.selectbox(key="sample_picker").select(title).run()
     no_traceback(at)
-    assert _unescaped(at.title[0].value) == title
+    assert unescaped(at.title[0].value) == title
     assert held(at) == sample(name)
     assert answer_text(at) == engine(sample(name))
 
@@ -220,7 +201,7 @@ def test_the_us_sample_is_answered_in_the_unit_typed_for_its_duty():
     assert ws.duties[0].value.unit == "MMBtu/h"
     assert answer_text(at).endswith(" MMBtu/h") and answer_text(at) == engine(ws) == "3.202 MMBtu/h"
     # 3.20183 MMBtu/h × 293.07107 W per kBtu/h (1 Btu = 1055.05585 J, IT) = 938.4 kW
-    assert "= 938.4 kW" in [_unescaped(c.value) for c in at.caption]
+    assert "= 938.4 kW" in [unescaped(c.value) for c in at.caption]
 
 
 def test_the_display_unit_system_converts_the_results_not_the_inputs():
@@ -320,7 +301,7 @@ def test_a_sample_with_its_own_material_shows_the_materials_table():
 
 def test_batch_results_carry_the_one_safety_caution_once():
     at = page("batch_reactor_exotherm.json")
-    shown = [w.value for w in at.warning] + [_unescaped(c.value) for c in at.caption] + [m.value for m in at.markdown]
+    shown = [w.value for w in at.warning] + [unescaped(c.value) for c in at.caption] + [m.value for m in at.markdown]
     assert sum(CAUTION in text for text in shown) == 1
     assert not any("follow local codes" in text for text in shown)  # the old second wording is gone
 
@@ -368,7 +349,7 @@ def test_plain_escapes_every_markdown_and_html_form_and_breaks_autolinks():
     for typed in ("[x](http://e.invalid)", "![i](u.png)", "<img src=u>", "&amp;", "`c`", ":red[r]", "$x$",
                   "# h", "1. item", "- item", "a | b", "~~s~~", "www.e.invalid", "a@e.invalid", "HTTPS://e"):
         written_ = plain(typed)
-        assert _unescaped(written_) == typed
+        assert unescaped(written_) == typed
         bare = re.sub(r"\\.", "", written_)  # what is left once every escaped character is taken out
         assert not any(c in string.punctuation for c in bare), written_
     assert "http\\:" + WORD_JOINER + "\\/\\/" in plain("http://e") and WORD_JOINER + "\\@" in plain("a@e")
@@ -449,7 +430,7 @@ def test_user_text_from_a_sheet_link_reaches_every_markdown_element_escaped():
         for kind, value in values:
             assert re.search(r"http://|www\.|\w@example|(?<!\\)<(a|img|b|script)\b|(?<!\\)\]\(|(?<!\\)!\[",
                              value) is None, (kind, value)
-        shown = "\n".join(_unescaped(v) for _, v in values)
+        shown = "\n".join(unescaped(v) for _, v in values)
         for typed in expected:
             assert typed in shown, typed
 

@@ -17,32 +17,14 @@ from heatbalance.links import revision_id
 from heatbalance.present.text import answer_text as written
 from heatbalance.reactor import CAUTION
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB
-from page_helpers import answer_value, held, page, sample, shown_answer
+from page_helpers import answer_value, edit, errors, held, no_traceback, page, sample, shown_answer, typed
 from webapp.answer import NEW_DUTY_LABEL
 from webapp.grids import TYPED_INTO_UNKNOWN
-from webapp.state import KEY
 
 GLYCOL = "steam_heater_glycol.json"  # 12 t/h glycol 5 -> 40 °C on 4 barg steam: 745.6 kg/h of steam
 
 
 answer = answer_value
-
-
-def errors(at) -> str:
-    return re.sub(r"\\(.)", r"\1", "\n".join(e.value for e in at.error))
-
-
-def edit(at, table, edits):
-    at.session_state[KEY].apply_table_edit(table, edits)
-    return at.run()
-
-
-def typed(at, table):
-    return at.session_state[KEY].rows[table]
-
-
-def no_traceback(at):
-    assert not at.exception, [e.value for e in at.exception]
 
 
 def engine(ws, system="SI") -> str:

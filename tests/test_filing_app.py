@@ -12,7 +12,7 @@ import re
 
 import pypdf
 import pytest
-from page_helpers import held, page, sample
+from page_helpers import errors, held, page, sample, unescaped
 from streamlit.testing.v1 import AppTest
 
 from heatbalance.analyses.uncertainty import propagate, suggested_tolerances
@@ -22,7 +22,6 @@ from heatbalance.present.uncertainty import monte_carlo_text, uncertainty_text
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 from heatbalance.units import from_si
 from heatbalance.worksheet import Quantity, Tolerance
-from webapp.common import WORD_JOINER
 from webapp.filing_panel import OFFER
 from webapp.state import KEY
 from webapp.uncertainty_panel import checked_tolerance, parse_tolerance, with_suggested
@@ -43,34 +42,22 @@ def db(monkeypatch, tmp_path):
     return f"sqlite:///{tmp_path / 'filing.sqlite3'}"
 
 
-
-
-
-def shown(text: str) -> str:
-    """Markdown source as read on screen (user text is escaped by webapp.common.plain)."""
-    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
-
-
 def no_exception(at) -> None:
     assert not at.exception, [e.value for e in at.exception]
 
 
-def errors(at) -> str:
-    return "\n".join(shown(e.value) for e in at.error)
-
-
 def successes(at) -> str:
-    return "\n".join(shown(s.value) for s in at.success)
+    return "\n".join(unescaped(s.value) for s in at.success)
 
 
 def captions(at) -> str:
-    return "\n".join(shown(c.value) for c in at.caption)
+    return "\n".join(unescaped(c.value) for c in at.caption)
 
 
 def answer_uncertainty(at) -> str:
     """The ± line under the answer ("" when there is none)."""
-    lines = [shown(m.value).strip("*") for m in at.get("markdown")
-             if "(k = " in shown(m.value) and shown(m.value).startswith("**") and "Answer with" not in shown(m.value)]
+    lines = [unescaped(m.value).strip("*") for m in at.get("markdown")
+             if "(k = " in unescaped(m.value) and unescaped(m.value).startswith("**") and "Answer with" not in unescaped(m.value)]
     assert len(lines) <= 1, lines
     return lines[0] if lines else ""
 
@@ -125,7 +112,7 @@ def test_the_contributors_are_ranked_as_the_engine_ranks_them_with_shares_adding
     assert sum(shares) == pytest.approx(100.0, abs=0.3)
     assert list(table["contribution [t/h]"]) == pytest.approx(
         [from_si(c.contribution, "t/h", "mass_flow") - from_si(0.0, "t/h", "mass_flow") for c in u.contributions])
-    notes = "\n".join(shown(m.value) for m in at.markdown)
+    notes = "\n".join(unescaped(m.value) for m in at.markdown)
     assert "Inputs taken as uncorrelated" in notes
 
 
@@ -133,7 +120,7 @@ def test_without_tolerances_the_answer_has_no_plus_minus_and_the_panel_says_so()
     at = page(sample(HEATER))
     no_exception(at)
     assert answer_uncertainty(at) == ""
-    assert any("No input has a tolerance yet" in shown(i.value) for i in at.info)
+    assert any("No input has a tolerance yet" in unescaped(i.value) for i in at.info)
 
 
 # =========================================================================== tolerances
@@ -253,11 +240,11 @@ def test_the_monte_carlo_check_shows_the_engines_result_for_the_draws_asked():
     at.button(key="uncert_mc_run").click().run()
     no_exception(at)
     u = propagate(ws, monte_carlo=500)
-    text = [shown(m.value) for m in at.markdown if "Monte Carlo (" in shown(m.value)]
+    text = [unescaped(m.value) for m in at.markdown if "Monte Carlo (" in unescaped(m.value)]
     assert text == [monte_carlo_text(u, "SI", at.session_state[KEY].result.answer)]
     assert "500 of 500 draws solved" in text[0]
     set_tolerance(at, FLOW, "3 %")  # another worksheet: the old check is not shown against it
-    assert not any("Monte Carlo (" in shown(m.value) for m in at.markdown)
+    assert not any("Monte Carlo (" in unescaped(m.value) for m in at.markdown)
 
 
 def test_pure_parts_read_and_refuse_like_the_page():
@@ -293,7 +280,7 @@ def test_a_sign_off_on_the_page_is_recorded_in_the_store_and_printed_on_the_shee
     at.button(key="share_save").click().run()
     rev_id = revision_id(ws)
     assert not at.button(key="filing_sign").disabled
-    assert any("Unchecked" in shown(w.value) for w in at.warning)
+    assert any("Unchecked" in unescaped(w.value) for w in at.warning)
     at.selectbox(key="filing_role").set_value("checked")
     at.text_input(key="filing_name").input("Rosa Okafor")
     at.text_area(key="filing_comment").input("Checked against the CW flow meter log")
@@ -370,7 +357,7 @@ def test_user_text_in_sources_and_sign_offs_is_plain_text(db):
     assert next(t for t in held(at).tolerances if t.address == FLOW).source == hostile  # kept as typed
     listed = [m.value for m in at.markdown if "meter" in m.value]
     assert listed and all("](http" not in m and "<b>" not in m and ":red[" not in m for m in listed)  # escaped
-    assert any(hostile in shown(m) for m in listed)  # and read as typed
+    assert any(hostile in unescaped(m) for m in listed)  # and read as typed
     at.button(key="share_save").click().run()
     at.text_input(key="filing_name").input("<i>Eve</i> [x](http://e.invalid)")
     at.button(key="filing_sign").click().run()

@@ -22,31 +22,14 @@ from iapws import IAPWS97
 from heatbalance import solve
 from heatbalance.errors import InputError
 from heatbalance.present.text import answer_text as written
-from page_helpers import answer_value, held, page, sample, shown_answer
+from page_helpers import answer_value, edit, errors, held, no_traceback, page, sample, shown_answer, typed
 from webapp import grids
 from webapp.answer import NEW_DUTY_LABEL
-from webapp.state import KEY, PageState
+from webapp.state import PageState
 
 ACID = "acid_dilution_jacketed_vessel.json"  # D-101: 1 t of 98 % sulfuric acid into 2.92 t of water
 GLYCOL = "steam_heater_glycol.json"  # 12 t/h of 30 % glycol heated by steam: 745.6 kg/h
 REACTOR = "batch_reactor_exotherm.json"  # one reaction in R-2, conversion 1
-
-
-def errors(at) -> str:
-    return re.sub(r"\\(.)", r"\1", "\n".join(e.value for e in at.error))
-
-
-def edit(at, table, edits):
-    at.session_state[KEY].apply_table_edit(table, edits)
-    return at.run()
-
-
-def typed(at, table):
-    return at.session_state[KEY].rows[table]
-
-
-def no_traceback(at):
-    assert not at.exception, [e.value for e in at.exception]
 
 
 def engine(ws) -> str:

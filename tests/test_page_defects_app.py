@@ -8,7 +8,6 @@ The worksheets are the bundled samples (scenarios of our own invention).
 from __future__ import annotations
 
 import json
-import re
 
 import pytest
 from streamlit.testing.v1 import AppTest
@@ -16,8 +15,7 @@ from streamlit.testing.v1 import AppTest
 from heatbalance.links import revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 from heatbalance.worksheet import Quantity, ScreeningInputs, parse_worksheet
-from page_helpers import APP, ROOT, held, page, sample
-from webapp.common import WORD_JOINER
+from page_helpers import APP, ROOT, edit, held, no_traceback, page, sample, unescaped
 from webapp.mixing_panel import KEYS as MIXING
 from webapp.state import KEY, PageState
 
@@ -43,7 +41,7 @@ def opened(**query) -> AppTest:
 
 
 def shown(text: str) -> str:
-    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "").replace("**", "")
+    return unescaped(text).replace("**", "")
 
 
 def origin(at) -> str:
@@ -71,11 +69,6 @@ def grid(at, table: str):
     return next(d for d in at.dataframe if (d.key or "").startswith(f"editor_{table}_")).value
 
 
-def edit(at, table: str, edits: dict) -> AppTest:
-    at.session_state[KEY].apply_table_edit(table, edits)
-    return at.run()
-
-
 def undo(at) -> AppTest:
     assert not at.button(key="undo").disabled
     return at.button(key="undo").click().run()
@@ -84,10 +77,6 @@ def undo(at) -> AppTest:
 def redo(at) -> AppTest:
     assert not at.button(key="redo").disabled
     return at.button(key="redo").click().run()
-
-
-def no_traceback(at) -> None:
-    assert not at.exception, [e.value for e in at.exception]
 
 
 # -- 1. undo across a load --------------------------------------------------------------------------------------

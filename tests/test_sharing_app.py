@@ -18,9 +18,8 @@ from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
 from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
-from webapp.common import WORD_JOINER
 
-from page_helpers import answer_value
+from page_helpers import answer_value, errors, no_traceback, unescaped
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -47,24 +46,11 @@ def page(**query) -> AppTest:
     return at.run()
 
 
-def no_traceback(at: AppTest) -> None:
-    assert not at.exception, [e.value for e in at.exception]
-
-
 answer = answer_value
 
 
-def shown(text: str) -> str:
-    """Markdown source as read on screen: the page escapes every user-supplied text (webapp.common.plain)."""
-    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
-
-
-def errors(at: AppTest) -> str:
-    return "\n".join(shown(e.value) for e in at.error)
-
-
 def successes(at: AppTest) -> list[str]:
-    return [shown(s.value) for s in at.success]
+    return [unescaped(s.value) for s in at.success]
 
 
 @pytest.mark.parametrize("path", SAMPLES, ids=[p.stem for p in SAMPLES])
@@ -229,7 +215,7 @@ def test_a_bad_upload_is_refused_clearly(upload, error, message):
 # -- provenance: where the worksheet on the page came from --------------------------------------------------
 def origin(at: AppTest) -> str:
     """The provenance line under the title, as read (bold marks left out)."""
-    captions = [shown(c.value).replace("**", "") for c in at.caption]
+    captions = [unescaped(c.value).replace("**", "") for c in at.caption]
     lines = [c for c in captions if c.startswith(("Saved revision", "From a link", "Bundled sample",
                                                   "Opened from the file", "A new worksheet"))]
     assert len(lines) == 1, captions
@@ -294,7 +280,7 @@ def test_a_revision_whose_record_was_edited_is_refused_on_the_page(db):
     no_traceback(at)
     assert f"the record of saved worksheet {saved.id}" in errors(at) and "has been altered" in errors(at)
     assert origin(at) == f"Bundled sample ({DEFAULT}): not a saved revision."  # not shown as the revision
-    assert "the plant manager" not in "\n".join(shown(m.value) for m in [*at.markdown, *at.caption])
+    assert "the plant manager" not in "\n".join(unescaped(m.value) for m in [*at.markdown, *at.caption])
 
 
 # -- who saved it: only with a login configured ---------------------------------------------------------------
@@ -308,13 +294,13 @@ def _logged_in(monkeypatch, info: dict) -> None:
 def test_with_a_login_the_revision_records_the_users_email_and_the_list_shows_it(db, monkeypatch):
     _logged_in(monkeypatch, {"is_logged_in": True, "email": "ana.lima@plant.example", "name": "Ana Lima"})
     at = page()
-    assert "Saving as ana.lima@plant.example." in [shown(c.value) for c in at.caption]
+    assert "Saving as ana.lima@plant.example." in [unescaped(c.value) for c in at.caption]
     at.button(key="share_save").click().run()
     no_traceback(at)
     rev_id = revision_id(at.session_state[KEY].worksheet)
     with WorksheetStore(db) as store:
         assert store.info(rev_id).saved_by == "ana.lima@plant.example"
-    assert any("(saved by ana.lima@plant.example)" in shown(m.value) for m in at.markdown)  # the revision list
+    assert any("(saved by ana.lima@plant.example)" in unescaped(m.value) for m in at.markdown)  # the revision list
     assert origin(at).endswith("by ana.lima@plant.example.")
 
 
@@ -324,7 +310,7 @@ def test_with_a_login_configured_and_nobody_logged_in_nothing_is_saved(db, monke
     at = page()
     no_traceback(at)
     assert at.button(key="share_save").disabled
-    assert "This server records who saves each revision: log in to save." in [shown(c.value) for c in at.caption]
+    assert "This server records who saves each revision: log in to save." in [unescaped(c.value) for c in at.caption]
     user.update(is_logged_in=True, email="ana@plant.example")
     at.run()
     assert not at.button(key="share_save").disabled
@@ -337,7 +323,7 @@ def test_with_a_login_configured_and_nobody_logged_in_nothing_is_saved(db, monke
         assert store.count() == 0
 
 
-def test_without_a_login_the_saver_is_empty_and_nothing_about_logins_is_shown(db):
+def test_without_a_login_the_saver_is_empty_and_nothing_about_logins_is_unescaped(db):
     at = page()
     assert at.button(key="share_save").disabled is False
-    assert not any("log in" in shown(c.value).lower() or "Saving as" in shown(c.value) for c in at.caption)
+    assert not any("log in" in unescaped(c.value).lower() or "Saving as" in unescaped(c.value) for c in at.caption)

@@ -10,7 +10,7 @@ import math
 import re
 
 import pytest
-from page_helpers import held, page, sample
+from page_helpers import errors, held, page, sample, unescaped
 from streamlit.testing.v1 import AppTest
 
 from heatbalance import solve
@@ -19,7 +19,6 @@ from heatbalance.analyses.cases import AS_TYPED, run_cases
 from heatbalance.analyses.sweep import MAX_POINTS
 from heatbalance.units import from_si
 from heatbalance.worksheet import Case, Override, Quantity
-from webapp.common import WORD_JOINER
 from webapp.state import KEY
 
 GLYCOL = "steam_heater_glycol.json"
@@ -28,23 +27,12 @@ OUTLET = "streams[Glycol].outlet.temperature"
 CW_INLET = "streams[Cooling water].inlet.temperature"
 
 
-
-
-
 def no_exception(at):
     assert not at.exception, [e.value for e in at.exception]
 
 
-def _unescaped(text: str) -> str:
-    return re.sub(r"\\(.)", r"\1", text).replace(WORD_JOINER, "")
-
-
-def errors(at) -> str:
-    return _unescaped("\n".join(e.value for e in at.error))
-
-
 def markdown(at) -> str:
-    return _unescaped("\n".join(m.value for m in at.markdown))
+    return unescaped("\n".join(m.value for m in at.markdown))
 
 
 def sweep_table(at):
@@ -285,7 +273,7 @@ def test_case_names_are_shown_as_plain_text():
     at.text_input(key="whatif_case_name").input(name)
     at.button(key="whatif_case_add").click().run()
     shown = [e.value for e in at.error]
-    assert any(_unescaped(s) == f"cases[{name}]: there is already a case called '{name}'; choose another name"
+    assert any(unescaped(s) == f"cases[{name}]: there is already a case called '{name}'; choose another name"
                for s in shown)
     assert all("**bold**" not in s and "<b>" not in s for s in shown)  # escaped, not Markdown or HTML
 
