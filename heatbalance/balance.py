@@ -543,15 +543,26 @@ def _term_detail(term: HeatTerm, basis: str) -> Phrase:
 
 
 def _mixing_warnings(p: Problem) -> list[Phrase]:
-    """A mixing whose heat stays at 25 °C although its mixture ends elsewhere (the cp data do not reach)."""
-    return [Phrase("Heat of mixing {name} is taken at 25 °C although the mixture ends at {T}: the solutions' heat "
-                   "capacity data (Laliberté) do not reach {strengths} there, so its change with temperature "
-                   "(Kirchhoff) is left out; expect a few percent.",
-                   {"name": t.name, "T": Measure(t.mixing_T, "temperature", 1),
-                    "strengths": ", ".join(f"{x:.1%}" for x in (t.mixing.x1, t.mixing.x2, t.mixing.x3))},
-                   item("mixings", t.name))
-            for t in p.terms if t.mixing is not None and t.mixing_at_25 and t.mixing_T is not None
-            and abs(t.mixing_T - REFERENCE_T) > 0.5]
+    """A mixing whose heat stays at 25 °C: no line is known to be its mixture, or its mixture ends elsewhere and
+    the cp data do not reach."""
+    out = []
+    for t in p.terms:
+        if t.mixing is None or not t.mixing_at_25:
+            continue
+        if t.mixing_T is None:
+            out.append(Phrase("Heat of mixing {name} is taken at 25 °C: no vessel's charges and no streams ending at "
+                              "one common temperature carry {solute}, so the mixture's temperature is not known and "
+                              "the heat's change with temperature (Kirchhoff) is left out; expect a few percent. Name "
+                              "its vessel, or give its streams a common outlet temperature.",
+                              {"name": t.name, "solute": t.mixing.solute}, item("mixings", t.name)))
+        elif abs(t.mixing_T - REFERENCE_T) > 0.5:
+            out.append(Phrase("Heat of mixing {name} is taken at 25 °C although the mixture ends at {T}: the "
+                              "solutions' heat capacity data (Laliberté) do not reach {strengths} there, so its change "
+                              "with temperature (Kirchhoff) is left out; expect a few percent.",
+                              {"name": t.name, "T": Measure(t.mixing_T, "temperature", 1),
+                               "strengths": ", ".join(f"{x:.1%}" for x in (t.mixing.x1, t.mixing.x2, t.mixing.x3))},
+                              item("mixings", t.name)))
+    return out
 
 
 def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> None:

@@ -495,6 +495,22 @@ def test_a_heat_of_mixing_the_cp_data_cannot_carry_stays_at_25_c_with_a_warning(
     assert "taken at 25 °C although the mixture ends at 40.0 °C" in warning.text and "40.0%" in warning.text
 
 
+def test_a_heat_of_mixing_no_line_carries_stays_at_25_c_with_a_warning():
+    # two streams leaving at their own (equal, typed) outlets: neither a vessel nor a common outlet is the mixture
+    ws = build(streams=[stream("Caustic", "sodium hydroxide (aq)", q(1, "t/h"), temp(25), temp(60), mass_fraction=0.30),
+                        stream("Dilution water", "water", q(2, "t/h"), temp(25), temp(60))],
+               mixings=[{"name": "Caustic dilution", "solute": "NaOH", "amount": q(1, "t/h"), "from_fraction": 0.30,
+                         "to_fraction": 0.10}],
+               duties=[{"name": "Heater"}], unknowns=[{"kind": "duty", "term": "Heater"}])
+    result = solve(ws)
+    (term,) = [t for t in result.terms if t.kind == "mixing"]
+    # the table's 25 °C heat (about 10.0 kW: the continuous-basis test below, by hand), said at its address
+    assert term.heat == mixing_heat("sodium hydroxide", 1000 / 3600, 0.30, 0.0, 0.10).released
+    (warning,) = [w for w in result.warnings if w.template.startswith("Heat of mixing")]
+    assert warning.address == "mixings[Caustic dilution]"
+    assert "taken at 25 °C: no vessel's charges and no streams ending at one common temperature" in warning.text
+
+
 def test_a_sweep_of_the_final_temperature_matches_single_solves():
     from heatbalance.analyses import solve_and_analyse
     from heatbalance.analyses.sweep import Axis, sweep
