@@ -13,7 +13,10 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-__all__ = ["Measure", "Phrase", "fallback_text"]
+__all__ = ["Measure", "Phrase", "fallback_text", "significant_text", "NOT_APPLICABLE"]
+
+#: What is written where a number does not apply or is not finite (an electric utility's flow).
+NOT_APPLICABLE = "—"
 
 
 @dataclass(frozen=True)
@@ -43,12 +46,29 @@ def fallback_text(measure: Measure) -> str:
     unit, scale, offset = _FALLBACK.get(measure.kind, ("", 1.0, 0.0))
     value = measure.value * scale + offset
     if not math.isfinite(value):
-        return f"{value} {unit}".strip()
+        return f"{significant_text(value)} {unit}".strip()
     if measure.decimals is not None:
         return f"{value:,.{measure.decimals}f} {unit}"
     if measure.kind == "temperature":
         return f"{value:.{min(measure.digits, 2)}f} {unit}"
-    return f"{value:,.{measure.digits}g} {unit}".strip()
+    return f"{significant_text(value, measure.digits)} {unit}".strip()
+
+
+def significant_text(value: float, digits: int = 4) -> str:
+    """``value`` to ``digits`` significant figures, never in exponent form, trailing zeros dropped
+    (a dash for a non-finite value).
+
+    >>> significant_text(1708123.0), significant_text(745.63), significant_text(15.0), significant_text(0.00001234)
+    ('1,708,000', '745.6', '15', '0.00001234')
+    """
+    if not math.isfinite(value):
+        return NOT_APPLICABLE  # never a non-finite number shown
+    if value == 0:
+        return "0"  # never "-0"
+    rounded = float(f"{value:.{digits - 1}e}")  # 9999.5 -> 10000: the exponent after rounding
+    decimals = max(0, digits - 1 - math.floor(math.log10(abs(rounded))))
+    text = f"{rounded:,.{decimals}f}"
+    return text.rstrip("0").rstrip(".") if decimals else text
 
 
 @dataclass(frozen=True)

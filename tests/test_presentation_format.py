@@ -66,6 +66,15 @@ def test_a_large_us_heat_is_written_in_full_not_in_exponent_form():
     assert "nan" not in measure_text(Measure(float("nan"), "power"), "SI")
 
 
+def test_a_message_read_without_a_unit_set_writes_large_values_in_full():
+    from heatbalance.messages import Phrase
+
+    # Phrase.text (logs, str(error)) is the plain SI fallback: it used ",.4g", which wrote 10 MW as "1e+04 kW"
+    assert Phrase("duty {Q}", {"Q": Measure(9_999_600.0, "power")}).text == "duty 10,000 kW"
+    assert Phrase("{Q}", {"Q": Measure(1_708_123.0, "energy")}).text == "1,708 kJ"
+    assert Phrase("{Q}", {"Q": Measure(float("inf"), "power")}).text == f"{NOT_APPLICABLE} kW"
+
+
 def test_the_us_exchanger_rows_write_the_duty_without_an_exponent(steam_heater):
     check = steam_heater.exchangers[0]
     rows = exchanger_rows(check, "US")

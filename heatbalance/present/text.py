@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 
 from ..errors import HeatBalanceError, UnitError
-from ..messages import Measure, Phrase
+from ..messages import NOT_APPLICABLE, Measure, Phrase, significant_text
 from ..results import Answer
 from ..units import check_unit, from_si, heat_kind
 
@@ -17,9 +17,6 @@ __all__ = ["UNIT_SETS", "display_unit", "measure_text", "phrase_text", "error_te
            "temperature_text", "pressure_text", "heat_text", "format_heat", "shown_unit", "answer_unit",
            "answer_value", "answer_text", "amount_text", "no_negative_zero", "significant_text", "percent_text",
            "NOT_APPLICABLE", "average_power_text"]
-
-#: What a table cell shows where a quantity does not apply (an electric utility's flow).
-NOT_APPLICABLE = "—"
 
 #: Display units of each unit set, per kind.
 UNIT_SETS: dict[str, dict[str, str]] = {
@@ -71,23 +68,6 @@ def measure_text(measure: Measure, system: str = "SI") -> str:
     if measure.kind == "temperature":
         return f"{value:.{min(measure.digits, 2)}f} {display_unit(unit)}"
     return f"{significant_text(value, measure.digits)} {display_unit(unit)}"
-
-
-def significant_text(value: float, digits: int = 4) -> str:
-    """``value`` to ``digits`` significant figures, never in exponent form, trailing zeros dropped
-    (a dash for a non-finite value).
-
-    >>> significant_text(1708123.0), significant_text(745.63), significant_text(15.0), significant_text(0.00001234)
-    ('1,708,000', '745.6', '15', '0.00001234')
-    """
-    if not math.isfinite(value):
-        return NOT_APPLICABLE  # never a non-finite number shown
-    if value == 0:
-        return "0"  # never "-0"
-    rounded = float(f"{value:.{digits - 1}e}")  # 9999.5 -> 10000: the exponent after rounding
-    decimals = max(0, digits - 1 - math.floor(math.log10(abs(rounded))))
-    text = f"{rounded:,.{decimals}f}"
-    return text.rstrip("0").rstrip(".") if decimals else text
 
 
 def percent_text(fraction: float, decimals: int = 1) -> str:
