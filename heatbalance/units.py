@@ -148,8 +148,29 @@ def _parse(unit: str, kind: str, where: str) -> tuple:
     return parsed, offset
 
 
+# units a plant reads two ways: refused with the choices, never read one way silently
+_TON = re.compile(r"(?<![\w.])tons?(?![\w.])")  # pint: a US short ton; plants also mean a tonne or a long ton
+_AMBIGUOUS_TON = ("'ton' is read three ways: write t for a metric tonne (1000 kg), short_ton (907.2 kg) or long_ton "
+                  "(1016 kg)")
+_AMBIGUOUS_PSI = "'psi' does not say gauge or absolute: write psig (above the atmosphere) or psia (absolute)"
+
+
+def _ambiguity(unit: str, kind: str) -> str:
+    """Why ``unit`` cannot be read for ``kind`` without a guess ('' when it can).
+
+    >>> _ambiguity("ton/h", "mass_flow")[:5], _ambiguity("t/h", "mass_flow"), _ambiguity("psi", "pressure")[:6]
+    ("'ton'", '', "'psi' ")
+    """
+    if kind == "pressure" and unit.strip() == "psi":
+        return _AMBIGUOUS_PSI
+    return _AMBIGUOUS_TON if _TON.search(unit) else ""
+
+
 def check_unit(unit: str, kind: str, where: str = "") -> None:
     """Raise :class:`UnitError` unless ``unit`` measures ``kind``."""
+    ambiguity = _ambiguity(unit, kind)
+    if ambiguity:
+        raise UnitError(unit, "clear", where, detail=ambiguity)
     if not _measures(unit, kind):
         _check_by_pint(unit, kind, where)  # the refusal, with what the unit measures instead
 
@@ -188,6 +209,8 @@ def _measures(unit: str, kind: str) -> bool:
 def kind_of(unit: str, candidates: tuple[str, ...], where: str = "") -> str:
     """The first kind in ``candidates`` that ``unit`` measures, or a :class:`UnitError`."""
     for kind in candidates:
+        if _ambiguity(unit, kind):
+            check_unit(unit, kind, where)  # the refusal, with the choices
         if _measures(unit, kind):
             return kind
     expected = " or ".join(KINDS[k][1] for k in candidates)
@@ -247,6 +270,8 @@ def to_si(value: float, unit: str, kind: str, where: str = "", gauge_reference: 
     if not isinstance(value, (int, float)) or not math.isfinite(value):
         raise InputError(f"{value!r} is not a finite number", where)
     try:
+        if _ambiguity(unit, kind):
+            raise UnitError(unit, "clear")
         scale, offset = _affine(unit, kind)
     except UnitError:
         check_unit(unit, kind, where)  # the same refusal, naming the field
@@ -279,7 +304,8 @@ def _affine(unit: str, kind: str) -> tuple[float, float]:
 
 
 def _affine_by_pint(unit: str, kind: str) -> tuple[float, float]:
-    check_unit(unit, kind)
+    if not _measures(unit, kind):  # (an ambiguous unit is refused where a value is read, not here)
+        _check_by_pint(unit, kind)
     parsed, gauge = _parse(unit, kind, "")
     si_unit = KINDS[kind][0]
     quantity = registry().Quantity

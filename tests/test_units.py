@@ -1,4 +1,6 @@
 """Units engineers type, against exact conversion factors."""
+import json
+
 import pytest
 
 from heatbalance.errors import InputError, UnitError
@@ -97,3 +99,41 @@ def test_a_volume_where_a_mass_is_needed_is_named_a_volume():
     with pytest.raises(UnitError) as refused:
         check_unit("m3", "mass", "vessels[V].charges[W].mass")
     assert "it measures volume (e.g. m^3); give the mass, e.g. kg" in refused.value.message
+
+
+# --------------------------------------------------------------------------- units read two ways
+@pytest.mark.parametrize("value, unit, kind", [(12, "ton/h", "mass_flow"), (7.5, "ton", "mass"), (3, "tons", "mass"),
+                                               (4, "psi", "pressure")])
+def test_a_unit_plants_read_two_ways_is_refused_with_the_choices(value, unit, kind):
+    # pint reads 'ton' as a US short ton (907.2 kg) and 'psi' as absolute; a plant may mean a tonne, a long ton,
+    # or a gauge pressure: 12 ton/h of glycol read as short tons is 9 % off a tonne (common practice, no source)
+    for refuse in (lambda: to_si(value, unit, kind, "streams[Glycol].flow"),
+                   lambda: check_unit(unit, kind, "streams[Glycol].flow"),
+                   lambda: kind_of(unit, (kind,), "streams[Glycol].flow")):
+        with pytest.raises(UnitError) as refused:
+            refuse()
+        assert refused.value.where == "streams[Glycol].flow"
+        assert ("write t for a metric tonne (1000 kg), short_ton (907.2 kg) or long_ton (1016 kg)" if "ton" in unit
+                else "write psig (above the atmosphere) or psia (absolute)") in refused.value.message
+
+
+def test_the_unambiguous_forms_are_read():
+    # 1 short ton = 2000 lb, 1 long ton = 2240 lb (exact, international pound); 1 TR = 12000 Btu/h
+    assert to_si(1, "short_ton", "mass") == pytest.approx(2000 * 0.45359237, rel=1e-12)
+    assert to_si(1, "long_ton", "mass") == pytest.approx(2240 * 0.45359237, rel=1e-12)
+    assert to_si(1, "tonne/h", "mass_flow") == pytest.approx(1000 / 3600, rel=1e-12)
+    assert to_si(1, "ton_of_refrigeration", "power") == pytest.approx(12000 * 1055.05585262 / 3600, rel=1e-6)
+    assert to_si(0, "psig", "pressure") == 101325.0 and from_si(101325.0, "psi", "pressure") == pytest.approx(
+        14.695948775, rel=1e-9)  # the view writes 'psi' as psia: converting out is not reading
+
+
+def test_a_worksheet_with_a_ton_flow_is_refused_at_its_address():
+    from heatbalance.balance import solve
+    from heatbalance.worksheet import load_worksheet
+
+    doc = json.loads(open("sample_data/steam_heater_glycol.json", "rb").read())
+    glycol = next(s for s in doc["streams"] if s["name"] == "Glycol")
+    glycol["flow"] = "12 ton/h"
+    with pytest.raises(InputError) as refused:
+        solve(load_worksheet(json.dumps(doc).encode()))
+    assert refused.value.where == "streams[Glycol].flow" and "'ton' is read three ways" in refused.value.message

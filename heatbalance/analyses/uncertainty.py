@@ -137,6 +137,8 @@ def _half_width(tolerance: Tolerance, typed, kinds: tuple[str, ...]) -> float:
     kind = _typed_kind(typed.unit, kinds, where)
     difference = "temperature_difference" if kind == "temperature" else kind
     size = tolerance.plus_minus
+    if difference == "pressure" and size.unit.strip() == "psi":  # a ± of a pressure: gauge or absolute cancels
+        size = Quantity(value=size.value, unit="psia")
     try:
         check_unit(size.unit, difference, where)
     except HeatBalanceError as exc:

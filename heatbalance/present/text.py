@@ -27,7 +27,7 @@ UNIT_SETS: dict[str, dict[str, str]] = {
            "molar_mass": "g/mol", "thermal_conductance": "kW/K", "heat_transfer_coefficient": "W/(m**2*K)",
            "area": "m**2", "length": "m", "velocity": "m/s", "thermal_conductivity": "W/(m*K)",
            "volume_flow": "m**3/h"},
-    "US": {"temperature": "degF", "temperature_difference": "delta_degF", "pressure": "psi",
+    "US": {"temperature": "degF", "temperature_difference": "delta_degF", "pressure": "psia",
            "mass": "lb", "mass_flow": "lb/h", "energy": "Btu", "power": "Btu/h", "duration": "min",
            "specific_heat": "Btu/(lb*delta_degF)", "heat_capacity": "Btu/delta_degF",
            "amount": "lbmol", "molar_flow": "lbmol/h", "molar_energy": "Btu/lbmol",
