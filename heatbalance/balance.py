@@ -524,7 +524,7 @@ def _result(p: Problem, fraction: float | None) -> Result:
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
-        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p)
+        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
@@ -562,6 +562,26 @@ def _mixing_warnings(p: Problem) -> list[Phrase]:
                               {"name": t.name, "T": Measure(t.mixing_T, "temperature", 1),
                                "strengths": ", ".join(f"{x:.1%}" for x in (t.mixing.x1, t.mixing.x2, t.mixing.x3))},
                               item("mixings", t.name)))
+    return out
+
+
+def _equipment_start_warnings(p: Problem) -> list[Phrase]:
+    """Equipment taken to start at the first charge's temperature while the charges start at different ones: the
+    answer then depends on the order of the charges."""
+    out = []
+    for e in p.equipment:
+        charges = [ln for ln in p.lines if ln.vessel == e.vessel and ln.initial.plateau is None]
+        if not charges or e.initial_var != charges[0].initial.var:
+            continue  # its own initial temperature is given (or the first charge starts on a plateau)
+        starts = [p.temperatures[ln.initial.var] for ln in charges]
+        if max(starts) - min(starts) > 0.05:
+            out.append(Phrase("Vessel {vessel}'s equipment is taken to start at its first charge's temperature "
+                              "({charge}, {T}), but the charges start between {low} and {high}: the answer depends "
+                              "on the order of the charges. Give the equipment's initial temperature.",
+                              {"vessel": e.vessel, "charge": charges[0].charge,
+                               "T": Measure(starts[0], "temperature", 1), "low": Measure(min(starts), "temperature", 1),
+                               "high": Measure(max(starts), "temperature", 1)},
+                              item("vessels", e.vessel, "equipment", "initial_temperature")))
     return out
 
 

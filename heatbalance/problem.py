@@ -604,6 +604,8 @@ class _Builder:
                                     e.initial_temperature)
         elif lines[0].initial.var is not None:
             initial = lines[0].initial.var
+            self.assumptions.append(f"{where}: starts at the temperature of the vessel's first charge, "
+                                    f"{lines[0].charge} (give equipment.initial_temperature to set it).")
         else:
             raise InputError("give the equipment's initial temperature (the first charge starts on a plateau)",
                              f"{where}.initial_temperature")

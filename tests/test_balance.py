@@ -117,6 +117,37 @@ def test_batch_power_duty_over_a_duration_with_steel_equipment():
     assert answer_value(solve(ws).answer) == pytest.approx(brentq(heat, 293.15, 320.0) - 273.15, abs=1e-6)
 
 
+def _two_charge_vessel(order, equipment_start=None):
+    charges = {"hot": {"name": "Hot", "material": "liquid B", "mass": q(500, "kg"), "initial": temp(60)},
+               "cold": {"name": "Cold", "material": "liquid B", "mass": q(500, "kg"), "initial": temp(20)}}
+    equipment = {"heat_capacity": q(1000, "kJ/K")}
+    if equipment_start is not None:
+        equipment["initial_temperature"] = q(equipment_start, "degC")
+    return build(basis={"kind": "batch"}, materials=[B],
+                 vessels=[{"name": "Tank", "charges": [charges[c] for c in order], "final": temp(40),
+                           "equipment": equipment}],
+                 unknowns=[{"kind": "temperature", "line": "Tank", "end": "final"}])
+
+
+def test_equipment_that_starts_at_the_first_charge_warns_when_the_order_of_the_charges_matters():
+    # hand calculation: 500·4·(T − 60) + 500·4·(T − 20) + 1000·(T − T_eq) = 0 → T = (160,000 + 1000·T_eq) / 5000
+    # kJ: T_eq = 60 °C (hot first) gives 44.0 °C, T_eq = 20 °C (cold first) gives 36.0 °C
+    hot_first, cold_first = solve(_two_charge_vessel(["hot", "cold"])), solve(_two_charge_vessel(["cold", "hot"]))
+    assert answer_value(hot_first.answer) == pytest.approx(44.0, abs=1e-6)
+    assert answer_value(cold_first.answer) == pytest.approx(36.0, abs=1e-6)
+    (warning,) = [w for w in cold_first.warnings if "equipment is taken" in w.text]
+    assert warning.address == "vessels[Tank].equipment.initial_temperature"
+    assert "first charge's temperature (Cold, 20.0 °C), but the charges start between 20.0 °C and 60.0 °C" in \
+        warning.text
+    assert "vessels[Tank].equipment: starts at the temperature of the vessel's first charge, Cold" in \
+        " ".join(map(str, cold_first.assumptions))
+    # given, the equipment's start ends the dependence on order and the warning: 40 °C → (160,000 + 40,000) / 5000
+    for order in (["hot", "cold"], ["cold", "hot"]):
+        given = solve(_two_charge_vessel(order, equipment_start=40))
+        assert answer_value(given.answer) == pytest.approx(40.0, abs=1e-6)
+        assert not [w for w in given.warnings if "equipment is taken" in w.text]
+
+
 def test_us_customary_worksheet():
     # hand calculation: Q = 10 000 lb/h × 0.5 Btu/(lb·°F) × (250 − 70) °F = 900 000 Btu/h
     oil = constant_cp_material("oil", cp=0.5, unit="Btu/(lb*degF)")

@@ -176,7 +176,7 @@ def test_the_reactor_page_shows_the_one_caution_once_and_not_in_its_charts():
 
 
 def test_the_equipment_row_says_heat_given_when_the_vessel_cools():
-    ws = sample("batch_reactor_exotherm.json")  # 3.2 t of 316 steel starting at 55 °C (the first charge)
+    ws = sample("batch_reactor_exotherm.json")  # 3.2 t of 316 steel starting at 55 °C (given; the first charge's)
     result = solve(ws)
     (equipment,) = [t for t in result.terms if t.kind == "equipment"]
     final_C = result.answer.value_si - 273.15
@@ -185,7 +185,7 @@ def test_the_equipment_row_says_heat_given_when_the_vessel_cools():
     # hand check: 3200 kg x 0.50 kJ/(kg K) (austenitic stainless, CRC Handbook, from memory) x (55 - T) K
     assert equipment.heat == pytest.approx(3200 * 500 * (55 - final_C), rel=0.1)
     warmer = ws.model_copy(deep=True)
-    warmer.vessels[0].charges[0].initial.temperature.value = 50  # now the vessel warms: heat taken up
+    warmer.vessels[0].equipment.initial_temperature.value = 50  # now the vessel warms: heat taken up
     (equipment,) = [t for t in solve(warmer).terms if t.kind == "equipment"]
     assert equipment.heat < 0 and "taken up by the vessel" in equipment.detail.text
 
