@@ -16,7 +16,7 @@ HEATER = "sample_data/us_water_heater_duty.json"
 def test_solve_prints_the_answer_and_every_contribution(capsys):
     assert main(["solve", FLASH]) == 0
     out = capsys.readouterr().out
-    assert "ANSWER  Condensate return outlet temperature = 111.6 °C, 12.3% vapour" in out
+    assert "ANSWER  Condensate return outlet temperature = 111.61 °C, 12.3% vapour" in out
     assert "+ = heat into the process" in out and "closure residual: 0.00 kW" in out
     assert "IAPWS-IF97" in out
 

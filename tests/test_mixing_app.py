@@ -7,7 +7,7 @@ import json
 import pytest
 
 from heatbalance.worksheet import parse_worksheet
-from page_helpers import ROOT, held, page, sample
+from page_helpers import ROOT, held, page, sample, unescaped
 from webapp.common import plain
 from webapp.mixing_panel import KEYS
 from webapp.state import KEY, PageState
@@ -86,3 +86,20 @@ def test_the_dilution_vessel_gets_its_thermal_screening():
     assert "**91.4 °C**" in numbers and "51.4 K" in numbers
     notes = next(m.value for m in at.markdown if "The stated heat of mixing" in m.value)
     assert plain("The stated heat of mixing (666,013 kJ) counts in ΔT_ad") in notes
+
+
+def test_a_batch_duty_is_shown_with_its_average_power_as_on_the_sheet():
+    at = page(sample(SAMPLE))
+    assert not at.exception
+    # hand: −360,182 kJ over the sample's 2 h batch = −50.03 kW (the CLI and sheet say the same, test_mixing.py)
+    captions = [unescaped(c.value) for c in at.caption]
+    assert "= -50.03 kW on average over the batch's 120 min (the peak, set by the dosing or heating rate, is " \
+           "higher)" in captions
+
+
+def test_a_temperature_answer_shows_hundredths_in_either_view():
+    at = page(sample("batch_reactor_exotherm.json"))
+    # 54.98 °C = 130.96 °F (× 9/5 + 32, hand calculation): "131 °F" read as if the batch did not cool below 55 °C
+    assert unescaped(at.container(key="answer_value").markdown[0].value) == "54.98 °C"
+    at.radio(key="unit_system").set_value("US customary (°F, lb, Btu)").run()
+    assert unescaped(at.container(key="answer_value").markdown[0].value) == "130.96 °F"

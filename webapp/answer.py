@@ -8,7 +8,7 @@ import streamlit as st
 
 from heatbalance import address
 from heatbalance.errors import HeatBalanceError
-from heatbalance.present.text import answer_text, error_text, phrase_text
+from heatbalance.present.text import answer_text, average_power_text, error_text, phrase_text
 from heatbalance.present.uncertainty import uncertainty_text
 from heatbalance.reactor import CAUTION
 from heatbalance.results import Result
@@ -91,6 +91,9 @@ def _render_answer_value(result: Result, system: str) -> None:
     in_view = answer_text(dataclasses.replace(answer, typed_unit=None), system)
     if in_view != shown:  # typed in another unit than the view's: show both
         st.caption(f"= {plain(in_view)}")
+    average = average_power_text(result, system)
+    if average is not None:  # a batch duty: what the jacket or heater must give on average (as on the sheet)
+        st.caption(f"= {plain(average)} (the peak, set by the dosing or heating rate, is higher)")
     if getattr(result, "uncertainty", None) is not None:  # the sheet has tolerances: value ± U
         with st.container(key="answer_uncertainty"):
             st.markdown(f"**{plain(uncertainty_text(result.uncertainty, system, answer))}**",

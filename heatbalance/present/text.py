@@ -158,7 +158,10 @@ def answer_value(answer: Answer, system: str = "SI") -> float:
 def answer_text(answer: Answer, system: str = "SI") -> str:
     """The answer in words: ``100 °C, 37.0% vapour`` or ``1,643 lb/h``."""
     value = answer_value(answer, system)
-    number = f"{value:,.4g}" if abs(value) < 1e4 else f"{value:,.0f}"
+    if answer.si_kind == "temperature":  # to 0.01 K: 130.96 °F is not "131 °F" (a batch that ended below its start)
+        number = no_negative_zero(f"{value:,.2f}".rstrip("0").rstrip("."))
+    else:
+        number = f"{value:,.4g}" if abs(value) < 1e4 else f"{value:,.0f}"
     text = f"{number} {display_unit(answer_unit(answer, system))}"
     if answer.phase_fraction is not None:
         if answer.plateau == "boiling":
