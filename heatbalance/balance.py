@@ -524,7 +524,8 @@ def _result(p: Problem, fraction: float | None) -> Result:
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
-        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p)
+        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p) \
+        + _negligible_duties(p, lines, terms)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
@@ -583,6 +584,21 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
                                "high": Measure(max(starts), "temperature", 1)},
                               item("vessels", e.vessel, "equipment", "initial_temperature")))
     return out
+
+
+NEGLIGIBLE_DUTY = 1e-4  # a typed duty below this fraction of the balance's largest heat is likely a unit slip
+
+
+def _negligible_duties(p: Problem, lines: list[LineResult], terms: list[TermResult]) -> list[Phrase]:
+    """A typed duty so small beside the rest of the balance that its unit was likely slipped (mW for MW, W for
+    kW)."""
+    kind = heat_kind(p.basis)
+    largest = max([abs(ln.total) for ln in lines] + [abs(t.heat) for t in terms], default=0.0)
+    solved = p.unknown_target.name if p.unknown.kind == "duty" else None
+    return [Phrase("Duty {name} is {Q}, under 0.01 % of the balance's largest heat ({largest}): check its unit "
+                   "(W or kW, mW or MW).", {"name": t.name, "Q": Measure(t.heat, kind),
+                                            "largest": Measure(largest, kind)}, item("duties", t.name, "value"))
+            for t in terms if t.kind == "duty" and t.name != solved and 0 < abs(t.heat) < NEGLIGIBLE_DUTY * largest]
 
 
 def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> None:

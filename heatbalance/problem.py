@@ -729,6 +729,13 @@ class _Builder:
         if hess is not None and r.enthalpy is None:
             at_temperature = self._kirchhoff(r, hess, where)
             dH = at_temperature.dH_T / hess.key_coefficient if at_temperature else dH
+        if r.enthalpy is not None and not REACTION_DH_PLAUSIBLE[0] <= abs(dH) <= REACTION_DH_PLAUSIBLE[1]:
+            self.warnings.append(Phrase(
+                "Reaction {name}: ΔH {typed} is {dH} in magnitude, outside what reactions worth a balance release "
+                "({low} to {high}): check the unit (J/mol or kJ/mol).",
+                {"name": r.name, "typed": str(r.enthalpy), "dH": Measure(abs(dH), "molar_energy"),
+                 "low": Measure(REACTION_DH_PLAUSIBLE[0], "molar_energy"),
+                 "high": Measure(REACTION_DH_PLAUSIBLE[1], "molar_energy")}, f"{where}.enthalpy"))
         reacted = self._moles(r, hess, f"{where}.amount") * r.conversion
         entered = str(r.enthalpy) if r.enthalpy is not None else \
             f"{hess.dH_per_key / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
@@ -878,6 +885,26 @@ def _the_unknown(ws: Worksheet) -> Unknown:
     return ws.unknowns[0]
 
 
+# cp a process material has [J/(kg·K)]: lead 130 to hydrogen gas 14,300; a liquid at most about 5,000 (water 4,180,
+# ammonia 4,700): common practice, no source. Outside, a unit slip (J for kJ, kcal for kJ) is the likelier cause.
+CP_PLAUSIBLE = (100.0, 15_000.0)
+# |ΔH| of a reaction [J/mol]: weak neutralisations and isomerisations from a few kJ/mol, combustion of large
+# molecules to several thousand: common practice, no source
+REACTION_DH_PLAUSIBLE = (1_000.0, 10_000_000.0)
+LIQUID_CP_MAX = 5_000.0
+
+
+def _implausible_cp(material: str, phase: str, cp: float, typed, where: str) -> list[Phrase]:
+    high = LIQUID_CP_MAX if "liquid" in phase.lower() else CP_PLAUSIBLE[1]
+    if CP_PLAUSIBLE[0] <= cp <= high:
+        return []
+    return [Phrase("{material}, {phase} phase: cp {typed} is {cp}, outside what {what} have ({low} to {high}): check "
+                   "the unit (J or kJ, kcal or kJ).",
+                   {"material": material, "phase": phase, "typed": str(typed), "cp": Measure(cp, "specific_heat"),
+                    "what": "liquids" if high == LIQUID_CP_MAX else "process materials",
+                    "low": Measure(CP_PLAUSIBLE[0], "specific_heat"), "high": Measure(high, "specific_heat")}, where)]
+
+
 def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial:
     where = item("materials", m.name)
     phases, spans = [], []  # spans: the library phase's range, or None for a phase of the user's own data
@@ -900,6 +927,7 @@ def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial
         scale = cp0 / p.cp.value if p.cp.value else 1.0
         if cp0 <= 0:
             raise InputError(f"cp must be positive ({p.cp})", f"{pw}.cp")
+        warnings.extend(_implausible_cp(m.name, p.name, cp0, p.cp, f"{pw}.cp"))
         phases.append(Phase(p.name, (cp0, p.cp_per_kelvin * scale, p.cp_per_kelvin2 * scale), T_upper, latent))
         spans.append(None)
     t_min = _end_temperature(m, "min_temperature", spans[0], warnings)

@@ -517,3 +517,38 @@ def test_app_reactor_sample_shows_the_panel_and_the_alarm_follows_T_D24():
     assert any("These screening inputs cannot be used" in e.value and "below absolute zero" in e.value
                for e in at.error)
     assert at.session_state[KEY].worksheet.vessels[0].screening.T_D24 == Quantity(value=150.0, unit="degC")
+
+
+# --------------------------------------------------------------------------- unit slips a checker sees
+def _reactor_with(change) -> object:
+    import json
+
+    from heatbalance.analyses import solve_and_analyse
+    from heatbalance.worksheet import load_worksheet
+
+    doc = json.loads(open("sample_data/batch_reactor_exotherm.json", "rb").read())
+    change(doc)
+    return solve_and_analyse(load_worksheet(json.dumps(doc).encode()))
+
+
+@pytest.mark.parametrize("change, address, words", [
+    # ΔH typed in J/mol for kJ/mol: 0.092 kJ/mol, below the 1 kJ/mol of any reaction worth a balance
+    (lambda d: d["reactions"][0].update(enthalpy={"value": -92, "unit": "J/mol"}), "reactions[Main reaction].enthalpy",
+     "ΔH -92 J/mol is 0.092 kJ/mol in magnitude, outside what reactions worth a balance release"),
+    # cp in J for kJ (0.0032 kJ/(kg·K)) and in kcal for kJ (13.4 kJ/(kg·K)): a liquid has 0.1 to 5
+    (lambda d: d["materials"][0]["phases"][0].update(cp={"value": 3.2, "unit": "J/(kg*K)"}),
+     "materials[reagent solution].phases[liquid].cp", "cp 3.2 J/(kg*K) is 0.0032 kJ/(kg·K), outside what liquids"),
+    (lambda d: d["materials"][0]["phases"][0].update(cp={"value": 3.2, "unit": "kcal/(kg*K)"}),
+     "materials[reagent solution].phases[liquid].cp", "cp 3.2 kcal/(kg*K) is 13.4 kJ/(kg·K), outside what liquids"),
+    # −110 mW over 40 min = −0.264 kJ beside the 386,400 kJ of reaction heat (hand calculation)
+    (lambda d: d["duties"][0].update(value={"value": -110, "unit": "mW"}), "duties[Jacket cooling].value",
+     "Duty Jacket cooling is -0.264 kJ, under 0.01 % of the balance's largest heat (386,400 kJ)"),
+], ids=["dH-in-J", "cp-in-J", "cp-in-kcal", "duty-in-mW"])
+def test_a_likely_unit_slip_is_warned_at_its_field(change, address, words):
+    result = _reactor_with(change)
+    (warning,) = [w for w in result.warnings if w.address == address]
+    assert words in warning.text and "check" in warning.text and "unit" in warning.text
+
+
+def test_the_reactor_as_typed_has_no_unit_slip_warning():
+    assert not [w for w in _reactor_with(lambda d: None).warnings if "unit" in w.text]
