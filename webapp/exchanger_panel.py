@@ -128,13 +128,21 @@ def _settable(worksheet: Worksheet) -> list[str]:
     return out
 
 
+def _shells(typed: float | None) -> int | float:
+    """The shell passes as typed: a whole number as an int, anything else as it is, for the loader to refuse at
+    ``exchangers[E].shells`` (whole, 1 to 12); never rounded nor put back in range here."""
+    if typed is None:
+        return 1  # the field's default
+    return int(typed) if float(typed).is_integer() else float(typed)
+
+
 def _fields(worksheet: Worksheet, choice: str) -> dict:
     """The editor's widget values as worksheet fields."""
     def value(field):
         return st.session_state.get(_key(choice, field))
 
     fields = {"name": (value("name") or "").strip(), "hot": value("hot") or [], "cold": value("cold") or [],
-              "arrangement": value("arrangement"), "shells": int(value("shells") or 1)}
+              "arrangement": value("arrangement"), "shells": _shells(value("shells"))}
     for field in _QUANTITIES:
         fields[field] = (value(field) or "").strip() or None
     side, sets = value("utility_side"), value("sets")
@@ -176,8 +184,10 @@ def _editor(worksheet: Worksheet, system: str, set_worksheet) -> None:
                            [n for n in e.cold if n in streams], key=_key(choice, "cold"))
             c1.selectbox("Arrangement", ARRANGEMENTS, index=0 if e is None else ARRANGEMENTS.index(e.arrangement),
                          key=_key(choice, "arrangement"))
-            c2.number_input("Shell passes (N shells)", min_value=1, max_value=12, value=1 if e is None else e.shells,
-                            key=_key(choice, "shells"))
+            # a float field without bounds: the browser would keep the old value of 13 (hover tip only) and
+            # truncate 2.5 to 2; the loader refuses both at exchangers[E].shells on Save
+            c2.number_input("Shell passes (N shells)", value=float(1 if e is None else e.shells), step=1.0,
+                            format="%.10g", key=_key(choice, "shells"))
             c3.text_input("Minimum approach", value=typed["minimum_approach"], key=_key(choice, "minimum_approach"),
                           placeholder="10 K (common practice)", help="A temperature difference, e.g. 10 K or 18 delta_degF")
             c1.text_input("U", value=typed["U"], key=_key(choice, "U"), placeholder="e.g. 850 W/(m^2*K)",

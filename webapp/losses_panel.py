@@ -106,7 +106,8 @@ def _render_form(worksheet: Worksheet, set_worksheet) -> None:
             "diameter": left.text_input("Outside diameter (bare)", d["diameter"], key=f"losses_diameter_{n}"),
             "length": left.text_input("Length or wall height (not for a roof)", d["length"],
                                       key=f"losses_length_{n}"),
-            "emissivity": left.number_input("Surface emissivity (0–1)", 0.0, 1.0, float(d["emissivity"]), 0.05,
+            # no bounds on the field: outside 0-1 the loader refuses it at losses[L].surface.emissivity on Apply
+            "emissivity": left.number_input("Surface emissivity (0–1)", value=float(d["emissivity"]), step=0.05,
                                             key=f"losses_emissivity_{n}"),
             "insulation": middle.selectbox("Insulation", insulations, index=insulations.index(d["insulation"]),
                                            key=f"losses_insulation_{n}"),

@@ -15,7 +15,8 @@ import pandas as pd
 import streamlit as st
 
 from heatbalance.address import get as get_input
-from heatbalance.errors import HeatBalanceError
+from heatbalance.address import item
+from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.mixing import SOLUTES
 from heatbalance.mixing_check import suggested_mixings
 from heatbalance.present.text import error_text, format_heat
@@ -33,6 +34,10 @@ NO_VESSEL = "(streams: no vessel)"
 _SOURCE = "hb_mixing_source"  # session key: which lines the form was filled from
 _OFFERED = "hb_mixing_vessels"  # session key: the vessels the form last offered
 _FIELDS = ("name", "solute", "amount", "unit", "from", "with", "to", "vessel")  # the form's fields, set by _fill
+# the strengths typed in % (no bounds on the fields: checked here, refused beside the field at their address)
+_STRENGTHS = {"from": ("from_fraction", "A: solute mass fraction [%]"),
+              "with": ("with_fraction", "B: solute mass fraction [%] (0 = water)"),
+              "to": ("to_fraction", "Mixed to [%]")}
 
 
 def with_mixing(worksheet: Worksheet, mixing: dict) -> Worksheet:
@@ -101,6 +106,23 @@ def _follow_vessel(vessels: list[str]) -> None:
     st.session_state[_OFFERED] = vessels
 
 
+def _mixing_name() -> str:
+    return st.session_state[KEYS["name"]].strip() or "Dilution"
+
+
+def _strength_refusal(field: str, percent: float, name: str) -> InputError | None:
+    """The refusal of a strength typed in % (``field``: ``from``, ``with`` or ``to``) outside 0 to 100 %, at its
+    address (``mixings[Dilution].from_fraction``); None when it can be used."""
+    if 0.0 <= percent <= 100.0:
+        return None
+    return InputError(f"{percent:g} % is not a solute mass fraction: give 0 to 100 %",
+                      f"{item('mixings', name)}.{_STRENGTHS[field][0]}")
+
+
+def _refusal_text(exc: HeatBalanceError, system: str) -> str:
+    return plain(error_text(exc, system)) + (f" \\[{plain(exc.where)}\\]" if exc.where else "")
+
+
 def _form(worksheet: Worksheet, system: str, set_worksheet) -> None:
     _fill(worksheet)
     vessels = [v.name for v in worksheet.vessels] + [NO_VESSEL]
@@ -109,24 +131,28 @@ def _form(worksheet: Worksheet, system: str, set_worksheet) -> None:
     left.text_input("Name", key=KEYS["name"], max_chars=80)
     left.selectbox("Solute", list(SOLUTES), key=KEYS["solute"])
     left.selectbox("Where", vessels, key=KEYS["vessel"])
-    middle.number_input("Amount of A (mass, or mass flow)", min_value=0.0, key=KEYS["amount"])
+    # no bounds on the number fields: a negative amount is refused by the engine at Save, a strength beside its field
+    middle.number_input("Amount of A (mass, or mass flow)", key=KEYS["amount"])
     middle.text_input("Unit of the amount", key=KEYS["unit"], max_chars=20)
-    right.number_input("A: solute mass fraction [%]", 0.0, 100.0, key=KEYS["from"])
-    right.number_input("B: solute mass fraction [%] (0 = water)", 0.0, 100.0, key=KEYS["with"])
-    right.number_input("Mixed to [%]", 0.0, 100.0, key=KEYS["to"])
-    if not st.button("Save this mixing", key=KEYS["save"]):
+    refused = False
+    for field, (_, label) in _STRENGTHS.items():
+        right.number_input(label, key=KEYS[field])
+        refusal = _strength_refusal(field, st.session_state[KEYS[field]], _mixing_name())
+        if refusal is not None:
+            right.error(_refusal_text(refusal, system), icon=":material/error:")
+            refused = True
+    if not st.button("Save this mixing", key=KEYS["save"]) or refused:  # refused: said beside the field, not saved
         return
     state = st.session_state
     vessel = state[KEYS["vessel"]]
-    mixing = {"name": state[KEYS["name"]].strip() or "Dilution", "solute": state[KEYS["solute"]],
+    mixing = {"name": _mixing_name(), "solute": state[KEYS["solute"]],
               "amount": {"value": float(state[KEYS["amount"]]), "unit": state[KEYS["unit"]].strip()},
               "from_fraction": state[KEYS["from"]] / 100, "with_fraction": state[KEYS["with"]] / 100,
               "to_fraction": state[KEYS["to"]] / 100, **({} if vessel == NO_VESSEL else {"vessel": vessel})}
     try:
         changed = with_mixing(worksheet, mixing)
     except HeatBalanceError as exc:
-        st.error(plain(error_text(exc, system)) + (f" \\[{plain(exc.where)}\\]" if exc.where else ""),
-                 icon=":material/error:")
+        st.error(_refusal_text(exc, system), icon=":material/error:")
         return
     set_worksheet(changed)
     st.rerun()

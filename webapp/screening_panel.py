@@ -14,8 +14,9 @@ from __future__ import annotations
 
 import streamlit as st
 
+from heatbalance.address import item
 from heatbalance.analyses import Screening, solve_and_analyse
-from heatbalance.errors import HeatBalanceError
+from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.messages import Measure
 from heatbalance.present.screening import screening_figure, temperature_difference_text
 from heatbalance.present.text import UNIT_SETS, display_unit, error_text, measure_text, phrase_text, temperature_text
@@ -106,9 +107,21 @@ def _chosen(index: int) -> dict[str, object]:
     return {field: st.session_state.get(widget_key(index, field)) for field in ("accumulation", "T_D24", "MTT")}
 
 
+def _checked_accumulation(vessel: str, percent: float | None) -> float:
+    """The accumulation typed [%] as a fraction; refused at its address outside 0 to 100 % (the field has no
+    bounds of its own: the browser would keep the old value with only a hover tip, and the server would put
+    the default in its place)."""
+    if percent is None:
+        return 1.0
+    if not 0.0 <= percent <= 100.0:
+        raise InputError(f"{percent:g} % is not an accumulation: give 0 to 100 %",
+                         f"{item('vessels', vessel)}.screening.accumulation")
+    return percent / 100.0
+
+
 def _with_inputs(worksheet: Worksheet, index: int, vessel: str, system: str) -> Worksheet:
     chosen, kept = _chosen(index), _inputs(worksheet, vessel)
-    accumulation = (chosen["accumulation"] if chosen["accumulation"] is not None else 100.0) / 100.0
+    accumulation = _checked_accumulation(vessel, chosen["accumulation"])
     if round(kept.accumulation * 100, 3) == chosen["accumulation"]:
         accumulation = kept.accumulation
     return what_if_worksheet(worksheet, vessel, accumulation, _typed(chosen["T_D24"], system, kept.T_D24),
@@ -132,8 +145,9 @@ def _error_key(index: int) -> str:
 
 
 def _refusal(exc: Exception, system: str) -> str:
+    """The refusal in words, after the address of the field at fault when it has one."""
     if isinstance(exc, HeatBalanceError):
-        return error_text(exc, system)
+        return f"{exc.where}: {error_text(exc, system)}" if exc.where else error_text(exc, system)
     return f"the engine failed unexpectedly ({exc.__class__.__name__})"
 
 
@@ -166,7 +180,7 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
     with st.container(key=f"screening_vessel_{index}", border=True):
         st.subheader(f"Vessel {plain(screening.vessel)}")
         c1, c2, c3 = st.columns(3)
-        c1.number_input("Accumulation at cooling failure [%]", min_value=0.0, max_value=100.0, step=5.0,
+        c1.number_input("Accumulation at cooling failure [%]", step=5.0,  # 0-100 checked by _checked_accumulation
                         key=widget_key(index, "accumulation"), **(commit or {}),
                         help="Share of the reaction heat (and heat of mixing) not yet released when cooling "
                              "fails (100 % = batch with everything charged).")

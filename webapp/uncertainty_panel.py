@@ -230,9 +230,14 @@ def _monte_carlo_section(worksheet: Worksheet, result: Result, system: str) -> N
     with st.expander("Monte Carlo check (for answers that are not linear in their inputs)"):
         st.caption("Every input drawn from its distribution at once and the balance solved for each draw "
                    "(GUM Supplement 1; seeded, so the same sheet gives the same numbers).")
-        st.number_input("Draws", min_value=MC_MIN, max_value=MC_MAX, value=MC_DEFAULT, step=500,
-                        key=key("mc_draws"))
-        st.button("Run the Monte Carlo check", key=key("mc_run"), on_click=_run_monte_carlo, args=(worksheet,))
+        # a float field without bounds: the browser would keep the old number of draws (hover tip only) and
+        # truncate 150.5 to 150; _draws_refusal says so here instead
+        st.number_input("Draws", value=float(MC_DEFAULT), step=500.0, format="%.10g", key=key("mc_draws"))
+        refusal = _draws_refusal(st.session_state.get(key("mc_draws")))
+        if refusal is not None:
+            st.error(plain(_located(refusal, system)), icon=":material/error:")
+        st.button("Run the Monte Carlo check", key=key("mc_run"), on_click=_run_monte_carlo, args=(worksheet,),
+                  disabled=refusal is not None)
         kept = st.session_state.get(key("mc"))
         if kept is None or kept[0] != worksheet.model_dump_json():
             return
@@ -244,13 +249,24 @@ def _monte_carlo_section(worksheet: Worksheet, result: Result, system: str) -> N
             st.markdown(plain(monte_carlo_text(outcome, system, result.answer)))
 
 
+def _draws_refusal(draws: float | None) -> InputError | None:
+    """The refusal of a number of Monte Carlo draws that is not a whole number from MC_MIN to MC_MAX (never put
+    back in range); None when it can be used. The field is no worksheet input: the refusal names it."""
+    if draws is not None and float(draws).is_integer() and MC_MIN <= draws <= MC_MAX:
+        return None
+    shown = "an empty field" if draws is None else f"{draws:g}"
+    return InputError(f"Monte Carlo draws: {shown} is not a number of draws: give a whole number from {MC_MIN:,} "
+                      f"to {MC_MAX:,}")
+
+
 def _run_monte_carlo(worksheet: Worksheet) -> None:
-    draws = int(st.session_state.get(key("mc_draws")) or MC_DEFAULT)
-    draws = min(max(draws, MC_MIN), MC_MAX)
-    try:
-        outcome = propagate(worksheet, monte_carlo=draws)
-    except HeatBalanceError as exc:
-        outcome = exc
+    draws = st.session_state.get(key("mc_draws"))
+    outcome = _draws_refusal(draws)
+    if outcome is None:
+        try:
+            outcome = propagate(worksheet, monte_carlo=int(draws))
+        except HeatBalanceError as exc:
+            outcome = exc
     st.session_state[key("mc")] = (worksheet.model_dump_json(), outcome)
 
 

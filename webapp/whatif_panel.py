@@ -164,23 +164,40 @@ def _fill_range(n: int, i: address.Input) -> None:
     low, high = _default_range(i)
     st.session_state[key(f"from_{n}")] = float(low)
     st.session_state[key(f"to_{n}")] = float(high)
-    st.session_state[key(f"count_{n}")] = DEFAULT_POINTS
+    st.session_state[key(f"count_{n}")] = float(DEFAULT_POINTS)
     st.session_state[key(f"unit_{n}")] = _shown_unit(i)
     st.session_state[key(f"filled_{n}")] = marker
 
 
-def _range_widgets(n: int, i: address.Input) -> None:
+def _points_refusal(count: float | None, axis: str) -> InputError | None:
+    """The refusal of an axis's number of points that is not a whole number from 1 to :data:`MAX_POINTS`, at the
+    axis's input (a sweep's refusals are placed there); None when it can be used."""
+    if count is not None and float(count).is_integer() and 1 <= count <= MAX_POINTS:
+        return None
+    shown = "an empty field" if count is None else f"{count:g}"
+    return InputError(f"{shown} is not a number of points: give a whole number of points from 1 to {MAX_POINTS:,} "
+                      "for this input's range", axis)
+
+
+def _range_widgets(n: int, i: address.Input, system: str) -> bool:
+    """The axis's range; False (its refusal shown below it) when its number of points cannot be used."""
     _fill_range(n, i)
     c1, c2, c3, c4 = st.columns([3, 3, 2, 2])
     c1.number_input("From", key=key(f"from_{n}"), format=_NUMBER, step=None)
     c2.number_input("To", key=key(f"to_{n}"), format=_NUMBER, step=None)
-    c3.number_input("Points", key=key(f"count_{n}"), min_value=1, max_value=MAX_POINTS, step=1)
+    # a float field without bounds: the browser would keep the old count of 0 (hover tip only) and truncate 2.5
+    # to 2; _points_refusal says so here instead
+    c3.number_input("Points", key=key(f"count_{n}"), step=1.0, format="%.10g")
     if _is_fraction(i):
         c4.text_input("Unit", key=key(f"unit_{n}"), disabled=True, placeholder="0 to 1",
                       help="A plain number between 0 and 1: no unit.")
     else:
         c4.text_input("Unit", key=key(f"unit_{n}"),
                       help="Any unit of this input's kind (the unit typed on the sheet to start with).")
+    refusal = _points_refusal(st.session_state.get(key(f"count_{n}")), i.address)
+    if refusal is not None:
+        st.error(plain(_refusal(refusal, system)), icon=":material/error:")
+    return refusal is None
 
 
 def sweep_axes(inputs: dict[str, address.Input], chosen: list[str], ranges: list[tuple]) -> list[Axis]:
@@ -234,7 +251,7 @@ def _sweep_section(worksheet: Worksheet, system: str) -> None:
     st.selectbox("Vary", addresses, key=key("axis_0"), format_func=address.label,
                  help="An input of the worksheet (the unknown is solved at every point).")
     chosen = [st.session_state[key("axis_0")]]
-    _range_widgets(0, inputs[chosen[0]])
+    counted = _range_widgets(0, inputs[chosen[0]], system)
     seconds = [NO_SECOND_INPUT] + [a for a in addresses if a != chosen[0]]
     _valid_choice("axis_1", seconds, NO_SECOND_INPUT)
     st.selectbox("And vary", seconds, key=key("axis_1"),
@@ -242,7 +259,7 @@ def _sweep_section(worksheet: Worksheet, system: str) -> None:
                  help="A second input makes a grid of both ranges, drawn as a heat map.")
     if st.session_state[key("axis_1")] != NO_SECOND_INPUT:
         chosen.append(st.session_state[key("axis_1")])
-        _range_widgets(1, inputs[chosen[1]])
+        counted = _range_widgets(1, inputs[chosen[1]], system) and counted
     outputs = list(kinds)
     kept = [o for o in st.session_state.get(key("outputs")) or [] if o in outputs]
     st.session_state[key("outputs")] = kept or ["answer"]
@@ -250,13 +267,14 @@ def _sweep_section(worksheet: Worksheet, system: str) -> None:
                    help="What is collected at every point (the answer by default).")
     ranges = [tuple(st.session_state[key(f"{x}_{n}")] for x in ("from", "to", "count", "unit"))
               for n in range(len(chosen))]
-    total = math.prod(int(r[2] or 0) for r in ranges)
     problems = bool(page_state().problems)
-    run = st.button(f"Run the sweep ({total:,} points)", key=key("run"), type="primary",
-                    disabled=problems or not st.session_state[key("outputs")])
+    label = f"Run the sweep ({math.prod(int(r[2]) for r in ranges):,} points)" if counted else \
+        "Run the sweep (give the points first)"
+    run = st.button(label, key=key("run"), type="primary",
+                    disabled=problems or not counted or not st.session_state[key("outputs")])
     if problems:
         st.caption("Fix the marked cells of the tables first: the sweep runs on the worksheet as shown.")
-    if run:
+    if run and counted:  # a refused number of points never reaches the sweep
         _run_sweep(worksheet, inputs, chosen, ranges, list(st.session_state[key("outputs")]), system)
     if key("refusal") in st.session_state:
         st.error(f"This sweep cannot be run: {plain(st.session_state[key('refusal')])}", icon=":material/error:")
