@@ -311,9 +311,14 @@ def _parser() -> argparse.ArgumentParser:
     sheet.add_argument("-o", "--output", help="the PDF file to write (default: named after the title and revision)")
     sheet.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
     sheet.set_defaults(handler=_sheet)
-    sign = commands.add_parser("sign", help="record a sign-off of a saved revision (never changes it)" + store_help)
+    sign = commands.add_parser("sign", help="record a sign-off of a saved revision (never changes it)" + store_help,
+                               description="Record a sign-off of a saved revision (never changes it). The roles "
+                                           "go in order: a 'checked' or 'approved' sign-off needs a 'prepared' "
+                                           "sign-off of the revision first.")
     sign.add_argument("id", help="a revision id (or its ?ws= link)")
-    sign.add_argument("--role", required=True, choices=["prepared", "checked", "approved"])
+    sign.add_argument("--role", required=True, choices=["prepared", "checked", "approved"],
+                      help="prepared, checked or approved; checked or approved needs a 'prepared' sign-off of the "
+                           "revision first")
     sign.add_argument("--name", required=True, help="who signs")
     sign.add_argument("--comment", help="a comment kept with the sign-off")
     sign.set_defaults(handler=_sign)

@@ -21,12 +21,12 @@ import hashlib
 import json
 import re
 import zlib
-from urllib.parse import parse_qs, quote, urlsplit
+from urllib.parse import parse_qs, parse_qsl, quote, urlencode, urlsplit, urlunsplit
 
 from .errors import InputError
 from .worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-__all__ = ["LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
+__all__ = ["view_link", "UNITS_PARAM", "LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
            "check_id", "encode_sheet", "decode_sheet", "revision_link", "sheet_link", "parse_link"]
 
 ID_LENGTH = 24  # hex digits of SHA-256: 96 bits, collisions out of reach and not guessable by enumeration
@@ -159,3 +159,24 @@ def parse_link(text: str) -> tuple[str, str]:
     if "sheet" in query:
         return "sheet", query["sheet"][0]
     raise LinkError("the link has neither ws= nor sheet=; paste the whole link or the id", "link")
+
+
+UNITS_PARAM = "units"  # a link's query parameter naming the view's unit set (absent: SI)
+
+
+def view_link(link: str, system: str) -> str:
+    """The link that opens in the unit set ``system``: ``units=US`` for the US view; none for SI (as links always
+    opened). Any ``units`` the link had is replaced; the rest of it is kept as it was.
+
+    >>> view_link("https://e.invalid/?ws=0123456789abcdef01234567", "US")
+    'https://e.invalid/?ws=0123456789abcdef01234567&units=US'
+    >>> view_link("https://e.invalid/?ws=0123456789abcdef01234567&units=US", "SI")
+    'https://e.invalid/?ws=0123456789abcdef01234567'
+    """
+    if not link:
+        return link
+    parts = urlsplit(link)
+    query = [(k, v) for k, v in parse_qsl(parts.query, keep_blank_values=True) if k != UNITS_PARAM]
+    if system != "SI":
+        query.append((UNITS_PARAM, system))
+    return urlunsplit(parts._replace(query=urlencode(query, safe=".-_~")))

@@ -96,7 +96,8 @@ signoffs = sa.Table(  # added to format 2 as a new table: a program that does no
     sa.Column("record_sha256", sa.String(64), nullable=False),
 )
 _signoff_index = sa.Index("heatbalance_signoffs_revision", signoffs.c.revision_id)
-ROLES = ("prepared", "checked", "approved")
+ROLES = ("prepared", "checked", "approved")  # in their order: a check or an approval needs a "prepared" first
+PREPARED = ROLES[0]
 MAX_COMMENT = 2000  # characters of a sign-off's comment
 _SIGNOFF = ("revision_id", "role", "name", "signed_at", "comment")
 
@@ -452,7 +453,9 @@ class WorksheetStore:
         """Record a sign-off of a saved revision (never changing the revision); return it as stored.
 
         Refuses an unknown revision, a role other than :data:`ROLES`, an empty name, a comment over
-        :data:`MAX_COMMENT` characters.
+        :data:`MAX_COMMENT` characters, and a check or an approval of a revision nobody has signed as prepared
+        (at ``role``: something is prepared before it is checked). Sign-offs recorded before that rule are kept
+        and read as they were.
         """
         rev_id = check_id(rev_id)
         if self.info(rev_id) is None:
@@ -465,6 +468,11 @@ class WorksheetStore:
             raise StoreError("a sign-off needs the name of who signs", "name")
         if not isinstance(comment, str) or len(comment) > MAX_COMMENT:
             raise StoreError(f"a sign-off's comment is text of at most {MAX_COMMENT:,} characters", "comment")
+        if role != PREPARED and not any(s.role == PREPARED for s in self.signoffs(rev_id)):  # digests checked
+            article = "an" if role[0] in "aeiou" else "a"
+            raise StoreError(f"{article} '{role}' sign-off needs a '{PREPARED}' sign-off of this revision first (the "
+                             f"order is {', then '.join(ROLES)}): nobody has signed revision {rev_id} as {PREPARED}",
+                             "role")
         row = dict(revision_id=rev_id, role=role, name=name, signed_at=_now(), comment=comment)
         row["record_sha256"] = _signoff_digest(row)
         row["id"] = row["record_sha256"][:ID_LENGTH]

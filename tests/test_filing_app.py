@@ -281,18 +281,18 @@ def test_a_sign_off_on_the_page_is_recorded_in_the_store_and_printed_on_the_shee
     rev_id = revision_id(ws)
     assert not at.button(key="filing_sign").disabled
     assert any("Unchecked" in unescaped(w.value) for w in at.warning)
-    at.selectbox(key="filing_role").set_value("checked")
+    at.selectbox(key="filing_role").set_value("prepared")  # a check needs a "prepared" sign-off first
     at.text_input(key="filing_name").input("Rosa Okafor")
     at.text_area(key="filing_comment").input("Checked against the CW flow meter log")
     at.button(key="filing_sign").click().run()
     no_exception(at)
-    assert f"Signed revision {rev_id}: checked by Rosa Okafor." in successes(at)
+    assert f"Signed revision {rev_id}: prepared by Rosa Okafor." in successes(at)
     with WorksheetStore(db) as store:
         signoffs = store.signoffs(rev_id)
     assert [(s.revision, s.role, s.name, s.comment) for s in signoffs] == \
-        [(rev_id, "checked", "Rosa Okafor", "Checked against the CW flow meter log")]
+        [(rev_id, "prepared", "Rosa Okafor", "Checked against the CW flow meter log")]
     table = table_with(at, "signed (UTC)")
-    assert list(table["name"]) == ["Rosa Okafor"] and list(table["role"]) == ["checked"]
+    assert list(table["name"]) == ["Rosa Okafor"] and list(table["role"]) == ["prepared"]
     offer = at.session_state[OFFER]
     assert offer.revision == rev_id and offer.link.endswith(f"?ws={rev_id}") and offer.file_name.endswith(
         f"_rev_{rev_id[:8]}.pdf")
@@ -338,10 +338,13 @@ def test_with_a_login_the_logged_in_user_signs_and_nobody_logged_in_cannot(db, m
     at.button(key="share_save").click().run()
     name = at.text_input(key="filing_name")
     assert name.value == "ana.lima@plant.example" and name.disabled
+    with WorksheetStore(db) as store:
+        store.sign(revision_id(ws), "prepared", "A. Engineer")  # an approval needs a "prepared" sign-off first
     at.selectbox(key="filing_role").set_value("approved")
     at.button(key="filing_sign").click().run()
     with WorksheetStore(db) as store:
-        assert [(s.role, s.name) for s in store.signoffs(revision_id(ws))] == [("approved", "ana.lima@plant.example")]
+        assert [(s.role, s.name) for s in store.signoffs(revision_id(ws))] == \
+            [("prepared", "A. Engineer"), ("approved", "ana.lima@plant.example")]
     user.clear()
     user["is_logged_in"] = False
     at.run()

@@ -76,8 +76,8 @@ def test_open_save_sign_and_download_the_calculation_sheet(server, page, output_
                            "return b !== null && !b.disabled; }")
     page.locator(".st-key-filing_signoffs").get_by_text("Unchecked").wait_for()
 
-    choose(page, "filing_role", "checked",
-           lambda p: _wait_for_input(p, "filing_role", "checked", timeout=5_000))  # the box's combobox shows it
+    choose(page, "filing_role", "prepared",  # a check needs a "prepared" sign-off first
+           lambda p: _wait_for_input(p, "filing_role", "prepared", timeout=5_000))  # the box's combobox shows it
     name = page.locator(".st-key-filing_name input")
     name.fill(SIGNER)
     name.press("Enter")
@@ -89,12 +89,12 @@ def test_open_save_sign_and_download_the_calculation_sheet(server, page, output_
     _wait_for_input(page, "filing_name", SIGNER)
     _wait_for_input(page, "filing_comment", "Checked against the cooling-water flow meter log", "textarea")
     sign.click()
-    page.get_by_text(f"Signed revision {rev_id}: checked by {SIGNER}.").wait_for()
+    page.get_by_text(f"Signed revision {rev_id}: prepared by {SIGNER}.").wait_for()
     idle(page)
     with WorksheetStore(db) as store:
         signoffs = store.signoffs(rev_id)
     assert [(s.role, s.name, s.comment) for s in signoffs] == \
-        [("checked", SIGNER, "Checked against the cooling-water flow meter log")]
+        [("prepared", SIGNER, "Checked against the cooling-water flow meter log")]
     # the list shows it: a cell of the grid (drawn on a canvas; its accessible cells are in the page, hidden)
     page.locator(".st-key-filing_signoffs [role='gridcell']", has_text=SIGNER).wait_for(state="attached")
 

@@ -147,6 +147,8 @@ def test_the_cli_writes_the_sheet_of_a_signed_revision(tmp_path, monkeypatch, ca
     monkeypatch.delenv("HEATBALANCE_DATABASE_URL", raising=False)
     assert main(["save", CONDENSER]) == 0
     rev = capsys.readouterr().out.strip()
+    assert main(["sign", rev, "--role", "prepared", "--name", "A. Engineer"]) == 0  # a check needs it first
+    capsys.readouterr()
     assert main(["sign", rev, "--role", "checked", "--name", "B. Checker", "--comment", "agreed"]) == 0
     assert capsys.readouterr().out.startswith("checked by B. Checker, ")
     out = tmp_path / "sheet.pdf"

@@ -7,6 +7,11 @@ Hooked into ``app.py`` with two calls:
 * :func:`panel` ``(replace_worksheet)`` is one of the page's extra panels, called as
   ``panel(worksheet, result, system)``.
 
+The view's unit set travels with the links (it is a view, not part of the worksheet, so not of its id):
+every link the page shows carries ``units=US`` in the US view (:func:`view_link`; none in SI), the address
+bar follows the view (:func:`keep_view_in_address`), and a link opens in the unit set it names
+(:func:`view_from_link`; a link without ``units`` opens in SI, as links always did).
+
 Everything that can go wrong (a bad link, a locked database, a bad upload) is shown
 as a message on the page; nothing stored is changed by a refusal. The engine work is
 in :mod:`heatbalance.store`, :mod:`heatbalance.links` and :mod:`heatbalance.present.exports`.
@@ -15,24 +20,26 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Callable
-from urllib.parse import urlsplit, urlunsplit
+from urllib.parse import parse_qs, urlsplit, urlunsplit
 
 import streamlit as st
 
 from heatbalance.errors import HeatBalanceError, WorksheetFormatError
 from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
-from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link
+from heatbalance.links import UNITS_PARAM as UNITS
+from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link, view_link
 from heatbalance.results import Result
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-from .common import page_state, plain
+from .common import UNIT_SYSTEMS, display_system, page_state, plain
 
 if TYPE_CHECKING:  # SQLAlchemy loads at the store's first use, after the answer is on screen
     from heatbalance.store import RevisionInfo, WorksheetStore
 
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
            "Origin", "note_origin", "origin_text", "render_origin", "saver", "PROBLEM", "BASE", "SAVED",
-           "OPENED_FROM", "ORIGIN", "render_save", "saved_state_text", "provenance", "put_back", "loaded"]
+           "OPENED_FROM", "ORIGIN", "render_save", "saved_state_text", "provenance", "put_back", "loaded",
+           "UNITS", "view_link", "view_from_link", "keep_view_in_address"]
 
 # Session-state keys of this part (apart from widget keys).
 BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
@@ -42,6 +49,8 @@ NOTICE = "hb_share_notice"  # message of the last success, shown in the panel
 OPENED_FROM = "hb_share_opened_from"  # the query parameter the page was opened from
 ORIGIN = "hb_share_origin"  # where the worksheet on the page came from: an Origin
 NOT_SAVED_LINK = "not a saved revision; content as carried by the link"
+UNIT_WIDGET = "unit_system"  # the sidebar's "Show results in" (webapp.sidebar), keyed by its label
+_LABELS = {code: label for label, code in UNIT_SYSTEMS.items()}  # "US" -> "US customary (°F, lb, Btu)"
 
 
 @dataclass(frozen=True)
@@ -155,12 +164,59 @@ def render_origin(worksheet: Worksheet) -> None:
             st.caption(origin_text(origin, worksheet))
 
 
+# --------------------------------------------------------------------------- the view's unit set in links
+def _unit_set(value: object) -> str | None:
+    """The unit set a link's ``units`` names (any case), or None."""
+    text = value.strip().upper() if isinstance(value, str) else ""
+    return text if text in _LABELS else None
+
+
+def _apply_units(value: object) -> None:
+    """Show the page in the unit set a link names (before the sidebar's choice is drawn, or in a callback);
+    a value that names none is said (at ``units``) and the view is left as it is."""
+    system = _unit_set(value)
+    if system is not None:
+        st.session_state[UNIT_WIDGET] = _LABELS[system]
+        return
+    shown = str(value)[:40]
+    st.session_state[NOTICE] = ""
+    st.session_state[PROBLEM] = (f"units: the link's unit set {shown!r} is not one of {', '.join(_LABELS)}; "
+                                 f"the results are shown in {display_system()}")
+
+
+def view_from_link() -> None:
+    """The page opens in the unit set its address names (``units=US``); without one, in SI as always."""
+    if UNITS in st.query_params:
+        _apply_units(st.query_params.get(UNITS))
+
+
+def keep_view_in_address(system: str) -> None:
+    """The address bar names the view's unit set (``units=US``; nothing for SI), so a reload or a copy of the
+    address opens as the page is seen. Written only when it differs (no needless browser history)."""
+    wanted = None if system == "SI" else system
+    if st.query_params.get(UNITS) != wanted:
+        if wanted is None:
+            del st.query_params[UNITS]
+        else:
+            st.query_params[UNITS] = wanted
+
+
+def _units_last() -> None:
+    """The address bar reads like the link the page shows: ``?ws=<id>&units=US``."""
+    units = st.query_params.get(UNITS)
+    if units is not None:
+        del st.query_params[UNITS]
+        st.query_params[UNITS] = units
+
+
 def worksheet_from_link() -> Worksheet | None:
-    """The worksheet the page's address names (``?ws=`` or ``?sheet=``), or None.
+    """The worksheet the page's address names (``?ws=`` or ``?sheet=``), or None; the page is shown in the unit
+    set the address names (:func:`view_from_link`).
 
     A bad link leaves a message (shown at once and in the panel) and returns None,
     so the page opens on its default worksheet instead.
     """
+    view_from_link()
     params = st.query_params
     for kind in ("ws", "sheet"):
         value = params.get(kind)
@@ -285,6 +341,7 @@ def _on_save(worksheet: Worksheet) -> None:
     if "sheet" in st.query_params:
         del st.query_params["sheet"]
     st.query_params["ws"] = saved.id  # the address bar now reopens this revision
+    _units_last()
 
 
 def _on_upload(replace: Callable[[Worksheet], None]) -> None:
@@ -324,7 +381,11 @@ def _on_open_link(replace: Callable[[Worksheet], None]) -> None:
     state[BASE] = rev_id
     if rev_id:
         st.query_params["ws"] = rev_id  # the address bar names what is on the page
+        _units_last()
     state[NOTICE] = f"Opened saved revision {rev_id}." if rev_id else "Opened the worksheet carried by the link."
+    units = parse_qs(urlsplit(text).query).get(UNITS)
+    if units:  # a link that names its unit set opens in it; one that names none leaves the view as it is
+        _apply_units(units[0])
 
 
 # --------------------------------------------------------------------------- drawing
@@ -360,11 +421,11 @@ def render_panel(worksheet: Worksheet, result: Result | None, system: str,
         else:
             st.caption("**Save and share** is beside the answer; it saves this worksheet as a new revision.")
         if based_on:
-            render_history(based_on, base)
+            render_history(based_on, base, system)
     with right:
         with st.expander("Link that carries the whole worksheet (no database needed)"):
             try:
-                st.code(sheet_link(worksheet, base), language=None)
+                st.code(view_link(sheet_link(worksheet, base), system), language=None)
                 st.caption("Anyone with the link opens these inputs, on any server running this program.")
             except HeatBalanceError as exc:
                 st.warning(_plain(exc.message))
@@ -416,15 +477,17 @@ def render_save(worksheet: Worksheet) -> None:
     with st.container(key="saved_state"):
         st.caption(saved_state_text(worksheet))
     based_on = state.get(BASE)
+    system = display_system()
+    keep_view_in_address(system)
     try:
         if based_on and based_on == revision_id(worksheet):
-            st.code(revision_link(based_on, base_url()), language=None)
+            st.code(view_link(revision_link(based_on, base_url()), system), language=None)
     except HeatBalanceError:
         pass  # the panel says why this worksheet cannot be saved
 
 
-def render_history(rev_id: str, base: str) -> None:
-    """The revision and its ancestors, newest first, each with its link."""
+def render_history(rev_id: str, base: str, system: str = "SI") -> None:
+    """The revision and its ancestors, newest first, each with its link (in the view's unit set)."""
     try:
         chain = get_store().history(rev_id)
     except HeatBalanceError as exc:
@@ -432,7 +495,8 @@ def render_history(rev_id: str, base: str) -> None:
         return
     st.markdown("**Revisions** (newest first)")
     st.markdown("\n".join(
-        f"- [`{r.id}`]({revision_link(r.id, base)}) {r.saved_at:%Y-%m-%d %H:%M} UTC — {_plain(r.title)}"
+        f"- [`{r.id}`]({view_link(revision_link(r.id, base), system)}) {r.saved_at:%Y-%m-%d %H:%M} UTC — "
+        f"{_plain(r.title)}"
         + (f" (saved by {_plain(r.saved_by)})" if r.saved_by else "") for r in chain))
 
 

@@ -29,6 +29,8 @@ from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.platypus import KeepTogether, Paragraph, SimpleDocTemplate, Spacer, Table, TableStyle
 
 from .. import address as addresses
+from ..errors import HeatBalanceError
+from ..links import view_link
 from ..reactor import CAUTION
 from ..results import SIGN_CONVENTION, Result
 from ..worksheet import Quantity, Worksheet
@@ -45,10 +47,15 @@ from .text import (UNIT_SETS, amount_text, answer_text, average_power_text, disp
 from .uncertainty import contribution_rows as uncertainty_rows
 from .uncertainty import monte_carlo_text, output_uncertainty_lines, tolerance_text, uncertainty_text
 
-__all__ = ["sheet_pdf_bytes", "sheet_filename", "UNCHECKED"]
+__all__ = ["sheet_pdf_bytes", "sheet_filename", "UNCHECKED", "NOT_PREPARED", "DEFAULT_MARK"]
 
 UNCHECKED = "Unchecked: no sign-off is recorded for this revision."
+NOT_PREPARED = ("No 'prepared' sign-off is recorded for this revision: the sign-offs below were recorded before a "
+                "check or an approval needed one.")
 ROLES = ("prepared", "checked", "approved")
+DEFAULT_MARK = " (default)"  # after an input's value when it is the model's default (see _inputs)
+LINK_COLOUR = "#1a56c4"
+LINK_FONT_SIZES = (7.5, 7, 6.5, 6, 5.5)  # the link's size: the largest that keeps it on one line
 
 
 # --------------------------------------------------------------------------- fonts and text
@@ -127,16 +134,35 @@ def _table(rows: list[list], widths: list[float], styles, header: bool = True, n
 
 # --------------------------------------------------------------------------- sections
 def _identity(ws: Worksheet, revision: str, link: str, system: str, printed: datetime, styles) -> list:
+    """Title, tags, revision, its link (a clickable line of its own, never broken inside the id) and the view."""
     tags = ws.tags
-    rows = [["Site", tags.site or "-", "Revision", revision or "not saved: no revision id"],
-            ["Job", tags.job or "-", "Link", link or "-"],
-            ["Equipment", tags.equipment or "-", "Printed", printed.strftime("%Y-%m-%d %H:%M UTC")],
-            ["Basis", ws.basis.kind + (f", {ws.basis.duration}" if ws.basis.duration else ""), "Units",
-             "SI (°C, kg, kW)" if system == "SI" else "US customary (°F, lb, Btu)"]]
     width = 180 * mm
-    return [_p(ws.title, styles["h1"]), _table(rows, [22 * mm, 68 * mm, 20 * mm, width - 110 * mm], styles,
-                                               header=False)] + \
-        ([Spacer(1, 3), _p(ws.notes, styles["small"])] if ws.notes else [])
+    rows = [["Site", tags.site or "-", "Revision", revision or "not saved: no revision id"],
+            ["Link", _link(link, width - 22 * mm - 6, styles), "", ""],
+            ["Job", tags.job or "-", "Printed", printed.strftime("%Y-%m-%d %H:%M UTC")],
+            ["Equipment", tags.equipment or "-", "Units",
+             "SI (°C, kg, kW)" if system == "SI" else "US customary (°F, lb, Btu)"],
+            ["Basis", ws.basis.kind + (f", {ws.basis.duration}" if ws.basis.duration else ""), "", ""]]
+    table = _table(rows, [22 * mm, 68 * mm, 20 * mm, width - 110 * mm], styles, header=False)
+    table.setStyle(TableStyle([("SPAN", (1, 1), (3, 1)), ("SPAN", (1, 4), (3, 4))]))
+    return [_p(ws.title, styles["h1"]), table] + ([Spacer(1, 3), _p(ws.notes, styles["small"])] if ws.notes else [])
+
+
+def _link(link: str, width: float, styles):
+    """The link as a clickable paragraph (a URI annotation to exactly ``link``) that is never broken inside its
+    query (the revision id): the largest of :data:`LINK_FONT_SIZES` that keeps it on one line; if even the smallest
+    does not, the query goes on a line of its own (only the address before it may wrap)."""
+    if not link:
+        return "-"
+    regular = _font()[0]
+    size = next((s for s in LINK_FONT_SIZES if pdfmetrics.stringWidth(link, regular, s) <= width),
+                LINK_FONT_SIZES[-1])
+    base, mark, query = link.partition("?")
+    fits = pdfmetrics.stringWidth(link, regular, size) <= width
+    text = _plain(link) if fits or not (base and mark) else f"{_plain(base)}<br/>{_plain(mark + query)}"
+    style = ParagraphStyle("link", parent=styles["cell"], fontSize=size, leading=size + 1.5)
+    href = escape(link, {'"': "&quot;"})
+    return Paragraph(f'<a href="{href}" color="{LINK_COLOUR}">{text}</a>', style)
 
 
 def _answer(result: Result, system: str, styles) -> list:
@@ -161,18 +187,24 @@ def _warnings(ws: Worksheet, result: Result, system: str, styles) -> list:
     out = [_p("Warnings and cautions", styles["h2"])]
     warnings = [phrase_text(w, system) for w in result.warnings]
     alarms = [phrase_text(a, system) for s in result.screening for a in s.alarms]
+    caution = bool(ws.vessels or ws.reactions or any(loss.surface is not None for loss in ws.losses))  # + hot surfaces
     out += [_p(f"ALARM: {a}", styles["alarm"]) for a in alarms]
-    out += [_p(f"• {w}", styles["body"]) for w in warnings] or [_p("No warnings.", styles["body"])]
-    if ws.vessels or ws.reactions or any(loss.surface is not None for loss in ws.losses):  # + hot surfaces
+    out += [_p(f"• {w}", styles["body"]) for w in warnings]
+    if caution:
         out.append(_p(f"Safety: {CAUTION}", styles["alarm"]))
+    if not (alarms or warnings or caution):  # said only when the section holds nothing else
+        out.append(_p("No warnings.", styles["body"]))
     return out
 
 
 def _inputs(ws: Worksheet, styles) -> list:
     tolerances = {t.address: t for t in ws.tolerances}
     rows = [["input", "as typed", "tolerance", "address"]]
+    defaults = 0
     for entry in addresses.inputs(ws):
         value = "? (the unknown)" if entry.is_unknown else _typed(entry.value)
+        if not entry.is_unknown and _is_default(ws, entry.address, entry.value):
+            value, defaults = value + DEFAULT_MARK, defaults + 1
         tolerance = tolerances.get(entry.address)
         rows.append([addresses.label(entry.address), value,
                      tolerance_text(_Tol(tolerance)) if tolerance else "", entry.address])
@@ -186,9 +218,44 @@ def _inputs(ws: Worksheet, styles) -> list:
     materials += [[f"mixing {m.name}", f"solute {m.solute}" + (f", in {m.vessel}" if m.vessel else "")]
                   for m in ws.mixings]
     out = [_p("Inputs (as typed)", styles["h2"]), _table(rows, [52 * mm, 30 * mm, 38 * mm, 60 * mm], styles)]
+    if defaults:
+        out.append(_p(f"{DEFAULT_MARK.strip()}: the value the program uses when the field is left empty; the sheet "
+                      "cannot tell it from the same value typed (both are the same worksheet, with the same revision "
+                      "id).", styles["small"]))
     if materials:
         out += [Spacer(1, 4), _table([["line", "material / equation"], *materials], [60 * mm, 120 * mm], styles)]
     return out
+
+
+_NO_DEFAULT = object()
+
+
+def _default(ws: Worksheet, address: str):
+    """The model's default of the field at ``address`` (a number or a quantity), or ``_NO_DEFAULT``."""
+    try:
+        steps = addresses.parse(address)
+        node = ws
+        for field_name, name in steps[:-1]:
+            node = getattr(node, field_name)
+            if name is not None:
+                node = next(x for x in node if x.name == name)
+        info = type(node).model_fields.get(steps[-1][0])
+    except (HeatBalanceError, AttributeError, StopIteration):
+        return _NO_DEFAULT
+    if info is None or info.is_required():
+        return _NO_DEFAULT
+    value = info.get_default(call_default_factory=True)
+    return value if isinstance(value, (Quantity, int, float)) and not isinstance(value, bool) else _NO_DEFAULT
+
+
+def _is_default(ws: Worksheet, address: str, value) -> bool:
+    """Whether an input holds its field's default (so was not, or need not have been, typed).
+
+    A worksheet's identity leaves defaults out (:func:`heatbalance.links.canonical_json`): a value typed equal to
+    its default is the same revision, so it is marked the same way and every copy of a revision prints alike.
+    """
+    default = _default(ws, address)
+    return default is not _NO_DEFAULT and value is not None and value == default
 
 
 @dataclass
@@ -386,6 +453,8 @@ def _signoffs(signoffs: list, styles) -> list:
     out = [_p("Sign-off", styles["h2"])]
     if not signoffs:
         out.append(_p(UNCHECKED, styles["alarm"]))
+    elif not any(s.role == ROLES[0] for s in signoffs):  # kept as recorded before a check needed a preparer
+        out.append(_p(NOT_PREPARED, styles["alarm"]))
     rows = [["role", "name", "date (UTC)", "comment"]]
     by_role = {role: [s for s in signoffs if s.role == role] for role in ROLES}
     for role in ROLES:
@@ -401,11 +470,13 @@ def sheet_pdf_bytes(ws: Worksheet, result: Result, system: str = "SI", revision:
                     signoffs: list | None = None, printed: datetime | None = None) -> bytes:
     """The calculation sheet of a solved worksheet as PDF bytes (A4).
 
+    ``link``: the revision's ``?ws=`` link, printed clickable with ``units=`` of ``system`` (:func:`view_link`).
     ``signoffs``: the revision's sign-offs, records with ``role``, ``name``, ``signed_at`` and ``comment``
     (:class:`heatbalance.store.SignOff`); none prints "unchecked".
     """
     styles = _styles()
     printed = printed or datetime.now(timezone.utc)
+    link = view_link(link, system)  # it opens the page in the sheet's unit set
     story = []
     for section in (_identity(ws, revision, link, system, printed, styles), _answer(result, system, styles),
                     _warnings(ws, result, system, styles), _inputs(ws, styles), _contributions(result, system, styles),
