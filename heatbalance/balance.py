@@ -525,7 +525,7 @@ def _result(p: Problem, fraction: float | None) -> Result:
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
         + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p) \
-        + _negligible_duties(p, lines, terms)
+        + _negligible_duties(p, lines, terms) + _charged_as_vapour(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
@@ -583,6 +583,24 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
                                "T": Measure(starts[0], "temperature", 1), "low": Measure(min(starts), "temperature", 1),
                                "high": Measure(max(starts), "temperature", 1)},
                               item("vessels", e.vessel, "equipment", "initial_temperature")))
+    return out
+
+
+def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
+    """A charge above its boiling point at its pressure is vapour as charged: said, for a hot liquid typed at the
+    vessel's pressure instead of its own would be counted as vapour condensing in the vessel."""
+    out = []
+    for model, ln in zip(p.lines, lines):
+        boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
+        if model.kind != "charge" or model.initial.plateau is not None or not boiling \
+                or ln.initial_T <= boiling[0].T + T_TOL:
+            continue
+        out.append(Phrase("{name} is vapour as charged: {T} is above its boiling point {T_b} at {P}, so it is counted "
+                          "as vapour that condenses in the vessel. If it is a liquid under pressure, give the charge's "
+                          "own pressure (a liquid that flashes as it enters loses its flash vapour, which is not "
+                          "modelled).", {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
+                                         "T_b": Measure(boiling[0].T, "temperature", 1),
+                                         "P": Measure(ln.initial_P, "pressure")}, model.initial.temperature_address))
     return out
 
 

@@ -235,3 +235,20 @@ def test_contributions_close_the_balance():
     supplied = sum(t.heat for t in result.terms)
     assert absorbed == pytest.approx(90e3, rel=1e-9) and supplied == pytest.approx(90e3)
     assert result.residual == pytest.approx(0.0, abs=1e-3)
+
+
+def test_a_charge_above_its_boiling_point_is_said_to_be_vapour_as_charged():
+    import json
+
+    from heatbalance.worksheet import load_worksheet
+
+    doc = json.loads(open("sample_data/hot_condensate_quench.json", "rb").read())
+    doc["vessels"][0]["charges"][0]["initial"]["temperature"]["value"] = 150  # "hot condensate" typed at 150 °C
+    result = solve(load_worksheet(json.dumps(doc).encode()))
+    # at the pit's 0 barg water boils at 100.0 °C (IAPWS-IF97): the charge is steam, and the answer counts it so
+    assert IAPWS97(P=0.101325, x=0).T - 273.15 == pytest.approx(99.97, abs=0.01)
+    (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
+    assert warning.address == "vessels[Quench pit].charges[Hot condensate].initial.temperature"
+    assert "150.0 °C is above its boiling point 100.0 °C at 1.013 bar(a)" in warning.text
+    doc["vessels"][0]["charges"][0]["initial"]["pressure"] = {"value": 5, "unit": "barg"}  # a liquid under pressure
+    assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
