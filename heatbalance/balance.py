@@ -587,13 +587,14 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
 
 
 def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
-    """A charge above its boiling point at its pressure is vapour as charged: said, for a hot liquid typed at the
-    vessel's pressure instead of its own would be counted as vapour condensing in the vessel."""
+    """A charge above its boiling point at its pressure that condenses in the vessel: said, for a hot liquid typed
+    at the vessel's pressure instead of its own is counted so (a gas that stays a gas is not)."""
     out = []
     for model, ln in zip(p.lines, lines):
+        if model.kind != "charge" or model.initial.plateau is not None or ln.latent >= 0:
+            continue
         boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
-        if model.kind != "charge" or model.initial.plateau is not None or not boiling \
-                or ln.initial_T <= boiling[0].T + T_TOL:
+        if not boiling or ln.initial_T <= boiling[0].T + T_TOL:
             continue
         out.append(Phrase("{name} is vapour as charged: {T} is above its boiling point {T_b} at {P}, so it is counted "
                           "as vapour that condenses in the vessel. If it is a liquid under pressure, give the charge's "

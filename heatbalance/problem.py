@@ -888,10 +888,10 @@ def _the_unknown(ws: Worksheet) -> Unknown:
 # cp a process material has [J/(kg·K)]: lead 130 to hydrogen gas 14,300; a liquid at most about 5,000 (water 4,180,
 # ammonia 4,700): common practice, no source. Outside, a unit slip (J for kJ, kcal for kJ) is the likelier cause.
 CP_PLAUSIBLE = (100.0, 15_000.0)
+LIQUID_CP_MAX = 5_000.0
 # |ΔH| of a reaction [J/mol]: weak neutralisations and isomerisations from a few kJ/mol, combustion of large
 # molecules to several thousand: common practice, no source
 REACTION_DH_PLAUSIBLE = (1_000.0, 10_000_000.0)
-LIQUID_CP_MAX = 5_000.0
 
 
 def _implausible_cp(material: str, phase: str, cp: float, typed, where: str) -> list[Phrase]:

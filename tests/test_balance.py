@@ -252,3 +252,15 @@ def test_a_charge_above_its_boiling_point_is_said_to_be_vapour_as_charged():
     assert "150.0 °C is above its boiling point 100.0 °C at 1.013 bar(a)" in warning.text
     doc["vessels"][0]["charges"][0]["initial"]["pressure"] = {"value": 5, "unit": "barg"}  # a liquid under pressure
     assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
+
+
+def test_a_gas_charged_above_its_boiling_point_that_stays_a_gas_is_not_said_to_condense():
+    # a nitrogen blanket: 50 kg at 20 °C in a 0 barg vessel, far above its −195.8 °C boiling point, ends a gas
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "V", "charges": [{"name": "Blanket", "material": "nitrogen", "mass": q(50, "kg"),
+                                                   "initial": temp(20)}], "final": temp(60)}],
+               duties=[{"name": "Heater"}], unknowns=[{"kind": "duty", "term": "Heater"}])
+    result = solve(ws)
+    # hand: 50 kg × 1.04 kJ/(kg·K) (N2 near 1 atm, Incropera Table A.4, from memory) × 40 K ≈ 2,080 kJ
+    assert result.answer.value_si == pytest.approx(2.08e6, rel=0.01)
+    assert not [w for w in result.warnings if "vapour as charged" in w.text]
