@@ -268,13 +268,27 @@ class _Parser(argparse.ArgumentParser):
         raise _UsageError(what or message, where.removeprefix("argument ").split("/")[0] or self.prog)
 
 
+def _units_option(command) -> None:
+    command.add_argument("--units", choices=["SI", "US"], help="display units (default: the link's units=, else SI)")
+
+
+def _view_units(args) -> None:
+    """``--units`` as given, else the unit set the link names (``units=US``), else SI."""
+    from .links import link_units
+
+    if getattr(args, "units", "SI") is None:
+        source = next((getattr(args, name) for name in ("id", "worksheet", "source") if hasattr(args, name)), "")
+        args.units = "SI"  # a refusal of the link's units is written in SI
+        args.units = (link_units(source) if not os.path.exists(source) else None) or "SI"
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="python -m heatbalance", description="Solve process heat-balance worksheets.")
     commands = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
     run = commands.add_parser("solve", help="solve a worksheet JSON file for its unknown")
     run.add_argument("worksheet", help="path to a worksheet .json file")
     run.add_argument("--json", action="store_true", help="print the full result as JSON")
-    run.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
+    _units_option(run)
     run.set_defaults(handler=_solve)
     listing = commands.add_parser("materials", help="list the materials that can be used")
     listing.set_defaults(handler=_materials)
@@ -287,7 +301,7 @@ def _parser() -> argparse.ArgumentParser:
     show.add_argument("id", help="a revision id, or a share link with ?ws= or ?sheet=")
     show.add_argument("--solve", action="store_true", help="solve it and print the result")
     show.add_argument("--json", action="store_true", help="with --solve: print the full result as JSON")
-    show.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
+    _units_option(show)
     show.set_defaults(handler=_open)
     what_if = commands.add_parser("sweep", help="solve the worksheet over a range of one or two inputs")
     what_if.add_argument("worksheet", help="a worksheet .json file, a revision id or a share link")
@@ -303,13 +317,13 @@ def _parser() -> argparse.ArgumentParser:
         formats = command.add_mutually_exclusive_group()
         formats.add_argument("--json", action="store_true", help="print the table as JSON")
         formats.add_argument("--csv", action="store_true", help="print the table as CSV")
-        command.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
+        _units_option(command)
         command.set_defaults(handler=handler)
     sheet = commands.add_parser("sheet", help="write the calculation sheet (PDF) of a file or a saved revision"
                                 + store_help)
     sheet.add_argument("source", help="a worksheet .json file, a revision id or a share link")
     sheet.add_argument("-o", "--output", help="the PDF file to write (default: named after the title and revision)")
-    sheet.add_argument("--units", choices=["SI", "US"], default="SI", help="display units (default SI)")
+    _units_option(sheet)
     sheet.set_defaults(handler=_sheet)
     sign = commands.add_parser("sign", help="record a sign-off of a saved revision (never changes it)" + store_help,
                                description="Record a sign-off of a saved revision (never changes it). The roles "
@@ -344,6 +358,7 @@ def main(argv: list[str] | None = None) -> int:
         _refuse(exc)
         return 2
     try:
+        _view_units(args)
         return args.handler(args)
     except _UsageError as exc:
         _refuse(exc)

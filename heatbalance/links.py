@@ -26,7 +26,7 @@ from urllib.parse import parse_qs, parse_qsl, quote, urlencode, urlsplit, urluns
 from .errors import InputError
 from .worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-__all__ = ["view_link", "UNITS_PARAM", "LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
+__all__ = ["view_link", "link_units", "UNITS_PARAM", "LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
            "check_id", "encode_sheet", "decode_sheet", "revision_link", "sheet_link", "parse_link"]
 
 ID_LENGTH = 24  # hex digits of SHA-256: 96 bits, collisions out of reach and not guessable by enumeration
@@ -180,3 +180,20 @@ def view_link(link: str, system: str) -> str:
     if system != "SI":
         query.append((UNITS_PARAM, system))
     return urlunsplit(parts._replace(query=urlencode(query, safe=".-_~")))
+
+
+def link_units(text: str) -> str | None:
+    """The unit set a link names (``units=US``), or None when it names none (or ``text`` is no link).
+
+    >>> link_units("https://e.invalid/?ws=0123456789abcdef01234567&units=us"), link_units("sheet.json")
+    ('US', None)
+    """
+    if "=" not in (text or ""):
+        return None
+    named = parse_qs(urlsplit(text).query or text.lstrip("?")).get(UNITS_PARAM)
+    if not named:
+        return None
+    system = named[0].strip().upper()
+    if system not in ("SI", "US"):
+        raise LinkError(f"the link's unit set {named[0][:40]!r} is neither SI nor US", UNITS_PARAM)
+    return system

@@ -152,3 +152,19 @@ def test_a_command_imports_only_what_it_needs(command, absent):
              "print(sorted(m for m in %r if m in sys.modules))" % (command, sorted(absent)))
     done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True)
     assert done.stdout.strip().splitlines()[-1] == "[]", done.stdout[-500:] + done.stderr[-500:]
+
+
+def test_a_link_that_names_its_unit_set_opens_in_it_unless_units_is_given(capsys):
+    from heatbalance.links import sheet_link
+    from heatbalance.worksheet import load_worksheet
+
+    link = sheet_link(load_worksheet(open(FLASH, "rb").read()), "http://plant.invalid/")
+    # 111.606 °C = 232.91 °F (× 9/5 + 32, hand calculation)
+    assert main(["open", link + "&units=US", "--solve"]) == 0
+    assert "= 232.91 °F, 12.3% vapour" in capsys.readouterr().out
+    assert main(["open", link + "&units=US", "--solve", "--units", "SI"]) == 0  # said on the command line: kept
+    assert "= 111.61 °C, 12.3% vapour" in capsys.readouterr().out
+    assert main(["open", link, "--solve"]) == 0  # a link without units= opens in SI, as links always did
+    assert "= 111.61 °C, 12.3% vapour" in capsys.readouterr().out
+    assert main(["open", link + "&units=metric", "--solve"]) == 1
+    assert "error: units: the link's unit set 'metric' is neither SI nor US" in capsys.readouterr().err
