@@ -587,12 +587,14 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
 
 
 def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
-    """A charge above its boiling point at its pressure that condenses in the vessel: said, for a hot liquid typed
-    at the vessel's pressure instead of its own is counted so (a gas that stays a gas is not)."""
+    """A charge above its boiling point at its vessel's pressure that condenses in the vessel: said, for a hot
+    liquid typed without its own pressure is counted so (a gas that stays a gas, or steam charged at its own
+    pressure, is not said)."""
     out = []
     for model, ln in zip(p.lines, lines):
-        if model.kind != "charge" or model.initial.plateau is not None or ln.latent >= 0:
-            continue
+        if model.kind != "charge" or model.initial.plateau is not None or ln.latent >= 0 \
+                or model.initial.pressure_address != item("vessels", model.vessel, "pressure"):
+            continue  # not a charge that condenses at its vessel's pressure (one at its own pressure was meant so)
         boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
         if not boiling or ln.initial_T <= boiling[0].T + T_TOL:
             continue
@@ -605,7 +607,9 @@ def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     return out
 
 
-NEGLIGIBLE_DUTY = 1e-4  # a typed duty below this fraction of the balance's largest heat is likely a unit slip
+# a typed duty below this fraction of the balance's largest heat is likely a unit slip (mW for MW is 1e-9; a
+# 2 kW trace heater beside a 30 MW boiler, 7e-5, is not warned)
+NEGLIGIBLE_DUTY = 1e-6
 
 
 def _negligible_duties(p: Problem, lines: list[LineResult], terms: list[TermResult]) -> list[Phrase]:
@@ -614,8 +618,8 @@ def _negligible_duties(p: Problem, lines: list[LineResult], terms: list[TermResu
     kind = heat_kind(p.basis)
     largest = max([abs(ln.total) for ln in lines] + [abs(t.heat) for t in terms], default=0.0)
     solved = p.unknown_target.name if p.unknown.kind == "duty" else None
-    return [Phrase("Duty {name} is {Q}, under 0.01 % of the balance's largest heat ({largest}): check its unit "
-                   "(W or kW, mW or MW).", {"name": t.name, "Q": Measure(t.heat, kind),
+    return [Phrase("Duty {name} is {Q}, under a millionth of the balance's largest heat ({largest}): check its "
+                   "unit (mW or MW, W or MW).", {"name": t.name, "Q": Measure(t.heat, kind),
                                             "largest": Measure(largest, kind)}, item("duties", t.name, "value"))
             for t in terms if t.kind == "duty" and t.name != solved and 0 < abs(t.heat) < NEGLIGIBLE_DUTY * largest]
 

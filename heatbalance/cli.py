@@ -277,9 +277,10 @@ def _view_units(args) -> None:
     from .links import link_units
 
     if getattr(args, "units", "SI") is None:
+        args.units = "SI"  # until the link is read (a refusal of its units= is written in SI), and without one
         source = next((getattr(args, name) for name in ("id", "worksheet", "source") if hasattr(args, name)), "")
-        args.units = "SI"  # a refusal of the link's units is written in SI
-        args.units = (link_units(source) if not os.path.exists(source) else None) or "SI"
+        if not os.path.exists(source):
+            args.units = link_units(source) or "SI"
 
 
 def _parser() -> argparse.ArgumentParser:

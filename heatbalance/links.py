@@ -26,7 +26,7 @@ from urllib.parse import parse_qs, parse_qsl, quote, urlencode, urlsplit, urluns
 from .errors import InputError
 from .worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-__all__ = ["view_link", "link_units", "UNITS_PARAM", "LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
+__all__ = ["view_link", "link_units", "named_unit_set", "UNITS_PARAM", "LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
            "check_id", "encode_sheet", "decode_sheet", "revision_link", "sheet_link", "parse_link"]
 
 ID_LENGTH = 24  # hex digits of SHA-256: 96 bits, collisions out of reach and not guessable by enumeration
@@ -193,7 +193,13 @@ def link_units(text: str) -> str | None:
     named = parse_qs(urlsplit(text).query or text.lstrip("?")).get(UNITS_PARAM)
     if not named:
         return None
-    system = named[0].strip().upper()
-    if system not in ("SI", "US"):
+    system = named_unit_set(named[0])
+    if system is None:
         raise LinkError(f"the link's unit set {named[0][:40]!r} is neither SI nor US", UNITS_PARAM)
     return system
+
+
+def named_unit_set(value: object) -> str | None:
+    """The unit set a ``units=`` value names, in any case (``"us"`` -> ``"US"``), or None."""
+    system = value.strip().upper() if isinstance(value, str) else ""
+    return system if system in ("SI", "US") else None

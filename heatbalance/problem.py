@@ -927,7 +927,8 @@ def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial
         scale = cp0 / p.cp.value if p.cp.value else 1.0
         if cp0 <= 0:
             raise InputError(f"cp must be positive ({p.cp})", f"{pw}.cp")
-        warnings.extend(_implausible_cp(m.name, p.name, cp0, p.cp, f"{pw}.cp"))
+        if not (p.cp_per_kelvin or p.cp_per_kelvin2):  # a constant cp (a fit's constant term alone means little)
+            warnings.extend(_implausible_cp(m.name, p.name, cp0, p.cp, f"{pw}.cp"))
         phases.append(Phase(p.name, (cp0, p.cp_per_kelvin * scale, p.cp_per_kelvin2 * scale), T_upper, latent))
         spans.append(None)
     t_min = _end_temperature(m, "min_temperature", spans[0], warnings)

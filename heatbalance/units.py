@@ -149,9 +149,11 @@ def _parse(unit: str, kind: str, where: str) -> tuple:
 
 
 # units a plant reads two ways: refused with the choices, never read one way silently
-_TON = re.compile(r"(?<![\w.])tons?(?![\w.])")  # pint: a US short ton; plants also mean a tonne or a long ton
+_TON = re.compile(r"(?<![\w.])[kM]?tons?(?![\w.])")  # pint: a US short ton; plants also mean a tonne or a long ton
 _AMBIGUOUS_TON = ("'ton' is read three ways: write t for a metric tonne (1000 kg), short_ton (907.2 kg) or long_ton "
                   "(1016 kg)")
+_TON_FOR = {"power": "'ton' for a duty is a ton of refrigeration: write TR (12,000 Btu/h = 3.517 kW)",
+            "energy": "'ton' is a mass or a cooling rate (TR), not an energy: give it in kJ, kWh or Btu"}
 _AMBIGUOUS_PSI = "'psi' does not say gauge or absolute: write psig (above the atmosphere) or psia (absolute)"
 
 
@@ -163,7 +165,9 @@ def _ambiguity(unit: str, kind: str) -> str:
     """
     if kind == "pressure" and unit.strip() == "psi":
         return _AMBIGUOUS_PSI
-    return _AMBIGUOUS_TON if _TON.search(unit) else ""
+    if not _TON.search(unit):
+        return ""
+    return _TON_FOR.get(kind, _AMBIGUOUS_TON)
 
 
 def check_unit(unit: str, kind: str, where: str = "") -> None:

@@ -245,12 +245,17 @@ def test_a_charge_above_its_boiling_point_is_said_to_be_vapour_as_charged():
     doc = json.loads(open("sample_data/hot_condensate_quench.json", "rb").read())
     doc["vessels"][0]["charges"][0]["initial"]["temperature"]["value"] = 150  # "hot condensate" typed at 150 °C
     result = solve(load_worksheet(json.dumps(doc).encode()))
-    # at the pit's 0 barg water boils at 100.0 °C (IAPWS-IF97): the charge is steam, and the answer counts it so
-    assert IAPWS97(P=0.101325, x=0).T - 273.15 == pytest.approx(99.97, abs=0.01)
+    # at the pit's 0 barg water boils at 99.97 °C (IAPWS-IF97 via iapws): the charge is steam, counted so; 3 t of
+    # steam condensing and cooling to 40 °C need about 3 × (2,776 − 167) / (167 − 50) ≈ 66.9 t of 12 °C water
+    h_steam, h_40, h_12 = (IAPWS97(T=T + 273.15, P=0.101325).h for T in (150, 40, 12))
+    assert result.answer.value_si == pytest.approx(3000 * (h_steam - h_40) / (h_40 - h_12), rel=1e-3)
     (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
     assert warning.address == "vessels[Quench pit].charges[Hot condensate].initial.temperature"
     assert "150.0 °C is above its boiling point 100.0 °C at 1.013 bar(a)" in warning.text
     doc["vessels"][0]["charges"][0]["initial"]["pressure"] = {"value": 5, "unit": "barg"}  # a liquid under pressure
+    assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
+    doc["vessels"][0]["charges"][0]["initial"]["pressure"] = {"value": 3, "unit": "barg"}  # steam at its own 3 barg,
+    doc["vessels"][0]["charges"][0]["initial"]["temperature"]["value"] = 160  # charged on purpose: not said
     assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
 
 

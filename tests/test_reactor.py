@@ -542,7 +542,7 @@ def _reactor_with(change) -> object:
      "materials[reagent solution].phases[liquid].cp", "cp 3.2 kcal/(kg*K) is 13.4 kJ/(kg·K), outside what liquids"),
     # −110 mW over 40 min = −0.264 kJ beside the 386,400 kJ of reaction heat (hand calculation)
     (lambda d: d["duties"][0].update(value={"value": -110, "unit": "mW"}), "duties[Jacket cooling].value",
-     "Duty Jacket cooling is -0.264 kJ, under 0.01 % of the balance's largest heat (386,400 kJ)"),
+     "Duty Jacket cooling is -0.264 kJ, under a millionth of the balance's largest heat (386,400 kJ)"),
 ], ids=["dH-in-J", "cp-in-J", "cp-in-kcal", "duty-in-mW"])
 def test_a_likely_unit_slip_is_warned_at_its_field(change, address, words):
     result = _reactor_with(change)
@@ -552,3 +552,13 @@ def test_a_likely_unit_slip_is_warned_at_its_field(change, address, words):
 
 def test_the_reactor_as_typed_has_no_unit_slip_warning():
     assert not [w for w in _reactor_with(lambda d: None).warnings if "unit" in w.text]
+
+
+def test_no_unit_slip_warning_for_a_fitted_cp_or_a_small_duty_beside_a_large_one():
+    # cp = 0.05 + 0.006·T kJ/(kg·K) is 1.85-2.09 over 300-340 K (hand calculation): its constant term alone is no cp
+    fitted = _reactor_with(lambda d: d["materials"][0]["phases"][0].update(
+        cp={"value": 0.05, "unit": "kJ/(kg*K)"}, cp_per_kelvin=0.006))
+    # −10 W over 40 min = −24 kJ beside 386,400 kJ: 6e-5 of it, a small heater, not a unit slip (hand calculation)
+    small = _reactor_with(lambda d: d["duties"][0].update(value={"value": -10, "unit": "W"}))
+    for result in (fitted, small):
+        assert not [w for w in result.warnings if "unit" in w.text]

@@ -117,6 +117,17 @@ def test_a_unit_plants_read_two_ways_is_refused_with_the_choices(value, unit, ki
                 else "write psig (above the atmosphere) or psia (absolute)") in refused.value.message
 
 
+@pytest.mark.parametrize("unit, kind, words", [
+    ("ton", "power", "'ton' for a duty is a ton of refrigeration: write TR (12,000 Btu/h = 3.517 kW)"),
+    ("ton", "energy", "not an energy: give it in kJ, kWh or Btu"),
+    ("kton", "mass", "write t for a metric tonne"),  # pint: a kilo short ton, 907 t
+])
+def test_a_ton_is_refused_with_the_advice_of_its_field(unit, kind, words):
+    with pytest.raises(UnitError) as refused:
+        to_si(50, unit, kind, "duties[Chiller].value")
+    assert words in refused.value.message and refused.value.where == "duties[Chiller].value"
+
+
 def test_the_unambiguous_forms_are_read():
     # 1 short ton = 2000 lb, 1 long ton = 2240 lb (exact, international pound); 1 TR = 12000 Btu/h
     assert to_si(1, "short_ton", "mass") == pytest.approx(2000 * 0.45359237, rel=1e-12)

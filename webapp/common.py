@@ -15,13 +15,14 @@ from pathlib import Path
 
 import streamlit as st
 
-from heatbalance.errors import HeatBalanceError
+from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.worksheet import Worksheet, load_worksheet
 
 from .state import KEY, PageState
 
-__all__ = ["UNIT_SYSTEMS", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system", "plain", "guarded",
-           "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample", "keep_loaded_libraries_out_of_gc"]
+__all__ = ["UNIT_SYSTEMS", "UNIT_SYSTEM_KEY", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system",
+           "plain", "guarded", "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample",
+           "keep_loaded_libraries_out_of_gc", "count_refusal"]
 
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
 SAMPLES_DIR = Path(__file__).resolve().parent.parent / "sample_data"
@@ -41,9 +42,12 @@ def page_state() -> PageState:
     return st.session_state[KEY]
 
 
+UNIT_SYSTEM_KEY = "unit_system"  # the sidebar's "Show results in" (its label -> UNIT_SYSTEMS)
+
+
 def display_system() -> str:
     """The view's unit set, ``SI`` or ``US``: a view only, never a typed value."""
-    return UNIT_SYSTEMS.get(st.session_state.get("unit_system"), "SI")
+    return UNIT_SYSTEMS.get(st.session_state.get(UNIT_SYSTEM_KEY), "SI")
 
 
 def plain(text: object) -> str:
@@ -143,3 +147,14 @@ def sample_files() -> dict[str, Path]:
 
 def load_sample(path: Path) -> Worksheet:
     return load_worksheet(path.read_bytes())
+
+
+def count_refusal(count: float | None, low: int, high: int, what: str, where: str = "") -> InputError | None:
+    """The refusal of a count typed in a number field (``what``: "points", "draws") that is not a whole number
+    from ``low`` to ``high``, at ``where``; None when it can be used. Never put back in range: the field has no
+    bounds of its own (the browser would keep the old value with a hover tip only)."""
+    if count is not None and float(count).is_integer() and low <= count <= high:
+        return None
+    shown = "an empty field" if count is None else f"{count:g}"
+    return InputError(f"{shown} is not a number of {what}: give a whole number of {what} from {low:,} to {high:,}",
+                      where)

@@ -27,11 +27,12 @@ import streamlit as st
 from heatbalance.errors import HeatBalanceError, WorksheetFormatError
 from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import UNITS_PARAM as UNITS
-from heatbalance.links import decode_sheet, parse_link, revision_id, revision_link, sheet_link, view_link
+from heatbalance.links import (decode_sheet, named_unit_set, parse_link, revision_id, revision_link, sheet_link,
+                              view_link)
 from heatbalance.results import Result
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-from .common import UNIT_SYSTEMS, display_system, page_state, plain
+from .common import UNIT_SYSTEM_KEY, UNIT_SYSTEMS, display_system, page_state, plain
 
 if TYPE_CHECKING:  # SQLAlchemy loads at the store's first use, after the answer is on screen
     from heatbalance.store import RevisionInfo, WorksheetStore
@@ -39,7 +40,7 @@ if TYPE_CHECKING:  # SQLAlchemy loads at the store's first use, after the answer
 __all__ = ["worksheet_from_link", "worksheet_from_upload", "panel", "get_store", "open_link", "forget_revision",
            "Origin", "note_origin", "origin_text", "render_origin", "saver", "PROBLEM", "BASE", "SAVED",
            "OPENED_FROM", "ORIGIN", "render_save", "saved_state_text", "provenance", "put_back", "loaded",
-           "UNITS", "view_link", "view_from_link", "keep_view_in_address"]
+           "view_from_link", "keep_view_in_address"]
 
 # Session-state keys of this part (apart from widget keys).
 BASE = "hb_share_base"  # id of the revision the page's worksheet was opened from or last saved as
@@ -49,7 +50,6 @@ NOTICE = "hb_share_notice"  # message of the last success, shown in the panel
 OPENED_FROM = "hb_share_opened_from"  # the query parameter the page was opened from
 ORIGIN = "hb_share_origin"  # where the worksheet on the page came from: an Origin
 NOT_SAVED_LINK = "not a saved revision; content as carried by the link"
-UNIT_WIDGET = "unit_system"  # the sidebar's "Show results in" (webapp.sidebar), keyed by its label
 _LABELS = {code: label for label, code in UNIT_SYSTEMS.items()}  # "US" -> "US customary (°F, lb, Btu)"
 
 
@@ -165,18 +165,12 @@ def render_origin(worksheet: Worksheet) -> None:
 
 
 # --------------------------------------------------------------------------- the view's unit set in links
-def _unit_set(value: object) -> str | None:
-    """The unit set a link's ``units`` names (any case), or None."""
-    text = value.strip().upper() if isinstance(value, str) else ""
-    return text if text in _LABELS else None
-
-
 def _apply_units(value: object) -> None:
     """Show the page in the unit set a link names (before the sidebar's choice is drawn, or in a callback);
     a value that names none is said (at ``units``) and the view is left as it is."""
-    system = _unit_set(value)
+    system = named_unit_set(value)
     if system is not None:
-        st.session_state[UNIT_WIDGET] = _LABELS[system]
+        st.session_state[UNIT_SYSTEM_KEY] = _LABELS[system]
         return
     shown = str(value)[:40]
     st.session_state[NOTICE] = ""

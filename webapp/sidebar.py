@@ -6,7 +6,7 @@ import streamlit as st
 from heatbalance.worksheet import Worksheet
 
 from . import grids, sharing
-from .common import UNIT_SYSTEMS, load_sample, page_state, sample_files
+from .common import UNIT_SYSTEM_KEY, UNIT_SYSTEMS, load_sample, page_state, sample_files
 
 __all__ = ["render_sidebar"]
 
@@ -39,7 +39,7 @@ def _on_new_worksheet() -> None:
 
 def render_sidebar() -> None:
     """Below the answer in the sidebar: the view's unit set, open a sample or a new sheet, how it works."""
-    st.radio("Show results in", list(UNIT_SYSTEMS), key="unit_system", horizontal=True)
+    st.radio("Show results in", list(UNIT_SYSTEMS), key=UNIT_SYSTEM_KEY, horizontal=True)
     st.divider()
     st.selectbox("Open a sample worksheet", list(sample_files()), index=None, key="sample_picker",
                  placeholder="choose a sample…", on_change=_on_sample_pick,

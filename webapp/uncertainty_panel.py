@@ -36,7 +36,7 @@ from heatbalance.present.uncertainty import contribution_rows, monte_carlo_text,
 from heatbalance.results import Result
 from heatbalance.worksheet import Quantity, Tolerance, Worksheet, parse_worksheet
 
-from .common import page_state, plain
+from .common import count_refusal, page_state, plain
 from .grids import parse_quantity
 
 __all__ = ["panel", "render_uncertainty_panel", "key", "DISTRIBUTIONS", "parse_tolerance", "tolerance_size_text",
@@ -250,13 +250,8 @@ def _monte_carlo_section(worksheet: Worksheet, result: Result, system: str) -> N
 
 
 def _draws_refusal(draws: float | None) -> InputError | None:
-    """The refusal of a number of Monte Carlo draws that is not a whole number from MC_MIN to MC_MAX (never put
-    back in range); None when it can be used. The field is no worksheet input: the refusal names it."""
-    if draws is not None and float(draws).is_integer() and MC_MIN <= draws <= MC_MAX:
-        return None
-    shown = "an empty field" if draws is None else f"{draws:g}"
-    return InputError(f"Monte Carlo draws: {shown} is not a number of draws: give a whole number from {MC_MIN:,} "
-                      f"to {MC_MAX:,}")
+    """The refusal of a number of Monte Carlo draws (no worksheet input: the refusal names the field)."""
+    return count_refusal(draws, MC_MIN, MC_MAX, "draws", "Monte Carlo draws")
 
 
 def _run_monte_carlo(worksheet: Worksheet) -> None:

@@ -40,7 +40,7 @@ from heatbalance.problem import build_problem
 from heatbalance.results import Result
 from heatbalance.worksheet import Case, Override, Quantity, Worksheet, parse_worksheet
 
-from .common import page_state, plain
+from .common import count_refusal, page_state, plain
 from .grids import format_quantity, parse_quantity
 
 __all__ = ["panel", "render_whatif_panel", "key", "NO_SECOND_INPUT", "NEW_CASE", "LISTED_REFUSALS",
@@ -169,16 +169,6 @@ def _fill_range(n: int, i: address.Input) -> None:
     st.session_state[key(f"filled_{n}")] = marker
 
 
-def _points_refusal(count: float | None, axis: str) -> InputError | None:
-    """The refusal of an axis's number of points that is not a whole number from 1 to :data:`MAX_POINTS`, at the
-    axis's input (a sweep's refusals are placed there); None when it can be used."""
-    if count is not None and float(count).is_integer() and 1 <= count <= MAX_POINTS:
-        return None
-    shown = "an empty field" if count is None else f"{count:g}"
-    return InputError(f"{shown} is not a number of points: give a whole number of points from 1 to {MAX_POINTS:,} "
-                      "for this input's range", axis)
-
-
 def _range_widgets(n: int, i: address.Input, system: str) -> bool:
     """The axis's range; False (its refusal shown below it) when its number of points cannot be used."""
     _fill_range(n, i)
@@ -194,7 +184,7 @@ def _range_widgets(n: int, i: address.Input, system: str) -> bool:
     else:
         c4.text_input("Unit", key=key(f"unit_{n}"),
                       help="Any unit of this input's kind (the unit typed on the sheet to start with).")
-    refusal = _points_refusal(st.session_state.get(key(f"count_{n}")), i.address)
+    refusal = count_refusal(st.session_state.get(key(f"count_{n}")), 1, MAX_POINTS, "points", i.address)
     if refusal is not None:
         st.error(plain(_refusal(refusal, system)), icon=":material/error:")
     return refusal is None
