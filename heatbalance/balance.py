@@ -35,6 +35,7 @@ from .worksheet import Worksheet
 __all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state", "Point"]
 
 T_TOL = 1e-6  # K: two temperatures closer than this are the same (a state on a plateau)
+AMBIENT_T = 273.15  # K: a material boiling below this at its pressure is a gas at ambient (charged as one on purpose)
 LATENT_NOTICE_J_PER_KG = 10.0  # a line's latent heat above this is reported as a phase change
 CLOSURE_RELATIVE = 1e-6  # a result is returned only if |residual| <= this × the largest contribution ...
 CLOSURE_FLOOR = 1e-3  # ... or this many W (J in batch), whichever is larger
@@ -587,23 +588,23 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
 
 
 def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
-    """A charge above its boiling point at its vessel's pressure that condenses in the vessel: said, for a hot
-    liquid typed without its own pressure is counted so (a gas that stays a gas, or steam charged at its own
-    pressure, is not said)."""
+    """A charge above its boiling point at its vessel's pressure, of a material that is liquid at ambient there or
+    that condenses in the vessel: said, for a hot liquid typed without its own pressure is counted as vapour (a
+    permanent gas, or steam charged at its own pressure, is not said)."""
     out = []
     for model, ln in zip(p.lines, lines):
-        if model.kind != "charge" or model.initial.plateau is not None or ln.latent >= 0 \
+        if model.kind != "charge" or model.initial.plateau is not None \
                 or model.initial.pressure_address != item("vessels", model.vessel, "pressure"):
-            continue  # not a charge that condenses at its vessel's pressure (one at its own pressure was meant so)
+            continue
         boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
-        if not boiling or ln.initial_T <= boiling[0].T + T_TOL:
+        if not boiling or ln.initial_T <= boiling[0].T + T_TOL or (boiling[0].T < AMBIENT_T and ln.latent >= 0):
             continue
         out.append(Phrase("{name} is vapour as charged: {T} is above its boiling point {T_b} at {P}, so it is counted "
-                          "as vapour that condenses in the vessel. If it is a liquid under pressure, give the charge's "
-                          "own pressure (a liquid that flashes as it enters loses its flash vapour, which is not "
-                          "modelled).", {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
-                                         "T_b": Measure(boiling[0].T, "temperature", 1),
-                                         "P": Measure(ln.initial_P, "pressure")}, model.initial.temperature_address))
+                          "as vapour. If it is a liquid under pressure, give the charge's own pressure (a liquid that "
+                          "flashes as it enters loses its flash vapour, which is not modelled).",
+                          {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
+                           "T_b": Measure(boiling[0].T, "temperature", 1), "P": Measure(ln.initial_P, "pressure")},
+                          model.initial.temperature_address))
     return out
 
 

@@ -269,3 +269,16 @@ def test_a_gas_charged_above_its_boiling_point_that_stays_a_gas_is_not_said_to_c
     # hand: 50 kg × 1.04 kJ/(kg·K) (N2 near 1 atm, Incropera Table A.4, from memory) × 40 K ≈ 2,080 kJ
     assert result.answer.value_si == pytest.approx(2.08e6, rel=0.01)
     assert not [w for w in result.warnings if "vapour as charged" in w.text]
+
+
+def test_a_liquid_at_ambient_charged_above_its_boiling_point_is_said_even_if_it_stays_vapour():
+    # water at 150 °C in a 0 barg vessel, cooled to 120 °C: steam throughout (IAPWS-IF97: boils at 99.97 °C)
+    ws = build(basis={"kind": "batch"},
+               vessels=[{"name": "V", "charges": [{"name": "Hot water", "material": "water", "mass": q(100, "kg"),
+                                                   "initial": temp(150)}], "final": temp(120)}],
+               duties=[{"name": "Cooler"}], unknowns=[{"kind": "duty", "term": "Cooler"}])
+    result = solve(ws)
+    steam = IAPWS97(T=393.15, P=0.101325).h - IAPWS97(T=423.15, P=0.101325).h  # kJ/kg, superheated steam
+    assert result.answer.value_si == pytest.approx(100 * steam * 1e3, rel=1e-3)
+    (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
+    assert warning.address == "vessels[V].charges[Hot water].initial.temperature"
