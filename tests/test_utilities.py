@@ -320,3 +320,50 @@ def test_steam_below_the_atmosphere_has_no_flash_and_an_impossible_credit_is_ref
     high = {"name": "HP", "kind": "steam", "pressure": "209 barg", "condensate": "flash recovered"}
     (option,) = solve_and_analyse(parse_worksheet(_heater([high]))).utilities[0].options
     assert not option.feasible and option.refusal.where == "utilities[HP].condensate"
+
+
+# --------------------------------------------------------------------------- the approach inside the process's range
+def test_cooling_water_for_a_condensing_duty_keeps_the_approach_where_condensing_starts():
+    from CoolProp.CoolProp import PropsSI
+
+    doc = _methanol_sample()
+    doc["streams"] = [doc["streams"][0]]  # methanol 1.5 t/h at 0.3 barg, superheated at 120 °C, to 50 °C liquid
+    doc["streams"][0]["inlet"] = {"temperature": "120 degC"}
+    doc.pop("exchangers")
+    doc["duties"], doc["unknowns"] = [{"name": "Condenser"}], [{"kind": "duty", "term": "Condenser"}]
+    doc["utilities"][0]["return_limit"] = "80 degC"
+    result = solve_and_analyse(parse_worksheet(doc))
+    (table,) = result.utilities
+    water = next(o for o in table.options if o.utility == "Cooling water")
+    # hand (CoolProp HEOS methanol, IAPWS-IF97 water via iapws): condensing starts at T_sat(1.313 bar) = 71.27 °C
+    # with 91 % of the duty removed below it (from the 50 °C end); the water must stay 10 K under it there:
+    # m = q(50 °C -> saturated vapour) / (h_w(61.27 °C) - h_w(27 °C)). The return limit alone (80 °C) gave
+    # 8,479 kg/h, the water then at 75 °C where the methanol condenses at 71 °C: a temperature cross.
+    P = 0.3e5 + 101325.0
+    T_sat = PropsSI("T", "P", P, "Q", 1, "Methanol")
+    q = 1500 / 3600 * (PropsSI("H", "P", P, "Q", 1, "Methanol") - PropsSI("H", "P", P, "T", 323.15, "Methanol"))
+    w = (IAPWS97(T=T_sat - 10, P=0.101325).h - IAPWS97(T=300.15, P=0.101325).h) * 1e3
+    assert water.feasible and water.flow == pytest.approx(q / w, rel=2e-3)
+    assert water.flow * 3600 == pytest.approx(11_950, rel=2e-3)
+    assert any("inside its range" in n.text and "71.3 °C" in n.text for n in water.notes)
+    assert water.return_T < 273.15 + 80  # below its limit: the pinch, not the limit, sets the flow
+
+
+def test_hot_oil_for_a_boiling_duty_keeps_the_approach_where_boiling_starts():
+    oil = {**next(u for u in DEMO_UTILITIES if u["kind"] == "hot oil"), "return_limit": "60 degC"}
+    doc = {"title": "boiler on hot oil", "streams": [
+        {"name": "Water", "material": "water", "flow": "1 t/h", "pressure": "1 barg",
+         "inlet": {"temperature": "20 degC"}, "outlet": {"vapour_fraction": 1.0}}],
+        "duties": [{"name": "Boiler"}], "unknowns": [{"kind": "duty", "term": "Boiler"}], "utilities": [oil]}
+    result = solve_and_analyse(parse_worksheet(doc))
+    (option,) = [o for t in result.utilities for o in t.options if o.kind == "hot oil"]
+    # the oil, 250 °C in, must stay 10 K above the water where it starts to boil (120.2 °C at 2.013 bar,
+    # IAPWS-IF97): its flow is set there, above what its 60 °C return limit alone would give
+    problem = build_problem(parse_worksheet(doc))
+    water, hot_oil = problem.lines[0].material, problem.utilities[0].material
+    T_boil = water.transitions(problem.lines[0].initial.P)[0]
+    q_boil = 1000 / 3600 * (T_boil.h_upper - T_boil.h_lower)  # the heat from the start of boiling to the hot end
+    P_oil = problem.utilities[0].P
+    m_pinch = q_boil / (hot_oil.enthalpy(523.15, P_oil) - hot_oil.enthalpy(T_boil.T + 10, P_oil))  # hand calculation
+    m_limit = result.answer.value_si / (hot_oil.enthalpy(523.15, P_oil) - hot_oil.enthalpy(333.15, P_oil))
+    assert m_pinch > m_limit and option.flow == pytest.approx(m_pinch, rel=1e-6)

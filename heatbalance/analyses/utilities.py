@@ -37,6 +37,7 @@ from ..messages import Measure, Phrase
 from ..problem import DEFAULT_MINIMUM_APPROACH, Problem, UtilityInputs
 from ..results import Result
 from ..worksheet import Utility
+from .curves import composite, line_paths
 
 __all__ = ["DEMO_UTILITIES", "demo_utilities", "Demand", "UtilityOption", "UtilityTable", "utility_option", "utility_tables", "demands", "HOT_KINDS",
            "COLD_KINDS", "ELECTRIC_NOTE", "FLASH_RECOVERED_NOTE", "FLASH_LOST_NOTE", "return_limit_warnings", "SAME_SUPPLY_K"]
@@ -91,6 +92,12 @@ class Demand:
     T_hot: float
     minimum_approach: float = DEFAULT_MINIMUM_APPROACH
     current: str = ""  # the utility line(s) of an exchanger, as the balance has them
+    # the process's T–Q curve: (share of its heat from its cold end, 0..1, T) along its lines' enthalpy paths
+    curve: list[tuple[float, float]] = field(default_factory=list)
+
+    def points(self) -> list[tuple[float, float]]:
+        """The process curve's points, or its two ends when no curve is known."""
+        return self.curve or [(0.0, self.T_cold), (1.0, self.T_hot)]
 
 
 @dataclass
@@ -177,33 +184,57 @@ def _flash(u: UtilityInputs, h_condensate: float) -> tuple[float, float]:
     return max(0.0, (h_condensate - low.h_lower) / low.latent), low.latent
 
 
-def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float]:
-    """(J/kg, supply T, return T) of a coolant or a hot oil."""
-    where = u.address
-    if u.kind in COLD_KINDS:
-        if u.supply_T > d.T_cold - d.minimum_approach:
-            raise InputError(Phrase(
-                "{name} is supplied at {Ts}: it cannot cool the process below {limit} (supply + the {dT} approach), "
-                "and the process must reach {T}", {"name": u.kind, "Ts": Measure(u.supply_T, "temperature", 1),
-                                                   "limit": Measure(u.supply_T + d.minimum_approach, "temperature", 1),
-                                                   "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1),
-                                                   "T": Measure(d.T_cold, "temperature", 1)}), f"{where}.supply_temperature")
-        T_return = min(u.return_T, d.T_hot - d.minimum_approach)
-        supply, ret = u.supply_T, T_return
-        per_kg = _h(u, ret, "return_limit") - _h(u, supply, "supply_temperature")
-    else:
-        if u.supply_T < d.T_hot + d.minimum_approach:
-            raise InputError(Phrase(
-                "hot oil supplied at {Ts} cannot heat the process to {T} with a {dT} approach",
-                {"Ts": Measure(u.supply_T, "temperature", 1), "T": Measure(d.T_hot, "temperature", 1),
-                 "dT": Measure(d.minimum_approach, "temperature_difference", decimals=1)}), f"{where}.supply_temperature")
-        supply, ret = u.supply_T, max(u.return_T, d.T_cold + d.minimum_approach)
-        per_kg = _h(u, supply, "supply_temperature") - _h(u, ret, "return_limit")
+def _sensible(u: UtilityInputs, d: Demand) -> tuple[float, float, float, float | None]:
+    """(J/kg, supply T, return T, the process temperature inside its range that sets the flow, or None) of a
+    coolant or a hot oil, counter-current.
+
+    Every point of the process curve, not only its ends, keeps the approach: a coolant that has taken the share
+    s of the duty has warmed by s·(heat per kg) and must still be ΔT_min below the process there (a condensing
+    plateau inside the range is where it pinches); a hot oil likewise above. The heat per kg is the least any
+    point allows, and never beyond the return limit.
+    """
+    where, dT = u.address, d.minimum_approach
+    cooling = u.kind in COLD_KINDS
+    if cooling and u.supply_T > d.T_cold - dT:
+        raise InputError(Phrase(
+            "{name} is supplied at {Ts}: it cannot cool the process below {limit} (supply + the {dT} approach), "
+            "and the process must reach {T}", {"name": u.kind, "Ts": Measure(u.supply_T, "temperature", 1),
+                                               "limit": Measure(u.supply_T + dT, "temperature", 1),
+                                               "dT": Measure(dT, "temperature_difference", decimals=1),
+                                               "T": Measure(d.T_cold, "temperature", 1)}), f"{where}.supply_temperature")
+    if not cooling and u.supply_T < d.T_hot + dT:
+        raise InputError(Phrase(
+            "hot oil supplied at {Ts} cannot heat the process to {T} with a {dT} approach",
+            {"Ts": Measure(u.supply_T, "temperature", 1), "T": Measure(d.T_hot, "temperature", 1),
+             "dT": Measure(dT, "temperature_difference", decimals=1)}), f"{where}.supply_temperature")
+    h_supply = _h(u, u.supply_T, "supply_temperature")
+    allowed = []  # (heat per kg this point allows, the process temperature there)
+    for share, T in d.points():
+        span = share if cooling else 1.0 - share  # of the duty the utility has exchanged when it reaches this point
+        if span <= 1e-12:
+            continue
+        T_utility = min(T - dT, u.return_T) if cooling else max(T + dT, u.return_T)
+        reach = abs(_h(u, T_utility, "return_limit") - h_supply)
+        allowed.append((reach / span, T))
+    per_kg, pinch_T = min(allowed)
     if per_kg <= 0:
-        raise InputError(Phrase("{name}: the approach leaves no temperature range between supply {Ts} and return {Tr}",
-                                {"name": u.name, "Ts": Measure(supply, "temperature", 1),
-                                 "Tr": Measure(ret, "temperature", 1)}), f"{where}.return_limit")
-    return per_kg, supply, ret
+        raise InputError(Phrase("{name}: the approach leaves no temperature range between its supply {Ts} and the "
+                                "process at {Tp}", {"name": u.name, "Ts": Measure(u.supply_T, "temperature", 1),
+                                                    "Tp": Measure(pinch_T, "temperature", 1)}), f"{where}.return_limit")
+    ret = _temperature_at(u, h_supply + per_kg if cooling else h_supply - per_kg)
+    inside = d.T_cold + 1e-3 < pinch_T < d.T_hot - 1e-3
+    return per_kg, u.supply_T, ret, pinch_T if inside else None
+
+
+def _temperature_at(u: UtilityInputs, h: float) -> float:
+    """The utility's temperature at the specific enthalpy h, between its supply and its return limit."""
+    from scipy.optimize import brentq
+
+    low, high = sorted((u.supply_T, u.return_T))
+    ends = [_h(u, T, "return_limit") - h for T in (low, high)]
+    if abs(ends[0]) < 1e-9 or abs(ends[1]) < 1e-9:
+        return low if abs(ends[0]) <= abs(ends[1]) else high
+    return brentq(lambda T: _h(u, T, "return_limit") - h, low, high, xtol=1e-6)
 
 
 def _h(u: UtilityInputs, T: float, field: str) -> float:
@@ -227,7 +258,11 @@ def utility_option(u: UtilityInputs, d: Demand, operating_hours: float | None = 
     elif u.kind == "electric":
         option.notes.append(ELECTRIC_NOTE)
     else:
-        option.per_kg, option.supply_T, option.return_T = _sensible(u, d)
+        option.per_kg, option.supply_T, option.return_T, pinch_T = _sensible(u, d)
+        if pinch_T is not None:
+            option.notes.append(Phrase("the flow is set by the approach where the process is at {T}, inside its "
+                                       "range (a phase change or a bend of its curve), not at its ends",
+                                       {"T": Measure(pinch_T, "temperature", 1)}))
     if option.per_kg is not None:
         if not option.per_kg > 0:
             raise InputError(f"{u.name} gives no heat per kilogram between its supply and return states",
@@ -272,32 +307,41 @@ def _option_or_refusal(u: UtilityInputs, d: Demand, hours: float | None) -> Util
         return UtilityOption(u.name, u.kind, False, refusal=exc, source=u.source)
 
 
+def _process_curve(problem: Problem, result: Result, indices: list[int], address: str) -> list[tuple[float, float]]:
+    """The process lines' composite T–Q curve as (share of their heat from the cold end, T)."""
+    pairs = [(problem.lines[i], result.lines[i]) for i in indices]
+    points = composite(line_paths(problem, result, pairs, [], address))
+    total = points[-1][0]
+    return [(H / total, T) for H, T in points] if total > 0 else []
+
+
 def demands(problem: Problem, result: Result) -> list[Demand]:
     """The duties to meet: each heater or cooler duty term, each exchanger with a utility side."""
     out = []
-    takers = [ln for ln in result.lines if ln.total > 0]
-    givers = [ln for ln in result.lines if ln.total < 0]
+    takers = [i for i, ln in enumerate(result.lines) if ln.total > 0]
+    givers = [i for i, ln in enumerate(result.lines) if ln.total < 0]
     for term in result.terms:
         if term.kind != "duty" or term.heat == 0:
             continue
         lines = takers if term.heat > 0 else givers
         if not lines:
             continue
-        temps = [T for ln in lines for T in (ln.initial_T, ln.final_T)]
+        temps = [T for i in lines for T in (result.lines[i].initial_T, result.lines[i].final_T)]
         address = item("duties", term.name, "value")
         out.append(Demand(f"duty {term.name}", address, "heating" if term.heat > 0 else "cooling", abs(term.heat),
-                          min(temps), max(temps)))
+                          min(temps), max(temps), curve=_process_curve(problem, result, lines, address)))
     checks = {c.name: c for c in getattr(result, "exchangers", [])}
     for e in problem.exchangers:
         if e.utility_side is None or e.name not in checks:
             continue
         process = e.cold if e.utility_side == "hot" else e.hot
-        lines = [ln for ln in result.lines if ln.kind == "stream" and ln.name in process]
-        temps = [T for ln in lines for T in (ln.initial_T, ln.final_T)]
+        lines = [i for i, ln in enumerate(result.lines) if ln.kind == "stream" and ln.name in process]
+        temps = [T for i in lines for T in (result.lines[i].initial_T, result.lines[i].final_T)]
         utility = e.hot if e.utility_side == "hot" else e.cold
         out.append(Demand(f"exchanger {e.name}", e.address,
                           "heating" if e.utility_side == "hot" else "cooling", checks[e.name].duty,
-                          min(temps), max(temps), e.minimum_approach, ", ".join(utility)))
+                          min(temps), max(temps), e.minimum_approach, ", ".join(utility),
+                          curve=_process_curve(problem, result, lines, e.address)))
     return out
 
 
