@@ -10,10 +10,12 @@ property data at its pressure (water: IAPWS-IF97 through CoolProp):
   x = (h_condensate − h_f) / h_fg there, reported as a flow (m·x). ``condensate: flash recovered``: that flash
   steam's latent heat m·x·h_fg is credited (it replaces this steam heat for heat, an assumption stated on the
   row), so cost and CO2 are paid on (duty − credit); ``flash lost``: vented, no credit;
-* cooling water, chilled water, brine: h(T_return) − h(T_supply), the return the warmer of the limit and
-  what the process allows (counter-current: the return meets the process's hot end, so
-  T_return ≤ T_process,hot − ΔT_min);
-* hot oil: h(T_supply) − h(T_return), the return no colder than T_process,cold + ΔT_min;
+* cooling water, chilled water, brine: h(T_return) − h(T_supply), the return no warmer than its limit nor than
+  what the process allows at every point of its T–Q curve (counter-current: a coolant that has taken the share
+  s of the duty must still be ΔT_min below the process there; a condensing plateau inside the range is where it
+  usually pinches, and a note says so);
+* hot oil: h(T_supply) − h(T_return), likewise ΔT_min above the process at every point, the return no colder
+  than its limit;
 * electric heating: the duty itself (resistive, efficiency 1, stated).
 
 Feasibility is checked at the ends and at the condensing temperature (counter-current): steam must
