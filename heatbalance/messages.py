@@ -37,7 +37,7 @@ _FALLBACK = {
     "amount": ("kmol", 1e-3, 0.0), "molar_flow": ("kmol/h", 3.6, 0.0), "specific_heat": ("kJ/(kg·K)", 1e-3, 0.0),
     "heat_capacity": ("kJ/K", 1e-3, 0.0), "duration": ("min", 1 / 60, 0.0), "molar_energy": ("kJ/mol", 1e-3, 0.0),
     "length": ("m", 1.0, 0.0), "velocity": ("m/s", 1.0, 0.0), "thermal_conductivity": ("W/(m·K)", 1.0, 0.0),
-    "volume_flow": ("m³/h", 3600.0, 0.0),
+    "volume_flow": ("m³/h", 3600.0, 0.0), "heat_transfer_coefficient": ("W/(m²·K)", 1.0, 0.0),
 }
 
 

@@ -457,6 +457,12 @@ class _Builder:
                                  f"{where}.minimum_approach")
         U, area, UA = (positive(e.U, "heat_transfer_coefficient", "U"), positive(e.area, "area", "area"),
                        positive(e.UA, "thermal_conductance", "UA"))
+        if U is not None and not U_PLAUSIBLE[0] <= U <= U_PLAUSIBLE[1]:
+            self.warnings.append(Phrase("Exchanger {name}: U {typed} is {U}, outside what exchangers have ({low}, gas "
+                                        "to gas, to {high}, condensing steam): check its unit (W or kW, m² or ft²).",
+                                        {"name": e.name, "typed": str(e.U), "U": Measure(U, "heat_transfer_coefficient"),
+                                         "low": Measure(U_PLAUSIBLE[0], "heat_transfer_coefficient"),
+                                         "high": Measure(U_PLAUSIBLE[1], "heat_transfer_coefficient")}, f"{where}.U"))
         if UA is None and U is not None and area is not None:
             UA = U * area
         return ExchangerInputs(e.name, list(e.hot), list(e.cold), e.arrangement, e.shells, approach,
@@ -889,6 +895,9 @@ def _the_unknown(ws: Worksheet) -> Unknown:
 # ammonia 4,700): common practice, no source. Outside, a unit slip (J for kJ, kcal for kJ) is the likelier cause.
 CP_PLAUSIBLE = (100.0, 15_000.0)
 LIQUID_CP_MAX = 5_000.0
+# U of an exchanger [W/(m²·K)]: about 5 (gas to gas, natural convection) to 15,000 (condensing steam on a plate
+# exchanger): common practice, no source. Outside, a unit slip (kW for W) is the likelier cause.
+U_PLAUSIBLE = (5.0, 15_000.0)
 # |ΔH| of a reaction [J/mol]: weak neutralisations and isomerisations from a few kJ/mol, combustion of large
 # molecules to several thousand: common practice, no source
 REACTION_DH_PLAUSIBLE = (1_000.0, 10_000_000.0)

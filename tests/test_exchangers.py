@@ -425,3 +425,20 @@ def test_a_sweep_not_asking_for_exchanger_outputs_skips_the_check(monkeypatch):
     assert calls == []  # the answer alone: no exchanger check at any point
     sweep(ws, [axis], ["answer", AREA])
     assert len(calls) == 3
+
+
+@pytest.mark.parametrize("U, warned", [("1100 kW/(m^2*K)", True), ("1.1 W/(m^2*K)", True),
+                                       ("1100 W/(m^2*K)", False), ("193.7 Btu/(h*ft^2*degF)", False)])
+def test_a_U_outside_what_exchangers_have_is_warned_at_its_field(U, warned):
+    import json
+
+    from heatbalance.analyses import solve_and_analyse
+    from heatbalance.worksheet import load_worksheet
+
+    # 5 (gas to gas) to 15,000 W/(m²·K) (condensing steam, plate): common practice, no source; 1,100 kW/(m²·K) is
+    # a kW-for-W slip (area 0.0154 m² for a 1.6 MW heater); 193.7 Btu/(h·ft²·°F) = 1,100 W/(m²·K) (× 5.678)
+    doc = json.loads(open("sample_data/steam_heater_subcooled_condensate.json", "rb").read())
+    doc["exchangers"][0]["U"] = U
+    result = solve_and_analyse(load_worksheet(json.dumps(doc).encode()))
+    found = [w for w in result.warnings if w.address == "exchangers[E-201].U" and "check its unit" in w.text]
+    assert bool(found) == warned
