@@ -143,8 +143,26 @@ def _process_ends(c: ComputedLoss, temperatures: dict) -> tuple[float, float]:
 
 
 def _process_temperature(c: ComputedLoss, temperatures: dict) -> float:
-    """The process side of a computed loss: as typed, or the mean of its line's start and end temperatures."""
-    return sum(_process_ends(c, temperatures)) / 2
+    """The process side of a computed loss: as typed; for a stream (a pipe run) the temperature whose difference
+    to the air is the log mean of its ends' (exact for a loss in proportion to that difference: the run's
+    exponential approach to the air, so it never ends past the air temperature); for a vessel, over time, the
+    mean of its start and end."""
+    initial, final = _process_ends(c, temperatures)
+    if c.line is None or c.line.kind != "stream":
+        return (initial + final) / 2
+    air = c.surface.ambient_T
+    return air + _log_mean(initial - air, final - air)
+
+
+def _log_mean(a: float, b: float) -> float:
+    """(a − b) / ln(a / b) for two differences of one sign; their mean when they differ in sign or barely differ.
+
+    >>> round(_log_mean(40.0, 10.0), 4), _log_mean(10.0, 10.0), _log_mean(5.0, -5.0)
+    (21.6404, 10.0, 0.0)
+    """
+    if a * b <= 0 or abs(a - b) <= 1e-9 * max(abs(a), abs(b)):
+        return (a + b) / 2
+    return (a - b) / math.log(a / b)
 
 
 def _computed_heat(c: ComputedLoss, temperatures: dict) -> float:

@@ -125,7 +125,8 @@ def test_insulation_table_is_pinned_and_sourced():
 
 # --------------------------------------------------------------------------- in the balance
 def test_sample_outlet_temperature_by_hand():
-    """The sample's loss moves with the outlet: the answer closes with the loss at the solved mean temperature.
+    """The sample's loss moves with the outlet: the answer closes with the loss at the solved run's log-mean
+    temperature (its difference to the 5 °C air the log mean of the ends').
 
     Hand check: 4 t/h of water (cp ≈ 4.28 kJ/(kg·K) at 138 °C, IAPWS-IF97, from memory) losing about
     300 m × 52 W/m ≈ 15.5 kW cools by 15.5/(1.111·4.28) ≈ 3.3 K: about 136.7 °C."""
@@ -134,7 +135,8 @@ def test_sample_outlet_temperature_by_hand():
     loss = next(t for t in result.terms if t.kind == "loss")
     record = result.surface_losses[0]
     assert loss.heat == pytest.approx(-record.loss)
-    assert record.process_T == pytest.approx((413.15 + result.answer.value_si) / 2)
+    a, b = 413.15 - 278.15, result.answer.value_si - 278.15  # the ends' differences to the air
+    assert record.process_T == pytest.approx(278.15 + (a - b) / math.log(a / b))  # hand calculation
     assert abs(result.residual) < 1e-6 * abs(loss.heat)
     # the same loss typed as a fixed value gives the same outlet (the computed one was consistent)
     fixed = sample_data()
@@ -289,3 +291,30 @@ def test_vessel_wall_loss_follows_a_batch_heat_up():
     assert loss.heat == pytest.approx(-record.loss * 3600)
     assert 20 + 40 < T_end - 273.15 < 20 + 51.7  # the loss takes a few kelvin off
     assert abs(result.residual) < 1e-6 * 300e3 * 3600
+
+
+def _long_run(length: str, flow: str, inlet: str) -> dict:
+    """The sample's line, bare, in still 20 °C air."""
+    doc = sample_data()
+    doc["streams"][0].update(flow=flow, inlet={"temperature": inlet})
+    surface = doc["losses"][0]["surface"]
+    surface.update(length=length, ambient_temperature="20 degC")
+    surface.pop("wind_speed")
+    surface["insulation"]["thickness"] = "0 mm"
+    return doc
+
+
+@pytest.mark.parametrize("length", ["100 m", "400 m"])
+def test_a_long_run_approaches_the_air_and_never_passes_it(length):
+    """A run's loss is nearly in proportion to its difference to the air: the outlet follows
+    θ_out = θ_in·exp(−UA/(m·cp)), and the loss taken at the log-mean difference is the run's own. Before, at the
+    arithmetic mean, 400 m of bare 0.4 t/h line from 60 °C ended at 19.4 °C, below the 20 °C air."""
+    result = solve(parse_worksheet(_long_run(length, "0.4 t/h", "60 degC")))
+    T_out = result.answer.value_si
+    # hand: march the bare 88.9 mm pipe (emissivity 0.3) metre by metre, each metre losing heat_loss at its own
+    # temperature, water at cp 4.18 kJ/(kg·K) (IAPWS-IF97 near 40 °C, from memory)
+    metre = Surface("horizontal pipe", 0.0889, 1.0, 0.3, ambient_T=293.15)
+    T = 333.15
+    for _ in range(int(length.split()[0])):
+        T -= heat_loss(metre, T) / (0.4 / 3.6 * 4180.0)
+    assert 293.15 < T_out and T_out == pytest.approx(T, abs=0.5)
