@@ -898,24 +898,59 @@ LIQUID_CP_MAX = 5_000.0
 # U of an exchanger [W/(m²·K)]: about 5 (gas to gas, natural convection) to 15,000 (condensing steam on a plate
 # exchanger): common practice, no source. Outside, a unit slip (kW for W) is the likelier cause.
 U_PLAUSIBLE = (5.0, 15_000.0)
+# a latent heat [J/kg]: about 10 kJ/kg (some waxes, helium) to 2,500 (water near 0 °C): common practice, no source
+LATENT_PLAUSIBLE = (1_000.0, 5_000_000.0)
 # |ΔH| of a reaction [J/mol]: weak neutralisations and isomerisations from a few kJ/mol, combustion of large
 # molecules to several thousand: common practice, no source
 REACTION_DH_PLAUSIBLE = (1_000.0, 10_000_000.0)
 
 
-def _implausible_cp(material: str, phase: str, cp: float, typed, where: str) -> list[Phrase]:
-    high = LIQUID_CP_MAX if "liquid" in phase.lower() else CP_PLAUSIBLE[1]
-    if CP_PLAUSIBLE[0] <= cp <= high:
+def _checked_cp(material: str, phase: Phase, typed, low: float, high: float, where: str) -> list[Phrase]:
+    """A phase's cp(T) = a + b·T + c·T² over its range [low, high]: refused where it is not positive, a warning
+    where it leaves what process materials have (a unit slip is the likelier cause)."""
+    a, b, c = (tuple(phase.cp) + (0.0, 0.0))[:3]
+    temperatures = [low, high] + ([-b / (2 * c)] if c and low < -b / (2 * c) < high else [])
+    values = {T: a + b * T + c * T * T for T in temperatures}
+    T_least = min(values, key=values.get)
+    if values[T_least] <= 0:
+        raise InputError(Phrase("cp = a + b·T + c·T² of the {phase} phase falls to {cp} at {T}: it must stay positive "
+                                "from {low} to {high}; check the temperature coefficients",
+                                {"phase": phase.name, "cp": Measure(values[T_least], "specific_heat"),
+                                 "T": Measure(T_least, "temperature", 1), "low": Measure(low, "temperature", 1),
+                                 "high": Measure(high, "temperature", 1)}), where)
+    limit = LIQUID_CP_MAX if "liquid" in phase.name.lower() else CP_PLAUSIBLE[1]
+    if CP_PLAUSIBLE[0] <= min(values.values()) and max(values.values()) <= limit:
         return []
-    return [Phrase("{material}, {phase} phase: cp {typed} is {cp}, outside what {what} have ({low} to {high}): check "
-                   "the unit (J or kJ, kcal or kJ).",
-                   {"material": material, "phase": phase, "typed": str(typed), "cp": Measure(cp, "specific_heat"),
-                    "what": "liquids" if high == LIQUID_CP_MAX else "process materials",
-                    "low": Measure(CP_PLAUSIBLE[0], "specific_heat"), "high": Measure(high, "specific_heat")}, where)]
+    shown = min(values.values()) if min(values.values()) < CP_PLAUSIBLE[0] else max(values.values())
+    return [Phrase("{material}, {phase} phase: cp {typed} reaches {cp}, outside what {what} have ({low} to {high}): "
+                   "check the unit (J or kJ, kcal or kJ).",
+                   {"material": material, "phase": phase.name, "typed": str(typed), "cp": Measure(shown, "specific_heat"),
+                    "what": "liquids" if limit == LIQUID_CP_MAX else "process materials",
+                    "low": Measure(CP_PLAUSIBLE[0], "specific_heat"), "high": Measure(limit, "specific_heat")}, where)]
+
+
+_PHASE_RANK = {"solid": 0, "ice": 0, "liquid": 1, "vapour": 2, "vapor": 2, "gas": 2}  # coldest first
+
+
+def _phase_names(m: UserMaterial, where: str, warnings: list[Phrase]) -> None:
+    """Each phase named once (its address names it); a warning when the names read hotter before colder."""
+    names = [p.name for p in m.phases]
+    twice = next((n for n in names if names.count(n) > 1), None)
+    if twice is not None:
+        raise InputError(f"two phases are called '{twice}': name each phase once (its address names it)",
+                         f"{where}.phases")
+    ranks = [_PHASE_RANK.get(n.strip().lower()) for n in names]
+    known = [(r, n) for r, n in zip(ranks, names) if r is not None]
+    backwards = next(((a, b) for (ra, a), (rb, b) in zip(known, known[1:]) if rb < ra), None)
+    if backwards is not None:
+        warnings.append(Phrase("{material}: phases go coldest first, and '{hot}' comes before '{cold}': check their "
+                               "order (each phase ends at its 'up_to' with the latent heat to the next)",
+                               {"material": m.name, "hot": backwards[0], "cold": backwards[1]}, f"{where}.phases"))
 
 
 def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial:
     where = item("materials", m.name)
+    _phase_names(m, where, warnings)
     phases, spans = [], []  # spans: the library phase's range, or None for a phase of the user's own data
     for i, p in enumerate(m.phases):
         pw = f"{where}.{item('phases', p.name)}"
@@ -927,6 +962,13 @@ def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial
         latent = 0.0 if last else _si(p.latent_heat, "specific_energy", f"{pw}.latent_heat")
         if latent < 0:
             raise InputError(f"a latent heat cannot be negative ({p.latent_heat})", f"{pw}.latent_heat")
+        if 0 < latent < LATENT_PLAUSIBLE[0] or latent > LATENT_PLAUSIBLE[1]:
+            warnings.append(Phrase("{material}: the latent heat {typed} above the {phase} phase is {latent}, outside "
+                                   "what materials have ({low} to {high}): check the unit (J/kg or kJ/kg).",
+                                   {"material": m.name, "typed": str(p.latent_heat), "phase": p.name,
+                                    "latent": Measure(latent, "specific_energy"),
+                                    "low": Measure(LATENT_PLAUSIBLE[0], "specific_energy"),
+                                    "high": Measure(LATENT_PLAUSIBLE[1], "specific_energy")}, f"{pw}.latent_heat"))
         if p.from_library is not None:
             library, span = library_phase(p.from_library, p.name, f"{pw}.from_library")
             phases.append(LibraryPhase(p.name, library, span, T_upper=T_upper, latent_to_next=latent))
@@ -936,8 +978,6 @@ def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial
         scale = cp0 / p.cp.value if p.cp.value else 1.0
         if cp0 <= 0:
             raise InputError(f"cp must be positive ({p.cp})", f"{pw}.cp")
-        if not (p.cp_per_kelvin or p.cp_per_kelvin2):  # a constant cp (a fit's constant term alone means little)
-            warnings.extend(_implausible_cp(m.name, p.name, cp0, p.cp, f"{pw}.cp"))
         phases.append(Phase(p.name, (cp0, p.cp_per_kelvin * scale, p.cp_per_kelvin2 * scale), T_upper, latent))
         spans.append(None)
     t_min = _end_temperature(m, "min_temperature", spans[0], warnings)
@@ -946,7 +986,9 @@ def _user_material(m: UserMaterial, warnings: list[Phrase]) -> TabulatedMaterial
     if not t_min < t_max or uppers != sorted(uppers) or any(not t_min <= T <= t_max for T in uppers):
         raise InputError("temperatures must rise: min temperature < each transition < max temperature",
                          f"{where}.max_temperature")
-    for phase, span, low, high in zip(phases, spans, [t_min, *uppers], [*uppers, t_max]):
+    for phase, typed, span, low, high in zip(phases, m.phases, spans, [t_min, *uppers], [*uppers, t_max]):
+        if span is None:
+            warnings.extend(_checked_cp(m.name, phase, typed.cp, low, high, f"{where}.{item('phases', phase.name)}.cp"))
         if span is not None and not (span.T_low - 1e-6 <= low and high <= span.T_high + 1e-6):
             raise InputError(Phrase("{library}'s {phase} phase at 1 atm covers {low} to {high}; this phase would "
                                     "span {from} to {to}: move its transitions or the min/max temperature inside",

@@ -537,9 +537,9 @@ def _reactor_with(change) -> object:
      "ΔH -92 J/mol is 0.092 kJ/mol in magnitude, outside what reactions worth a balance release"),
     # cp in J for kJ (0.0032 kJ/(kg·K)) and in kcal for kJ (13.4 kJ/(kg·K)): a liquid has 0.1 to 5
     (lambda d: d["materials"][0]["phases"][0].update(cp={"value": 3.2, "unit": "J/(kg*K)"}),
-     "materials[reagent solution].phases[liquid].cp", "cp 3.2 J/(kg*K) is 0.0032 kJ/(kg·K), outside what liquids"),
+     "materials[reagent solution].phases[liquid].cp", "cp 3.2 J/(kg*K) reaches 0.0032 kJ/(kg·K), outside what liquids"),
     (lambda d: d["materials"][0]["phases"][0].update(cp={"value": 3.2, "unit": "kcal/(kg*K)"}),
-     "materials[reagent solution].phases[liquid].cp", "cp 3.2 kcal/(kg*K) is 13.4 kJ/(kg·K), outside what liquids"),
+     "materials[reagent solution].phases[liquid].cp", "cp 3.2 kcal/(kg*K) reaches 13.4 kJ/(kg·K), outside what liquids"),
     # −110 mW over 40 min = −0.264 kJ beside the 386,400 kJ of reaction heat (hand calculation)
     (lambda d: d["duties"][0].update(value={"value": -110, "unit": "mW"}), "duties[Jacket cooling].value",
      "Duty Jacket cooling is -0.264 kJ, under a millionth of the balance's largest heat (386,400 kJ)"),
@@ -562,3 +562,50 @@ def test_no_unit_slip_warning_for_a_fitted_cp_or_a_small_duty_beside_a_large_one
     small = _reactor_with(lambda d: d["duties"][0].update(value={"value": -10, "unit": "W"}))
     for result in (fitted, small):
         assert not [w for w in result.warnings if "unit" in w.text]
+
+
+# --------------------------------------------------------------------------- a user material's data, checked
+def _wax_sheet(material: dict) -> object:
+    from heatbalance.balance import solve
+    from sheet_factory import build, q, stream, temp
+
+    return solve(build(materials=[material], streams=[stream("Wax", "wax", q(1, "t/h"), temp(20), temp(90))],
+                       duties=[{"name": "Melter"}], unknowns=[{"kind": "duty", "term": "Melter"}]))
+
+
+def test_a_fitted_cp_that_turns_negative_in_its_phase_is_refused_at_its_field():
+    from heatbalance.errors import InputError
+    from sheet_factory import melting_material
+
+    wax = melting_material()
+    # 2.3 − 0.01·T kJ/(kg·K) is negative above 230 K: everywhere in the liquid's 50-300 °C (hand calculation)
+    wax["phases"][1]["cp_per_kelvin"] = -0.01
+    with pytest.raises(InputError) as refused:
+        _wax_sheet(wax)
+    assert refused.value.where == "materials[wax].phases[liquid].cp"
+    assert "it must stay positive from 50.0 °C to 300.0 °C" in refused.value.message
+
+
+def test_a_latent_heat_in_J_per_kg_is_warned_and_two_phases_of_one_name_refused():
+    from heatbalance.errors import InputError
+    from sheet_factory import melting_material, q
+
+    slip = melting_material()
+    slip["phases"][0]["latent_heat"] = q(200, "J/kg")  # 0.2 kJ/kg: a J-for-kJ slip (waxes: about 200 kJ/kg)
+    (warning,) = [w for w in _wax_sheet(slip).warnings if "check the unit" in w.text]
+    assert warning.address == "materials[wax].phases[solid].latent_heat" and "check the unit" in warning.text
+    twice = melting_material()
+    twice["phases"][1]["name"] = "solid"
+    with pytest.raises(InputError) as refused:
+        _wax_sheet(twice)
+    assert refused.value.where == "materials[wax].phases" and "two phases are called 'solid'" in refused.value.message
+
+
+def test_phases_named_hot_before_cold_are_warned():
+    from sheet_factory import melting_material
+
+    backwards = melting_material()
+    backwards["phases"][0]["name"], backwards["phases"][1]["name"] = "liquid", "solid"
+    (warning,) = [w for w in _wax_sheet(backwards).warnings if "coldest first" in w.text]
+    assert warning.address == "materials[wax].phases" and "'liquid' comes before 'solid'" in warning.text
+    assert not [w for w in _wax_sheet(melting_material()).warnings if "coldest first" in w.text or "unit" in w.text]
