@@ -203,9 +203,10 @@ def _cases(args) -> int:
     table.to_csv(buffer, lineterminator="\n")
     shown = table if args.json or args.csv else case_table_text(frame, args.units)  # people: one format a row
     _print_frame(shown, args, buffer.getvalue().encode("utf-8-sig"))
-    if not (args.json or args.csv):
-        for name, exc in frame.attrs["refusals"].items():
-            print(f"refused: {name}: {exc.where}: {error_text(exc, args.units)}")
+    machine = args.json or args.csv  # its table stays pure data: a refused case's reason goes to standard error
+    for name, exc in frame.attrs["refusals"].items():
+        where = f"{exc.where}: " if exc.where else ""
+        print(f"refused: {name}: {where}{error_text(exc, args.units)}", file=sys.stderr if machine else sys.stdout)
     return 0
 
 

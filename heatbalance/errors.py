@@ -21,6 +21,13 @@ __all__ = [
 ]
 
 
+def _restored(cls: type, args: tuple) -> "HeatBalanceError":
+    """An error of ``cls`` with ``args`` and no fields yet (they are set from the copied state)."""
+    error = cls.__new__(cls, *args)
+    error.args = args
+    return error
+
+
 class HeatBalanceError(Exception):
     """Base class of every error the engine raises on purpose.
 
@@ -47,6 +54,11 @@ class HeatBalanceError(Exception):
 
     def __str__(self) -> str:
         return f"{self.address}: {self.message}" if self.address else self.message
+
+    def __reduce__(self):
+        """Copy and pickle by fields (copy, pickle, pandas' ``attrs``), never by calling ``__init__`` again: a
+        subclass's ``__init__`` takes its own fields (``PropertyRangeError(material, quantity, …)``)."""
+        return _restored, (type(self), self.args), self.__dict__
 
     def located(self, where: str) -> "HeatBalanceError":
         """The same refusal, placed at ``where`` if it had no place yet (for re-raising from a caller)."""

@@ -11,7 +11,7 @@ import math
 
 import pandas as pd
 
-from ..address import item, with_value
+from ..address import item, parse, unknown_address, with_value
 from ..errors import AddressError, HeatBalanceError
 from ..problem import build_problem
 from ..worksheet import Case, Worksheet
@@ -24,17 +24,39 @@ AS_TYPED = "as typed"  # the name of the sheet without overrides, as a case
 
 
 def case_worksheet(ws: Worksheet, case: Case) -> Worksheet:
-    """The worksheet with a case's overrides set; a bad override is refused at ``cases[name]`` with its address."""
+    """The worksheet with a case's overrides set.
+
+    A bad override is refused at ``cases[name]``, the message starting with the override's address: one that
+    names nothing or takes no such value, the unknown (the balance solves for it), an input an exchanger's
+    rating sets, and a second override of an input the case already sets.
+    """
+    where = item("cases", case.name)
+    unknown = unknown_address(ws.unknowns[0]) if len(ws.unknowns) == 1 else None
+    seen: list[str] = []
     for override in case.overrides:
-        setter = next((e.name for e in ws.exchangers if e.sets == override.address), None)
+        if any(_same_address(override.address, earlier) for earlier in seen):
+            raise AddressError(f"override of {override.address}: this case already sets this input; keep one "
+                               "override of it", where)
+        seen.append(override.address)
+        if unknown is not None and _same_address(override.address, unknown):
+            raise AddressError(f"override of {override.address}: this is the unknown: the balance solves for it; "
+                               "override another input", where)
+        setter = next((e.name for e in ws.exchangers if e.sets and _same_address(e.sets, override.address)), None)
         if setter is not None:
-            raise AddressError(f"override of {override.address}: exchanger {setter}'s rating sets this input",
-                               item("cases", case.name))
+            raise AddressError(f"override of {override.address}: exchanger {setter}'s rating sets this input", where)
         try:
             ws = with_value(ws, override.address, override.value)
         except HeatBalanceError as exc:
-            raise AddressError(f"override of {override.address}: {exc.message}", item("cases", case.name)) from None
+            raise AddressError(f"override of {override.address}: {exc.message}", where) from None
     return ws.model_copy(update={"cases": []})
+
+
+def _same_address(a: str, b: str) -> bool:
+    """Whether two addresses name the same field (spacing aside); text that is no address only equals itself."""
+    try:
+        return parse(a) == parse(b)
+    except HeatBalanceError:
+        return a.strip() == b.strip()
 
 
 def difference_column(case: str, base: str) -> str:
@@ -65,6 +87,13 @@ def run_cases(ws: Worksheet, base: str = AS_TYPED, outputs: list[str] | None = N
     names = [AS_TYPED] + [c.name for c in ws.cases]
     if base not in names:
         raise AddressError(f"no case called '{base}' (there are: {', '.join(names)})", "cases")
+    taken = {AS_TYPED: "the worksheet as typed"}
+    taken.update({difference_column(n, base): f"the difference {difference_column(n, base)}" for n in names
+                  if n != base})
+    clash = next((c.name for c in ws.cases if c.name in taken), None)
+    if clash is not None:  # its column would stand for another
+        raise AddressError(f"'{clash}' already names the table's column for {taken[clash]}; give the case "
+                           "another name", item("cases", clash))
     known = output_names(build_problem(ws.model_copy(update={"cases": []})))
     if outputs is None:
         outputs = ["answer"] + [n for n in known if n.endswith("].heat") or n.endswith(".MTSR")]

@@ -8,6 +8,7 @@ import pandas as pd
 import plotly.graph_objects as go
 
 from ..address import label as address_label
+from ..analyses.cases import difference_column
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
 from ..errors import HeatBalanceError
 from ..units import check_unit, from_si
@@ -148,22 +149,19 @@ def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = N
 
 
 def case_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
-    """A case table for people: each output in its unit; a difference of temperatures as a temperature
-    difference (K or °F), other differences in the output's unit."""
+    """A case table for people: each output in its unit (the answer in the unit typed in the unknown's field,
+    as on the answer itself); each difference in exactly the unit of the values it subtracts, so a difference
+    of temperatures shown in °F is a temperature difference in °F (Δ°F = 1.8 × ΔK) and one in °C is in K."""
     rows = {}
-    cases = set(frame.attrs["cases"])
+    cases, base = list(frame.attrs["cases"]), frame.attrs["base"]
+    differences = {difference_column(name, base): name for name in cases if name != base}
     for name, kind in frame.attrs["kinds"].items():
         header, unit = _output_header(name, kind, system, frame)
-        converted = {}
-        for column, value in frame.loc[name].items():
-            if not unit or not math.isfinite(value):
-                converted[column] = value
-            elif column not in cases and kind == "temperature":
-                converted[column] = from_si(value, UNIT_SETS[system]["temperature_difference"], "temperature_difference")
-            else:
-                converted[column] = from_si(value, unit, kind) - (from_si(0.0, unit, kind) if column not in cases
-                                                                  else 0.0)
-        rows[header] = converted
+        values = frame.loc[name]
+        shown = {c: (from_si(values[c], unit, kind) if unit and math.isfinite(values[c]) else values[c])
+                 for c in cases}
+        rows[header] = {column: shown[column] if column in shown else shown[differences[column]] - shown[base]
+                        for column in frame.columns}
     table = pd.DataFrame(rows).T
     table.index.name = "output"
     return table
