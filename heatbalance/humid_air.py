@@ -24,8 +24,8 @@ from .errors import InputError, PropertyRangeError
 from .messages import Measure, Phrase
 from .properties import Material, coolprop
 
-__all__ = ["HUMID_AIR", "HUMIDITY_FORMS", "HumidAir", "HumidAirLine", "humidity_ratio", "volume_per_dry_air",
-           "humid_air_line"]
+__all__ = ["HUMID_AIR", "HUMIDITY_FORMS", "HumidAir", "HumidAirLine", "humidity_ratio", "relative_humidity",
+           "volume_per_dry_air", "humid_air_line", "RH_ROUND_OFF"]
 
 HUMID_AIR = "humid air"
 HUMIDITY_FORMS = ("relative_humidity", "humidity_ratio", "dew_point", "wet_bulb")
@@ -34,6 +34,8 @@ P_MIN, P_MAX = 10e3, 10e6  # Pa: HAPropsSI's range (to 10 MPa)
 T_TRIPLE = 273.16  # K, triple point of water (IAPWS)
 FUSION = 333.55e3  # J/kg, ice at 0 °C, CRC Handbook, from memory
 CP_ICE = 2.09e3  # J/(kg·K), ice near 0 °C, CRC Handbook, from memory
+RH_ROUND_OFF = 1e-6  # a relative humidity up to 1 + this is saturation (round-off: 1e-15 to 1e-10 seen); beyond, refused
+EPSILON = 0.621945  # molar mass of water / dry air, as in CoolProp's HumidAirProp (ASHRAE RP-1485)
 CP_VAPOUR = 1.86e3  # J/(kg·K), water vapour, ASHRAE Handbook Fundamentals ch. 1 (h_g ≈ 2501 + 1.86 t), from memory
 
 
@@ -54,6 +56,36 @@ def saturation_ratio(T: float, P: float) -> float:
     except ValueError:  # near or above water's boiling point at P: HAPropsSI's mole-fraction limit
         p_ws = coolprop().PropsSI("P", "T", min(T, 647.0), "Q", 0, "IF97::Water")
         return 0.621945 * p_ws / (P - p_ws) if p_ws < P else math.inf  # ASHRAE Fundamentals ch. 1, eq. 22
+
+
+def relative_humidity(T: float, P: float, W: float, where: str = "") -> float:
+    """Relative humidity (0–1) of air at T [K], P [Pa] holding ``W`` kg of vapour per kg of dry air.
+
+    RH = ψ_w·P/(f·p_ws) (ASHRAE RP-1485, as in ``HAPropsSI``), so at a given T, P it is the ratio of the vapour's
+    mole fraction ψ_w = W/(ε + W) to that at saturation. Air within ``RH_ROUND_OFF`` of saturation, above it
+    included (the round-off of W carried through a condensation), is saturated: 1. Air holding more is refused
+    (at ``where``): humid air cannot hold more water than at saturation.
+
+    >>> W_s = saturation_ratio(286.15, 101325.0)
+    >>> relative_humidity(286.15, 101325.0, W_s * (1 + 1e-12))  # saturated, a round-off above: 1
+    1.0
+    >>> round(relative_humidity(303.15, 101325.0, humidity_ratio("relative_humidity", 0.6, 303.15, 101325.0)), 12)
+    0.6
+    """
+    saturated = saturation_ratio(T, P)
+    if math.isfinite(saturated) and saturated > 0:
+        ratio = (W / (EPSILON + W)) / (saturated / (EPSILON + saturated))
+        if ratio > 1.0 + RH_ROUND_OFF:
+            raise InputError(Phrase("humid air at {T} holds {W} kg of water per kg of dry air, more than at "
+                                    "saturation ({saturated} kg/kg): relative humidity {rh}, above 1",
+                                    {"T": Measure(T, "temperature"), "W": f"{W:.4g}", "saturated": f"{saturated:.4g}",
+                                     "rh": f"{ratio:.6g}"}), where)
+        if ratio >= 1.0 - RH_ROUND_OFF:
+            return 1.0
+    try:
+        return min(1.0, _ha("R", T, P, "W", W))
+    except InputError as exc:
+        raise exc.located(where)
 
 
 def humidity_ratio(form: str, value: float, T: float, P: float, where: str = "") -> float:
@@ -121,6 +153,11 @@ class HumidAir(Material):
         """Water condensed [kg/kg dry air] at T, P: the part of W above saturation."""
         return max(0.0, self.W - saturation_ratio(T, P))
 
+    def vapour(self, T: float, P: float) -> float:
+        """Water left as vapour [kg/kg dry air] at T, P: W, or the saturation ratio below the dew point (taken as
+        it is, not as W less the condensate, whose round-off could put it above saturation)."""
+        return min(self.W, saturation_ratio(T, P))
+
     def _condensate(self, T: float) -> float:
         """Enthalpy of the condensate [J/kg]: liquid water above the triple point, ice below."""
         cp = coolprop()
@@ -135,8 +172,9 @@ class HumidAir(Material):
         return h if T >= T_TRIPLE else h - CP_VAPOUR * (T_TRIPLE - T)
 
     def enthalpy(self, T: float, P: float) -> float:
-        water = self.condensed(T, P)
-        h = _ha("H", T, P, "W", self.W - water)
+        vapour = self.vapour(T, P)
+        water = self.W - vapour
+        h = _ha("H", T, P, "W", vapour)
         return h + water * self._condensate(T) if water > 0 else h
 
     def latent_content(self, T: float, P: float) -> float:
@@ -147,7 +185,7 @@ class HumidAir(Material):
     def phase_name(self, T: float, P: float) -> str:
         if self.condensed(T, P) > 0:
             return "saturated air + " + ("condensate" if T >= T_TRIPLE else "frost")
-        return f"humid air, RH {_ha('R', T, P, 'W', self.W):.0%}"
+        return f"humid air, RH {relative_humidity(T, P, self.W):.0%}"
 
 
 @dataclass
@@ -170,11 +208,22 @@ class HumidAirLine:
 
 def humid_air_line(name: str, address: str, material: HumidAir, amount: float, T_in: float, P_in: float,
                    T_out: float, P_out: float) -> HumidAirLine:
-    """The water side of a solved humid-air line (condensate > 0 only where more condenses than at the inlet)."""
-    water_in, water_out = material.condensed(T_in, P_in), material.condensed(T_out, P_out)
-    W_in, W_out = material.W - water_in, material.W - water_out
-    condensate = amount * (water_out - water_in)
-    heat = -amount * (material.latent_content(T_out, P_out) - material.latent_content(T_in, P_in))
-    dew = _ha("D", T_in, P_in, "W", W_in) if W_in > 1e-7 else T_MIN  # bone-dry air: below any data
-    return HumidAirLine(name, address, amount, W_in, W_out, dew, _ha("R", T_in, P_in, "W", W_in),
-                        _ha("R", T_out, P_out, "W", W_out), condensate, heat)
+    """The water side of a solved humid-air line (condensate > 0 only where more condenses than at the inlet).
+
+    ``address`` is the line's (``streams[S]``); a refusal names the end's temperature
+    (``streams[S].inlet.temperature`` or ``.outlet.temperature``)."""
+    try:
+        W_in, rh_in = material.vapour(T_in, P_in), relative_humidity(T_in, P_in, material.vapour(T_in, P_in))
+        dew = min(T_in, _ha("D", T_in, P_in, "W", W_in)) if W_in > 1e-7 else T_MIN  # bone-dry: below any data
+        latent_in = material.latent_content(T_in, P_in)
+    except InputError as exc:
+        raise exc.located(f"{address}.inlet.temperature")
+    try:
+        W_out = material.vapour(T_out, P_out)
+        rh_out = relative_humidity(T_out, P_out, W_out)
+        latent_out = material.latent_content(T_out, P_out)
+    except InputError as exc:
+        raise exc.located(f"{address}.outlet.temperature")
+    condensate = amount * (W_in - W_out)
+    heat = -amount * (latent_out - latent_in)
+    return HumidAirLine(name, address, amount, W_in, W_out, dew, rh_in, rh_out, condensate, heat)

@@ -24,8 +24,8 @@ from uncertainties import ufloat
 from ..address import FRACTION, get, kinds_of, label, unknown_address
 from ..errors import AddressError, HeatBalanceError, InputError, NoSolutionError
 from ..messages import Phrase
-from ..problem import build_problem, typed_si
-from ..units import check_unit, kind_of
+from ..problem import build_problem, site_atmosphere, typed_si
+from ..units import ATMOSPHERE, check_unit, is_gauge, kind_of
 from ..worksheet import Quantity, Tolerance, Worksheet
 from .sweep import Axis, _FastRun, output_names
 
@@ -36,13 +36,19 @@ COVERAGE_FACTOR = 2.0  # k for the expanded uncertainty, about 95 % for a normal
 _DIVISORS = {"rectangular": math.sqrt(3.0), "normal": 1.0, "95 %": 2.0}  # a / u (GUM 4.3.7, 4.3.3)
 NONLINEAR = 0.1  # the two one-sided slopes differing by more than this (relative): a non-linear model there
 
+#: a gauge unit -> the absolute unit its suggested ± (a pressure difference) is written in
+_ABSOLUTE_OF_GAUGE = {"barg": "bar", "psig": "psia", "kPag": "kPa", "MPag": "MPa"}
+GAUGE_SOURCE = ("pressure gauge ±1 % of the absolute pressure, as a pressure difference (a percent of a gauge "
+                "reading would be ± 0 at 0 gauge): common practice, no source")
+
 #: kind -> (± half-width, as a (value, unit) or a percent, its distribution, where it comes from)
 DEFAULT_TOLERANCES: dict[str, tuple] = {
     "mass_flow": ({"percent": 1.5}, "rectangular", "flow meter ±1–2 %: common practice, no source"),
     "mass": ({"percent": 0.5}, "rectangular", "weighed charge ±0.5 %: common practice, no source"),
     "temperature": ({"plus_minus": {"value": 0.5, "unit": "K"}}, "rectangular",
                     "resistance thermometer ±0.3–0.5 K: common practice, no source"),
-    "pressure": ({"percent": 1.0}, "rectangular", "pressure gauge ±1 %: common practice, no source"),
+    "pressure": ({"percent": 1.0}, "rectangular", "pressure gauge ±1 %: common practice, no source"),  # gauge-typed:
+    # ±1 % of the absolute pressure as a pressure difference (:func:`_gauge_suggestion`), never ± 0 at 0 barg
     "specific_heat": ({"percent": 2.0}, "rectangular", "tabulated cp ±2–5 %: common practice, no source"),
     "molar_energy": ({"percent": 5.0}, "rectangular", "heat of reaction ±5 %: common practice, no source"),
     "power": ({"percent": 2.0}, "rectangular", "metered duty ±2 %: common practice, no source"),
@@ -111,8 +117,28 @@ def suggested_tolerances(ws: Worksheet) -> list[Tolerance]:
         kind = _typed_kind(entry.value.unit, entry.kinds, entry.address)
         if kind in DEFAULT_TOLERANCES:
             size, distribution, source = DEFAULT_TOLERANCES[kind]
+            if kind == "pressure" and is_gauge(entry.value.unit):
+                size, source = _gauge_suggestion(ws, entry.value), GAUGE_SOURCE
+                if size is None:  # a pressure refused as typed (below vacuum): refused at its field, not here
+                    continue
             out.append(Tolerance(address=entry.address, distribution=distribution, source=source, **size))
     return out
+
+
+def _gauge_suggestion(ws: Worksheet, typed: Quantity) -> dict | None:
+    """±1 % of a gauge pressure's absolute value (the site's atmosphere added), as a pressure difference in the
+    matching absolute unit to 2 significant digits: 0 barg at sea level gives ± 0.01 bar, not ± 0."""
+    try:
+        atmosphere = site_atmosphere(ws)[0]
+    except HeatBalanceError:  # the site's own refusal is shown with the answer; the standard atmosphere here
+        atmosphere = ATMOSPHERE
+    unit = _ABSOLUTE_OF_GAUGE.get(typed.unit.strip(), "bar")
+    try:
+        absolute = typed_si(typed.value, typed.unit, "pressure", "", atmosphere)
+    except HeatBalanceError:
+        return None
+    size = 0.01 * abs(absolute) / (typed_si(2.0, unit, "pressure", "") - typed_si(1.0, unit, "pressure", ""))
+    return {"plus_minus": Quantity(value=float(f"{size:.2g}"), unit=unit)}
 
 
 def _typed_kind(unit: str, kinds: tuple[str, ...], where: str) -> str:
@@ -130,6 +156,7 @@ def _half_width(tolerance: Tolerance, typed, kinds: tuple[str, ...]) -> float:
                              f"{tolerance.plus_minus}", where)
         return float(tolerance.plus_minus)
     if tolerance.percent is not None:
+        _check_percent(tolerance.percent, typed, _typed_kind(typed.unit, kinds, where), where)
         return abs(typed.value) * tolerance.percent / 100.0
     if not isinstance(tolerance.plus_minus, Quantity):
         raise InputError(f"give the tolerance with a unit (e.g. '0.5 K', '1 t/h'), not {tolerance.plus_minus!r}",
@@ -148,6 +175,19 @@ def _half_width(tolerance: Tolerance, typed, kinds: tuple[str, ...]) -> float:
     a_si = typed_si(1.0 + size.value, size.unit, difference, where) - typed_si(1.0, size.unit, difference, where)
     one_si = typed_si(2.0, typed.unit, difference, where) - typed_si(1.0, typed.unit, difference, where)
     return a_si / one_si
+
+
+def _check_percent(percent: float, typed: Quantity, kind: str, where: str) -> None:
+    """Refuse a percent of a value whose zero is arbitrary: a temperature (°C, °F: an interval scale) or a gauge
+    pressure (its zero is the atmosphere). Its width would depend on the unit typed, and be ± 0 at 0 °C or 0 barg."""
+    if kind == "temperature":
+        raise InputError(f"± {percent:g} % of a temperature has no meaning: its size depends on the scale the "
+                         f"temperature is typed in (°C, °F, K) and is ± 0 at 0 °C; give the tolerance as a "
+                         f"temperature difference, e.g. '0.5 K' (or '1 °F' difference)", where)
+    if kind == "pressure" and is_gauge(typed.unit):
+        raise InputError(f"± {percent:g} % of a gauge pressure ({typed.value:g} {typed.unit.strip()}) depends on "
+                         f"the atmosphere it is read from and is ± 0 at 0 gauge; give the tolerance as a pressure "
+                         f"difference, e.g. '0.05 bar', or the pressure as absolute", where)
 
 
 def standard_uncertainty(tolerance: Tolerance, half_width: float) -> float:
