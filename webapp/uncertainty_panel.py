@@ -317,10 +317,11 @@ def _editor_section(worksheet: Worksheet, system: str, set_worksheet) -> None:
         typed = f"{value.value:g} {display_unit(value.unit)}" if isinstance(value, Quantity) else f"{value:g}"
         st.caption(plain(f"As typed: {typed}"))
         example = "0.02 or 2 %" if _is_fraction(chosen) else \
-            "0.5 K or 1 %" if chosen.kinds == ("temperature",) else "a value with its unit, or 1.5 %"
+            "0.5 K" if chosen.kinds == ("temperature",) else "a value with its unit, or 1.5 %"
         st.text_input("± tolerance", key=key("size"), placeholder=example,
                       help="A half-width: a value in a unit of the input's kind (a temperature difference, K or "
-                           "°F, for a temperature), or a percent of the value; a plain number for a fraction.")
+                           "°F, for a temperature), or a percent of the value (not for a temperature or a gauge "
+                           "pressure: a percent of them depends on the unit typed); a plain number for a fraction.")
         st.selectbox("What the ± means", list(DISTRIBUTIONS), key=key("distribution"),
                      format_func=DISTRIBUTIONS.get)
         st.text_input("Source", key=key("source"), max_chars=300,
