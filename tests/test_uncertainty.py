@@ -186,3 +186,22 @@ def test_a_tolerance_typed_with_a_made_up_unit_is_echoed_in_quotes():
     (line,) = [ln for ln in format_result(result, "SI").splitlines() if "uncertainty cannot be given" in ln]
     # what the user typed is quoted, so no bare 'nan' reads as a number the tool computed (found by the fuzzer)
     assert "tolerance '1 nan': unit 'nan' is not a mass flow" in line
+
+
+def test_an_answer_on_a_phase_change_carries_the_uncertainty_of_its_fraction():
+    import json
+
+    from heatbalance.present.report import format_result
+
+    doc = json.loads(open("sample_data/ice_melting_tank.json", "rb").read())
+    doc["tolerances"] = [{"address": "vessels[Tank T-5].charges[Ice].mass", "percent": 0.5},
+                         {"address": "vessels[Tank T-5].charges[Process water].initial.temperature",
+                          "plus_minus": "0.5 K"}]
+    result = solve_and_analyse(load_worksheet(json.dumps(doc).encode()))
+    fraction = result.output_uncertainties["answer.phase_fraction"]
+    # hand (GUM, rectangular): the water's 1 t × 4.18 kJ/(kg·K) × 0.289 K = 1,207 kJ melts 3.62 kg of the 400 kg
+    # (333.5 kJ/kg): u = 0.0090; with f = Q/(L·M) − c_ice·10 K/L, df/dM = −(f + c_ice·10 K/L)/M
+    # = −(0.568 + 0.061)/400 per kg, × 1.155 kg: u = 0.0018; u_c ≈ 0.0092, U = 2·u_c ≈ 0.0185
+    assert fraction.value == pytest.approx(result.answer.phase_fraction, rel=1e-9)
+    assert abs(fraction.expanded) == pytest.approx(0.0185, rel=0.03)
+    assert "Tank T-5 final temperature: liquid (melted) fraction = 56.8% ± 1.8% (k = 2" in format_result(result)

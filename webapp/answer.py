@@ -9,7 +9,7 @@ import streamlit as st
 from heatbalance import address
 from heatbalance.errors import HeatBalanceError
 from heatbalance.present.text import answer_text, average_power_text, error_text, phrase_text
-from heatbalance.present.uncertainty import uncertainty_text
+from heatbalance.present.uncertainty import plateau_fraction_text, uncertainty_text
 from heatbalance.reactor import CAUTION
 from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
@@ -99,6 +99,9 @@ def _render_answer_value(result: Result, system: str) -> None:
             st.markdown(f"**{plain(uncertainty_text(result.uncertainty, system, answer))}**",
                         help="From the inputs' tolerances (GUM, inputs uncorrelated); the contributors are "
                              "listed under \"How sure is the answer\".")
+            plateau = plateau_fraction_text(result)
+            if plateau is not None:
+                st.caption(plain(plateau))
 
 
 def _on_undo() -> None:

@@ -113,7 +113,9 @@ def solve_and_analyse(ws: Worksheet) -> Result:
 
         try:
             # the answer, and the screening's temperatures (they bear on safety), from the same solves
-            found = propagate_outputs(ws, ["answer"] + [f"screening[{s.vessel}].MTSR" for s in result.screening])
+            plateau = ["answer.phase_fraction"] if result.answer.phase_fraction is not None else []  # T is pinned
+            found = propagate_outputs(ws, ["answer"] + plateau
+                                      + [f"screening[{s.vessel}].MTSR" for s in result.screening])
             result.uncertainty = found.pop("answer")
             result.output_uncertainties = found
         except HeatBalanceError as exc:  # the answer stands; that its uncertainty is missing is said loudly

@@ -89,11 +89,26 @@ def monte_carlo_text(u: Uncertainty, system: str = "SI", answer: Answer | None =
             f"{_number(abs(_difference(u.standard, unit, u.kind)))}".rstrip())
 
 
+PLATEAU_FRACTION = "answer.phase_fraction"  # an answer on a plateau: the fraction carries its uncertainty
+
+
 def output_uncertainty_lines(result, system: str = "SI") -> list[str]:
     """Other outputs with their uncertainty (each screening's MTSR): ``R-7: MTSR = 91.2 ± 3.1 °C (k = 2, ...)``."""
     def label_of(name: str) -> str:  # screening[R-7].MTSR -> R-7: MTSR
         head, _, field = name.rpartition(".")
         return f"{head[head.index('[') + 1:-1]}: {field}" if "[" in head else name
 
-    return [f"{label_of(name)} = {uncertainty_text(u, system)}"
+    return [plateau_fraction_text(result) if name == PLATEAU_FRACTION else
+            f"{label_of(name)} = {uncertainty_text(u, system)}"
             for name, u in (getattr(result, "output_uncertainties", None) or {}).items()]
+
+
+def plateau_fraction_text(result) -> str | None:
+    """An answer on a phase change: its temperature is fixed there, the uncertainty is in the fraction changed:
+    ``… liquid (melted) fraction = 56.8% ± 1.8% (k = 2, …)``; None otherwise."""
+    u = (getattr(result, "output_uncertainties", None) or {}).get(PLATEAU_FRACTION)
+    if u is None:
+        return None
+    upper = "vapour" if result.answer.plateau == "boiling" else "liquid (melted)"
+    return (f"{result.answer.label}: {upper} fraction = {u.value:.1%} ± {abs(u.expanded):.1%} (k = {u.coverage:g}, "
+            "about 95 %; on the phase change the temperature is fixed)")
