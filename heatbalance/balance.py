@@ -437,10 +437,21 @@ def solve_problem(p: Problem) -> Result:
     finally:
         _SOLVE_ENTHALPIES.reset(token)
     result.surface_losses = records
+    result.warnings += [_hot_surface(record) for record in records if record.surface_T > record.protection_limit]
     result.humid_air = [humid_air_line(ln.name, ln.address, model.material, ln.amount_si, ln.initial_T, ln.initial_P,
                                        ln.final_T, ln.final_P)
                         for model, ln in zip(p.lines, result.lines) if isinstance(model.material, HumidAir)]
     return result
+
+
+def _hot_surface(record) -> Phrase:
+    """A computed loss's outer surface above the personnel-protection limit: said beside the answer, not only in
+    the losses' own block."""
+    return Phrase("Hot surface: {name}'s outer surface is at {T_s} with the process at {T_p}, above the {limit} limit "
+                  "for personnel protection; its losses block gives the insulation that keeps it below.",
+                  {"name": record.name, "T_s": Measure(record.surface_T, "temperature", 1),
+                   "T_p": Measure(record.process_T, "temperature", 1),
+                   "limit": Measure(record.protection_limit, "temperature", 0)}, record.address)
 
 
 def _computed_loss_records(p: Problem) -> list:

@@ -318,3 +318,16 @@ def test_a_long_run_approaches_the_air_and_never_passes_it(length):
     for _ in range(int(length.split()[0])):
         T -= heat_loss(metre, T) / (0.4 / 3.6 * 4180.0)
     assert 293.15 < T_out and T_out == pytest.approx(T, abs=0.5)
+
+
+def test_a_bare_hot_line_is_warned_beside_the_answer_as_a_hot_surface():
+    doc = sample_data()
+    doc["losses"][0]["surface"]["insulation"]["thickness"] = "0 mm"  # bare: the surface is the process's
+    result = solve(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if w.text.startswith("Hot surface")]
+    record = result.surface_losses[0]
+    # a bare surface sits at the process temperature (inside film and wall neglected), far above 60 °C
+    assert record.surface_T == pytest.approx(record.process_T) and record.surface_T > 273.15 + 100
+    assert warning.address == "losses[Yard line].surface" and "above the 60 °C limit for personnel protection" in \
+        warning.text
+    assert not [w for w in solve(parse_worksheet(sample_data())).warnings if w.text.startswith("Hot surface")]
