@@ -36,6 +36,7 @@ from __future__ import annotations
 
 import csv
 import math
+import warnings
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
@@ -129,6 +130,20 @@ class ExchangerCheck:
 
 # --------------------------------------------------------------------------- one line's path
 # --------------------------------------------------------------------------- F and UA
+def _crossflow_NTU(eps: float, Cr: float) -> float:
+    """NTU of a cross-flow exchanger (both fluids unmixed) at effectiveness ε, checked by the way back: ht's series
+    integral may warn of a slow quadrature (said quietly here), so the NTU must give ε again to 1e-6, else none."""
+    from scipy.integrate import IntegrationWarning
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", IntegrationWarning)
+        NTU = ht.NTU_from_effectiveness(eps, Cr, "crossflow")
+        back = ht.effectiveness_from_NTU(NTU, Cr, "crossflow")
+    if not abs(back - eps) <= 1e-6 * max(eps, 1e-12):
+        raise ValueError("the cross-flow NTU does not give its effectiveness back")
+    return NTU
+
+
 def correction_factor(arrangement: str, shells: int, Thi: float, Tho: float, Tci: float, Tco: float) -> float:
     """LMTD correction factor F of an arrangement for terminal temperatures [K] (1 when one side is isothermal).
 
@@ -154,7 +169,7 @@ def correction_factor(arrangement: str, shells: int, Thi: float, Tho: float, Tci
             C_min, C_max = min(C_hot, C_cold), max(C_hot, C_cold)
             eps = 1.0 / (C_min * (Thi - Tci))
             Cr = C_min / C_max
-            F = ht.NTU_from_effectiveness(eps, Cr, "counterflow") / ht.NTU_from_effectiveness(eps, Cr, "crossflow")
+            F = ht.NTU_from_effectiveness(eps, Cr, "counterflow") / _crossflow_NTU(eps, Cr)
     except (ValueError, ZeroDivisionError, OverflowError, UnconvergedError):  # no NTU reaches this ε
         return math.nan
     F = float(np.real(F))
