@@ -679,6 +679,7 @@ class _Builder:
                           insulation, thickness, temperature(s.ambient_temperature, "ambient_temperature"),
                           temperature(s.surroundings_temperature, "surroundings_temperature"),
                           0.0 if s.wind_speed is None else positive(s.wind_speed, "velocity", "wind_speed", zero=True))
+        self.warnings.extend(_implausible_surface(surface, s, where))
         computed = ComputedLoss(surface, where, temperature(s.process_temperature, "process_temperature"))
         if s.protection_limit is not None:
             computed.limit = temperature(s.protection_limit, "protection_limit")
@@ -927,6 +928,25 @@ def _checked_cp(material: str, phase: Phase, typed, low: float, high: float, whe
                    {"material": material, "phase": phase.name, "typed": str(typed), "cp": Measure(shown, "specific_heat"),
                     "what": "liquids" if limit == LIQUID_CP_MAX else "process materials",
                     "low": Measure(CP_PLAUSIBLE[0], "specific_heat"), "high": Measure(limit, "specific_heat")}, where)]
+
+
+# wind above hurricane force (Beaufort 12, 32.7 m/s; WMO) and emissivities below polished silver's (about 0.02,
+# Incropera Table A.12, from memory) are likelier a slip (km/h for m/s, 0 for 0.9) than a plant's surface
+STORM_WIND = 32.7
+LEAST_EMISSIVITY = 0.02
+
+
+def _implausible_surface(surface: Surface, typed, where: str) -> list[Phrase]:
+    out = []
+    if surface.wind > STORM_WIND:
+        out.append(Phrase("wind {typed} is above hurricane force ({storm}): check the value and its unit (km/h or "
+                          "m/s)", {"typed": str(typed.wind_speed), "storm": Measure(STORM_WIND, "velocity")},
+                          f"{where}.wind_speed"))
+    if surface.emissivity < LEAST_EMISSIVITY:
+        out.append(Phrase("emissivity {e} is below a polished metal's (about {least}): the surface then loses no heat "
+                          "by radiation; check the value (paint and cladding: 0.1 to 0.95)",
+                          {"e": f"{surface.emissivity:g}", "least": f"{LEAST_EMISSIVITY:g}"}, f"{where}.emissivity"))
+    return out
 
 
 _PHASE_RANK = {"solid": 0, "ice": 0, "liquid": 1, "vapour": 2, "vapor": 2, "gas": 2}  # coldest first

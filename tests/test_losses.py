@@ -331,3 +331,17 @@ def test_a_bare_hot_line_is_warned_beside_the_answer_as_a_hot_surface():
     assert warning.address == "losses[Yard line].surface" and "above the 60 °C limit for personnel protection" in \
         warning.text
     assert not [w for w in solve(parse_worksheet(sample_data())).warnings if w.text.startswith("Hot surface")]
+
+
+@pytest.mark.parametrize("field, value, address, words", [
+    ("wind_speed", "400 m/s", "losses[Yard line].surface.wind_speed", "above hurricane force (32.7 m/s)"),
+    ("emissivity", 0.0, "losses[Yard line].surface.emissivity", "emissivity 0 is below a polished metal's"),
+])
+def test_a_surface_no_plant_has_is_warned_at_its_field(field, value, address, words):
+    # hurricane force: Beaufort 12 from 32.7 m/s (WMO); polished silver's emissivity about 0.02 (Incropera A.12,
+    # from memory)
+    doc = sample_data()
+    doc["losses"][0]["surface"][field] = value
+    (warning,) = [w for w in solve(parse_worksheet(doc)).warnings if w.address == address]
+    assert words in warning.text
+    assert not [w for w in solve(parse_worksheet(sample_data())).warnings if w.address.startswith("losses[")]
