@@ -35,7 +35,7 @@ __all__ = ["StateSpec", "Line", "EquipmentHeat", "HeatTerm", "ComputedLoss", "Ja
 ASSUMPTIONS = [
     "Ideal mixing: no heat of mixing or solution unless stated as a mixing (heats of solution table) or entered "
     "as a duty.",
-    "Losses as entered.",
+    "Losses: a typed loss as entered; a computed one from its surface (its own assumptions below).",
     "Reaction heat: an entered ΔH as entered; ΔH from an equation at the process temperature (Kirchhoff) where known.",
 ]  # and the reference of gauge pressures, with the site's value (site_atmosphere)
 
