@@ -367,3 +367,17 @@ def test_hot_oil_for_a_boiling_duty_keeps_the_approach_where_boiling_starts():
     m_pinch = q_boil / (hot_oil.enthalpy(523.15, P_oil) - hot_oil.enthalpy(T_boil.T + 10, P_oil))  # hand calculation
     m_limit = result.answer.value_si / (hot_oil.enthalpy(523.15, P_oil) - hot_oil.enthalpy(333.15, P_oil))
     assert m_pinch > m_limit and option.flow == pytest.approx(m_pinch, rel=1e-6)
+
+
+def test_a_utility_stream_outside_an_exchanger_is_held_to_its_return_limit():
+    doc = _methanol_sample()
+    doc.pop("exchangers")  # no exchanger, no utility side: the stream named like the site's cooling water
+    doc["streams"][1]["outlet"] = {"temperature": "60 degC"}
+    result = solve_and_analyse(parse_worksheet(doc))
+    (warning,) = [w for w in result.warnings if w.text.startswith("RETURN LIMIT PASSED")]
+    # 60 °C against the sample's 40 °C limit: 20 K above it (hand calculation)
+    assert warning.address == "utilities[Cooling water].return_limit"
+    assert "Cooling water leaves at 60.0 °C in the balance, above Cooling water's return limit of 40.0 °C (by 20.0 K)" \
+        in warning.text
+    doc["streams"][1]["outlet"] = {"temperature": "38 degC"}
+    assert not [w for w in solve_and_analyse(parse_worksheet(doc)).warnings if "RETURN LIMIT" in w.text]

@@ -90,8 +90,9 @@ def analyse(problem, result, checks: bool = True):
     else:
         result.exchangers = []
     result.utilities = utility_tables(problem, result)
-    for name, warning in return_limit_warnings(problem, result):
-        next(c for c in result.exchangers if c.name == name).warnings.append(warning)
+    for name, warning in return_limit_warnings(problem, result):  # at its exchanger, or on the result (a stream)
+        (result.warnings if name is None else next(c for c in result.exchangers if c.name == name).warnings) \
+            .append(warning)
     for records, where in ((result.exchangers, lambda r: r.address), (result.utilities, lambda r: r.demand.address)):
         for record in records:
             if not _finite_numbers(record):

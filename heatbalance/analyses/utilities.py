@@ -370,8 +370,9 @@ def _utilities_of_line(problem: Problem, line, kinds: tuple[str, ...]) -> list[U
             and abs(u.supply_T - line.initial_T) <= SAME_SUPPLY_K]
 
 
-def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, Phrase]]:
-    """(exchanger name, warning) for each utility line whose return passes its utility's return limit.
+def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str | None, Phrase]]:
+    """(exchanger name, warning) for each utility line whose return passes its utility's return limit; the name
+    is None for a utility's stream outside an exchanger with a utility side (its outlet in the balance alone).
 
     A coolant (cooling water, chilled water, brine) must return no warmer than its ``return_limit`` (scaling), a hot
     oil no colder than its own. Both the balance's outlet and, for a rated exchanger, the outlet its UA reaches
@@ -379,6 +380,15 @@ def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, P
     """
     out = []
     checks = {c.name: c for c in getattr(result, "exchangers", [])}
+    checked = {name for e in problem.exchangers if e.utility_side is not None and e.name in checks
+               for name in getattr(e, e.utility_side)}
+    for line in result.lines:  # a utility's stream outside an exchanger with a utility side: its outlet alone
+        if line.kind != "stream" or line.name in checked or line.total == 0:
+            continue
+        cooling = line.total > 0  # a coolant takes heat up
+        for u in _utilities_of_line(problem, line, COLD_KINDS if cooling else ("hot oil",)):
+            if u.return_T is not None and (line.final_T - u.return_T if cooling else u.return_T - line.final_T) > 1e-6:
+                out.append((None, _return_passed(line, "", line.final_T, "in the balance", u, cooling)))
     for e in problem.exchangers:
         if e.utility_side is None or e.name not in checks:
             continue
@@ -399,13 +409,16 @@ def return_limit_warnings(problem: Problem, result: Result) -> list[tuple[str, P
                 for how, T in outlets:
                     beyond = T - u.return_T if cooling else u.return_T - T
                     if beyond > 1e-6:
-                        out.append((e.name, Phrase(
-                            "RETURN LIMIT PASSED: {line} leaves {exchanger} at {T} {how}, {side} {utility}'s return "
-                            "limit of {limit} (by {by}){why}. Raise its flow, or check the limit with the site",
-                            {"line": line.name, "exchanger": e.name, "T": Measure(T, "temperature", 1), "how": how,
-                             "side": "above" if cooling else "below", "utility": u.name,
-                             "limit": Measure(u.return_T, "temperature", 1),
-                             "by": Measure(beyond, "temperature_difference", decimals=1),
-                             "why": " (against scaling)" if u.kind == "cooling water" else ""},
-                            f"{u.address}.return_limit")))
+                        out.append((e.name, _return_passed(line, e.name, T, how, u, cooling)))
     return out
+
+
+def _return_passed(line, exchanger: str, T: float, how: str, u: UtilityInputs, cooling: bool) -> Phrase:
+    beyond = T - u.return_T if cooling else u.return_T - T
+    return Phrase("RETURN LIMIT PASSED: {line} leaves{at} at {T} {how}, {side} {utility}'s return limit of {limit} "
+                  "(by {by}){why}. Raise its flow, or check the limit with the site",
+                  {"line": line.name, "at": f" {exchanger}" if exchanger else "", "T": Measure(T, "temperature", 1),
+                   "how": how, "side": "above" if cooling else "below", "utility": u.name,
+                   "limit": Measure(u.return_T, "temperature", 1),
+                   "by": Measure(beyond, "temperature_difference", decimals=1),
+                   "why": " (against scaling)" if u.kind == "cooling water" else ""}, f"{u.address}.return_limit")
