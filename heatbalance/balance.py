@@ -555,7 +555,7 @@ def _result(p: Problem, fraction: float | None) -> Result:
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
         + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p) \
-        + _negligible_duties(p, lines, terms) + _charged_as_vapour(p, lines)
+        + _negligible_duties(p, lines, terms) + _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
@@ -634,6 +634,25 @@ def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
                           {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
                            "T_b": Measure(boiling[0].T, "temperature", 1), "P": Measure(ln.initial_P, "pressure")},
                           model.initial.temperature_address))
+    return out
+
+
+def _boiling_in_a_mixture(p: Problem, lines: list[LineResult]) -> list[Phrase]:
+    """A charge that boils in the balance as a pure liquid while mixed with other materials in its vessel: a
+    mixture's boiling (at its bubble point, with its own latent heat) is not modelled, so said loudly."""
+    out = []
+    for model, ln in zip(p.lines, lines):
+        if model.kind != "charge" or "vapour" not in ln.final_phase or ln.latent <= 0:
+            continue
+        others = sorted({o.material_name for o in p.lines if o.vessel == model.vessel
+                         and o.material_name != model.material_name})
+        if others:
+            out.append(Phrase("MIXTURE BOILING NOT MODELLED: {name} boils here as a pure liquid at {P} ({phase}), but "
+                              "it is mixed with {others} in the vessel, and a mixture boils at its bubble point with "
+                              "its own latent heat: this answer does not model that. Keep the final state below the "
+                              "boiling, or enter the boil-up as a duty of your own.",
+                              {"name": ln.name, "P": Measure(ln.final_P, "pressure"), "phase": ln.final_phase,
+                               "others": ", ".join(others)}, model.address))
     return out
 
 

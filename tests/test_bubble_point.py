@@ -111,6 +111,23 @@ def test_the_dissolved_solvent_sample_boils_lower_and_changes_class():
     assert as_water.MTSR == pytest.approx(s.MTSR) and as_water.criticality_class == 1 and as_water.alarms == []
 
 
+def test_a_solvent_the_balance_boils_off_stays_in_the_boiling_liquid():
+    doc = sample("dissolved_solvent_screening.json")
+    vessel = doc["vessels"][0]
+    next(c for c in vessel["charges"] if c["name"] == "Methanol")["material"] = "methanol"  # the catalogue fluid
+    vessel["screening"].pop("components")
+    result, s = screening(doc)
+    methanol = next(ln for ln in result.lines if ln.name.endswith("Methanol"))
+    assert "vapour" in methanol.final_phase  # the balance boils it as a pure liquid at the vessel's pressure
+    # it was liquid as charged: the same x = 0.101 in water and the same 87.6 °C as the sample (Perry's: 87.7 °C
+    # at x = 0.10), not water's 100 °C, which left it out and gave class 1 (the unsafe side)
+    assert s.MTT_composition["methanol"] == pytest.approx(0.1011, abs=1e-4)
+    assert s.MTT - C == pytest.approx(87.6, abs=0.3)
+    # and the balance's pure-liquid boiling of a dissolved solvent is said not to be modelled, at the charge
+    (warning,) = [w for w in result.warnings if w.text.startswith("MIXTURE BOILING NOT MODELLED")]
+    assert warning.address == "vessels[R-5].charges[Methanol]" and "mixed with water" in warning.text
+
+
 def test_the_hydration_sample_uses_raoult_for_ethylene_oxide_and_says_so():
     result, s = screening(sample("glycol_hydration_screening.json"))
     assert s.MTT_model == RAOULT_NAME

@@ -5,7 +5,8 @@
 P_sat,i from `thermo`'s vapour-pressure correlations (each component's method is named in the result), γ_i
 from original UNIFAC (`thermo.unifac`, version 0: the published UNIFAC group parameters, groups assigned by the
 DDBST as shipped with `thermo`) when every component has groups; else γ = 1, Raoult's law, and the result says
-so. The composition is the vessel's charges as charged (mole fractions from their masses), liquids only.
+so. The composition is the vessel's charges as charged (mole fractions from their masses): those with liquid
+in them as charged or at the end (a solvent the balance boils off stays in).
 
 A charge's chemical comes from the catalogue (a pure fluid is itself; an aqueous glycol is water and the glycol
 at its mass fraction) or from the vessel's screening ``components`` (a material defined by its cp only). A
@@ -74,8 +75,9 @@ def mixture_components(lines: list, results: list, chemicals: dict[str, str], ve
     out = []
     for line, solved in zip(lines, results):
         material, where = line.material, f"{line.address}.material"
-        if solved.final_phase != "liquid" and line.charge not in chemicals:
-            continue  # a solid or a gas at the final state is not part of the boiling liquid
+        if not (_holds_liquid(solved.initial_phase) or _holds_liquid(solved.final_phase)) \
+                and line.charge not in chemicals:
+            continue  # a solid or a gas both as charged and at the end is not part of the boiling liquid
         if line.charge in chemicals:
             out.append((chemicals[line.charge], solved.amount_si, item("vessels", vessel, "screening",
                                                                        item("components", line.charge))))
@@ -97,6 +99,13 @@ def mixture_components(lines: list, results: list, chemicals: dict[str, str], ve
                              f"chemical this charge is in {item('vessels', vessel, 'screening', 'components')}, or "
                              f"enter MTT ({item('vessels', vessel, 'screening', 'MTT')})", where)
     return out
+
+
+def _holds_liquid(phase: str) -> bool:
+    """Whether a state's phase has liquid in it: a liquid, saturated liquid, or a part-boiled or part-melted
+    mixture (``17.6% vapour``, ``43.2% solid``). A solvent the balance boils off at the end was liquid as charged:
+    it stays in the boiling liquid, which it makes boil lower (leaving it out put MTT on the unsafe side)."""
+    return "liquid" in phase or "%" in phase
 
 
 @lru_cache(maxsize=64)
