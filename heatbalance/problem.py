@@ -105,6 +105,7 @@ class HeatTerm:
     mixing: MixingHeat | None = None  # a stated mixing: its solute, strengths and amounts (heatbalance.mixing)
     mixing_T: float | None = None  # K: that mixing's final temperature, set by the solver (None: not known)
     mixing_at_25: bool = True  # its heat is the 25 °C one (the solutions' cp data do not reach, or no mixing_T)
+    potential: float | None = None  # a reaction's heat at full conversion (what the screening counts)
 
 
 @dataclass
@@ -736,14 +737,10 @@ class _Builder:
         if hess is not None and r.enthalpy is None:
             at_temperature = self._kirchhoff(r, hess, where)
             dH = at_temperature.dH_T / hess.key_coefficient if at_temperature else dH
-        if r.enthalpy is not None and not REACTION_DH_PLAUSIBLE[0] <= abs(dH) <= REACTION_DH_PLAUSIBLE[1]:
-            self.warnings.append(Phrase(
-                "Reaction {name}: ΔH {typed} is {dH} in magnitude, outside what reactions worth a balance release "
-                "({low} to {high}): check the unit (J/mol or kJ/mol).",
-                {"name": r.name, "typed": str(r.enthalpy), "dH": Measure(abs(dH), "molar_energy"),
-                 "low": Measure(REACTION_DH_PLAUSIBLE[0], "molar_energy"),
-                 "high": Measure(REACTION_DH_PLAUSIBLE[1], "molar_energy")}, f"{where}.enthalpy"))
-        reacted = self._moles(r, hess, f"{where}.amount") * r.conversion
+        if r.enthalpy is not None:
+            self.warnings.extend(_typed_reaction_heat_checks(r, dH, hess, where))
+        moles = self._moles(r, hess, f"{where}.amount")
+        reacted = moles * r.conversion
         entered = str(r.enthalpy) if r.enthalpy is not None else \
             f"{hess.dH_per_key / 1000:.2f} kJ/mol {hess.key_reactant} (Hess's law, 25 °C)"
         amount_kind = basis_kinds("moles", "batch")[0] if self.basis == "batch" else "molar_flow"
@@ -755,7 +752,7 @@ class _Builder:
             values.update(entered=f"{dH / 1000:.2f} kJ/mol {hess.key_reactant}", T=Measure(at_temperature.T,
                           "temperature", 1), standard=f"{hess.dH_per_key / 1000:.2f} kJ/mol")
         detail = Phrase(template, values)
-        return HeatTerm(r.name, "reaction", -dH * reacted, detail, vessel=r.vessel)
+        return HeatTerm(r.name, "reaction", -dH * reacted, detail, vessel=r.vessel, potential=-dH * moles)
 
     def _reaction_temperature(self, r) -> tuple[float | None, str]:
         """K and the field it comes from: the reaction's own, else its vessel's screening process temperature; None
@@ -946,6 +943,23 @@ def _implausible_surface(surface: Surface, typed, where: str) -> list[Phrase]:
         out.append(Phrase("emissivity {e} is below a polished metal's (about {least}): the surface then loses no heat "
                           "by radiation; check the value (paint and cladding: 0.1 to 0.95)",
                           {"e": f"{surface.emissivity:g}", "least": f"{LEAST_EMISSIVITY:g}"}, f"{where}.emissivity"))
+    return out
+
+
+def _typed_reaction_heat_checks(r, dH: float, hess, where: str) -> list[Phrase]:
+    """A typed ΔH of an implausible size (a unit slip), or of the opposite sign to its own equation's."""
+    out = []
+    if not REACTION_DH_PLAUSIBLE[0] <= abs(dH) <= REACTION_DH_PLAUSIBLE[1]:
+        out.append(Phrase("Reaction {name}: ΔH {typed} is {dH} in magnitude, outside what reactions worth a balance "
+                          "release ({low} to {high}): check the unit (J/mol or kJ/mol).",
+                          {"name": r.name, "typed": str(r.enthalpy), "dH": Measure(abs(dH), "molar_energy"),
+                           "low": Measure(REACTION_DH_PLAUSIBLE[0], "molar_energy"),
+                           "high": Measure(REACTION_DH_PLAUSIBLE[1], "molar_energy")}, f"{where}.enthalpy"))
+    if hess is not None and dH * hess.dH_per_key < 0:
+        out.append(Phrase("Reaction {name}: the typed ΔH {typed} has the opposite sign to its equation's {hess} "
+                          "(Hess's law): an exothermic reaction has a negative ΔH. The typed value is used; check "
+                          "its sign.", {"name": r.name, "typed": str(r.enthalpy),
+                                        "hess": Measure(hess.dH_per_key, "molar_energy")}, f"{where}.enthalpy"))
     return out
 
 

@@ -299,9 +299,10 @@ def test_worksheet_jacket_time_by_hand():
 
 def test_worksheet_endothermic_reaction_has_no_rise():
     s = screening_of(scenario(enthalpy=q(40, "kJ/mol")))
-    assert s.Q_reaction < 0
+    assert s.Q_reaction == 0  # an endothermic reaction is not credited (it may not run when cooling fails)
     assert s.MTSR == pytest.approx(60 + C, abs=1e-9)
     assert any("not exothermic" in n.text for n in s.notes)
+    assert any("is endothermic" in n.text and "not credited" in n.text for n in s.notes)
 
 
 def test_no_screening_without_reaction():
@@ -609,3 +610,39 @@ def test_phases_named_hot_before_cold_are_warned():
     (warning,) = [w for w in _wax_sheet(backwards).warnings if "coldest first" in w.text]
     assert warning.address == "materials[wax].phases" and "'liquid' comes before 'solid'" in warning.text
     assert not [w for w in _wax_sheet(melting_material()).warnings if "coldest first" in w.text or "unit" in w.text]
+
+
+# --------------------------------------------------------------------------- the screening on the safe side
+def test_a_partial_conversion_still_screens_the_full_reaction_heat():
+    def conversion(value):
+        return lambda d: d["reactions"][0].update(conversion=value)
+
+    full, half = _reactor_with(conversion(1.0)), _reactor_with(conversion(0.5))
+    (s_full,), (s_half,) = full.screening, half.screening
+    # hand: 92 kJ/mol × 4.2 kmol = 386,400 kJ whatever the balance's conversion: the 2.1 kmol left can still react
+    assert s_half.Q_reaction == pytest.approx(386_400e3, rel=1e-9) == s_full.Q_reaction
+    assert s_half.dT_ad == pytest.approx(s_full.dT_ad, rel=1e-3)  # cp differs only with the process temperature
+    assert any("leaves 193,200 kJ unreacted" in n.text for n in s_half.notes)
+    (term,) = [t for t in half.terms if t.kind == "reaction"]
+    assert term.heat == pytest.approx(193_200e3, rel=1e-9)  # the balance releases what it converts
+
+
+def test_an_endothermic_side_reaction_is_not_credited_in_the_screening():
+    side = {"name": "Side (endo)", "enthalpy": {"value": 30, "unit": "kJ/mol"},
+            "amount": {"value": 4.2, "unit": "kmol"}, "vessel": "R-2"}
+    (s,) = _reactor_with(lambda d: d["reactions"].append(side)).screening
+    # hand: only the main reaction's 386,400 kJ counts; crediting the side's −126,000 kJ put ΔT_ad 1/3 low
+    assert s.Q_reaction == pytest.approx(386_400e3, rel=1e-9)
+    assert any("Side (endo) is endothermic" in n.text and "not credited" in n.text for n in s.notes)
+
+
+def test_a_typed_reaction_heat_of_the_opposite_sign_to_its_equation_is_warned():
+    def typed(value):
+        return lambda d: d["reactions"][0].update(enthalpy={"value": value, "unit": "kJ/mol"},
+                                                  equation="ethylene oxide(l) + water(l) -> ethylene glycol(l)",
+                                                  key_reactant="ethylene oxide")
+
+    # ethylene oxide hydration: ΔH° = −460.0 − (−78.0 − 285.8) = −96.2 kJ/mol (Hess's law, by hand)
+    (warning,) = [w for w in _reactor_with(typed(92)).warnings if "opposite sign" in w.text]
+    assert warning.address == "reactions[Main reaction].enthalpy"
+    assert not [w for w in _reactor_with(typed(-92)).warnings if "opposite sign" in w.text]

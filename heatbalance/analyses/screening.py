@@ -164,6 +164,26 @@ def _located(screen_vessel, vessel: str, *args) -> Screening:
         raise
 
 
+def _reaction_heat_screened(reactions: list, basis: str, notes: list[Phrase]) -> float:
+    """The reaction heat ΔT_ad is made of, on the safe side: each exothermic reaction at full conversion (what
+    the balance leaves unreacted can still react when cooling fails), no endothermic one credited against them
+    (it may not run then); each departure from the balance's heat said in a note."""
+    kind, total = heat_kind(basis), 0.0
+    for t in reactions:
+        if t.potential <= 0:
+            notes.append(Phrase("Reaction {name} is endothermic ({Q}): it is not credited against the exothermic "
+                                "heat in ΔT_ad (it may not run when cooling fails).",
+                                {"name": t.name, "Q": Measure(t.potential, kind)}))
+            continue
+        total += t.potential
+        if t.potential > t.heat * (1 + 1e-9):
+            notes.append(Phrase("ΔT_ad counts all of reaction {name}, {Q}: the balance's conversion leaves {left} "
+                                "unreacted, which can still react when cooling fails.",
+                                {"name": t.name, "Q": Measure(t.potential, kind),
+                                 "left": Measure(t.potential - t.heat, kind)}))
+    return total
+
+
 def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result) -> Screening:
     where = item("vessels", vessel, "screening")
     inputs = problem.screening[vessel]
@@ -180,7 +200,7 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
             result.warnings.append(_solved_process_temperature(vessel, T_process))
     names = {t.name for t in releases}
     Q_mixing = sum(t.heat for t in result.terms if t.kind == "mixing" and t.name in names)
-    Q = Q_mixing + sum(t.heat for t in result.terms if t.kind == "reaction" and t.name in names)
+    Q = Q_mixing + _reaction_heat_screened([t for t in releases if t.kind == "reaction"], result.basis, notes)
     if any(t.kind == "mixing" for t in releases):
         notes.append(_mixing_note(Q_mixing, result.basis))
     mass = sum(line.amount_si for _, line in charges)
