@@ -1,11 +1,12 @@
 """The command line's report of a solved worksheet, and its JSON, in a unit set."""
 from __future__ import annotations
 
+from ..reactor import CAUTION
 from ..results import SIGN_CONVENTION, Result
 from .exchangers import exchanger_report
 from .humid_air import humid_air_report
 from .losses import protection_text, surface_loss_report
-from .screening import screening_report
+from .screening import bears_on_safety, screening_report
 from .tables import contribution_rows
 from .text import (answer_text, answer_unit, answer_value, average_power_text, format_heat, no_negative_zero,
                    phrase_text)
@@ -43,14 +44,16 @@ def format_result(result: Result, system: str = "SI") -> str:
     out += [f"  - {phrase_text(a, system)}" for a in result.assumptions]
     out += ["property data:"] + [f"  - {name}: {src}" for name, src in result.sources.items()]
     out += ["warnings:"] + ([f"  ! {phrase_text(w, system)}" for w in result.warnings] or ["  (none)"])
+    if bears_on_safety(result):  # the one caution, once, whatever the blocks below (the sheet's rule)
+        out.append(f"safety: {CAUTION}")
     if result.uncertainty is not None:
         out += [""] + uncertainty_report(result.uncertainty, system, result.answer, result)
     if result.screening:
-        out += [""] + screening_report(result.screening, system)
+        out += [""] + screening_report(result.screening, system, caution=False)  # said once above
     if result.exchangers or result.utilities:
         out += [""] + exchanger_report(result, system)
     if result.surface_losses:
-        out += [""] + surface_loss_report(result, system, caution=not result.screening)  # the caution once
+        out += [""] + surface_loss_report(result, system, caution=False)  # said once above
     if result.humid_air:
         out += [""] + humid_air_report(result, system)
     out.append("versions: " + ", ".join(f"{k} {v}" for k, v in result.versions.items()))
@@ -73,8 +76,15 @@ def uncertainty_report(u, system: str, answer, result: Result | None = None) -> 
 
 
 def result_json(result: Result, system: str = "SI") -> dict:
-    """The full result as JSON-ready data: SI numbers, words in the unit set, the answer also as shown."""
+    """The full result as JSON-ready data: SI numbers, words in the unit set, the answer also as shown.
+
+    ``caution`` (top level) is :data:`~heatbalance.reactor.CAUTION` when the result bears on safety
+    (:func:`~heatbalance.present.screening.bears_on_safety`), else null: the one caution, once, not per vessel.
+    """
     data = result.to_dict(lambda phrase: phrase_text(phrase, system))
+    data["caution"] = CAUTION if bears_on_safety(result) else None
+    for record in data.get("screening", []):
+        record.pop("caution", None)  # said once at the top level
     data["answer"].update(text=answer_text(result.answer, system), unit=answer_unit(result.answer, system),
                           value=answer_value(result.answer, system))
     data["units"] = system

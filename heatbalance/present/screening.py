@@ -9,7 +9,36 @@ from ..reactor import CAUTION
 from ..units import from_si
 from .text import UNIT_SETS, display_unit, measure_text, phrase_text
 
-__all__ = ["screening_report", "screening_figure", "temperature_difference_text"]
+__all__ = ["bears_on_safety", "screening_report", "screening_figure", "temperature_difference_text"]
+
+
+def bears_on_safety(result) -> bool:
+    """Whether a solved worksheet bears on safety: its output then shows :data:`~heatbalance.reactor.CAUTION`, once.
+
+    The rule of the calculation sheet and the page, read from the result: a vessel (a batch end temperature:
+    runaway, boiling, pressure), a reaction (its heat, screened or not) or a surface loss computed from its
+    geometry (a hot surface: personnel protection).
+
+    Parameters
+    ----------
+    result : Result
+        A solved worksheet (``balance.solve`` or ``analyses.solve_and_analyse``)
+
+    Returns
+    -------
+    bool
+        True when the sheet has a vessel (a line charged to one), a reaction term or a computed surface loss
+
+    Notes
+    -----
+    Every vessel has at least one charge (the worksheet refuses an empty one) and every charge line names its
+    vessel, so ``any(line.vessel ...)`` is the worksheet's ``bool(ws.vessels)``; every reaction is a term of kind
+    ``reaction``; every loss with a ``surface`` is one record of ``result.surface_losses``. A screening is not
+    needed: a vessel without a reaction, or a reaction naming no vessel on a sheet of two, still bears on safety.
+    """
+    return bool(any(line.vessel is not None for line in result.lines)
+                or any(term.kind == "reaction" for term in result.terms)
+                or result.surface_losses)
 
 
 def _t(T: float, system: str) -> str:

@@ -40,7 +40,7 @@ from .exchangers import exchanger_rows, utility_rows, zone_rows
 from .figures import CLOSING_COLOUR, HEAT_IN_COLOUR, HEAT_OUT_COLOUR, waterfall_steps
 from .humid_air import humid_air_rows
 from .losses import surface_loss_rows
-from .screening import screening_report
+from .screening import bears_on_safety, screening_report
 from .tables import contribution_rows
 from .text import (UNIT_SETS, amount_text, answer_text, average_power_text, display_unit, format_heat,
                    no_negative_zero, phrase_text)
@@ -187,7 +187,7 @@ def _warnings(ws: Worksheet, result: Result, system: str, styles) -> list:
     out = [_p("Warnings and cautions", styles["h2"])]
     warnings = [phrase_text(w, system) for w in result.warnings]
     alarms = [phrase_text(a, system) for s in result.screening for a in s.alarms]
-    caution = bool(ws.vessels or ws.reactions or any(loss.surface is not None for loss in ws.losses))  # + hot surfaces
+    caution = bears_on_safety(result)  # a vessel, a reaction, a hot surface: the one rule of every output
     out += [_p(f"ALARM: {a}", styles["alarm"]) for a in alarms]
     out += [_p(f"• {w}", styles["body"]) for w in warnings]
     if caution:
