@@ -22,7 +22,9 @@ def test_a_pasted_table_is_added_in_the_browser(browser, app_url, output_dir):
         page.locator("summary", has_text=PANEL).click()
         name = page.locator(".st-key-freezing_name input")
         name.wait_for(state="visible", timeout=FIRST_DRAW_MS)
-        assert "strawberries" in page.locator(".st-key-freezing_list").text_content()
+        page.wait_for_function("""() => {  // the list is drawn after its panel's first field
+            const list = document.querySelector('.st-key-freezing_list');
+            return list !== null && list.textContent.includes('strawberries'); }""", timeout=FIRST_DRAW_MS)
         name.fill("dough")
         page.locator(".st-key-freezing_source input").fill("test table of our own")
         page.locator(".st-key-freezing_point input").fill("-1 degC")
