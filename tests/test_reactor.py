@@ -646,3 +646,18 @@ def test_a_typed_reaction_heat_of_the_opposite_sign_to_its_equation_is_warned():
     (warning,) = [w for w in _reactor_with(typed(92)).warnings if "opposite sign" in w.text]
     assert warning.address == "reactions[Main reaction].enthalpy"
     assert not [w for w in _reactor_with(typed(-92)).warnings if "opposite sign" in w.text]
+
+
+def test_a_jacket_that_cannot_remove_the_average_release_is_warned():
+    def jacket(UA):
+        return lambda d: d["vessels"][0]["screening"].update(
+            jacket={"UA": UA, "utility_temperature": "15 degC", "target_temperature": "40 degC"})
+
+    small = _reactor_with(jacket("0.5 kW/K"))
+    (s,) = small.screening
+    # hand: 0.5 kW/K × (54.98 − 15) K = 20.0 kW at most, against 386,400 kJ over the 40 min batch = 161 kW
+    (warning,) = [w for w in small.warnings if w.text.startswith("Jacket of R-2 too small")]
+    assert warning.address == "vessels[R-2].screening.jacket.UA"
+    assert "removes at most 19.99 kW" in warning.text and "161 kW" in warning.text
+    # 5 kW/K removes 200 kW there: enough on average (hand calculation)
+    assert not [w for w in _reactor_with(jacket("5 kW/K")).warnings if "too small" in w.text]

@@ -241,6 +241,8 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
         jacket = _jacket(inputs.jacket, T_process, mass * cp + C_vessel, f"{where}.jacket")
         notes.append(Phrase("Jacket time: m·cp of the contents plus the vessel's heat capacity, no reaction heat "
                             "or losses during it."))
+        released = sum(t.heat for t in result.terms if t.kind in _RELEASES and t.name in names)
+        result.warnings.extend(_jacket_too_small(inputs.jacket, vessel, T_process, released, result.duration, where))
     return Screening(vessel, sorted(names), T_process, Q, mass, cp, C_vessel, phi, dT_ad, dT_ad_phi,
                      inputs.accumulation, inputs.thermal_inertia, MTSR, MTT, MTT_source, T_D24, klass, meaning,
                      _alarms(T_process, MTSR, MTT, T_D24, where), notes, jacket,
@@ -394,6 +396,23 @@ def _alarms(T_process: float, MTSR: float, MTT: float | None, T_D24: float | Non
         alarms.append(Phrase("The process temperature {T} is already at or above T_D24.", {"T": t(T_process)},
                              f"{where}.T_D24"))
     return alarms
+
+
+def _jacket_too_small(j: JacketInputs, vessel: str, T_process: float, released: float, duration: float | None,
+                      where: str) -> list[Phrase]:
+    """A cooling jacket that cannot remove, at the process temperature, the heat the batch's reactions and mixings
+    release on average over its duration: it cannot hold that temperature (the peak is higher still)."""
+    if not duration or released <= 0 or j.utility_T >= T_process:
+        return []
+    capacity, average = j.UA * (T_process - j.utility_T), released / duration
+    if capacity >= average:
+        return []
+    return [Phrase("Jacket of {vessel} too small: at the process temperature {T} it removes at most {cap} (UA × {dT} to "
+                   "its utility), less than the {avg} the batch releases on average over {time}, so it cannot hold "
+                   "that temperature (the peak release is higher still).",
+                   {"vessel": vessel, "T": Measure(T_process, "temperature", 1), "cap": Measure(capacity, "power"),
+                    "dT": Measure(T_process - j.utility_T, "temperature_difference", decimals=1),
+                    "avg": Measure(average, "power"), "time": Measure(duration, "duration")}, f"{where}.jacket.UA")]
 
 
 def _jacket(j: JacketInputs, T_process: float, heat_capacity: float, where: str) -> JacketTime:
