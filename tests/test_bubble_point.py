@@ -282,3 +282,12 @@ def test_the_page_shows_the_mixtures_MTT_and_its_class():
     assert "The mixture boils 12.4 K below pure water" in shown
     alarms = re.sub(r"\\(.)", r"\1", "\n".join(e.value for e in at.error))
     assert "reaches MTT 87.6 °C" in alarms
+
+
+def test_one_liquid_carries_no_raoult_caveat():
+    doc = sample("batch_reactor_exotherm.json")  # the reagent solution counts as water: one liquid
+    doc["vessels"][0]["screening"]["T_D24"] = "120 degC"  # for a class
+    _, s = screening(doc)
+    assert s.MTT_composition == {"water": 1.0} and s.criticality_class is not None
+    assert [c for c in s.class_caveats if "Raoult" in c.text] == []  # Raoult's law is exact for a pure liquid
+    assert any("relief set pressure" in c.text for c in s.class_caveats)

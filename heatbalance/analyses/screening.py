@@ -257,7 +257,7 @@ def _class_caveats(MTT_entered: bool, bubble) -> list[Phrase]:
     caveats = [Phrase("MTT is the boiling point at the vessel's pressure, as for a vessel that vents there; for a "
                       "closed vessel it is the temperature at which the pressure reaches the relief set pressure: "
                       "enter that MTT.")]
-    if bubble is not None and bubble.model == RAOULT_NAME:
+    if bubble is not None and bubble.model == RAOULT_NAME and len(bubble.composition) > 1:  # one liquid: no mixture
         caveats.append(Phrase("MTT comes from Raoult's law (γ = 1), for want of activity-model data for a "
                               "component: a real mixture may boil lower, and this class rests on it."))
     return caveats
