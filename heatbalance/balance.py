@@ -555,7 +555,8 @@ def _result(p: Problem, fraction: float | None) -> Result:
     _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
         + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p) \
-        + _negligible_duties(p, lines, terms) + _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines)
+        + _negligible_duties(p, lines, terms) + _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines) \
+        + _ice_charged_melted(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
@@ -634,6 +635,20 @@ def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
                           {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
                            "T_b": Measure(boiling[0].T, "temperature", 1), "P": Measure(ln.initial_P, "pressure")},
                           model.initial.temperature_address))
+    return out
+
+
+def _ice_charged_melted(p: Problem, lines: list[LineResult]) -> list[Phrase]:
+    """Ice charged above its melting point is water as charged: said, for the answer then holds no ice to melt."""
+    out = []
+    for model, ln in zip(p.lines, lines):
+        melting = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "melting"]
+        if model.kind == "charge" and model.material_name.lower().startswith("ice") and melting \
+                and model.initial.plateau is None and ln.initial_T > melting[0].T + T_TOL:
+            out.append(Phrase("{name} is ice charged at {T}, above its melting point {T_m}: it is counted as water, "
+                              "with no ice to melt. Charge ice at or below {T_m}.",
+                              {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
+                               "T_m": Measure(melting[0].T, "temperature", 1)}, model.initial.temperature_address))
     return out
 
 

@@ -282,3 +282,20 @@ def test_a_liquid_at_ambient_charged_above_its_boiling_point_is_said_even_if_it_
     assert result.answer.value_si == pytest.approx(100 * steam * 1e3, rel=1e-3)
     (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
     assert warning.address == "vessels[V].charges[Hot water].initial.temperature"
+
+
+def test_ice_charged_above_its_melting_point_is_said_to_be_water():
+    import json
+
+    from heatbalance.worksheet import load_worksheet
+
+    doc = json.loads(open("sample_data/ice_melting_tank.json", "rb").read())
+    ice = doc["vessels"][0]["charges"][1]
+    ice["initial"]["temperature"]["value"] = 5  # typed +5 °C for −5 °C
+    result = solve(load_worksheet(json.dumps(doc).encode()))
+    # the 400 kg then hold no latent heat: 1 t at 20 °C and 400 kg at 5 °C mix to about 15.7 °C (hand, cp equal)
+    assert answer_value(result.answer) == pytest.approx((1000 * 20 + 400 * 5) / 1400, abs=0.1)
+    (warning,) = [w for w in result.warnings if "is ice charged at" in w.text]
+    assert warning.address == "vessels[Tank T-5].charges[Ice].initial.temperature"
+    assert not [w for w in solve(load_worksheet(open("sample_data/ice_melting_tank.json", "rb").read())).warnings
+                if "is ice charged at" in w.text]
