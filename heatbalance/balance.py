@@ -552,10 +552,10 @@ def _result(p: Problem, fraction: float | None) -> Result:
         heat = -_equipment_heat(e, p.temperatures, sides)
         terms.append(TermResult(e.name, "equipment", heat, _equipment_words(heat), vessel=e.vessel))
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
-    _check_closure(p, lines, terms, residual)
+    largest = _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
         + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p) \
-        + _negligible_duties(p, lines, terms) + _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines) \
+        + _negligible_duties(p, terms, largest) + _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines) \
         + _ice_charged_melted(p, lines)
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
@@ -642,9 +642,10 @@ def _ice_charged_melted(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     """Ice charged above its melting point is water as charged: said, for the answer then holds no ice to melt."""
     out = []
     for model, ln in zip(p.lines, lines):
+        if model.kind != "charge" or not model.material_name.lower().startswith("ice") or model.initial.plateau:
+            continue
         melting = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "melting"]
-        if model.kind == "charge" and model.material_name.lower().startswith("ice") and melting \
-                and model.initial.plateau is None and ln.initial_T > melting[0].T + T_TOL:
+        if melting and ln.initial_T > melting[0].T + T_TOL:
             out.append(Phrase("{name} is ice charged at {T}, above its melting point {T_m}: it is counted as water, "
                               "with no ice to melt. Charge ice at or below {T_m}.",
                               {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
@@ -676,11 +677,9 @@ def _boiling_in_a_mixture(p: Problem, lines: list[LineResult]) -> list[Phrase]:
 NEGLIGIBLE_DUTY = 1e-6
 
 
-def _negligible_duties(p: Problem, lines: list[LineResult], terms: list[TermResult]) -> list[Phrase]:
-    """A typed duty so small beside the rest of the balance that its unit was likely slipped (mW for MW, W for
-    kW)."""
+def _negligible_duties(p: Problem, terms: list[TermResult], largest: float) -> list[Phrase]:
+    """A typed duty so small beside the balance's largest heat that its unit was likely slipped (mW for MW)."""
     kind = heat_kind(p.basis)
-    largest = max([abs(ln.total) for ln in lines] + [abs(t.heat) for t in terms], default=0.0)
     solved = p.unknown_target.name if p.unknown.kind == "duty" else None
     return [Phrase("Duty {name} is {Q}, under a millionth of the balance's largest heat ({largest}): check its "
                    "unit (mW or MW, W or MW).", {"name": t.name, "Q": Measure(t.heat, kind),
@@ -688,8 +687,9 @@ def _negligible_duties(p: Problem, lines: list[LineResult], terms: list[TermResu
             for t in terms if t.kind == "duty" and t.name != solved and 0 < abs(t.heat) < NEGLIGIBLE_DUTY * largest]
 
 
-def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> None:
-    """No result leaves the solver unless every number is finite and the balance closes."""
+def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> float:
+    """No result leaves the solver unless every number is finite and the balance closes; returns the balance's
+    largest heat (the scale of its closure)."""
     contributions = [x for ln in lines for x in (ln.sensible, ln.latent, ln.amount_si, ln.initial_T, ln.final_T)]
     contributions += [t.heat for t in terms] + [residual]
     if not all(math.isfinite(x) for x in contributions):
@@ -704,6 +704,7 @@ def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult],
             "temperature): give this temperature, or solve for another quantity, and report the worksheet.",
             {"residual": Measure(residual, heat_kind(p.basis)),
              "tolerance": Measure(tolerance, heat_kind(p.basis), 2)}), p.unknown_address)
+    return largest
 
 
 def _cross(source: LineResult, target: LineResult, verb: str) -> Phrase:
