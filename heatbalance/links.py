@@ -26,8 +26,9 @@ from urllib.parse import parse_qs, parse_qsl, quote, urlencode, urlsplit, urluns
 from .errors import InputError
 from .worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-__all__ = ["view_link", "link_units", "named_unit_set", "UNITS_PARAM", "LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
-           "check_id", "encode_sheet", "decode_sheet", "revision_link", "sheet_link", "parse_link"]
+__all__ = ["LinkError", "ID_LENGTH", "SHEET_PREFIX", "MAX_SHEET_PARAM_CHARS", "canonical_json", "revision_id",
+           "check_id", "encode_sheet", "decode_sheet", "revision_link", "sheet_link", "parse_link", "view_link",
+           "link_units", "named_unit_set", "UNITS_PARAM"]
 
 ID_LENGTH = 24  # hex digits of SHA-256: 96 bits, collisions out of reach and not guessable by enumeration
 _ID = re.compile(rf"^[0-9a-f]{{{ID_LENGTH}}}$")
