@@ -57,6 +57,7 @@ class KirchhoffHeat:
     correlations: dict  # species as written -> the cp method used
     missing: tuple[str, ...] = ()  # species without cp data in their phase (then dH_T = dH_standard)
     extrapolated: tuple[str, ...] = ()  # species whose correlation does not reach T
+    beyond: tuple[tuple[str, float], ...] = ()  # liquids and solids above their data's top [K]: not in that phase
 
     @property
     def corrected(self) -> bool:
@@ -116,17 +117,20 @@ def reaction_enthalpy_at(heat: ReactionHeat, T: float) -> KirchhoffHeat:
     Smith, Van Ness & Abbott, Introduction to Chemical Engineering Thermodynamics, 7th ed., section 4.6
     (temperature dependence of ΔH°). Bell, C. et al., thermo (ChEDL), heat-capacity correlations.
     """
-    correlations, missing, extrapolated, integral = {}, [], [], 0.0
+    correlations, missing, extrapolated, beyond, integral = {}, [], [], [], 0.0
     for s in heat.species:
         written = f"{s.written}({s.phase})"
         correlation = _cp_correlation(s.CAS, s.phase, s.MW, T)
-        if correlation is None:
+        part = None if correlation is None else correlation.T_dependent_property_integral(T_STANDARD, T)
+        if part is None:  # no correlation in its phase, or none that integrates to T
             missing.append(written)
             continue
         correlations[written] = correlation.method
         low, high = correlation.T_limits.get(correlation.method, (0.0, float("inf")))
         if min(T, T_STANDARD) < low or max(T, T_STANDARD) > high:
             extrapolated.append(written)
-        integral += s.nu * correlation.T_dependent_property_integral(T_STANDARD, T)
+            if s.phase != "g" and T > high:  # a liquid's or solid's data end where that phase ends
+                beyond.append((written, high))
+        integral += s.nu * part
     dH_T = heat.dH if missing else heat.dH + integral
-    return KirchhoffHeat(T, heat.dH, dH_T, correlations, tuple(missing), tuple(extrapolated))
+    return KirchhoffHeat(T, heat.dH, dH_T, correlations, tuple(missing), tuple(extrapolated), tuple(beyond))

@@ -784,6 +784,13 @@ class _Builder:
             raise InputError(Phrase("ΔH at temperature (Kirchhoff's law over the species' cp correlations) is taken "
                                     "from 100 K to 3000 K, not at {T}", {"T": Measure(T, "temperature", 1)}), source)
         result = reaction_enthalpy_at(hess, T)
+        if result.beyond:
+            species, top = result.beyond[0]
+            raise InputError(Phrase("{species} is written as a liquid or a solid, but its heat-capacity data in that "
+                                    "phase end at {top}, below the reaction temperature {T}: it is not in that phase "
+                                    "there. Write the species in its phase at {T} (e.g. (g)), or give ΔH at "
+                                    "temperature yourself", {"species": species, "top": Measure(top, "temperature", 1),
+                                                             "T": Measure(T, "temperature", 1)}), source)
         if not math.isfinite(result.dH_T):
             raise InputError(Phrase("the species' cp correlations give no finite ΔH at {T}",
                                     {"T": Measure(T, "temperature", 1)}), source)

@@ -128,3 +128,33 @@ def test_a_reaction_temperature_out_of_range_is_refused_at_its_address(typed):
         solve(converter({"temperature": typed}))
     assert caught.value.where == "reactions[Synthesis].temperature"
     assert "from 100 K to 3000 K" in caught.value.message
+
+
+def _hot_reaction(equation: str, key: str, T_C: float):
+    return build(basis={"kind": "batch"},
+                 vessels=[{"name": "V", "charges": [{"name": "W", "material": "water", "mass": q(1000, "kg"),
+                                                     "initial": temp(25)}], "final": temp(25)}],
+                 reactions=[{"name": "R", "equation": equation, "key_reactant": key, "amount": q(1, "kmol"),
+                             "temperature": q(T_C, "degC"), "vessel": "V"}],
+                 duties=[{"name": "Q"}], unknowns=[{"kind": "duty", "term": "Q"}])
+
+
+def test_a_liquid_written_beyond_its_liquid_data_is_refused_at_the_reaction_temperature():
+    from heatbalance.errors import InputError
+
+    # liquid ethanol cannot exist at 1000 °C (critical point 241 °C): its liquid cp stretched there made ΔH
+    # −1629 kJ/mol against −1283 for ethanol(g), 27 % too much heat
+    with pytest.raises(InputError) as refused:
+        solve(_hot_reaction("ethanol(l) + 3 O2(g) -> 2 CO2(g) + 3 H2O(g)", "ethanol", 1000))
+    assert refused.value.where == "reactions[R].temperature"
+    assert "ethanol(l) is written as a liquid or a solid" in refused.value.message
+    # written as a gas: ΔH(1000 °C) = −1283.0 kJ/mol (Kirchhoff from ideal-gas cp; a checker, CoolProp at 1 Pa)
+    gas = solve(_hot_reaction("ethanol(g) + 3 O2(g) -> 2 CO2(g) + 3 H2O(g)", "ethanol", 1000))
+    assert gas.answer.value_si == pytest.approx(-1283.0e6, rel=2e-3)
+
+
+def test_a_species_whose_data_do_not_integrate_to_the_temperature_keeps_25_C_not_a_traceback():
+    # NaOH(s) melts at 318 °C; its solid cp table ends there: the integral to 330 °C is none
+    result = solve(_hot_reaction("NaOH(s) + HCl(g) -> NaCl(s) + H2O(g)", "NaOH", 330))
+    (warning,) = [w for w in result.warnings if "NaOH(s)" in w.text]
+    assert warning.address == "reactions[R].equation" and "25 °C value" in warning.text
