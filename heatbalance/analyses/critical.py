@@ -1,6 +1,7 @@
 """Near the critical point: where latent heats and heat capacities from different formulations part ways.
 
-A line's state is warned when its pressure is at or above :data:`PRESSURE_SHARE` of the fluid's critical pressure,
+A line's state is warned when its pressure is at or above :data:`PRESSURE_SHARE` of the fluid's critical pressure
+at a temperature within :data:`REDUCED_T_BAND` of the critical temperature,
 or when its temperature is within :data:`TEMPERATURE_BAND` of the critical temperature while the fluid is dense
 (pressure at or above :data:`DENSE_SHARE` of the critical pressure: a gas at its critical temperature and a few bar is
 far from the critical point). There the latent heat goes to zero and cp grows without bound, and formulations
@@ -10,11 +11,15 @@ from __future__ import annotations
 
 from ..messages import Measure, Phrase
 
-__all__ = ["PRESSURE_SHARE", "TEMPERATURE_BAND", "DENSE_SHARE", "near_critical", "near_critical_warnings"]
+__all__ = ["PRESSURE_SHARE", "TEMPERATURE_BAND", "DENSE_SHARE", "REDUCED_T_BAND", "near_critical",
+           "near_critical_warnings"]
 
 PRESSURE_SHARE = 0.97  # of p_c: common practice, no source (the issue's "about 0.97")
 TEMPERATURE_BAND = 5.0  # K either side of T_c: common practice, no source ("a few kelvin")
 DENSE_SHARE = 0.5  # of p_c: below it a state at T_c is a gas far from the critical point (common practice, no source)
+# T/T_c where a state at or above PRESSURE_SHARE is near the critical point: a cold compressed liquid (water at 220 bar
+# and 25 °C) or a hot supercritical gas (400 bar and 1000 °C) is not (common practice, no source)
+REDUCED_T_BAND = (0.9, 1.2)
 
 
 def near_critical(T: float, P: float, T_c: float, p_c: float) -> bool:
@@ -24,8 +29,12 @@ def near_critical(T: float, P: float, T_c: float, p_c: float) -> bool:
     True
     >>> near_critical(647.0, 1e5, 647.096, 22.064e6)  # steam at 1 bar and T_c: an ordinary gas
     False
+    >>> near_critical(1273.15, 40e6, 647.096, 22.064e6), near_critical(298.15, 22e6, 647.096, 22.064e6)
+    (False, False)
     """
-    return P >= PRESSURE_SHARE * p_c or (abs(T - T_c) <= TEMPERATURE_BAND and P >= DENSE_SHARE * p_c)
+    if P >= PRESSURE_SHARE * p_c:
+        return REDUCED_T_BAND[0] * T_c <= T <= REDUCED_T_BAND[1] * T_c
+    return abs(T - T_c) <= TEMPERATURE_BAND and P >= DENSE_SHARE * p_c
 
 
 def near_critical_warnings(problem, result) -> list[Phrase]:
