@@ -74,12 +74,12 @@ def ice_in_fahrenheit():
 
 
 # --------------------------------------------------------------------------- 1. the difference's unit
-def test_a_temperature_answer_typed_in_degF_differs_in_degF_in_the_SI_view():
+def test_a_temperature_answer_typed_in_degF_differs_in_degF_in_the_US_view():
     ws = ice_in_fahrenheit()
     frame = run_cases(ws)
-    table = case_table(frame, "SI")
+    table = case_table(frame, "US")
     row = answer_row(frame, table)
-    assert unit_of(row) == "°F"  # the unit typed in the unknown's field (DEVELOPERS.md, What if)
+    assert unit_of(row) == "°F"  # the view's, as on the answer (a unit set's own unit: DEVELOPERS.md, Engine rules)
     # hand calculation: 1 t of water cooling 20 -> 0 °C gives ~84 MJ, less than the ~141 MJ that warms and melts
     # 400 kg of ice at -10 °C, so the tank ends on the melting plateau: 0 °C = 32 °F
     assert table.loc[row, AS_TYPED] == pytest.approx(32.0, abs=0.01)
@@ -90,12 +90,12 @@ def test_a_temperature_answer_typed_in_degF_differs_in_degF_in_the_SI_view():
     assert_differences_are_of_the_values_shown(frame, table)
 
 
-def test_a_temperature_answer_typed_in_degC_differs_in_kelvin_in_the_US_view():
-    ws = with_cases(sample(ICE), case("less ice", (ICE_MASS, 200, "kg")))
+def test_a_temperature_answer_typed_in_degF_differs_in_kelvin_in_the_SI_view():
+    ws = ice_in_fahrenheit()
     frame = run_cases(ws)
-    table = case_table(frame, "US")
+    table = case_table(frame, "SI")
     row = answer_row(frame, table)
-    assert unit_of(row) == "°C"  # the unit typed in the unknown's field
+    assert unit_of(row) == "°C"  # the view's, as the answer itself shows it (typed °F is a unit set's own unit)
     delta_K = frame.loc["answer", "less ice"] - frame.loc["answer", AS_TYPED]
     # hand calculation: a difference in °C is the difference in kelvin
     assert table.loc[row, f"less ice − {AS_TYPED}"] == pytest.approx(delta_K, rel=1e-9)
@@ -124,7 +124,7 @@ def test_the_command_line_shows_the_difference_in_degF(tmp_path, capsys):
     path = tmp_path / "ice.json"
     ws = ice_in_fahrenheit()
     path.write_text(ws.model_dump_json())
-    assert main(["cases", str(path), "--json"]) == 0
+    assert main(["cases", str(path), "--json", "--units", "US"]) == 0
     shown = json.loads(capsys.readouterr().out)
     row = shown["index"].index(next(r for r in shown["index"] if r.startswith("Tank T-5 final temperature")))
     values = dict(zip(shown["columns"], shown["data"][row]))

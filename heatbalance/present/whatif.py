@@ -10,9 +10,8 @@ import plotly.graph_objects as go
 from ..address import label as address_label
 from ..analyses.cases import difference_column
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
-from ..errors import HeatBalanceError
-from ..units import check_unit, from_si
-from .text import NOT_APPLICABLE, UNIT_SETS, display_unit, error_text, no_negative_zero, phrase_text
+from ..units import from_si
+from .text import NOT_APPLICABLE, display_unit, error_text, no_negative_zero, phrase_text, shown_unit
 
 __all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
            "case_table_text", "refusal_rows"]
@@ -41,16 +40,13 @@ def output_label(name: str, frame: pd.DataFrame | None = None) -> str:
 
 
 def output_unit(kind: str, system: str, name: str = "", frame: pd.DataFrame | None = None) -> str:
-    """The unit an output is shown in: the answer's typed unit when there is one (as on the answer itself),
-    else the view's unit of its kind (``""`` for a plain number)."""
+    """The unit an output is shown in, as on the answer itself (:func:`~heatbalance.present.text.shown_unit`): the
+    answer's typed unit when it is one of its own (MMBtu/h, t/h), else the view's unit of its kind (a typed °C is
+    °F in the US view); ``""`` for a plain number."""
+    if not kind:
+        return ""
     typed = (frame.attrs.get("answer") or {}).get("unit") if frame is not None and name == "answer" else None
-    if typed:
-        try:
-            check_unit(typed, kind)
-            return typed
-        except HeatBalanceError:
-            pass
-    return UNIT_SETS[system].get(kind, "") if kind else ""
+    return shown_unit(typed, kind, system)
 
 
 def _convert(values, kind: str, unit: str):
