@@ -193,8 +193,9 @@ def test_the_equipment_row_says_heat_given_when_the_vessel_cools():
 # -- a decimal comma --------------------------------------------------------------------------------------------------
 @pytest.mark.parametrize("cell, message", [
     ("12,5 t/h", "'12,5 t/h' has a comma in the number: use a decimal point, e.g. '12.5 t/h'"),
-    ("1,200 kg/h", "'1,200 kg/h' has a comma in the number: use a decimal point, e.g. '1.200 kg/h' "
-                   "(or '1200 kg/h' if the comma separates thousands)"),
+    # a US engineer's 50,000 lb/h: the thousands reading first, never only '50.000' (50 lb/h)
+    ("50,000 lb/h", "'50,000 lb/h' has a comma in the number, which reads two ways: write '50000 lb/h' if the "
+                    "comma separates thousands, or '50.000 lb/h' if it is a decimal comma"),
 ])
 def test_a_decimal_comma_is_explained_with_what_was_typed(cell, message):
     at = page(sample(GLYCOL))

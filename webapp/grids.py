@@ -168,11 +168,11 @@ def _comma_message(text: str, match: re.Match) -> str:
     """A number written with a comma: say so, with what was typed and what to write instead."""
     whole, part, unit = match.groups()
     point = f"{whole or '0'}.{part} {unit}".strip()
-    message = f"'{text}' has a comma in the number: use a decimal point, e.g. '{point}'"
-    if len(part) == 3 and whole.lstrip("+-"):  # 1,200 may be a thousands separator
+    if len(part) == 3 and whole.lstrip("+-"):  # 50,000 reads two ways: thousands (US, UK) or a decimal comma
         thousands = f"{whole}{part} {unit}".strip()
-        message += f" (or '{thousands}' if the comma separates thousands)"
-    return message
+        return (f"'{text}' has a comma in the number, which reads two ways: write '{thousands}' if the comma "
+                f"separates thousands, or '{point}' if it is a decimal comma")
+    return f"'{text}' has a comma in the number: use a decimal point, e.g. '{point}'"
 
 
 _EXAMPLES = {"mass_flow": "12 t/h", "mass": "3.5 t", "pressure": "4 barg", "temperature": "40 °C",
