@@ -303,3 +303,19 @@ def test_names_in_the_chart_are_plotly_text_escaped():
     assert grid["layout"]["title"]["text"] == "What if: &lt;b&gt;Gly&amp;co&lt;/b&gt;: heat absorbed"
     assert grid["layout"]["yaxis"]["title"]["text"] == "&lt;b&gt;Gly&amp;co&lt;/b&gt; outlet temperature [°C]"
     assert "<b>Gly" not in json.dumps(grid)
+
+
+def test_a_new_unit_converts_the_range_the_panel_filled_and_keeps_one_the_user_typed():
+    at = page(sample(GLYCOL))
+    at.selectbox(key="whatif_axis_0").set_value(OUTLET).run()
+    start, stop = at.number_input(key="whatif_from_0").value, at.number_input(key="whatif_to_0").value
+    at.text_input(key="whatif_unit_0").input("°F").run()
+    # the panel's own range follows the unit: T[°F] = 1.8·T[°C] + 32 (exact); it was reread as °F before
+    assert at.number_input(key="whatif_from_0").value == pytest.approx(1.8 * start + 32, rel=1e-9)
+    assert at.number_input(key="whatif_to_0").value == pytest.approx(1.8 * stop + 32, rel=1e-9)
+    # a range the user typed is theirs: a unit typed after it does not convert it (product rule, no source)
+    at.number_input(key="whatif_from_0").set_value(100.0)
+    at.number_input(key="whatif_to_0").set_value(160.0)
+    at.text_input(key="whatif_unit_0").input("°C").run()
+    assert (at.number_input(key="whatif_from_0").value, at.number_input(key="whatif_to_0").value) == (100.0, 160.0)
+    no_exception(at)

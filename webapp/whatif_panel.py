@@ -38,6 +38,7 @@ from heatbalance.present.whatif import (case_table, output_label, output_unit, r
                                         sweep_csv_bytes, sweep_figure, sweep_table)
 from heatbalance.problem import build_problem
 from heatbalance.results import Result
+from heatbalance.units import from_si, kind_of, to_si
 from heatbalance.worksheet import Case, Override, Quantity, Worksheet, parse_worksheet
 
 from .common import count_refusal, page_state, plain
@@ -165,8 +166,34 @@ def _fill_range(n: int, i: address.Input) -> None:
     st.session_state[key(f"from_{n}")] = float(low)
     st.session_state[key(f"to_{n}")] = float(high)
     st.session_state[key(f"count_{n}")] = float(DEFAULT_POINTS)
-    st.session_state[key(f"unit_{n}")] = _shown_unit(i)
+    st.session_state[key(f"unit_{n}")] = st.session_state[key(f"unit_was_{n}")] = _shown_unit(i)
+    st.session_state[key(f"range_was_{n}")] = (float(low), float(high))
     st.session_state[key(f"filled_{n}")] = marker
+
+
+def _stored_unit(text: str, i: address.Input) -> str:
+    """A unit as typed in the panel (``°C``) as the worksheet stores it (``degC``); raises when it does not read."""
+    return parse_quantity(f"1 {text.strip()}", i.kinds, i.address).unit
+
+
+def _follow_unit(n: int, i: address.Input) -> None:
+    """A new unit converts the range the panel filled in (35 to 75 °C becomes 95 to 167 °F) rather than rereading it
+    in that unit; numbers the user typed are theirs and stay. A unit that does not read changes nothing here (the
+    sweep refuses it at the input)."""
+    state = st.session_state
+    was, now = state.get(key(f"unit_was_{n}")) or "", state.get(key(f"unit_{n}")) or ""
+    ends = (state.get(key(f"from_{n}")), state.get(key(f"to_{n}")))
+    try:
+        old, new = _stored_unit(was, i), _stored_unit(now, i)
+        kind = kind_of(new, i.kinds)
+    except HeatBalanceError:
+        return
+    state[key(f"unit_was_{n}")] = now
+    if ends != state.get(key(f"range_was_{n}")) or None in ends:
+        return
+    converted = tuple(from_si(to_si(value, old, kind), new, kind) for value in ends)
+    state[key(f"from_{n}")], state[key(f"to_{n}")] = converted
+    state[key(f"range_was_{n}")] = converted
 
 
 def _range_widgets(n: int, i: address.Input, system: str) -> bool:
@@ -176,14 +203,15 @@ def _range_widgets(n: int, i: address.Input, system: str) -> bool:
     c1.number_input("From", key=key(f"from_{n}"), format=_NUMBER, step=None)
     c2.number_input("To", key=key(f"to_{n}"), format=_NUMBER, step=None)
     # a float field without bounds: the browser would keep the old count of 0 (hover tip only) and truncate 2.5
-    # to 2; _points_refusal says so here instead
+    # to 2; count_refusal says so here instead
     c3.number_input("Points", key=key(f"count_{n}"), step=1.0, format="%.10g")
     if _is_fraction(i):
         c4.text_input("Unit", key=key(f"unit_{n}"), disabled=True, placeholder="0 to 1",
                       help="A plain number between 0 and 1: no unit.")
     else:
-        c4.text_input("Unit", key=key(f"unit_{n}"),
-                      help="Any unit of this input's kind (the unit typed on the sheet to start with).")
+        c4.text_input("Unit", key=key(f"unit_{n}"), on_change=_follow_unit, args=(n, i),
+                      help="Any unit of this input's kind (the unit typed on the sheet to start with); From and "
+                           "To are converted to it.")
     refusal = count_refusal(st.session_state.get(key(f"count_{n}")), 1, MAX_POINTS, "points", i.address)
     if refusal is not None:
         st.error(plain(_refusal(refusal, system)), icon=":material/error:")
@@ -202,7 +230,7 @@ def sweep_axes(inputs: dict[str, address.Input], chosen: list[str], ranges: list
         unit = (unit or "").strip()
         if not _is_fraction(i) and unit:
             try:
-                unit = parse_quantity(f"1 {unit}", i.kinds, addr).unit
+                unit = _stored_unit(unit, i)
             except HeatBalanceError:
                 pass
         values = axis_values(float(start), float(stop), count=int(count))
