@@ -39,6 +39,7 @@ def registry():
     ureg.define("TR = ton_of_refrigeration")
     ureg.define("tonne_per_hour = tonne / hour = tph")
     ureg.define("gpm = gallon / minute")  # US gallons per minute, as pumps and meters are rated
+    ureg.define("lbm = pound")  # pound-mass, as US process data write it (lbm/h)
     return ureg
 
 
@@ -106,6 +107,7 @@ BOUNDS: dict[str, float] = {
 
 _GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}
 _ABSOLUTE_ALIASES = {"bara": "bar", "psia": "psi", "kPaa": "kPa", "MPaa": "MPa"}
+_CASE_SLIPS = {name.lower(): name for name in (*_GAUGE, *_ABSOLUTE_ALIASES)}  # PSIG -> psig, BARG -> barg
 _TEMPERATURE_ALIASES = {"C": "degC", "°C": "degC", "degC": "degC", "F": "degF", "°F": "degF",
                         "degF": "degF", "K": "K", "R": "degR", "°R": "degR", "degR": "degR"}
 _DIFFERENCE_ALIASES = {"K": "K", "degC": "delta_degC", "°C": "delta_degC", "C": "delta_degC",
@@ -144,7 +146,9 @@ def _parse(unit: str, kind: str, where: str) -> tuple:
     try:
         parsed = _unit(_normalise(text))
     except Exception as exc:  # noqa: BLE001 - pint's parser raises many types ("kg/0", "(", "kg**(1/0)")
-        raise UnitError(unit, KINDS[kind][1], where, detail="not a unit this tool knows") from exc
+        meant = _CASE_SLIPS.get(text.lower()) if kind == "pressure" else None
+        detail = "not a unit this tool knows" + (f"; units are case-sensitive: write '{meant}'" if meant else "")
+        raise UnitError(unit, KINDS[kind][1], where, detail=detail) from exc
     return parsed, offset
 
 

@@ -148,3 +148,11 @@ def test_a_worksheet_with_a_ton_flow_is_refused_at_its_address():
     with pytest.raises(InputError) as refused:
         solve(load_worksheet(json.dumps(doc).encode()))
     assert refused.value.where == "streams[Glycol].flow" and "'ton' is read three ways" in refused.value.message
+
+
+def test_pound_mass_and_a_case_slip_in_a_gauge_unit():
+    assert to_si(3600, "lbm/h", "mass_flow") == pytest.approx(0.45359237, rel=1e-12)  # lbm = lb (exact)
+    with pytest.raises(UnitError) as refused:
+        to_si(150, "PSIG", "pressure", "streams[Steam].pressure")
+    assert refused.value.where == "streams[Steam].pressure"
+    assert "units are case-sensitive: write 'psig'" in refused.value.message
