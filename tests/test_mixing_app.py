@@ -103,3 +103,12 @@ def test_a_temperature_answer_shows_hundredths_in_either_view():
     assert unescaped(at.container(key="answer_value").markdown[0].value) == "54.98 °C"
     at.radio(key="unit_system").set_value("US customary (°F, lb, Btu)").run()
     assert unescaped(at.container(key="answer_value").markdown[0].value) == "130.96 °F"
+
+
+def test_the_screening_numbers_are_explained_for_a_newcomer():
+    at = page(sample("batch_reactor_exotherm.json"))
+    legend = next(c.value for c in at.caption if c.value.startswith("T_process: the batch's temperature"))
+    # each header of the numbers table says what it is, and which ΔT_ad MTSR used (φ = 1 by default: conservative)
+    for words in ("MTSR: the highest temperature", "MTT: the highest the equipment allows", "T_D24: where a "
+                  "decomposition takes 24 h", "φ: the vessel's thermal inertia factor", "with φ = 1"):
+        assert words in legend

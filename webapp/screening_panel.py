@@ -239,6 +239,12 @@ def _current(index: int, worksheet: Worksheet, screening: Screening, system: str
     return next((s for s in redone.screening if s.vessel == screening.vessel), None)
 
 
+_LEGEND = ("T_process: the batch's temperature when cooling fails. MTSR: the highest temperature the desired "
+           "reaction can reach then (T_process + accumulated ΔT_ad). MTT: the highest the equipment allows (the boiling "
+           "point, or where the pressure reaches the relief set pressure). T_D24: where a decomposition takes 24 h to "
+           "run away (from calorimetry). ΔT_ad: the adiabatic rise; φ: the vessel's thermal inertia factor.")
+
+
 def _numbers(s: Screening, system: str) -> None:
     """The numbers as one small table (markdown, like the answer)."""
     dt = temperature_difference_text
@@ -251,3 +257,5 @@ def _numbers(s: Screening, system: str) -> None:
         "| --- | --- | --- | --- | --- | --- | --- |\n"
         f"| {t(s.T_process)} | **{t(s.MTSR)}** ({s.accumulation:.0%} accumulated) | {t(s.MTT)} | {t(s.T_D24)} "
         f"| {dt(s.dT_ad, system)} | {dt(s.dT_ad_phi, system)} | {s.phi:.3f} |")
+    st.caption(_LEGEND + (" MTSR uses ΔT_ad / φ (thermal inertia included)." if s.thermal_inertia_used else
+                          " MTSR uses ΔT_ad with φ = 1 (the vessel left out: conservative)."))
