@@ -1,4 +1,4 @@
-"""Shared fixtures of the real-browser tests: the app server and Debian's chromium.
+"""Shared fixtures: each page test's own store (``db``); the real-browser tests' app server and Debian's chromium.
 
 The server is started once per test session, only when a browser test asks for it, on a free
 port of 127.0.0.1, and stopped at the end. With HEATBALANCE_APP_URL set (as `.ci/run` does),
@@ -24,6 +24,16 @@ SERVER_START_TIMEOUT_S = 90
 CHROMIUM = Path("/usr/bin/chromium")
 LAUNCH_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
                "--no-first-run"]
+
+
+@pytest.fixture
+def db(monkeypatch, tmp_path):
+    """A store of its own for each page test (the page opens the one HEATBALANCE_DB names); its URL."""
+    from heatbalance.store import ENV_DATABASE_URL, ENV_DB
+
+    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
+    monkeypatch.setenv(ENV_DB, str(tmp_path / "page.sqlite3"))
+    return f"sqlite:///{tmp_path / 'page.sqlite3'}"
 
 
 def _free_port() -> int:

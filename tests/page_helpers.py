@@ -31,6 +31,17 @@ def page(ws):
     return at.run()
 
 
+def opened(**query):
+    """A fresh page opened on an address with this query (``ws=…``, ``units=US``), as a new browser context opens
+    it: its own first run reads the link."""
+    from streamlit.testing.v1 import AppTest
+
+    at = AppTest.from_file(APP, default_timeout=60)
+    for name, value in query.items():
+        at.query_params[name] = value
+    return at.run()
+
+
 def unescaped(text: str) -> str:
     """Markdown source as read on screen (user text is shown escaped, as plain text; the invisible word joiners
     that break autolinks are not seen)."""

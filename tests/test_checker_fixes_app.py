@@ -13,34 +13,19 @@ import io
 
 import pypdf
 import pytest
-from page_helpers import APP, answer_value, errors, no_traceback, page, sample, unescaped
+from page_helpers import answer_value, errors, no_traceback, opened, page, sample, unescaped
 from streamlit.testing.v1 import AppTest
 
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.links import encode_sheet, revision_id
 from heatbalance.present.text import answer_text
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from heatbalance.store import WorksheetStore
 from webapp.common import UNIT_SYSTEMS
 from webapp.filing_panel import OFFER
 from webapp.state import KEY
 
 CONDENSER = "solvent_condenser_cooling_water.json"
 SI, US = list(UNIT_SYSTEMS)  # the radio's labels
-
-
-@pytest.fixture
-def db(monkeypatch, tmp_path):
-    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
-    monkeypatch.setenv(ENV_DB, str(tmp_path / "page.sqlite3"))
-    return f"sqlite:///{tmp_path / 'page.sqlite3'}"
-
-
-def opened(**query) -> AppTest:
-    """A fresh page opened on an address with this query, as a new browser context opens it."""
-    at = AppTest.from_file(APP, default_timeout=60)
-    for name, value in query.items():
-        at.query_params[name] = value
-    return at.run()
 
 
 def param(at: AppTest, name: str) -> str | None:

@@ -16,7 +16,6 @@ from heatbalance import solve
 from heatbalance.links import revision_id
 from heatbalance.present.text import answer_text as written
 from heatbalance.reactor import CAUTION
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB
 from page_helpers import answer_value, edit, errors, held, no_traceback, page, sample, shown_answer, typed
 from webapp.answer import NEW_DUTY_LABEL
 from webapp.grids import TYPED_INTO_UNKNOWN
@@ -144,10 +143,6 @@ def test_title_and_notes_are_edited_as_plain_text_and_undone():
 
 
 # -- saved state beside the answer ------------------------------------------------------------------------------
-@pytest.fixture
-def db(monkeypatch, tmp_path):
-    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
-    monkeypatch.setenv(ENV_DB, str(tmp_path / "page.sqlite3"))
 
 
 def saved_state(at) -> str:

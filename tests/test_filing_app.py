@@ -19,7 +19,7 @@ from heatbalance.analyses.uncertainty import propagate, suggested_tolerances
 from heatbalance.errors import InputError
 from heatbalance.links import revision_id
 from heatbalance.present.uncertainty import monte_carlo_text, uncertainty_text
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from heatbalance.store import WorksheetStore
 from heatbalance.units import from_si
 from heatbalance.worksheet import Quantity, Tolerance
 from webapp.filing_panel import OFFER
@@ -32,14 +32,6 @@ FLOW = "streams[Toluene overhead].flow"
 CW_OUT = "streams[Cooling water].outlet.temperature"
 CW_IN = "streams[Cooling water].inlet.temperature"
 UNKNOWN = "streams[Cooling water].flow"
-
-
-@pytest.fixture
-def db(monkeypatch, tmp_path):
-    """A store of its own for each test (the page opens the one HEATBALANCE_DB names)."""
-    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
-    monkeypatch.setenv(ENV_DB, str(tmp_path / "filing.sqlite3"))
-    return f"sqlite:///{tmp_path / 'filing.sqlite3'}"
 
 
 def no_exception(at) -> None:

@@ -24,7 +24,6 @@ from heatbalance import solve
 from heatbalance.address import with_value
 from heatbalance.present.figures import energy_waterfall
 from heatbalance.present.text import answer_text
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB
 from webapp import common
 from webapp.common import BUILT_KEPT, UNIT_SYSTEMS, built
 from webapp.site_panel import WIDGET as SITE
@@ -45,13 +44,6 @@ def solves(monkeypatch):
 
     monkeypatch.setattr(PageState, "solve", counted)
     return solved
-
-
-@pytest.fixture
-def db(monkeypatch, tmp_path):
-    """A store of its own (the page opens the one HEATBALANCE_DB names)."""
-    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
-    monkeypatch.setenv(ENV_DB, str(tmp_path / "fragments.sqlite3"))
 
 
 def unescaped(markdown: str) -> str:

@@ -13,9 +13,9 @@ import pytest
 from streamlit.testing.v1 import AppTest
 
 from heatbalance.links import revision_id
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from heatbalance.store import WorksheetStore
 from heatbalance.worksheet import Quantity, ScreeningInputs, parse_worksheet
-from page_helpers import APP, ROOT, edit, held, no_traceback, page, sample, unescaped
+from page_helpers import ROOT, edit, held, no_traceback, opened, page, sample, unescaped
 from webapp.mixing_panel import KEYS as MIXING
 from webapp.state import KEY, PageState
 
@@ -23,21 +23,6 @@ GLYCOL = "steam_heater_glycol.json"  # the sample the page opens on
 REACTOR = "batch_reactor_exotherm.json"
 HYDRATION = "glycol_hydration_screening.json"  # an equation's reaction in vessel R-7
 ACID = "acid_dilution_jacketed_vessel.json"  # 98 % acid into water in vessel D-101, the mixing stated
-
-
-@pytest.fixture
-def db(monkeypatch, tmp_path):
-    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
-    monkeypatch.setenv(ENV_DB, str(tmp_path / "page.sqlite3"))
-    return f"sqlite:///{tmp_path / 'page.sqlite3'}"
-
-
-def opened(**query) -> AppTest:
-    """The page as a browser opens it (its own first run records where the sheet came from)."""
-    at = AppTest.from_file(APP, default_timeout=60)
-    for name, value in query.items():
-        at.query_params[name] = value
-    return at.run()
 
 
 def shown(text: str) -> str:

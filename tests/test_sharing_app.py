@@ -19,7 +19,7 @@ from heatbalance.errors import WorksheetFormatError
 from heatbalance.links import encode_sheet, revision_id
 from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
 
-from page_helpers import answer_value, errors, no_traceback, unescaped
+from page_helpers import answer_value, errors, no_traceback, opened, unescaped
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -28,22 +28,11 @@ SAMPLES = sorted((ROOT / "sample_data").glob("*.json"))
 DEFAULT = "steam_heater_glycol.json"  # the sample the page opens on
 
 
-@pytest.fixture
-def db(monkeypatch, tmp_path):
-    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
-    monkeypatch.setenv(ENV_DB, str(tmp_path / "page.sqlite3"))
-    return f"sqlite:///{tmp_path / 'page.sqlite3'}"
-
-
 def _sample(path: Path):
     return load_worksheet(path.read_bytes())
 
 
-def page(**query) -> AppTest:
-    at = AppTest.from_file(APP, default_timeout=60)
-    for key, value in query.items():
-        at.query_params[key] = value
-    return at.run()
+page = opened  # the page opened on an address's query
 
 
 answer = answer_value
