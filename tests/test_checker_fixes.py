@@ -12,7 +12,6 @@ annotations.
 """
 from __future__ import annotations
 
-import io
 import json
 import os
 import subprocess
@@ -20,9 +19,9 @@ import sys
 from datetime import datetime, timezone
 from pathlib import Path
 
-import pypdf
 import pytest
 import sqlalchemy as sa
+from pdf_reading import link_uris, pages_text
 
 from heatbalance import address as A
 from heatbalance.analyses import solve_and_analyse
@@ -48,10 +47,6 @@ def reactor_with_t_d24(accumulation: float | None = None):
     return parse_worksheet(data)
 
 
-def pages_text(pdf: bytes) -> list[str]:
-    return [page.extract_text() or "" for page in pypdf.PdfReader(io.BytesIO(pdf)).pages]
-
-
 def folded(pdf: bytes) -> str:
     """All the text, whitespace folded (table cells wrap lines)."""
     return " ".join(" ".join(text.split()) for text in pages_text(pdf))
@@ -60,17 +55,6 @@ def folded(pdf: bytes) -> str:
 def section(text: str, heading: str, following: str) -> str:
     start = text.index(heading)
     return text[start:text.index(following, start)]
-
-
-def link_uris(pdf: bytes) -> list[str]:
-    """The URIs of every link annotation of the PDF."""
-    uris = []
-    for page in pypdf.PdfReader(io.BytesIO(pdf)).pages:
-        for annotation in page.get("/Annots") or []:
-            action = annotation.get_object().get("/A")
-            if action is not None and "/URI" in action:
-                uris.append(str(action["/URI"]))
-    return uris
 
 
 # =========================================================================== 1. alarm, then "No warnings."

@@ -9,10 +9,8 @@ The PDF side (the link printed on the sheet) is in ``test_checker_fixes.py``.
 """
 from __future__ import annotations
 
-import io
-
-import pypdf
 import pytest
+from pdf_reading import link_uris
 from page_helpers import answer_value, errors, no_traceback, opened, page, sample, unescaped
 from streamlit.testing.v1 import AppTest
 
@@ -35,16 +33,6 @@ def param(at: AppTest, name: str) -> str | None:
 
 def shown_links(at: AppTest) -> list[str]:
     return [c.value for c in at.code]
-
-
-def link_uris(pdf: bytes) -> list[str]:
-    uris = []
-    for page_ in pypdf.PdfReader(io.BytesIO(pdf)).pages:
-        for annotation in page_.get("/Annots") or []:
-            action = annotation.get_object().get("/A")
-            if action is not None and "/URI" in action:
-                uris.append(str(action["/URI"]))
-    return uris
 
 
 # =========================================================================== 2. the unit set travels with the link
