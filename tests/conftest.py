@@ -66,6 +66,19 @@ def output_dir() -> Path:
 
 
 @contextmanager
+def running_app_with_store(tmp_path_factory, label: str):
+    """``running_app`` on a store of its own (HEATBALANCE_DB in a fresh folder, no database URL): yields the page's
+    URL and the store's SQLAlchemy URL."""
+    from heatbalance.store import ENV_DATABASE_URL, ENV_DB
+
+    db = tmp_path_factory.mktemp(f"{label}-store") / "worksheets.sqlite3"
+    env = {k: v for k, v in os.environ.items() if k != ENV_DATABASE_URL}
+    env[ENV_DB] = str(db)
+    with running_app(tmp_path_factory.mktemp(f"{label}-log") / "server.log", env) as url:
+        yield url, f"sqlite:///{db}"
+
+
+@contextmanager
 def running_app(log_path: Path, env: dict | None = None):
     """Start ``streamlit run app.py`` on a free loopback port, yield its URL, stop it at the end."""
     port = _free_port()

@@ -6,19 +6,18 @@ browser context showed the same inputs and answer, but in SI. Starts its own app
 from __future__ import annotations
 
 import dataclasses
-import os
 import re
 from pathlib import Path
 
 import pytest
 
-from conftest import running_app
+from conftest import running_app_with_store
 from page_helpers import ANSWER, FIRST_DRAW_MS, idle, open_page
 from heatbalance import load_worksheet
 from heatbalance.analyses import solve_and_analyse
 from heatbalance.links import revision_id, sheet_link
 from heatbalance.present.text import answer_text
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from heatbalance.store import WorksheetStore
 from webapp.common import UNIT_SYSTEMS
 
 pytestmark = pytest.mark.browser
@@ -31,11 +30,8 @@ TIMEOUT_MS = 30_000
 
 @pytest.fixture(scope="module")
 def server(tmp_path_factory):
-    db = tmp_path_factory.mktemp("units-store") / "worksheets.sqlite3"
-    env = {k: v for k, v in os.environ.items() if k != ENV_DATABASE_URL}
-    env[ENV_DB] = str(db)
-    with running_app(tmp_path_factory.mktemp("units-log") / "server.log", env) as url:
-        yield url, f"sqlite:///{db}"
+    with running_app_with_store(tmp_path_factory, "units") as (url, db):
+        yield url, db
 
 
 def in_view(page, text: str) -> None:

@@ -9,7 +9,6 @@ reads its text (pypdf): the revision id, the answer ± U and the signer are on i
 from __future__ import annotations
 
 import io
-import os
 import re
 from pathlib import Path
 
@@ -17,12 +16,12 @@ import pypdf
 import pytest
 from page_helpers import ANSWER, choose, idle, open_page
 
-from conftest import running_app
+from conftest import running_app_with_store
 from heatbalance import load_worksheet, solve
 from heatbalance.analyses.uncertainty import propagate
 from heatbalance.links import revision_id
 from heatbalance.present.uncertainty import uncertainty_text
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from heatbalance.store import WorksheetStore
 
 pytestmark = pytest.mark.browser
 
@@ -34,11 +33,8 @@ SIGNER = "Rosa Okafor"
 
 @pytest.fixture(scope="module")
 def server(tmp_path_factory):
-    db = tmp_path_factory.mktemp("filing-store") / "worksheets.sqlite3"
-    env = {k: v for k, v in os.environ.items() if k != ENV_DATABASE_URL}
-    env[ENV_DB] = str(db)
-    with running_app(tmp_path_factory.mktemp("filing-log") / "server.log", env) as url:
-        yield url, f"sqlite:///{db}"
+    with running_app_with_store(tmp_path_factory, "filing") as (url, db):
+        yield url, db
 
 
 @pytest.fixture

@@ -10,16 +10,14 @@ on the page as typed. Every wait is on page state, never a fixed sleep.
 """
 from __future__ import annotations
 
-import os
 from pathlib import Path
 
 import pytest
 
-from conftest import running_app
+from conftest import running_app_with_store
 from page_helpers import ANSWER
 from heatbalance import address
 from heatbalance.links import sheet_link
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB
 from heatbalance.worksheet import Quantity, load_worksheet
 from webapp.common import WORD_JOINER
 
@@ -66,10 +64,7 @@ def refused_worksheet():
 
 @pytest.fixture(scope="module")
 def server(tmp_path_factory):
-    db = tmp_path_factory.mktemp("plain-store") / "worksheets.sqlite3"
-    env = {k: v for k, v in os.environ.items() if k != ENV_DATABASE_URL}
-    env[ENV_DB] = str(db)
-    with running_app(tmp_path_factory.mktemp("plain-log") / "server.log", env) as url:
+    with running_app_with_store(tmp_path_factory, "plain") as (url, _):
         yield url
 
 

@@ -7,18 +7,17 @@ link opens the same answer without the database; a bad link shows its message.
 """
 from __future__ import annotations
 
-import os
 import re
 from pathlib import Path
 
 import pytest
 
-from conftest import running_app
+from conftest import running_app_with_store
 from page_helpers import ANSWER
 from heatbalance import load_worksheet, solve
 from heatbalance.present.text import answer_text
 from heatbalance.links import revision_id, sheet_link
-from heatbalance.store import ENV_DATABASE_URL, ENV_DB, WorksheetStore
+from heatbalance.store import WorksheetStore
 
 pytestmark = pytest.mark.browser
 
@@ -29,11 +28,8 @@ TIMEOUT_MS = 30_000
 
 @pytest.fixture(scope="module")
 def server(tmp_path_factory):
-    db = tmp_path_factory.mktemp("share-store") / "worksheets.sqlite3"
-    env = {k: v for k, v in os.environ.items() if k != ENV_DATABASE_URL}
-    env[ENV_DB] = str(db)
-    with running_app(tmp_path_factory.mktemp("share-log") / "server.log", env) as url:
-        yield url, f"sqlite:///{db}"
+    with running_app_with_store(tmp_path_factory, "share") as (url, db):
+        yield url, db
 
 
 @pytest.fixture
