@@ -259,13 +259,17 @@ def test_a_charge_above_its_boiling_point_is_said_to_be_vapour_as_charged():
     assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
 
 
+def _one_charge_duty(charge: str, material: str, kg: float, initial_C: float, final_C: float):
+    """A 0 barg batch vessel V of one charge taken from one temperature to another; its duty is the unknown."""
+    return build(basis={"kind": "batch"},
+                 vessels=[{"name": "V", "charges": [{"name": charge, "material": material, "mass": q(kg, "kg"),
+                                                     "initial": temp(initial_C)}], "final": temp(final_C)}],
+                 duties=[{"name": "Duty"}], unknowns=[{"kind": "duty", "term": "Duty"}])
+
+
 def test_a_gas_charged_above_its_boiling_point_that_stays_a_gas_is_not_said_to_condense():
     # a nitrogen blanket: 50 kg at 20 °C in a 0 barg vessel, far above its −195.8 °C boiling point, ends a gas
-    ws = build(basis={"kind": "batch"},
-               vessels=[{"name": "V", "charges": [{"name": "Blanket", "material": "nitrogen", "mass": q(50, "kg"),
-                                                   "initial": temp(20)}], "final": temp(60)}],
-               duties=[{"name": "Heater"}], unknowns=[{"kind": "duty", "term": "Heater"}])
-    result = solve(ws)
+    result = solve(_one_charge_duty("Blanket", "nitrogen", 50, 20, 60))
     # hand: 50 kg × 1.04 kJ/(kg·K) (N2 near 1 atm, Incropera Table A.4, from memory) × 40 K ≈ 2,080 kJ
     assert result.answer.value_si == pytest.approx(2.08e6, rel=0.01)
     assert not [w for w in result.warnings if "vapour as charged" in w.text]
@@ -273,11 +277,7 @@ def test_a_gas_charged_above_its_boiling_point_that_stays_a_gas_is_not_said_to_c
 
 def test_a_liquid_at_ambient_charged_above_its_boiling_point_is_said_even_if_it_stays_vapour():
     # water at 150 °C in a 0 barg vessel, cooled to 120 °C: steam throughout (IAPWS-IF97: boils at 99.97 °C)
-    ws = build(basis={"kind": "batch"},
-               vessels=[{"name": "V", "charges": [{"name": "Hot water", "material": "water", "mass": q(100, "kg"),
-                                                   "initial": temp(150)}], "final": temp(120)}],
-               duties=[{"name": "Cooler"}], unknowns=[{"kind": "duty", "term": "Cooler"}])
-    result = solve(ws)
+    result = solve(_one_charge_duty("Hot water", "water", 100, 150, 120))
     steam = IAPWS97(T=393.15, P=0.101325).h - IAPWS97(T=423.15, P=0.101325).h  # kJ/kg, superheated steam
     assert result.answer.value_si == pytest.approx(100 * steam * 1e3, rel=1e-3)
     (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
