@@ -21,7 +21,7 @@ from .unit_cache import kept
 
 __all__ = [
     "registry", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
-    "basis_kinds", "heat_kind", "is_gauge", "standard_atmosphere_pressure", "STANDARD_ATMOSPHERE_ALTITUDES",
+    "basis_kinds", "heat_kind", "is_gauge", "absolute_unit", "standard_atmosphere_pressure", "STANDARD_ATMOSPHERE_ALTITUDES",
 ]
 
 @lru_cache(maxsize=1)
@@ -328,6 +328,17 @@ def from_si(value: float, unit: str, kind: str, gauge_reference: float = ATMOSPH
     if gauge_reference != ATMOSPHERE and kind == "pressure" and is_gauge(unit):
         offset += gauge_reference - ATMOSPHERE
     return (value - offset) / scale
+
+
+def absolute_unit(gauge: str) -> str:
+    """The absolute pressure unit to write for a gauge one (``barg`` -> ``bar``; ``psig`` -> ``psia``, for a bare
+    ``psi`` is refused); ``bar`` for a unit that is no gauge unit.
+
+    >>> absolute_unit("psig"), absolute_unit("kPag"), absolute_unit("bar")
+    ('psia', 'kPa', 'bar')
+    """
+    base = _GAUGE.get(gauge.strip(), "bar")
+    return "psia" if base == "psi" else base
 
 
 def is_gauge(unit: str) -> bool:

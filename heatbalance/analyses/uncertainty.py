@@ -25,7 +25,7 @@ from ..address import FRACTION, get, kinds_of, label, unknown_address
 from ..errors import AddressError, HeatBalanceError, InputError, NoSolutionError
 from ..messages import Phrase
 from ..problem import build_problem, site_atmosphere, typed_si
-from ..units import ATMOSPHERE, check_unit, is_gauge, kind_of
+from ..units import ATMOSPHERE, absolute_unit, check_unit, is_gauge, kind_of
 from ..worksheet import Quantity, Tolerance, Worksheet
 from .sweep import Axis, _FastRun, output_names
 
@@ -36,8 +36,6 @@ COVERAGE_FACTOR = 2.0  # k for the expanded uncertainty, about 95 % for a normal
 _DIVISORS = {"rectangular": math.sqrt(3.0), "normal": 1.0, "95 %": 2.0}  # a / u (GUM 4.3.7, 4.3.3)
 NONLINEAR = 0.1  # the two one-sided slopes differing by more than this (relative): a non-linear model there
 
-#: a gauge unit -> the absolute unit its suggested ± (a pressure difference) is written in
-_ABSOLUTE_OF_GAUGE = {"barg": "bar", "psig": "psia", "kPag": "kPa", "MPag": "MPa"}
 GAUGE_SOURCE = ("pressure gauge ±1 % of the absolute pressure, as a pressure difference (a percent of a gauge "
                 "reading would be ± 0 at 0 gauge): common practice, no source")
 
@@ -132,7 +130,7 @@ def _gauge_suggestion(ws: Worksheet, typed: Quantity) -> dict | None:
         atmosphere = site_atmosphere(ws)[0]
     except HeatBalanceError:  # the site's own refusal is shown with the answer; the standard atmosphere here
         atmosphere = ATMOSPHERE
-    unit = _ABSOLUTE_OF_GAUGE.get(typed.unit.strip(), "bar")
+    unit = absolute_unit(typed.unit)
     try:
         absolute = typed_si(typed.value, typed.unit, "pressure", "", atmosphere)
     except HeatBalanceError:
