@@ -617,14 +617,19 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
     return out
 
 
+def _charges(p: Problem, lines: list[LineResult]):
+    """(model, solved line) of each vessel charge."""
+    return ((model, ln) for model, ln in zip(p.lines, lines) if model.kind == "charge")
+
+
 def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     """A charge above its boiling point at its vessel's pressure, of a material that is liquid at ambient there or
     that condenses in the vessel: said, for a hot liquid typed without its own pressure is counted as vapour (a
     permanent gas, or steam charged at its own pressure, is not said)."""
     out = []
-    for model, ln in zip(p.lines, lines):
-        if model.kind != "charge" or model.initial.plateau is not None \
-                or model.initial.pressure_address != item("vessels", model.vessel, "pressure"):
+    for model, ln in _charges(p, lines):
+        if model.initial.plateau is not None or model.initial.pressure_address != item("vessels", model.vessel,
+                                                                                       "pressure"):
             continue
         boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
         if not boiling or ln.initial_T <= boiling[0].T + T_TOL or (boiling[0].T < AMBIENT_T and ln.latent >= 0):
@@ -641,8 +646,8 @@ def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
 def _ice_charged_melted(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     """Ice charged above its melting point is water as charged: said, for the answer then holds no ice to melt."""
     out = []
-    for model, ln in zip(p.lines, lines):
-        if model.kind != "charge" or not model.material_name.lower().startswith("ice") or model.initial.plateau:
+    for model, ln in _charges(p, lines):
+        if not model.material_name.lower().startswith("ice") or model.initial.plateau:
             continue
         melting = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "melting"]
         if melting and ln.initial_T > melting[0].T + T_TOL:
@@ -657,8 +662,8 @@ def _boiling_in_a_mixture(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     """A charge that boils in the balance as a pure liquid while mixed with other materials in its vessel: a
     mixture's boiling (at its bubble point, with its own latent heat) is not modelled, so said loudly."""
     out = []
-    for model, ln in zip(p.lines, lines):
-        if model.kind != "charge" or "vapour" not in ln.final_phase or ln.latent <= 0:
+    for model, ln in _charges(p, lines):
+        if "vapour" not in ln.final_phase or ln.latent <= 0:
             continue
         others = sorted({o.material_name for o in p.lines if o.vessel == model.vessel
                          and o.material_name != model.material_name})
