@@ -628,8 +628,8 @@ def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     permanent gas, or steam charged at its own pressure, is not said)."""
     out = []
     for model, ln in _charges(p, lines):
-        if model.initial.plateau is not None or model.initial.pressure_address != item("vessels", model.vessel,
-                                                                                       "pressure"):
+        at_vessel_pressure = model.initial.pressure_address == item("vessels", model.vessel, "pressure")
+        if model.initial.plateau is not None or not at_vessel_pressure:
             continue
         boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
         if not boiling or ln.initial_T <= boiling[0].T + T_TOL or (boiling[0].T < AMBIENT_T and ln.latent >= 0):
