@@ -15,6 +15,7 @@ analyses run on that result, and :mod:`heatbalance.present` writes it in a unit 
 from __future__ import annotations
 
 import math
+from functools import cache
 from contextvars import ContextVar
 from dataclasses import dataclass
 
@@ -32,7 +33,7 @@ from .results import Answer, LineResult, Result, TermResult
 from .units import ATMOSPHERE, basis_kinds, heat_kind
 from .worksheet import Worksheet
 
-__all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state", "Point"]
+__all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state", "Point", "reusing_brackets"]
 
 T_TOL = 1e-6  # K: two temperatures closer than this are the same (a state on a plateau)
 AMBIENT_T = 273.15  # K: a material boiling below this at its pressure is a gas at ambient (charged as one on purpose)
@@ -289,51 +290,16 @@ def _solve_temperature(p: Problem) -> float | None:
                 moving.append((ln.material, state, sign * ln.amount))
             else:
                 fixed += sign * ln.amount * evaluate_state(ln.material, state, temps, {}).h
-
     for material, state, _ in moving:  # checked once here, so the residual below need not check again
         if hasattr(material, "check_pressure"):
             material.check_pressure(state.P, state.pressure_address)
-    # a state on the temperature variable is never a plateau state (a StateSpec is one or the other); the
-    # states of one material at one pressure share one enthalpy call, weighted by their summed amounts
-    grouped: dict[tuple[int, float], list] = {}
-    for material, state, weight in moving:
-        entry = grouped.setdefault((id(material), state.P), [id(material), material.enthalpy, state.P, 0.0])
-        entry[3] += weight
-    plain = [tuple(entry) for entry in grouped.values()]
-    fast = not equipment_dep
-    memo = _SOLVE_ENTHALPIES.get()  # the trial at the root is the result's state: kept, not evaluated again
-
-    def residual(T: float, side: float | None = None) -> float:
-        temps[var] = T
-        lost = -sum(heat(temps) for _, heat in movers) if movers else 0.0
-        if side is None and fast:  # off every plateau, inside every material's range (the bracket's bounds)
-            value = fixed + lost
-            for key, enthalpy, P, weight in plain:
-                h = enthalpy(T, P)
-                if memo is not None:
-                    memo[key, T, P] = h
-                value += weight * h
-            return value
-        sides = {var: side} if side is not None else {}
-        value = fixed + lost + sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
-        return value + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
-
-    # (material, lowest, highest temperature of its data at the state's pressure: a fluid's melting line rises
-    # with pressure, water's IF97 data reach 2000 °C only at low pressure)
-    ranges = [(m, m.lowest_temperature(state.P), m.t_max_at(state.P)) for m, state, _ in moving]
-    ranges += [(e.material, e.material.t_min, e.material.t_max_at(ATMOSPHERE)) for e in equipment_dep if e.material]
-    low, high = max(r[1] for r in ranges), min(r[2] for r in ranges)
-    if low >= high:
-        raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
-                              f"({', '.join(sorted({r[0].name for r in ranges}))})", p.unknown_address)
-    breaks = sorted({tr.T for tr in _transitions_on(p, var) if low - T_TOL <= tr.T <= high + T_TOL})
-    # (T, residual on its cold side, residual on its hot side) at each bound and phase change
-    points = [(T, residual(T, 0.0), residual(T, 1.0)) for T in breaks]
-    for bound in (low, high):
-        if not any(abs(bound - T) < T_TOL for T in breaks):
-            r = residual(bound)
-            points.append((bound, r, r))
-    points.sort()
+    reusable = not movers and not equipment_dep
+    bracket = _kept_bracket(var, moving) if reusable else None
+    plain = bracket.plain if bracket is not None else _grouped(moving)
+    moving_heat = _moving_heat(var, temps, moving, plain, movers, equipment_dep)
+    if bracket is None:
+        bracket = _bracket(p, var, moving, plain, moving_heat, reusable)
+    points = [(T, fixed + cold, fixed + hot) for T, cold, hot in bracket.points]
     for i, (T, r_cold, r_hot) in enumerate(points):
         if r_cold == 0 or r_hot == 0:
             p.temperatures[var] = T
@@ -342,11 +308,118 @@ def _solve_temperature(p: Problem) -> float | None:
             p.temperatures[var] = T
             return -r_cold / (r_hot - r_cold)
         if i + 1 < len(points) and r_hot * points[i + 1][1] < 0:
-            p.temperatures[var] = _root_in_segment(residual, (T, r_hot), points[i + 1][:2])
+            p.temperatures[var] = _root_in_segment(lambda T: fixed + moving_heat(T), (T, r_hot), points[i + 1][:2])
             return None
-    limits = {low: next(m.name for m, lo, _ in ranges if lo == low),
-              high: next(m.name for m, _, hi in ranges if hi == high)}
+    limits = {bracket.low: next(m.name for m, lo, _ in bracket.ranges if lo == bracket.low),
+              bracket.high: next(m.name for m, _, hi in bracket.ranges if hi == bracket.high)}
     raise NoSolutionError(_unreachable_message(p, points, limits), p.unknown_address)
+
+
+def _grouped(moving: list) -> list:
+    """The states that move with a temperature unknown as (id of the material, its enthalpy, P, summed weight): a
+    state on the temperature variable is never a plateau state (a StateSpec is one or the other), so the states of
+    one material at one pressure share one enthalpy call, weighted by their summed amounts."""
+    grouped: dict[tuple[int, float], list] = {}
+    for material, state, weight in moving:
+        entry = grouped.setdefault((id(material), state.P), [id(material), material.enthalpy, state.P, 0.0])
+        entry[3] += weight
+    return [tuple(entry) for entry in grouped.values()]
+
+
+def _moving_heat(var: str, temps: dict, moving: list, plain: list, movers: list, equipment_dep: list):
+    """The heat of what moves with the temperature unknown at T (the residual less its fixed part): the states on
+    it (``plain``: grouped), each weighted by its line's signed amount, the terms that move with it, the equipment
+    on it. ``side``: the upper-phase fraction to take for a T on a phase change."""
+    fast = not equipment_dep
+    memo = _SOLVE_ENTHALPIES.get()  # the trial at the root is the result's state: kept, not evaluated again
+
+    def moving_heat(T: float, side: float | None = None) -> float:
+        temps[var] = T
+        total = -sum(heat(temps) for _, heat in movers) if movers else 0.0
+        if side is None and fast:  # off every plateau, inside every material's range (the bracket's bounds)
+            for key, enthalpy, P, weight in plain:
+                h = enthalpy(T, P)
+                if memo is not None:
+                    memo[key, T, P] = h
+                total += weight * h
+            return total
+        sides = {var: side} if side is not None else {}
+        total += sum(weight * evaluate_state(m, state, temps, sides).h for m, state, weight in moving)
+        return total + sum(_equipment_heat(e, temps, sides) for e in equipment_dep)
+    return moving_heat
+
+
+@dataclass(frozen=True)
+class _Bracket:
+    """Where a temperature solve looks: the data's range [low, high] shared by the states that move with the
+    unknown (``ranges``: each material's), and the moving heat at each bound and on both sides of each phase
+    change between, as (T, heat on the cold side, heat on the hot side) in order of T; ``plain``: those states
+    grouped (:func:`_grouped`)."""
+
+    materials: tuple
+    ranges: list
+    low: float
+    high: float
+    points: list
+    plain: list
+
+
+# A sweep solves one built problem again and again; at every point whose states moving with the unknown are the
+# same (materials, pressures, amounts) the bracket is too: kept for the sweep (see reusing_brackets).
+_SWEEP_BRACKETS: ContextVar[dict | None] = ContextVar("sweep_brackets", default=None)
+
+
+class reusing_brackets:  # noqa: N801 (used as a function: ``with reusing_brackets(kept):``)
+    """Within this block, temperature solves keep their brackets in ``kept`` from one solve to the next (a sweep's
+    points: one dict for the whole sweep of one built problem)."""
+
+    def __init__(self, kept: dict):
+        self.kept = kept
+
+    def __enter__(self):
+        self.token = _SWEEP_BRACKETS.set(self.kept)
+
+    def __exit__(self, *_):
+        _SWEEP_BRACKETS.reset(self.token)
+
+
+def _bracket_key(var: str, moving: list) -> tuple:
+    return var, tuple((id(m), state.P, weight) for m, state, weight in moving)
+
+
+def _kept_bracket(var: str, moving: list) -> _Bracket | None:
+    """The bracket kept in this sweep for these moving states (the very materials, at these pressures and
+    amounts), if any."""
+    kept = _SWEEP_BRACKETS.get()
+    found = kept.get(_bracket_key(var, moving)) if kept is not None else None
+    if found is not None and all(a is m for a, (m, _, _) in zip(found.materials, moving)):
+        return found
+    return None
+
+
+def _bracket(p: Problem, var: str, moving: list, plain: list, moving_heat, reusable: bool) -> _Bracket:
+    """The bracket of a temperature solve (kept for the sweep's next points when ``reusable``)."""
+    # (material, lowest, highest temperature of its data at the state's pressure: a fluid's melting line rises
+    # with pressure, water's IF97 data reach 2000 °C only at low pressure)
+    ranges = [(m, m.lowest_temperature(state.P), m.t_max_at(state.P)) for m, state, _ in moving]
+    ranges += [(e.material, e.material.t_min, e.material.t_max_at(ATMOSPHERE)) for e in p.equipment
+               if e.material and var in (e.initial_var, e.final.var)]
+    low, high = max(r[1] for r in ranges), min(r[2] for r in ranges)
+    if low >= high:
+        raise NoSolutionError("the property data of the lines sharing this temperature do not overlap "
+                              f"({', '.join(sorted({r[0].name for r in ranges}))})", p.unknown_address)
+    breaks = sorted({tr.T for tr in _transitions_on(p, var) if low - T_TOL <= tr.T <= high + T_TOL})
+    points = [(T, moving_heat(T, 0.0), moving_heat(T, 1.0)) for T in breaks]
+    for bound in (low, high):
+        if not any(abs(bound - T) < T_TOL for T in breaks):
+            heat = moving_heat(bound)
+            points.append((bound, heat, heat))
+    points.sort()
+    found = _Bracket(tuple(m for m, _, _ in moving), ranges, low, high, points, plain)
+    kept = _SWEEP_BRACKETS.get() if reusable else None
+    if kept is not None and len(kept) < 4096:
+        kept[_bracket_key(var, moving)] = found
+    return found
 
 
 def _transitions_on(p: Problem, var: str) -> list[Transition]:
@@ -360,14 +433,36 @@ def _transitions_on(p: Problem, var: str) -> list[Transition]:
 
 def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, float]) -> float:
     """Brent's method on one single-phase segment; its ends take the residual of the segment's side."""
-    from scipy.optimize import brentq  # imported at the first temperature solve (costs a part of a second)
-
     ends = dict((left, right))
 
     def on_segment(T: float) -> float:
         return ends[T] if T in ends else residual(T)
 
-    return brentq(on_segment, left[0], right[0], xtol=1e-7, rtol=1e-12, maxiter=100)
+    return _brent()(on_segment, left[0], right[0])
+
+
+@cache
+def _brent():
+    """Brent's method of scipy as ``brent(f, a, b)``, to 1e-7 K: its compiled core where this scipy has it, else the
+    public ``brentq`` (the same iterations; it also checks each value for NaN, at about 1 µs a call, and a solve makes
+    5 to 10 calls. No NaN passes here either: the result is refused unless its balance closes)."""
+    from scipy.optimize import brentq  # imported at the first temperature solve (costs a part of a second)
+
+    core = _compiled_brent_core()
+    if core is not None:
+        return lambda f, a, b: core(f, a, b, 1e-7, 1e-12, 100, (), False, False)
+    return lambda f, a, b: brentq(f, a, b, xtol=1e-7, rtol=1e-12, maxiter=100)
+
+
+def _compiled_brent_core():
+    """scipy's compiled ``_brentq`` (private; scipy 1.13 to 1.17 keep it with this signature), or None if this
+    scipy does not have it as it was."""
+    try:
+        from scipy.optimize._zeros import _brentq as core
+
+        return core if core(lambda x: x - 0.25, 0.0, 1.0, 1e-12, 1e-12, 100, (), False, False) == 0.25 else None
+    except (ImportError, TypeError, ValueError):
+        return None
 
 
 def _unreachable_message(p: Problem, points, limits: dict[float, str]) -> Phrase:
@@ -695,9 +790,10 @@ def _negligible_duties(p: Problem, terms: list[TermResult], largest: float) -> l
 def _check_closure(p: Problem, lines: list[LineResult], terms: list[TermResult], residual: float) -> float:
     """No result leaves the solver unless every number is finite and the balance closes; returns the balance's
     largest heat (the scale of its closure)."""
-    contributions = [x for ln in lines for x in (ln.sensible, ln.latent, ln.amount_si, ln.initial_T, ln.final_T)]
-    contributions += [t.heat for t in terms] + [residual]
-    if not all(math.isfinite(x) for x in contributions):
+    # a sum is finite only if every number in it is (a NaN or an infinity carries through; a sum beyond 1e308 is
+    # beyond any physical scale too)
+    total = sum(ln.sensible + ln.latent + ln.amount_si + ln.initial_T + ln.final_T for ln in lines)
+    if not math.isfinite(total + sum(t.heat for t in terms) + residual):
         raise NoSolutionError("the balance gives a number that is not finite (a flow, heat or temperature beyond "
                               "any physical scale): check the magnitudes of the inputs", p.unknown_address)
     largest = max([abs(ln.total) for ln in lines] + [abs(t.heat) for t in terms], default=0.0)

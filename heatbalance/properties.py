@@ -44,6 +44,7 @@ def coolprop():
     return _cp()
 
 
+@lru_cache(maxsize=1)
 def _version() -> str:
     import CoolProp
 

@@ -22,7 +22,8 @@ from heatbalance.errors import AddressError, HeatBalanceError, InputError
 from heatbalance.links import decode_sheet, parse_link, sheet_link
 from heatbalance.present.whatif import case_table, sweep_csv_bytes, sweep_figure, sweep_table
 from heatbalance.problem import build_problem
-from heatbalance.worksheet import Case, Override, Quantity, load_worksheet
+from heatbalance.properties import EVALUATIONS
+from heatbalance.worksheet import Case, Override, Quantity, load_worksheet, parse_worksheet
 
 GLYCOL = "sample_data/steam_heater_glycol.json"
 CONDENSER = "sample_data/solvent_condenser_cooling_water.json"
@@ -82,6 +83,60 @@ def test_a_sweeps_points_equal_individual_solves(path, axes, output):
         else:
             assert row[REFUSED_AT] == "" and row[REASON] is None
             assert row[output] == pytest.approx(expected, rel=1e-9, abs=1e-12)
+
+
+# a one-line water heater whose outlet temperature is the unknown (no equipment, no computed loss): its sweeps keep
+# the temperature solve's bracket from point to point while the heated states stay the same
+ONE_LINE_HEATER = {"title": "one-line heater", "streams": [{
+    "name": "Water", "material": "water", "flow": "1 t/h", "pressure": "2 barg", "inlet": {"temperature": "20 degC"},
+    "outlet": {"temperature": "60 degC"}}], "duties": [{"name": "Heater", "value": "40 kW"}],
+    "unknowns": [{"kind": "temperature", "line": "Water", "end": "outlet"}]}
+
+
+@pytest.mark.parametrize("axis, boiling", [
+    # boiling at 2 barg from 133.6 °C takes 133 to 734 kW (hand: 0.2778 kg/s × (561.5 − 84.0) kJ/kg, then + 2163
+    # kJ/kg; IAPWS-IF97 steam tables, from memory): 250 and 700 kW end on the plateau, 900 kW as steam
+    (Axis("duties[Heater].value", (5, 40, 250, 700, 900), "kW"), [False, False, True, True, False]),
+    (Axis("streams[Water].flow", (0.5, 1, 3), "t/h"), [False] * 3),  # the heated states' amount: a bracket each
+    (Axis("streams[Water].pressure", (0, 2, 10), "barg"), [False] * 3),  # and their pressure (another boiling point)
+], ids=lambda a: getattr(a, "address", ""))
+def test_a_kept_bracket_gives_each_point_its_own_solve(axis, boiling):
+    """A bracket kept across points for the wrong amount or pressure would move the answer: every point must
+    still equal its individual solve (and land on the boiling plateau where that does)."""
+    ws = parse_worksheet(ONE_LINE_HEATER)
+    frame = sweep(ws, [axis], ["answer", "answer.phase_fraction"])
+    for (_, row), on_plateau in zip(frame.iterrows(), boiling):
+        single = solve_and_analyse(A.with_value(ws, axis.address, (row[axis.column], axis.unit))).answer
+        assert row["answer"] == pytest.approx(single.value_si, rel=1e-12)
+        assert (single.phase_fraction is not None) == on_plateau
+        fraction = math.nan if single.phase_fraction is None else single.phase_fraction
+        assert row["answer.phase_fraction"] == pytest.approx(fraction, rel=1e-12, nan_ok=True)
+
+
+def test_a_sweep_keeps_its_bracket_between_points():
+    """After its first point, a duty sweep evaluates the water's enthalpy at neither end of the data again (the
+    bracket's ends are kept): two calls fewer a point than a solve from cold."""
+    ws = parse_worksheet(ONE_LINE_HEATER)
+    EVALUATIONS.count = 0
+    sweep(ws, [Axis("duties[Heater].value", (40,), "kW")])
+    cold = EVALUATIONS.count
+    EVALUATIONS.count = 0
+    sweep(ws, [Axis("duties[Heater].value", (40, 40, 40, 40, 40), "kW")])
+    assert EVALUATIONS.count == cold + 4 * (cold - 2)
+
+
+def test_brents_method_core_equals_scipys_public_brentq(monkeypatch):
+    """The temperature solve calls scipy's compiled Brent core where this scipy has it; it must find what the public
+    ``brentq`` finds, and without it the solve falls back to ``brentq`` itself."""
+    from scipy.optimize import brentq
+
+    from heatbalance import balance
+
+    f = lambda T: 4180.0 * (T - 293.15) - 1.5e5 + 0.9 * (T - 293.15) ** 2  # noqa: E731 (a water-like residual)
+    expected = brentq(f, 273.16, 400.0, xtol=1e-7, rtol=1e-12, maxiter=100)
+    assert balance._brent()(f, 273.16, 400.0) == expected
+    monkeypatch.setattr(balance, "_compiled_brent_core", lambda: None)  # a scipy without it
+    assert balance._brent.__wrapped__()(f, 273.16, 400.0) == expected
 
 
 def test_refused_points_carry_their_address_and_the_sweep_goes_on():

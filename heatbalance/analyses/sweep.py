@@ -20,6 +20,7 @@ from dataclasses import dataclass
 import pandas as pd
 
 from ..address import FRACTION, get, item, kinds_of, parse, unknown_address, with_value
+from ..balance import reusing_brackets
 from ..errors import AddressError, HeatBalanceError, InputError
 from ..humid_air import HumidAir
 from ..problem import Problem, basis_si, build_problem, typed_si
@@ -370,6 +371,7 @@ class _FastRun:
         self.setters = [_FastSetter(problem, a, k).apply for a, k in zip(axes, kinds)]
         self.fast = all(s is not None for s in self.setters)
         self.temperatures = dict(problem.temperatures)
+        self.brackets: dict = {}  # each temperature solve's bracket, kept while its moving states stay the same
 
     def point(self, values: tuple[float, ...], outputs: list[str]) -> list:
         """``[*values, *outputs, refused at, reason, warnings]`` of one point."""
@@ -385,7 +387,8 @@ class _FastRun:
             unsolved(p, self.temperatures)
             for setter, value in zip(self.setters, values):
                 setter(value)
-            result = analyse(p, solve_closed(p), checks)
+            with reusing_brackets(self.brackets):
+                result = analyse(p, solve_closed(p), checks)
             return result, result.screening
         ws = self.ws
         for axis, value, kinds in zip(self.axes, values, self.kinds):
