@@ -33,7 +33,7 @@ from .results import Answer, LineResult, Result, TermResult
 from .units import ATMOSPHERE, basis_kinds, heat_kind
 from .worksheet import Worksheet
 
-__all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state", "Point", "reusing_brackets"]
+__all__ = ["solve", "solve_problem", "build_problem", "Problem", "evaluate_state", "Point", "SweepMemo"]
 
 T_TOL = 1e-6  # K: two temperatures closer than this are the same (a state on a plateau)
 AMBIENT_T = 273.15  # K: a material boiling below this at its pressure is a gas at ambient (charged as one on purpose)
@@ -74,7 +74,8 @@ def _plateau_transition(material: Material, state: StateSpec) -> Transition:
 
 @dataclass
 class Point:
-    """Where a state sits: temperature, the upper-phase fraction on a plateau (or None), enthalpy."""
+    """Where a state sits: temperature, the upper-phase fraction on a plateau (or None), enthalpy (never changed
+    once made: a sweep shares it between points)."""
 
     T: float
     fraction: float | None
@@ -87,18 +88,26 @@ def evaluate_state(material: Material, state: StateSpec, temperatures: dict, pla
         tr = _plateau_transition(material, state)
         return Point(tr.T, state.fraction, tr.h_lower + state.fraction * tr.latent)
     T = temperatures[state.var]
+    fraction = plateau_side.get(state.var)
+    memo = _SWEEP_MEMO.get() if fraction is None else None
+    if memo is not None:
+        kept = memo.states.get((id(material), T, state.P))
+        if kept is not None and kept[0] is material:
+            return kept[1]
     material.check_range(T, state.temperature_address)
     if hasattr(material, "check_pressure"):
         material.check_pressure(state.P, state.pressure_address)
-    fraction = plateau_side.get(state.var)
     if fraction is not None:
         tr = _transition_at(material, state.P, T)
         if tr is not None:
             return Point(T, fraction, tr.h_lower + fraction * tr.latent)
     try:
-        return Point(T, None, _enthalpy(material, T, state.P))
+        point = Point(T, None, _enthalpy(material, T, state.P))
     except HeatBalanceError as exc:
         raise exc.located(state.temperature_address)
+    if memo is not None:
+        memo.keep_state(material, point, state.P)
+    return point
 
 
 def _equipment_enthalpy(e: EquipmentHeat, var: str, T: float, plateau_side: dict) -> float:
@@ -364,23 +373,40 @@ class _Bracket:
     plain: list
 
 
-# A sweep solves one built problem again and again; at every point whose states moving with the unknown are the
-# same (materials, pressures, amounts) the bracket is too: kept for the sweep (see reusing_brackets).
-_SWEEP_BRACKETS: ContextVar[dict | None] = ContextVar("sweep_brackets", default=None)
+class SweepMemo:
+    """What the solves of a sweep's points (one built problem, set again at each point) keep from one point to the
+    next: each temperature solve's bracket, while the states that move with the unknown stay the same (materials,
+    pressures, amounts), and each state evaluated off a phase change (a pure function of its material, temperature
+    and pressure). Only inside ``with memo:``; each entry holds its material, so an id reused by another is no hit.
+
+    >>> memo = SweepMemo()
+    >>> with memo:
+    ...     _SWEEP_MEMO.get() is memo
+    True
+    >>> _SWEEP_MEMO.get() is None
+    True
+    """
+
+    LIMIT = 65536  # entries of each kind (a sweep has at most 100,000 points; past this, points are solved afresh)
+
+    def __init__(self):
+        self.brackets: dict[tuple, _Bracket] = {}
+        self.states: dict[tuple, tuple[Material, Point]] = {}
+        self._tokens: list = []
+
+    def keep_state(self, material: Material, point: Point, P: float) -> None:
+        if len(self.states) < self.LIMIT:
+            self.states[id(material), point.T, P] = (material, point)
+
+    def __enter__(self) -> SweepMemo:
+        self._tokens.append(_SWEEP_MEMO.set(self))
+        return self
+
+    def __exit__(self, *_) -> None:
+        _SWEEP_MEMO.reset(self._tokens.pop())
 
 
-class reusing_brackets:  # noqa: N801 (used as a function: ``with reusing_brackets(kept):``)
-    """Within this block, temperature solves keep their brackets in ``kept`` from one solve to the next (a sweep's
-    points: one dict for the whole sweep of one built problem)."""
-
-    def __init__(self, kept: dict):
-        self.kept = kept
-
-    def __enter__(self):
-        self.token = _SWEEP_BRACKETS.set(self.kept)
-
-    def __exit__(self, *_):
-        _SWEEP_BRACKETS.reset(self.token)
+_SWEEP_MEMO: ContextVar[SweepMemo | None] = ContextVar("sweep_memo", default=None)
 
 
 def _bracket_key(var: str, moving: list) -> tuple:
@@ -390,8 +416,8 @@ def _bracket_key(var: str, moving: list) -> tuple:
 def _kept_bracket(var: str, moving: list) -> _Bracket | None:
     """The bracket kept in this sweep for these moving states (the very materials, at these pressures and
     amounts), if any."""
-    kept = _SWEEP_BRACKETS.get()
-    found = kept.get(_bracket_key(var, moving)) if kept is not None else None
+    memo = _SWEEP_MEMO.get()
+    found = memo.brackets.get(_bracket_key(var, moving)) if memo is not None else None
     if found is not None and all(a is m for a, (m, _, _) in zip(found.materials, moving)):
         return found
     return None
@@ -416,9 +442,9 @@ def _bracket(p: Problem, var: str, moving: list, plain: list, moving_heat, reusa
             points.append((bound, heat, heat))
     points.sort()
     found = _Bracket(tuple(m for m, _, _ in moving), ranges, low, high, points, plain)
-    kept = _SWEEP_BRACKETS.get() if reusable else None
-    if kept is not None and len(kept) < 4096:
-        kept[_bracket_key(var, moving)] = found
+    memo = _SWEEP_MEMO.get() if reusable else None
+    if memo is not None and len(memo.brackets) < memo.LIMIT:
+        memo.brackets[_bracket_key(var, moving)] = found
     return found
 
 
@@ -649,9 +675,9 @@ def _result(p: Problem, fraction: float | None) -> Result:
     residual = sum(ln.total for ln in lines) - sum(t.heat for t in terms)
     largest = _check_closure(p, lines, terms, residual)
     warnings = list(p.warnings) + _second_law(p, lines, terms) + _phase_warnings(p, lines) \
-        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) + _equipment_start_warnings(p) \
-        + _negligible_duties(p, terms, largest) + _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines) \
-        + _ice_charged_melted(p, lines)
+        + _range_warnings(p, lines) + unstated_mixing(p, lines) + _mixing_warnings(p) \
+        + (_equipment_start_warnings(p) if p.vessels else []) + _negligible_duties(p, terms, largest) \
+        + (_charge_warnings(p, lines) if p.vessels else [])
     sources = {ln.material_name: ln.material.source for ln in p.lines}
     sources.update({e.material.name: e.material.source for e in p.equipment if e.material})
     return Result(p.title, p.basis, _answer(p, fraction), lines, terms, residual, warnings, p.assumptions,
@@ -710,6 +736,11 @@ def _equipment_start_warnings(p: Problem) -> list[Phrase]:
                                "high": Measure(max(starts), "temperature", 1)},
                               item("vessels", e.vessel, "equipment", "initial_temperature")))
     return out
+
+
+def _charge_warnings(p: Problem, lines: list[LineResult]) -> list[Phrase]:
+    """What a vessel's charges may need said: charged as vapour, boiling in a mixture, ice charged above 0 °C."""
+    return _charged_as_vapour(p, lines) + _boiling_in_a_mixture(p, lines) + _ice_charged_melted(p, lines)
 
 
 def _charges(p: Problem, lines: list[LineResult]):

@@ -16,7 +16,7 @@ from ..errors import AddressError, HeatBalanceError
 from ..problem import build_problem
 from ..worksheet import Case, Worksheet
 from . import solve_and_analyse
-from .sweep import _collect, answer_field, output_names
+from .sweep import _asks_checks, _collect, answer_field, output_names
 
 __all__ = ["AS_TYPED", "case_worksheet", "run_cases", "difference_column"]
 
@@ -106,7 +106,7 @@ def run_cases(ws: Worksheet, base: str = AS_TYPED, outputs: list[str] | None = N
     for name, sheet in sheets.items():
         try:
             result = solve_and_analyse(sheet())
-            columns[name] = _collect(result, result.screening, outputs)
+            columns[name] = _collect(result, result.screening, outputs, _asks_checks(outputs))
         except HeatBalanceError as exc:
             refusals[name] = exc
             columns[name] = {o: math.nan for o in outputs}

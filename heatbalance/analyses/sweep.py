@@ -20,7 +20,7 @@ from dataclasses import dataclass
 import pandas as pd
 
 from ..address import FRACTION, get, item, kinds_of, parse, unknown_address, with_value
-from ..balance import reusing_brackets
+from ..balance import SweepMemo
 from ..errors import AddressError, HeatBalanceError, InputError
 from ..humid_air import HumidAir
 from ..problem import Problem, basis_si, build_problem, typed_si
@@ -156,7 +156,9 @@ def _check_values(result) -> dict[str, float]:
     return values
 
 
-def _collect(result, screenings, outputs: list[str]) -> dict[str, float]:
+def _collect(result, screenings, outputs: list[str], checks: bool) -> dict[str, float]:
+    """The outputs of one solved point (``checks``: whether they ask for the exchanger check or the utility
+    tables, :func:`_asks_checks`)."""
     answer = result.answer
     values = {"answer": answer.value_si, "residual": result.residual,
               "answer.phase_fraction": math.nan if answer.phase_fraction is None else answer.phase_fraction}
@@ -171,7 +173,7 @@ def _collect(result, screenings, outputs: list[str]) -> dict[str, float]:
         values[f"screening[{s.vessel}].MTT"] = math.nan if s.MTT is None else s.MTT
         values[f"screening[{s.vessel}].criticality_class"] = \
             math.nan if s.criticality_class is None else float(s.criticality_class)
-    if _asks_checks(outputs):
+    if checks:
         values.update(_check_values(result))
     return {name: values.get(name, math.nan) for name in outputs}
 
@@ -371,15 +373,16 @@ class _FastRun:
         self.setters = [_FastSetter(problem, a, k).apply for a, k in zip(axes, kinds)]
         self.fast = all(s is not None for s in self.setters)
         self.temperatures = dict(problem.temperatures)
-        self.brackets: dict = {}  # each temperature solve's bracket, kept while its moving states stay the same
+        self.memo = SweepMemo()  # what one point's solve keeps for the next (brackets, evaluated states)
 
     def point(self, values: tuple[float, ...], outputs: list[str]) -> list:
         """``[*values, *outputs, refused at, reason, warnings]`` of one point."""
+        checks = _asks_checks(outputs)
         try:
-            result, screenings = self._solve(values, _asks_checks(outputs))
+            result, screenings = self._solve(values, checks)
         except HeatBalanceError as exc:
             return [*values, *[math.nan] * len(outputs), exc.where or "worksheet", exc, []]
-        return [*values, *_collect(result, screenings, outputs).values(), "", None, result.warnings]
+        return [*values, *_collect(result, screenings, outputs, checks).values(), "", None, result.warnings]
 
     def _solve(self, values, checks: bool = True):
         if self.fast:
@@ -387,7 +390,7 @@ class _FastRun:
             unsolved(p, self.temperatures)
             for setter, value in zip(self.setters, values):
                 setter(value)
-            with reusing_brackets(self.brackets):
+            with self.memo:
                 result = analyse(p, solve_closed(p), checks)
             return result, result.screening
         ws = self.ws
