@@ -159,6 +159,31 @@ _AMBIGUOUS_TON = ("'ton' is read three ways: write t for a metric tonne (1000 kg
 _TON_FOR = {"power": "'ton' for a duty is a ton of refrigeration: write TR (12,000 Btu/h = 3.517 kW)",
             "energy": "'ton' is a mass or a cooling rate (TR), not an energy: give it in kJ, kWh or Btu"}
 _AMBIGUOUS_PSI = "'psi' does not say gauge or absolute: write psig (above the atmosphere) or psia (absolute)"
+# a gauge or absolute pressure unit written apart ('bar g', 'psi(a)', 'kPa_gauge'): pint reads 'psi g' as psi × gram
+_PRESSURE_APART = re.compile(r"^(bar|psi|kPa|MPa)(?:\s+|_|\s*\()(g|gauge|a|abs|absolute)\)?$", re.IGNORECASE)
+_PRESSURE_BASES = {"bar": "bar", "psi": "psi", "kpa": "kPa", "mpa": "MPa"}
+# kg/cm² as plants write it: 'kg/cm2' (a mass per area to pint), or with a gauge or absolute mark
+_KG_PER_CM2 = re.compile(r"^kg(f?)\s*/\s*cm(?:2|\*\*2|\^2|²)\s*(?:[_(]\s*|\s+)?(g|a|gauge|abs)?\)?$", re.IGNORECASE)
+
+
+def _pressure_spelling(unit: str) -> str:
+    """Advice for a pressure unit plants write in a form this tool does not read ('' for any other).
+
+    >>> _pressure_spelling("psi g")[:28], _pressure_spelling("barg"), _pressure_spelling("kgf/cm2")
+    ("'psi g' is a gauge pressure:", '', '')
+    """
+    text = unit.strip()
+    apart = _PRESSURE_APART.match(text)
+    if apart:
+        base = _PRESSURE_BASES[apart.group(1).lower()]
+        gauge = apart.group(2).lower().startswith("g")
+        return (f"'{text}' is a gauge pressure: write {base}g, in one word (above the atmosphere)" if gauge else
+                f"'{text}' is an absolute pressure: write {base}a, in one word")
+    kg = _KG_PER_CM2.match(text)
+    if kg and (kg.group(2) or not kg.group(1)):
+        return (f"'{text}': give a pressure in kg/cm² as barg (gauge) or bar (absolute): 1 kgf/cm² = 0.980665 bar "
+                "(kgf/cm2 alone is read as absolute)")
+    return ""
 
 
 def _ambiguity(unit: str, kind: str) -> str:
@@ -169,6 +194,8 @@ def _ambiguity(unit: str, kind: str) -> str:
     """
     if kind == "pressure" and unit.strip() == "psi":
         return _AMBIGUOUS_PSI
+    if kind == "pressure" and _pressure_spelling(unit):
+        return _pressure_spelling(unit)
     if not _TON.search(unit):
         return ""
     return _TON_FOR.get(kind, _AMBIGUOUS_TON)

@@ -156,3 +156,25 @@ def test_pound_mass_and_a_case_slip_in_a_gauge_unit():
         to_si(150, "PSIG", "pressure", "streams[Steam].pressure")
     assert refused.value.where == "streams[Steam].pressure"
     assert "units are case-sensitive: write 'psig'" in refused.value.message
+
+
+@pytest.mark.parametrize("unit, words", [
+    ("psi g", "'psi g' is a gauge pressure: write psig, in one word"),  # pint would read psi × gram
+    ("bar g", "write barg, in one word"),
+    ("psi(g)", "write psig, in one word"),
+    ("kPa_gauge", "write kPag, in one word"),
+    ("bar a", "'bar a' is an absolute pressure: write bara, in one word"),
+    ("psi abs", "write psia, in one word"),
+    ("kg/cm2g", "as barg (gauge) or bar (absolute): 1 kgf/cm² = 0.980665 bar"),  # CGPM 1901, standard gravity
+    ("kg/cm2", "as barg (gauge) or bar (absolute)"),  # pint: a mass per area
+])
+def test_a_pressure_unit_written_apart_is_refused_with_its_spelling(unit, words):
+    for refuse in (lambda: to_si(150, unit, "pressure", "streams[Steam].pressure"),
+                   lambda: check_unit(unit, "pressure", "streams[Steam].pressure")):
+        with pytest.raises(UnitError) as refused:
+            refuse()
+        assert words in refused.value.message and refused.value.where == "streams[Steam].pressure"
+
+
+def test_kgf_per_cm2_alone_is_read_as_absolute():
+    assert to_si(1, "kgf/cm2", "pressure") == pytest.approx(98066.5, rel=1e-12)  # 1 kgf/cm² (exact, by definition)
