@@ -59,3 +59,15 @@ def test_a_refused_site_is_shown_with_its_address_and_not_written(typed, where):
 def test_typed_text_round_trips():
     for text in ("1500 m", "0.85 bar", "12.3 psia", "4900 ft", ""):
         assert site_text(site_from_text(text)) == text
+
+
+def test_the_site_example_is_in_the_views_unit_set():
+    """A US view's example reads psia and feet (ISO 2533: 1 atm = 14.696 psia), an SI view's bar and metres."""
+    from page_helpers import opened
+
+    from heatbalance.links import encode_sheet
+
+    us = opened(sheet=encode_sheet(boiling_water()), units="US")
+    assert us.text_input(key=WIDGET).placeholder == "e.g. 12.3 psia or 5000 ft (empty: 14.696 psia)"
+    si = page(boiling_water())
+    assert si.text_input(key=WIDGET).placeholder == "e.g. 0.85 bar or 1500 m (empty: 1.01325 bar)"

@@ -24,6 +24,13 @@ _SOURCE = "site_atmosphere_source"  # session key: the worksheet the widget was 
 _REFUSED = "site_atmosphere_refused"
 
 
+# the example and the help in the view's unit set (ISO 2533: 0.8456 bar = 12.26 psia at 1500 m = 4921 ft)
+_WORDS = {"SI": {"example": "e.g. 0.85 bar or 1500 m (empty: 1.01325 bar)",
+                 "zero_gauge": "0 barg is below 1.01325 bar"},
+          "US": {"example": "e.g. 12.3 psia or 5000 ft (empty: 14.696 psia)",
+                 "zero_gauge": "0 psig is below 14.696 psia"}}
+
+
 def site_text(site: SiteAtmosphere) -> str:
     """The site as typed: ``"1500 m"``, ``"0.85 bar"``, or ``""`` (the standard atmosphere at sea level)."""
     typed = site.barometric_pressure or site.altitude
@@ -72,10 +79,11 @@ def render_site_panel(worksheet: Worksheet, system: str, set_worksheet) -> None:
         st.session_state[WIDGET] = site_text(worksheet.atmosphere)
         st.session_state.pop(_REFUSED, None)
     with st.container(key="site_panel"):
+        words = _WORDS.get(system, _WORDS["SI"])
         st.subheader("Site atmosphere", help="Gauge pressures (barg, psig, kPag) are relative to the site's "
-                     "barometric pressure: at altitude 0 barg is below 1.01325 bar and water boils lower.")
+                     f"barometric pressure: at altitude {words['zero_gauge']} and water boils lower.")
         st.text_input("Site barometric pressure or altitude", key=WIDGET, on_change=_commit,
-                      args=(worksheet, set_worksheet), placeholder="e.g. 0.85 bar or 1500 m (empty: 1.01325 bar)",
+                      args=(worksheet, set_worksheet), placeholder=words["example"],
                       help="an absolute pressure (bar, kPa, psia) as measured at the site, or the altitude "
                            "(m, ft), converted by the ISO 2533 standard atmosphere")
         refused = st.session_state.get(_REFUSED)
