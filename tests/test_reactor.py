@@ -396,6 +396,7 @@ def test_screening_figure():
     s = screening_of(scenario({"MTT": "100 degC", "T_D24": "70 degC"}))
     figure = screening_figure(s)
     bar = figure.data[0]
+    assert bar.type == "scatter" and bar.mode == "markers+text"  # points: no bar length read from a cut axis
     assert list(bar.x) == ["T_process", "MTSR", "MTT", "T_D24"]
     # hand: 60, 71.953125, 100, 70 °C
     assert list(bar.y) == pytest.approx([60, 71.953125, 100, 70], abs=1e-6)

@@ -118,7 +118,10 @@ def _released_lines(s: Screening, units: dict) -> list[str]:
 
 
 def screening_figure(screening: Screening, system: str = "SI", caution: bool = True):
-    """One bar chart of T_process, MTSR, MTT and T_D24, with MTT and T_D24 as dashed limits.
+    """T_process, MTSR, MTT and T_D24 as points on one temperature axis, with MTT and T_D24 as dashed limits.
+
+    Points, not bars: the axis spans only the temperatures shown (a bar from 0 °C or 0 °F would say nothing, and a
+    bar on a cut axis would make the gaps look larger than they are).
 
     Parameters
     ----------
@@ -132,7 +135,7 @@ def screening_figure(screening: Screening, system: str = "SI", caution: bool = T
     Returns
     -------
     plotly.graph_objects.Figure
-        Bars in the order T_process, MTSR, MTT, T_D24 (those known); MTSR red and "ALARM" in
+        Points in the order T_process, MTSR, MTT, T_D24 (those known); MTSR red and "ALARM" in
         the title when it reaches MTT or T_D24; the caution written under the plot (unless ``caution=False``).
     """
     import plotly.graph_objects as go  # only a figure needs plotly (the command line's report does not)
@@ -149,10 +152,10 @@ def screening_figure(screening: Screening, system: str = "SI", caution: bool = T
         bars.append(("MTT", s.MTT, "#2980b9"))
     if s.T_D24 is not None:
         bars.append(("T_D24", s.T_D24, "#8e44ad"))
-    figure = go.Figure(go.Bar(x=[b[0] for b in bars], y=[shown(b[1]) for b in bars],
-                              marker_color=[b[2] for b in bars],
-                              text=[f"{shown(b[1]):.1f} {display_unit(unit)}" for b in bars],
-                              textposition="outside", name="temperature"))
+    figure = go.Figure(go.Scatter(x=[b[0] for b in bars], y=[shown(b[1]) for b in bars], mode="markers+text",
+                                  marker={"color": [b[2] for b in bars], "size": 16, "symbol": "diamond"},
+                                  text=[f"{shown(b[1]):.1f} {display_unit(unit)}" for b in bars],
+                                  textposition="top center", cliponaxis=False, name="temperature"))
     for label, T, color in bars[2:]:
         figure.add_hline(y=shown(T), line_dash="dash", line_color=color, annotation_text=label,
                          annotation_position="top left")
