@@ -192,17 +192,13 @@ def _sweep(args) -> int:
 
 
 def _cases(args) -> int:
-    import io
-
     from .analyses.cases import AS_TYPED, run_cases
-    from .present.whatif import case_table, case_table_text
+    from .present.whatif import case_csv_bytes, case_table, case_table_text
 
     frame = run_cases(_worksheet_of(args.worksheet), args.base or AS_TYPED, args.output or None)
     table = case_table(frame, args.units)
-    buffer = io.StringIO()
-    table.to_csv(buffer, lineterminator="\n")
     shown = table if args.json or args.csv else case_table_text(frame, args.units)  # people: one format a row
-    _print_frame(shown, args, buffer.getvalue().encode("utf-8-sig"))
+    _print_frame(shown, args, case_csv_bytes(frame, args.units))
     machine = args.json or args.csv  # its table stays pure data: a refused case's reason goes to standard error
     for name, exc in frame.attrs["refusals"].items():
         where = f"{exc.where}: " if exc.where else ""

@@ -9,6 +9,7 @@ import csv
 import io
 import json
 import math
+import re
 
 import pytest
 
@@ -339,3 +340,20 @@ def test_warnings_every_point_shares_are_said_once():
     table = sweep_table(frame, "SI", shared)
     assert not any("Steam changes phase" in text for text in table[WARNINGS])
     assert all("Steam changes phase" in text for text in sweep_table(frame, "SI")[WARNINGS][:2])
+
+
+def test_csv_numbers_carry_ten_significant_figures():
+    """No 16-digit float tails in a CSV (ten figures: 1e-10 relative), in the sweep's, the cases' and the results'."""
+    from heatbalance.present.exports import results_csv_bytes
+    from heatbalance.present.whatif import case_csv_bytes
+
+    long_number = re.compile(r"\d\.?\d{11,}")  # eleven or more digits in a row, a decimal point allowed among them
+    frame = sweep(sample(GLYCOL), [Axis("streams[Glycol].outlet.temperature", (20, 60.000000000001, 100), "degC")])
+    texts = [sweep_csv_bytes(frame).decode("utf-8-sig"),
+             case_csv_bytes(run_cases(sample(CONDENSER), "design")).decode("utf-8-sig"),
+             results_csv_bytes(solve_and_analyse(sample(GLYCOL))).decode("utf-8-sig")]
+    for text in texts:
+        assert not long_number.search(text), long_number.search(text)
+    rows = list(csv.DictReader(io.StringIO(texts[0])))
+    # the engine's own answer (consistency), to the ten figures written
+    assert float(rows[0]["Steam flow [kg/h]"]) == pytest.approx(frame["answer"][0] * 3600, rel=1e-9)

@@ -9,7 +9,11 @@ from ..worksheet import Worksheet, dump_worksheet
 from .tables import contribution_rows
 from .text import answer_text, format_heat, phrase_text
 
-__all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename"]
+__all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename", "CSV_FLOAT"]
+
+# numbers in a CSV: ten significant figures (1e-10 relative, far below any property data's accuracy), not the
+# 16-digit float tails of a computation (71.95312500000001)
+CSV_FLOAT = "%.10g"
 
 
 def worksheet_json_bytes(worksheet: Worksheet) -> bytes:
@@ -36,7 +40,7 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
     writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")
     writer.writeheader()
     for row in rows:
-        writer.writerow({k: ("" if v is None else repr(v) if isinstance(v, float) else v) for k, v in row.items()})
+        writer.writerow({k: ("" if v is None else CSV_FLOAT % v if isinstance(v, float) else v) for k, v in row.items()})
     return out.getvalue().encode("utf-8-sig")
 
 

@@ -11,10 +11,11 @@ from ..address import label as address_label
 from ..analyses.cases import difference_column
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
 from ..units import from_si
+from .exports import CSV_FLOAT
 from .text import NOT_APPLICABLE, display_unit, error_text, no_negative_zero, phrase_text, shown_unit
 
-__all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "sweep_figure", "case_table",
-           "case_table_text", "refusal_rows"]
+__all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "case_csv_bytes",
+           "sweep_figure", "case_table", "case_table_text", "refusal_rows"]
 
 _OUTPUT_WORDS = {"answer": "answer", "answer.phase_fraction": "phase fraction of the answer", "residual": "residual"}
 
@@ -93,8 +94,17 @@ def sweep_table(frame: pd.DataFrame, system: str = "SI", leave_out: tuple | list
 
 def sweep_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
     """The sweep table as CSV (UTF-8 with a byte-order mark, for spreadsheets); refused points have empty outputs."""
+    return _csv_bytes(sweep_table(frame, system), index=False)
+
+
+def case_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
+    """The case table as CSV: a row per output, a column per case and the difference (as :func:`case_table`)."""
+    return _csv_bytes(case_table(frame, system), index=True)
+
+
+def _csv_bytes(table: pd.DataFrame, index: bool) -> bytes:
     buffer = io.StringIO()
-    sweep_table(frame, system).to_csv(buffer, index=False, lineterminator="\n")
+    table.to_csv(buffer, index=index, lineterminator="\n", float_format=CSV_FLOAT)
     return buffer.getvalue().encode("utf-8-sig")
 
 
