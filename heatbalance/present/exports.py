@@ -6,14 +6,11 @@ import io
 
 from ..results import Result
 from ..worksheet import Worksheet, dump_worksheet
+from .csv_cells import CSV_FLOAT, comment_line, csv_cell
 from .tables import contribution_rows
 from .text import answer_text, format_heat, phrase_text
 
-__all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename", "CSV_FLOAT"]
-
-# numbers in a CSV: ten significant figures (1e-10 relative, far below any property data's accuracy), not the
-# 16-digit float tails of a computation (71.95312500000001)
-CSV_FLOAT = "%.10g"
+__all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename"]
 
 
 def worksheet_json_bytes(worksheet: Worksheet) -> bytes:
@@ -29,18 +26,18 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
     """
     rows = contribution_rows(result, system)
     out = io.StringIO()
-    header = [f"# {result.title}",
-              f"# answer: {result.answer.label} = {answer_text(result.answer, system)}",
-              f"# closure residual: {format_heat(result.residual, result.basis, system)}",
-              f"# sign convention: {result.sign_convention}"]
-    header += [f"# warning: {phrase_text(w, system)}" for w in result.warnings]
-    header += [f"# assumption: {phrase_text(a, system)}" for a in result.assumptions]  # the gauge reference among them
-    out.write("\n".join(line.replace("\n", " ") for line in header) + "\n")
+    header = [result.title, f"answer: {result.answer.label} = {answer_text(result.answer, system)}",
+              f"closure residual: {format_heat(result.residual, result.basis, system)}",
+              f"sign convention: {result.sign_convention}"]
+    header += [f"warning: {phrase_text(w, system)}" for w in result.warnings]
+    header += [f"assumption: {phrase_text(a, system)}" for a in result.assumptions]  # the gauge reference among them
+    out.write("\n".join(comment_line(line) for line in header) + "\n")
     columns = list(rows[0]) if rows else ["item"]
     writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")
     writer.writeheader()
     for row in rows:
-        writer.writerow({k: ("" if v is None else CSV_FLOAT % v if isinstance(v, float) else v) for k, v in row.items()})
+        writer.writerow({k: ("" if v is None else CSV_FLOAT % v if isinstance(v, float) else csv_cell(v))
+                         for k, v in row.items()})
     return out.getvalue().encode("utf-8-sig")
 
 

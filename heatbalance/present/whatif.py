@@ -3,6 +3,8 @@ from __future__ import annotations
 
 import io
 import math
+import re
+from html import escape
 
 import pandas as pd
 import plotly.graph_objects as go
@@ -11,7 +13,7 @@ from ..address import label as address_label
 from ..analyses.cases import difference_column
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
 from ..units import from_si
-from .exports import CSV_FLOAT
+from .csv_cells import CSV_FLOAT, csv_table
 from .text import NOT_APPLICABLE, display_unit, error_text, no_negative_zero, phrase_text, shown_unit
 
 __all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "case_csv_bytes",
@@ -104,7 +106,7 @@ def case_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
 
 def _csv_bytes(table: pd.DataFrame, index: bool) -> bytes:
     buffer = io.StringIO()
-    table.to_csv(buffer, index=index, lineterminator="\n", float_format=CSV_FLOAT)
+    csv_table(table).to_csv(buffer, index=index, lineterminator="\n", float_format=CSV_FLOAT)
     return buffer.getvalue().encode("utf-8-sig")
 
 
@@ -151,7 +153,39 @@ def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = N
         figure.update_layout(xaxis_title=grid.columns.name, yaxis_title=grid.index.name)
     figure.update_layout(title={"text": "What if: " + output_label(output, frame), "x": 0.0}, height=420,
                          margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
+    _plotly_safe(figure, [address_label(a) for a in frame.attrs["units"]]
+                 + [output_label(n, frame) for n in frame.attrs["kinds"]])
     return figure
+
+
+# plotly reads <, > and & in a figure's text as HTML and '%{' in a hover template as a field: a user's name is
+# written with them escaped (an invisible word joiner splits '%{')
+_WORD_JOINER = "\u2060"
+
+
+def _plotly_safe(figure: go.Figure, texts: list[str]) -> None:
+    """Escape the user text in ``texts`` (labels that may quote names) wherever the figure shows it: trace names,
+    hover templates, titles. One pass over each string, so nothing is escaped twice."""
+    risky = sorted({t for t in texts if t and ("%{" in t or any(c in t for c in "<>&"))}, key=len, reverse=True)
+    if not risky:
+        return
+    pattern = re.compile("|".join(re.escape(t) for t in risky))
+
+    def safe(text):
+        if not isinstance(text, str):
+            return text
+        return pattern.sub(lambda m: escape(m.group(0), quote=False).replace("%{", "%" + _WORD_JOINER + "{"), text)
+
+    for trace in figure.data:
+        trace.name = safe(trace.name)
+        if getattr(trace, "hovertemplate", None):
+            trace.hovertemplate = safe(trace.hovertemplate)
+        if trace.type == "heatmap" and trace.colorbar.title.text:
+            trace.colorbar.title.text = safe(trace.colorbar.title.text)
+    layout = figure.layout
+    for part in (layout.title, layout.xaxis.title, layout.yaxis.title):
+        if part.text:
+            part.text = safe(part.text)
 
 
 def case_table(frame: pd.DataFrame, system: str = "SI") -> pd.DataFrame:
