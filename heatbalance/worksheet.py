@@ -9,6 +9,7 @@ from __future__ import annotations
 import json
 import math
 import re
+import unicodedata
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
@@ -32,6 +33,49 @@ MAX_NESTING_DEPTH = 20  # objects/lists nested deeper are refused (a real worksh
 
 class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", validate_assignment=True, allow_inf_nan=False)
+
+    @field_validator("*", mode="after")
+    @classmethod
+    def _plain_text(cls, value, info):
+        if isinstance(value, str):
+            _check_plain_text(value, multiline=info.field_name == "notes")
+        return value
+
+
+# text a reader could be misled by: control characters (a line break forges a line of a report, ESC drives a
+# terminal, NUL cannot be stored in PostgreSQL) and the bidirectional overrides that show text reversed
+_BIDI_CONTROLS = frozenset("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069")
+_NOTE_BREAKS = frozenset("\n\r\t")
+
+
+def _misleading(char: str) -> bool:
+    return unicodedata.category(char) == "Cc" or char in _BIDI_CONTROLS
+
+
+def _visible(text: str) -> str:
+    """Text with each control character written as its code (a refused name, shown in its address).
+
+    >>> _visible("Glycol\\x1b[31m")
+    'Glycol<U+001B>[31m'
+    """
+    return "".join(f"<U+{ord(c):04X}>" if _misleading(c) else c for c in text)
+
+
+def _check_plain_text(text: str, multiline: bool) -> None:
+    """Refuse a control character in a name, title or unit (a note may hold line breaks and tabs).
+
+    >>> _check_plain_text("Steam, 4 barg", False); _check_plain_text("line 1\\nline 2", True)
+    >>> _check_plain_text("Heater\\nANSWER", False)
+    Traceback (most recent call last):
+    ValueError: holds a control character (U+000A, a line break); names, titles and units are plain text on one line
+    """
+    for char in text:
+        if _misleading(char) and not (multiline and char in _NOTE_BREAKS):
+            kind = "a line break" if char in "\n\r" else "a direction override" if char in _BIDI_CONTROLS else \
+                "a control character"
+            rule = "notes are plain text: line breaks and tabs only" if multiline else \
+                "names, titles and units are plain text on one line"
+            raise ValueError(f"holds a control character (U+{ord(char):04X}, {kind}); {rule}")
 
 
 QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -653,7 +697,7 @@ def _address_of(data, loc: tuple) -> tuple[str, bool]:
             name = item.get("name") if isinstance(item, dict) else None
             if not isinstance(name, str) or not parts:
                 return ".".join(parts) or "worksheet", False
-            parts[-1] = item_address(parts[-1], name)
+            parts[-1] = item_address(parts[-1], _visible(name))
             node = item
         elif isinstance(node, dict) and key in ("value", "unit") and {"value", "unit"} <= node.keys():
             break  # inside a typed quantity: the address is the quantity's
@@ -748,5 +792,10 @@ def load_worksheet(text: str | bytes, source: str = "file") -> Worksheet:
 
 
 def dump_worksheet(worksheet: Worksheet) -> str:
-    """The worksheet as indented JSON, without empty optional fields."""
-    return json.dumps(worksheet.model_dump(mode="json", exclude_none=True), indent=2, ensure_ascii=False)
+    """The worksheet as indented JSON, without empty optional fields; compact where indented it would be more than
+    :func:`load_worksheet` reads (a large sheet the store saves must open again from its file)."""
+    data = worksheet.model_dump(mode="json", exclude_none=True)
+    text = json.dumps(data, indent=2, ensure_ascii=False)
+    if len(text.encode("utf-8")) >= MAX_DOCUMENT_BYTES:  # a file ends with a newline
+        text = json.dumps(data, ensure_ascii=False, separators=(",", ":"))
+    return text
