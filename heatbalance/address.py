@@ -538,8 +538,8 @@ def _rename_references(data: dict, path: list[str], old: str, new: str, item_add
     for u in data.get("unknowns", []):
         if top in ("streams", "vessels") and len(path) == 1 and u.get("line") == old:
             u["line"] = new
-        elif path == ["vessels", "charges"] and u.get("charge") == old:
-            u["charge"] = new
+        elif path == ["vessels", "charges"] and u.get("charge") == old and u.get("line") == parse(item_address)[0][1]:
+            u["charge"] = new  # the unknown on this vessel's charge (another vessel may have a charge of that name)
         elif top == "duties" and u.get("term") == old:
             u["term"] = new
         elif top == "common_temperatures" and u.get("common") == old:

@@ -184,7 +184,7 @@ def _rename(ws, table, row, new_name):
 def test_renaming_the_unknown_line_keeps_it_the_unknown():
     ws = sample("steam_heater_glycol.json")
     renames, _, (built, problems) = _rename(ws, "streams", 1, "LP steam")
-    assert renames == {"Steam": "LP steam"} and problems == []
+    assert renames == {(None, "Steam"): "LP steam"} and problems == []
     assert built.unknowns == [Unknown(kind="amount", line="LP steam")]
     assert solve(built).answer.value_si == pytest.approx(solve(ws).answer.value_si, rel=1e-12)
 

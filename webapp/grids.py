@@ -817,11 +817,12 @@ def same_rows(a: list[dict], b: list[dict], columns: list[str]) -> bool:
     return cell_values(a, columns) == cell_values(b, columns)
 
 
-def renamed(before: list[dict], after: list[dict], column: str = "name") -> dict[str, str]:
-    """Names changed between two versions of a table, old -> new (only when no row was added or deleted).
+def renamed(before: list[dict], after: list[dict], column: str = "name") -> dict[tuple[str | None, str], str]:
+    """Names changed between two versions of a table, (the row's vessel or None, old) -> new (only when no row was
+    added or deleted): a charge's name is its vessel's own, two vessels may each have a 'Water'.
 
     >>> renamed([{"name": "A"}, {"name": "B"}], [{"name": "A"}, {"name": "C"}])
-    {'B': 'C'}
+    {(None, 'B'): 'C'}
     """
     if len(before) != len(after):
         return {}
@@ -829,7 +830,7 @@ def renamed(before: list[dict], after: list[dict], column: str = "name") -> dict
     for old_row, new_row in zip(before, after):
         old, new = _text(old_row.get(column)), _text(new_row.get(column))
         if old and new and old != new:
-            out[old] = new
+            out[_text(old_row.get("vessel")) or None, old] = new
     return out
 
 
@@ -837,23 +838,22 @@ _RENAMED_ITEMS = {"streams": "streams", "vessels": "vessels", "duties": "duties"
                   "reactions": "reactions", "shared": "common_temperatures"}
 
 
-def _item_address(ws: Worksheet, table: str, name: str) -> str | None:
+def _item_address(table: str, vessel: str | None, name: str) -> str | None:
     if table in _RENAMED_ITEMS:
         return addr.item(_RENAMED_ITEMS[table], name)
-    if table == "charges":
-        vessel = next((v.name for v in ws.vessels if any(c.name == name for c in v.charges)), None)
-        return None if vessel is None else addr.item("vessels", vessel, addr.item("charges", name))
+    if table == "charges" and vessel:
+        return addr.item("vessels", vessel, addr.item("charges", name))
     return None
 
 
 def follow_renames(ws: Worksheet, tables: dict[str, list[dict]], table: str,
-                   renames: dict[str, str]) -> tuple[Worksheet, dict[str, list[dict]]]:
+                   renames: dict[tuple[str | None, str], str]) -> tuple[Worksheet, dict[str, list[dict]]]:
     """Carry renames into the worksheet (its unknown and references, by :func:`heatbalance.address.rename`)
     and into the vessel column of the other tables; a rename the engine refuses is left to the reading."""
     if not renames:
         return ws, tables
-    for old, new in renames.items():
-        where = _item_address(ws, table, old)
+    for (vessel, old), new in renames.items():
+        where = _item_address(table, vessel, old)
         if where is None:
             continue
         try:
@@ -862,10 +862,11 @@ def follow_renames(ws: Worksheet, tables: dict[str, list[dict]], table: str,
             continue  # e.g. a name already taken: reading the tables reports it on its row
     tables = {name: [dict(row) for row in rows] for name, rows in tables.items()}
     if table == "vessels":
+        vessels = {old: new for (_, old), new in renames.items()}
         for name in ("charges", "equipment", "reactions"):
             for row in tables.get(name, []):
-                if _text(row.get("vessel")) in renames:
-                    row["vessel"] = renames[_text(row["vessel"])]
+                if _text(row.get("vessel")) in vessels:
+                    row["vessel"] = vessels[_text(row["vessel"])]
     return ws, tables
 
 
