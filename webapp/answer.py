@@ -131,7 +131,7 @@ def _render_not_solved(worksheet: Worksheet, error: HeatBalanceError | None, sys
         st.error(f"**Not solved.** The quantity solved for, {plain(address.label(gone))}, belonged to "
                  f"{plain(line)}, which is no longer on the sheet. Pick what to solve for above, or undo the "
                  "deletion.", icon=":material/error:")
-        st.button(f"Undo: bring back {line}", key="undo_deletion", on_click=_on_undo, type="primary",
+        st.button(f"Undo: bring back {plain(line)}", key="undo_deletion", on_click=_on_undo, type="primary",
                   disabled=not page_state().past)
         return
     place = refusal_place(error)

@@ -285,7 +285,7 @@ def _editor_section(worksheet: Worksheet, system: str, set_worksheet) -> None:
             source = f" — {t.source}" if t.source else " — no source given"
             c1.markdown(plain(f"{_label(t.address)}: {tolerance_size_text(t)} ({t.distribution}){source}"))
             c2.button("", key=key(f"remove_{j}"), on_click=_remove, args=(j, set_worksheet),
-                      icon=":material/delete:", help=f"Remove the tolerance on {_label(t.address)}")
+                      icon=":material/delete:", help=f"Remove the tolerance on {plain(_label(t.address))}")
     b1, b2 = st.columns(2)
     b1.button("Fill in suggested tolerances", key=key("suggest"), on_click=_suggest, args=(set_worksheet,),
               width="stretch",

@@ -22,9 +22,7 @@ Every piece of user text (names in labels, messages quoting them) is shown as pl
 from __future__ import annotations
 
 import math
-import re
 import time
-from html import escape
 
 import pandas as pd
 import streamlit as st
@@ -45,7 +43,7 @@ from .common import count_refusal, page_state, plain
 from .grids import format_quantity, parse_quantity
 
 __all__ = ["panel", "render_whatif_panel", "key", "NO_SECOND_INPUT", "NEW_CASE", "LISTED_REFUSALS",
-           "sweep_axes", "override_value", "plotly_safe"]
+           "sweep_axes", "override_value"]
 
 PREFIX = "whatif_"
 NO_SECOND_INPUT = ""  # the second input's choice "none": a sweep of one input
@@ -107,29 +105,6 @@ def _valid_choice(name: str, options: list, default) -> None:
     """Put a widget's kept choice back to ``default`` when it is no longer one of ``options`` (another sheet)."""
     if st.session_state.get(key(name)) not in options:
         st.session_state[key(name)] = default
-
-
-def plotly_safe(figure, texts) -> None:
-    """Escape ``<``, ``>`` and ``&`` of user text (``texts``: labels that may quote names) in a figure's
-    text: plotly reads them as HTML. One pass over each string, so nothing is escaped twice."""
-    risky = sorted({t for t in texts if t and any(c in t for c in "<>&")}, key=len, reverse=True)
-    if not risky:
-        return
-    pattern = re.compile("|".join(re.escape(t) for t in risky))
-
-    def safe(text):
-        return pattern.sub(lambda m: escape(m.group(0), quote=False), text) if isinstance(text, str) else text
-
-    for trace in figure.data:
-        trace.name = safe(trace.name)
-        if getattr(trace, "hovertemplate", None):
-            trace.hovertemplate = safe(trace.hovertemplate)
-        if trace.type == "heatmap" and trace.colorbar.title.text:
-            trace.colorbar.title.text = safe(trace.colorbar.title.text)
-    layout = figure.layout
-    for part in (layout.title, layout.xaxis.title, layout.yaxis.title):
-        if part.text:
-            part.text = safe(part.text)
 
 
 # =========================================================================== sweep
@@ -340,9 +315,6 @@ def _drawn(kept: dict, system: str, chosen: str):
     if (system, chosen) not in drawn:
         frame = kept["frame"]
         figure = sweep_figure(_chart_frame(frame, chosen, system), system, chosen)
-        labels = [address.label(a) for a in frame.attrs["units"]]
-        labels += [output_label(n, frame) for n in frame.attrs["kinds"]]
-        plotly_safe(figure, labels)
         drawn.clear()  # one view at a time is enough
         shared = shared_warnings(frame, system)  # said once above the table, not on each of its rows
         drawn[(system, chosen)] = (figure, sweep_table(frame, system, shared), sweep_csv_bytes(frame, system),

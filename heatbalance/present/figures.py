@@ -92,7 +92,9 @@ def energy_waterfall(result: Result, system: str = "SI") -> go.Figure:
         title={"text": f"Energy waterfall: heat into the process [{unit}]", "x": 0.0},
         yaxis={"title": {"text": f"cumulative heat into the process [{unit}]"}, "tickformat": number,
                "zeroline": True, "zerolinecolor": "#495057", "zerolinewidth": 2},
-        xaxis={"tickangle": 0 if len(steps) <= 5 else -25, "automargin": True},
+        # the bars are names, whatever they look like: "101", "102" or "2024-05-01" would make plotly guess a number
+        # or a date axis and drop the other bars
+        xaxis={"type": "category", "tickangle": 0 if len(steps) <= 5 else -25, "automargin": True},
         margin={"l": 70, "r": 20, "t": 60, "b": 40}, height=420, showlegend=False,
         plot_bgcolor="#ffffff", font={"size": 13},
     )
