@@ -26,7 +26,7 @@ from heatbalance.worksheet import Quantity, Unknown
 from webapp.common import WORD_JOINER, plain
 from webapp.state import KEY, PageState
 
-from page_helpers import answer_value, edit, errors, no_traceback, shown_answer, unescaped
+from page_helpers import answer_value, edit, errors, held, no_traceback, shown_answer, unescaped
 
 ROOT = Path(__file__).resolve().parent.parent
 APP = str(ROOT / "app.py")
@@ -286,6 +286,22 @@ def test_a_bad_batch_duration_is_marked_and_kept():
     at.text_input(key="basis_duration").input("60 min").run()
     ws = held(at)
     assert ws.basis.duration == Quantity(value=60, unit="min") and answer_text(at) == engine(ws)
+
+
+def test_a_refused_batch_duration_leaves_no_answer_and_no_save_of_another_sheet(db):
+    """A shift engineer's finding: with 'abc' refused in the batch duration, the answer of the last duration that
+    read stayed on screen as if current, and Save stored that other sheet. Now: not solved, and not saved."""
+    at = page("batch_reactor_exotherm.json")
+    at.text_input(key="basis_duration").input("60 min").run()
+    assert shown_answer(at) is not None  # 51.35 °C (hand: 54.98 °C at 40 min less 20 min more of 110 kW cooling)
+    saved_before = held(at)
+    at.text_input(key="basis_duration").input("abc").run()
+    no_traceback(at)
+    assert shown_answer(at) is None
+    assert "Not solved" in unescaped(" ".join([e.value for e in at.markdown] + [e.value for e in at.error]))
+    at.button(key="share_save").click().run()
+    assert "Not saved: a value on the page is refused (Batch duration: 'abc' is not a number" in errors(at)
+    assert held(at) == saved_before  # the worksheet keeps the last duration that read, unsaved
 
 
 def test_a_sample_with_its_own_material_shows_the_materials_table():

@@ -345,3 +345,11 @@ def test_a_reaction_needs_a_heat_or_an_equation():
     assert [(p.table, p.column) for p in problems] == [("reactions", "heat of reaction"), ("reactions", "amount")]
     assert problems[0].message.startswith("empty: give a value with its unit")
     assert "is not an amount of substance or a molar flow" in problems[1].message
+
+
+def test_a_number_beyond_any_float_is_refused_in_its_cell():
+    """A shift engineer's finding: '1e400 t' read as infinity and the page showed a traceback."""
+    from heatbalance import HeatBalanceError
+
+    with pytest.raises(HeatBalanceError, match=r"'1e400 t' is beyond any number a worksheet can hold"):
+        tb.parse_quantity("1e400 t", ("mass",), "mass")

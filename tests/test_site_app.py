@@ -10,6 +10,7 @@ import pytest
 from iapws import IAPWS97
 from page_helpers import held, page
 
+from heatbalance.errors import HeatBalanceError
 from heatbalance.worksheet import parse_worksheet
 from tests.sheet_factory import q, sheet, stream, temp
 from webapp.common import WORD_JOINER
@@ -71,3 +72,9 @@ def test_the_site_example_is_in_the_views_unit_set():
     assert us.text_input(key=WIDGET).placeholder == "e.g. 12.3 psia or 5000 ft (empty: 14.696 psia)"
     si = page(boiling_water())
     assert si.text_input(key=WIDGET).placeholder == "e.g. 0.85 bar or 1500 m (empty: 1.01325 bar)"
+
+
+def test_a_site_beyond_any_float_is_refused():
+    with pytest.raises(HeatBalanceError, match="beyond any number a worksheet can hold") as refused:
+        site_from_text("1e400 m")
+    assert refused.value.where == "atmosphere"

@@ -151,6 +151,8 @@ def parse_quantity(text: str, kinds: tuple[str, ...], column: str) -> Quantity:
     if not match:
         raise _CellError(column, f"'{text}' is not a number followed by a unit (e.g. {_example(kinds)})")
     value, unit = float(match.group(1)), match.group(2)
+    if not math.isfinite(value):  # 1e400 reads as infinity
+        raise _CellError(column, f"'{text}' is beyond any number a worksheet can hold")
     if not unit:
         raise _CellError(column, f"'{text}' has no unit: write it with one, e.g. {_example(kinds)}")
     unit = _STORED_UNITS.get(unit, unit)

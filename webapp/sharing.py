@@ -319,6 +319,10 @@ def saver() -> str | None:
 def _on_save(worksheet: Worksheet) -> None:
     state = st.session_state
     state[PROBLEM] = state[NOTICE] = ""
+    unread = page_state().unread()
+    if unread:  # what would be saved is the last worksheet that read, not what the page shows
+        state[PROBLEM] = f"Not saved: a value on the page is refused ({unread}). Correct it, then save."
+        return
     who = saver()
     if who is None:
         state[PROBLEM] = ("Not saved: this server records who saves each revision; log in (with an account "

@@ -7,6 +7,8 @@ address; the line under it is the assumption the results and exports carry.
 """
 from __future__ import annotations
 
+import math
+
 import streamlit as st
 
 from heatbalance.errors import HeatBalanceError, InputError
@@ -48,6 +50,8 @@ def site_from_text(text: str) -> SiteAtmosphere:
     if not match or not match.group(2):
         raise InputError(f"'{text}' is not a pressure or an altitude with its unit (e.g. '0.85 bar', '1500 m')",
                          "atmosphere")
+    if not math.isfinite(float(match.group(1))):  # 1e400 reads as infinity
+        raise InputError(f"'{text}' is beyond any number a worksheet can hold", "atmosphere")
     q = Quantity(value=float(match.group(1)), unit=match.group(2))
     field = "barometric_pressure" if kind_of(q.unit, ("pressure", "length"), "atmosphere") == "pressure" \
         else "altitude"

@@ -257,12 +257,20 @@ class PageState:
             self.solved = (self.worksheet, self.result)
         return self.result, self.error
 
+    def unread(self) -> str:
+        """What the page shows typed but the worksheet does not hold (a bad cell, a bad batch duration), in words;
+        '' when the worksheet is what the page shows."""
+        found = [p.text for p in self.problems] + ([f"Batch duration: {self.basis_problem}"]
+                                                   if self.basis_problem else [])
+        if not found:
+            return ""
+        return found[0] + (f" (and {len(found) - 1} more)" if len(found) > 1 else "")
+
     def _solve(self) -> tuple[Result | None, HeatBalanceError | None]:
         ws = self.worksheet
-        if self.problems:
-            first = self.problems[0]
-            more = f" (and {len(self.problems) - 1} more)" if len(self.problems) > 1 else ""
-            return None, HeatBalanceError(f"{first.text}{more}")
+        unread = self.unread()
+        if unread:  # the last worksheet that read is not what the page shows: no answer for it
+            return None, HeatBalanceError(unread)
         if not ws.streams and not ws.vessels:
             return None, None  # a new sheet: nothing to solve yet, and nothing wrong
         try:

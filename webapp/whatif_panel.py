@@ -260,13 +260,15 @@ def _sweep_section(worksheet: Worksheet, system: str) -> None:
                    help="What is collected at every point (the answer by default).")
     ranges = [tuple(st.session_state[key(f"{x}_{n}")] for x in ("from", "to", "count", "unit"))
               for n in range(len(chosen))]
-    problems = bool(page_state().problems)
+    problems = bool(page_state().unread())
     label = f"Run the sweep ({math.prod(int(r[2]) for r in ranges):,} points)" if counted else \
         "Run the sweep (give the points first)"
     run = st.button(label, key=key("run"), type="primary",
                     disabled=problems or not counted or not st.session_state[key("outputs")])
     if problems:
-        st.caption("Fix the marked cells of the tables first: the sweep runs on the worksheet as shown.")
+        st.session_state.pop(key("refusal"), None)  # a refusal of an earlier run, of a worksheet no longer shown
+        st.caption("Fix the refused values first (the marked cells, the batch duration): the sweep runs on the "
+                   "worksheet as shown.")
     if run and counted:  # a refused number of points never reaches the sweep
         _run_sweep(worksheet, inputs, chosen, ranges, list(st.session_state[key("outputs")]), system)
     if key("refusal") in st.session_state:
