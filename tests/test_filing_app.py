@@ -84,9 +84,11 @@ def test_the_answer_shows_value_plus_minus_U_equal_to_the_propagation():
     assert line == uncertainty_text(u, "SI", answer)
     value, expanded, unit = re.fullmatch(r"([\d.,]+) ± ([\d.,]+) (\S+) \(k = 2, about 95 %\)", line).groups()
     assert unit == "t/h"
-    # the page's numbers are the propagation's (SI kg/s) in t/h, to the 4 digits shown
-    assert float(value) == pytest.approx(from_si(u.value, "t/h", "mass_flow"), rel=5e-4)
-    assert float(expanded) == pytest.approx(from_si(u.expanded, "t/h", "mass_flow"), rel=5e-4)
+    # the page's numbers are the propagation's (SI kg/s) in t/h: U to two significant figures, the value to
+    # the same decimal place (GUM 7.2.6), each within half that place
+    half_place = 0.5 * 10 ** -len(expanded.partition(".")[2])
+    assert float(value) == pytest.approx(from_si(u.value, "t/h", "mass_flow"), abs=half_place)
+    assert float(expanded) == pytest.approx(from_si(u.expanded, "t/h", "mass_flow"), abs=half_place)
     # hand check of the order of magnitude: two ±0.5 K thermometers over a 10 K rise, rectangular:
     # u_rel ≈ √2 · (0.5/√3) / 10 ≈ 4.1 %, so U (k = 2) ≈ 8 % of the flow
     assert 0.07 < float(expanded) / float(value) < 0.095

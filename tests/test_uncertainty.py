@@ -69,7 +69,11 @@ def test_the_report_writes_the_answer_with_its_expanded_uncertainty():
     result = solve_and_analyse(cooling_water(TOLERANCES))
     text = uncertainty_text(result.uncertainty, "SI", result.answer)
     Q, U = result.uncertainty.value / 1e3, result.uncertainty.expanded / 1e3
-    assert text == f"{Q:,.4g} ± {U:,.4g} kW (k = 2, about 95 %)"
+    # GUM 7.2.6: U to two significant figures, the answer to the same decimal place
+    place = math.floor(math.log10(U)) - 1
+    decimals = max(0, -place)
+    assert text == f"{round(Q, -place):,.{decimals}f} ± {round(U, -place):,.{decimals}f} kW (k = 2, about 95 %)"
+    assert len(text.split(" ± ")[1].split(" ")[0].replace(",", "").replace(".", "").lstrip("0")) == 2
     rows = contribution_rows(result.uncertainty, "US", result.answer)
     assert rows[0]["tolerance"] in ("± 0.5 K (rectangular)", "± 0.9 °F (rectangular)")
     assert rows[0]["contribution [Btu/h]"] == pytest.approx(result.uncertainty.contributions[0].contribution

@@ -1,6 +1,7 @@
 """An output's uncertainty in a unit set: ``value ± U`` and the ranked contributions (reads analyses.uncertainty)."""
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
 from ..address import label
@@ -39,11 +40,27 @@ def _number(x: float) -> str:
 
 
 def uncertainty_text(u: Uncertainty, system: str = "SI", answer: Answer | None = None) -> str:
-    """``28,310 ± 2,370 kg/h (k = 2, about 95 %)``."""
+    """``28,300 ± 2,400 kg/h (k = 2, about 95 %)``: U to two significant figures, the value to the same place."""
     unit = uncertainty_unit(u, system, answer)
     value, expanded = _value(u.value, unit, u.kind), abs(_difference(u.expanded, unit, u.kind))
-    return (f"{_number(value)} ± {_number(expanded)} {display_unit(unit)}".rstrip() +
-            f" (k = {u.coverage:g}, about 95 %)")
+    value_text, expanded_text = value_and_uncertainty(value, expanded)
+    return f"{value_text} ± {expanded_text} {display_unit(unit)}".rstrip() + f" (k = {u.coverage:g}, about 95 %)"
+
+
+def value_and_uncertainty(value: float, expanded: float) -> tuple[str, str]:
+    """A value and its expanded uncertainty as written: U to two significant figures and the value to the same
+    decimal place (GUM, JCGM 100:2008, 7.2.6: no more digits than the uncertainty carries).
+
+    >>> value_and_uncertainty(130.96, 1.463), value_and_uncertainty(28_310.0, 2_370.0)
+    (('131.0', '1.5'), ('28,300', '2,400'))
+    >>> value_and_uncertainty(54.978, 0.813)
+    ('54.98', '0.81')
+    """
+    if not expanded > 0 or not math.isfinite(expanded):
+        return _number(value), _number(expanded)
+    place = math.floor(math.log10(expanded)) - 1  # the power of ten of U's second significant figure
+    decimals = max(0, -place)
+    return f"{round(value, -place):,.{decimals}f}", f"{round(expanded, -place):,.{decimals}f}"
 
 
 def tolerance_text(c) -> str:
