@@ -209,3 +209,16 @@ def test_an_answer_on_a_phase_change_carries_the_uncertainty_of_its_fraction():
     assert fraction.value == pytest.approx(result.answer.phase_fraction, rel=1e-9)
     assert abs(fraction.expanded) == pytest.approx(0.0185, rel=0.03)
     assert "Tank T-5 final temperature: liquid (melted) fraction = 56.8% ± 1.8% (k = 2" in format_result(result)
+
+
+def test_no_thermometer_tolerance_is_suggested_for_a_temperature_no_thermometer_reads():
+    """A shift engineer's finding: 'Fill in suggested tolerances' put thermometer tolerances on a material's data
+    limits. Data limits, a freezing point from data, T_D24, MTT and a set point are no plant readings."""
+    from heatbalance.analyses.uncertainty import suggested_tolerances
+
+    for name in ("batch_reactor_exotherm", "glycol_hydration_screening", "berry_freezing_tunnel"):
+        suggested = [t.address for t in suggested_tolerances(load_worksheet(open(f"sample_data/{name}.json",
+                                                                                 "rb").read()))]
+        assert not any(a.endswith(("min_temperature", "max_temperature", "initial_freezing_point", "T_D24",
+                                   "target_temperature")) for a in suggested), suggested
+        assert any(a.endswith("initial.temperature") or a.endswith("inlet.temperature") for a in suggested)

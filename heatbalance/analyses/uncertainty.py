@@ -102,6 +102,12 @@ class Uncertainty:
 
 
 # --------------------------------------------------------------------------- tolerances
+# temperature fields that are no plant reading: a material's data limits and phase bounds, a freezing point from
+# data, a decomposition temperature (from calorimetry), a technical limit, a controller's set point
+NOT_READINGS = frozenset({"min_temperature", "max_temperature", "up_to", "initial_freezing_point", "T_D24", "MTT",
+                          "target_temperature"})
+
+
 def suggested_tolerances(ws: Worksheet) -> list[Tolerance]:
     """A tolerance for every input of a kind with a common-practice default (the unknown left out),
     each saying where it comes from: offered to the user, never applied silently."""
@@ -112,6 +118,8 @@ def suggested_tolerances(ws: Worksheet) -> list[Tolerance]:
         if entry.is_unknown or not isinstance(entry.value, Quantity) or any(e.sets == entry.address
                                                                               for e in ws.exchangers):
             continue
+        if entry.address.rpartition(".")[2] in NOT_READINGS:
+            continue  # no thermometer reads a data limit, a set point or a decomposition temperature
         kind = _typed_kind(entry.value.unit, entry.kinds, entry.address)
         if kind in DEFAULT_TOLERANCES:
             size, distribution, source = DEFAULT_TOLERANCES[kind]
