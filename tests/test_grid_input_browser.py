@@ -21,13 +21,14 @@ from heatbalance.worksheet import parse_worksheet
 from page_helpers import (ANSWER, FIRST_DRAW_MS, TEXT_EDITOR, cell_text, choose, grid, idle,
                           open_page, painted, sample, type_and_commit, wait_for_cell)
 from webapp.answer import NEW_DUTY_LABEL
+from webapp.grids import COLUMNS
 
 pytestmark = pytest.mark.browser
 
 TIMEOUT_MS = 30_000
 ACID = "acid_dilution_jacketed_vessel.json"
 CHARGE_COLUMNS = ["vessel", "name", "material", "mass fraction", "mass", "initial"]
-MARKED = 1  # the 'check' column, shown first while a cell of the grid is marked
+CHECK = len(CHARGE_COLUMNS)  # the 'check' column, shown last while a cell of the grid is marked
 GRID_PICKER = "[id^='gdg-overlay'] input[role='combobox']"  # a dropdown cell's editor (not the page's select boxes)
 ANY_EDITOR = f"{TEXT_EDITOR}, {GRID_PICKER}"
 
@@ -60,13 +61,13 @@ def test_98_in_the_acids_mass_fraction_is_refused_not_clamped_and_98_percent_is_
     assert cell_text(page, "charges", 1, fraction) == "0.98"
     _type_at(page, "charges", 1, fraction, "98", shown=False)
     page.get_by_text("'98' is not a mass fraction (0 to 1): for 98 % type 0.98 or 98 %").first.wait_for()
-    wait_for_cell(page, "charges", 1, 0, "⚠ mass fraction")
+    wait_for_cell(page, "charges", 1, CHECK, "⚠ mass fraction")
     idle(page)
-    assert cell_text(page, "charges", 1, MARKED + fraction) == "98"  # as typed, not 1
+    assert cell_text(page, "charges", 1, fraction) == "98"  # as typed, not 1; the mark moved no column
     assert page.locator(ANSWER).count() == 0  # no answer on pure acid
-    _type_at(page, "charges", 1, MARKED + fraction, "98 %", shown=False)
+    _type_at(page, "charges", 1, fraction, "98 %", shown=False)
     wait_for_answer(page, answer_text(solve(sample(ACID)).answer))
-    wait_for_cell(page, "charges", 1, fraction, "98 %")  # the mark is gone, and with it the 'check' column
+    wait_for_cell(page, "charges", 1, fraction, "98 %")  # the mark is gone (the 'check' column with it)
 
 
 def _open_at(page, table: str, row: int, column: int, editor: str, attempts: int = 6) -> None:
@@ -147,10 +148,10 @@ def test_a_new_batch_sheet_gets_its_first_charge_from_the_vessel_dropdown(opened
     choose(page, "basis_kind", "batch", lambda p: grid(p, "vessels").wait_for())
     idle(page)
     _type_into_the_blank_row(page, "vessels", "V-1")
-    wait_for_cell(page, "vessels", 0, 0, "⚠ row")  # "vessel V-1 has no charges": the sheet does not read yet
+    wait_for_cell(page, "vessels", 0, len(COLUMNS["vessels"]), "⚠ row")  # "vessel V-1 has no charges": not read yet
     idle(page)
-    _type_at(page, "vessels", 0, MARKED + 1, "0 barg")  # columns: name, pressure, gauge/abs., final
-    _type_at(page, "vessels", 0, MARKED + 3, "35 °C")
+    _type_at(page, "vessels", 0, 1, "0 barg")  # columns: name, pressure, gauge/abs., final
+    _type_at(page, "vessels", 0, 3, "35 °C")
     charges = grid(page, "charges")
     charges.scroll_into_view_if_needed()
     box = charges.bounding_box()

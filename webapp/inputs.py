@@ -143,7 +143,8 @@ def _render_table(table: str, config: dict, problems: list[grids.CellProblem], c
                                           _dropdown_options(config, grids.COLUMNS[table]))
     key = state.editor_key(table)  # a new one when an undo had to redraw the grid
     frame = table_frame(table, rows, given_marks)
-    shown = (["check"] if frame["check"].any() else []) + grids.COLUMNS[table]  # 'check' only when needed
+    # 'check' only when needed, and last: a mark appearing must not move the cells being typed into
+    shown = grids.COLUMNS[table] + (["check"] if frame["check"].any() else [])
     st.data_editor(frame, key=key, on_change=_on_table_edit, args=(table,), num_rows="dynamic",
                    width="stretch", hide_index=True, placeholder="", column_order=shown,
                    column_config={c: config[c] for c in shown if c in config}, disabled=["check", *grids.DERIVED])
