@@ -748,6 +748,9 @@ def _charges(p: Problem, lines: list[LineResult]):
     return ((model, ln) for model, ln in zip(p.lines, lines) if model.kind == "charge")
 
 
+NEAR_BOILING_K = 1.0  # a charge this close above its boiling point was most likely meant as boiling liquid
+
+
 def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
     """A charge above its boiling point at its vessel's pressure, of a material that is liquid at ambient there or
     that condenses in the vessel: said, for a hot liquid typed without its own pressure is counted as vapour (a
@@ -760,11 +763,14 @@ def _charged_as_vapour(p: Problem, lines: list[LineResult]) -> list[Phrase]:
         boiling = [tr for tr in model.material.transitions(ln.initial_P) if tr.kind == "boiling"]
         if not boiling or ln.initial_T <= boiling[0].T + T_TOL or (boiling[0].T < AMBIENT_T and ln.latent >= 0):
             continue
+        near = ln.initial_T - boiling[0].T < NEAR_BOILING_K  # "100 °C" typed for water boiling at 99.97 °C
         out.append(Phrase("{name} is vapour as charged: {T} is above its boiling point {T_b} at {P}, so it is counted "
                           "as vapour. If it is a liquid under pressure, give the charge's own pressure (a liquid that "
-                          "flashes as it enters loses its flash vapour, which is not modelled).",
-                          {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 1),
-                           "T_b": Measure(boiling[0].T, "temperature", 1), "P": Measure(ln.initial_P, "pressure")},
+                          "flashes as it enters loses its flash vapour, which is not modelled)."
+                          + (" It is within 1 K of boiling: for a liquid at its boiling point, give its state as "
+                             "vapour fraction 0." if near else ""),
+                          {"name": ln.name, "T": Measure(ln.initial_T, "temperature", 2),
+                           "T_b": Measure(boiling[0].T, "temperature", 2), "P": Measure(ln.initial_P, "pressure")},
                           model.initial.temperature_address))
     return out
 

@@ -251,12 +251,24 @@ def test_a_charge_above_its_boiling_point_is_said_to_be_vapour_as_charged():
     assert result.answer.value_si == pytest.approx(3000 * (h_steam - h_40) / (h_40 - h_12), rel=1e-3)
     (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
     assert warning.address == "vessels[Quench pit].charges[Hot condensate].initial.temperature"
-    assert "150.0 °C is above its boiling point 100.0 °C at 1.013 bar(a)" in warning.text
+    assert "150.00 °C is above its boiling point 99.97 °C at 1.013 bar(a)" in warning.text
+    assert "within 1 K of boiling" not in warning.text
     doc["vessels"][0]["charges"][0]["initial"]["pressure"] = {"value": 5, "unit": "barg"}  # a liquid under pressure
     assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
     doc["vessels"][0]["charges"][0]["initial"]["pressure"] = {"value": 3, "unit": "barg"}  # steam at its own 3 barg,
     doc["vessels"][0]["charges"][0]["initial"]["temperature"]["value"] = 160  # charged on purpose: not said
     assert not [w for w in solve(load_worksheet(json.dumps(doc).encode())).warnings if "vapour as charged" in w.text]
+
+
+def test_a_charge_typed_at_100_c_for_boiling_water_is_told_how_to_give_boiling_liquid():
+    """A shift engineer's finding: '100 °C' typed for boiling water at 0 barg is 0.03 K above its boiling point
+    (99.97 °C at 1.01325 bar, IAPWS-IF97 via iapws) and counted as steam; the warning says how to give boiling
+    liquid (vapour fraction 0)."""
+    result = solve(_one_charge_duty("Batch", "water", 100, 100, 60))
+    (warning,) = [w for w in result.warnings if "vapour as charged" in w.text]
+    assert "100.00 °C is above its boiling point 99.97 °C" in warning.text
+    assert "within 1 K of boiling: for a liquid at its boiling point, give its state as vapour fraction 0" in \
+        warning.text
 
 
 def _one_charge_duty(charge: str, material: str, kg: float, initial_C: float, final_C: float):

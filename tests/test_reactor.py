@@ -662,3 +662,22 @@ def test_a_jacket_that_cannot_remove_the_average_release_is_warned():
     assert "removes at most 19.99 kW" in warning.text and "161 kW" in warning.text
     # 5 kW/K removes 200 kW there: enough on average (hand calculation)
     assert not [w for w in _reactor_with(jacket("5 kW/K")).warnings if "too small" in w.text]
+
+
+def test_a_cp_only_charge_above_mtt_is_said_to_boil_as_charged():
+    """A shift engineer's finding: the dissolved methanol (cp-only data) typed at 140 °C passed silently, though
+    the mixture boils at MTT 87.6 °C (UNIFAC bubble point of the sample; Perry's gives 87.7 °C at x = 0.10)."""
+    import json
+
+    from heatbalance.analyses import solve_and_analyse
+    from heatbalance.worksheet import load_worksheet
+
+    doc = json.load(open("sample_data/dissolved_solvent_screening.json", encoding="utf-8"))
+    charge = next(c for c in doc["vessels"][0]["charges"] if c["name"] == "Methanol")
+    result = solve_and_analyse(load_worksheet(json.dumps(doc)))
+    assert not [w for w in result.warnings if "above MTT" in w.text]  # as the sample has it, 20 °C
+    charge["initial"]["temperature"] = {"value": 140, "unit": "degC"}
+    result = solve_and_analyse(load_worksheet(json.dumps(doc)))
+    (warning,) = [w for w in result.warnings if "above MTT" in w.text]
+    assert "charged at 140.0 °C, above MTT 87.6 °C: it would boil as it is charged" in warning.text
+    assert warning.address == "vessels[R-5].charges[Methanol].initial.temperature"

@@ -357,3 +357,19 @@ def test_csv_numbers_carry_ten_significant_figures():
     rows = list(csv.DictReader(io.StringIO(texts[0])))
     # the engine's own answer (consistency), to the ten figures written
     assert float(rows[0]["Steam flow [kg/h]"]) == pytest.approx(frame["answer"][0] * 3600, rel=1e-9)
+
+
+def test_a_point_with_a_warning_of_its_own_is_ringed_in_the_chart_and_listed():
+    """A shift engineer's finding: the batch started at 100 °C at 0 barg is counted as steam (water boils at
+    99.97 °C at 1.01325 bar, IAPWS-IF97 via iapws) and the sweep drew that point like any other. Now it is ringed
+    in the chart and its warning is its own (not one every point has)."""
+    from heatbalance.present.whatif import WARNED_NAME, own_warnings
+
+    ws = sample("sample_data/batch_reactor_exotherm.json")
+    axis = Axis("vessels[R-2].charges[Batch].initial.temperature", (40, 70, 100), "degC")
+    frame = sweep(ws, [axis])
+    own = own_warnings(frame)
+    assert [bool(w) for w in own] == [False, False, True]
+    assert any("vapour as charged" in t for t in own[2])
+    ringed = next(t for t in sweep_figure(frame).data if t.name == WARNED_NAME)
+    assert list(ringed.x) == [100]

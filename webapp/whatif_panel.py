@@ -32,8 +32,8 @@ from heatbalance.analyses.cases import AS_TYPED, run_cases
 from heatbalance.analyses.sweep import MAX_POINTS, REASON, Axis, answer_field, axis_values, output_names, sweep
 from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.present.text import display_unit, error_text
-from heatbalance.present.whatif import (case_table, output_label, output_unit, refusal_rows, shared_warnings,
-                                        sweep_csv_bytes, sweep_figure, sweep_table)
+from heatbalance.present.whatif import (case_table, output_label, output_unit, own_warnings, refusal_rows,
+                                        shared_warnings, sweep_csv_bytes, sweep_figure, sweep_table)
 from heatbalance.problem import build_problem
 from heatbalance.results import Result
 from heatbalance.units import from_si, kind_of, to_si
@@ -334,7 +334,10 @@ def _draw_sweep(worksheet: Worksheet, system: str) -> None:
     frame = kept["frame"]
     outputs = list(frame.attrs["kinds"])
     refused = int(frame[REASON].notna().sum())
-    st.caption(f"{len(frame):,} points, {refused:,} refused; solved in {kept['seconds']:.2f} s.",
+    own = own_warnings(frame, system)
+    warned = sum(1 for w in own if w)
+    st.caption(f"{len(frame):,} points, {refused:,} refused, {warned:,} with a warning of their own; solved in "
+               f"{kept['seconds']:.2f} s.",
                help="The axes are in the units typed above; the outputs in the view's units "
                     "(the answer in the unit typed for it).")
     _valid_choice("chart_output", outputs, outputs[0])
@@ -353,6 +356,14 @@ def _draw_sweep(worksheet: Worksheet, system: str) -> None:
             st.markdown("\n".join(f"- {plain(r)}" for r in rows[:LISTED_REFUSALS]))
     if shared:
         st.warning("At every point: " + " ".join(plain(w) for w in shared), icon=":material/warning:")
+    if warned:  # a point unlike the others (a charge counted as vapour, data extrapolated): said, not only ringed
+        distinct = list(dict.fromkeys(t for texts in own for t in texts))
+        more = f" (the first {LISTED_REFUSALS}; each point's are in the table)" if len(distinct) > LISTED_REFUSALS \
+            else ""
+        with st.container(key="whatif_warned"):
+            st.warning(f"{warned:,} of {len(frame):,} points have a warning of their own, ringed in the chart{more}:",
+                       icon=":material/warning:")
+            st.markdown("\n".join(f"- {plain(t)}" for t in distinct[:LISTED_REFUSALS]))
     numbers = {c: st.column_config.NumberColumn(format=_NUMBER) for c in table.columns
                if pd.api.types.is_float_dtype(table[c])}
     st.dataframe(table, key=key("table"), hide_index=True, column_config=numbers)

@@ -226,6 +226,8 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
         MTT, MTT_source, bubble = _mixture_mtt(vessel, inputs, charges, notes, result.warnings)
     else:
         MTT, MTT_source = _mtt(inputs.MTT, charges, notes)
+    if MTT is not None:
+        result.warnings.extend(_charged_above_mtt(charges, MTT, where))
     T_D24 = inputs.T_D24
     caveats = []
     if MTT is not None and T_D24 is not None:
@@ -374,6 +376,21 @@ def _mixture_mtt(vessel: str, inputs, charges: list, notes: list[Phrase], warnin
              "T_major": Measure(bubble.T_major, "temperature", 1), "others": others,
              "share": f"{bubble.volatile_share:.0%}", "T": Measure(bubble.T, "temperature", 1)}))
     return bubble.T, source, bubble
+
+
+def _charged_above_mtt(charges: list, MTT: float, where: str) -> list[Phrase]:
+    """A charge whose material has no boiling in its data (cp only, a table) charged above MTT: as charged it would
+    boil, which the balance counts as a hot liquid (a material with a boiling point says 'vapour as charged')."""
+    out = []
+    for model, line in charges:
+        boils = any(t.kind == "boiling" for t in model.material.transitions(line.initial_P))
+        if line.initial_T > MTT + 0.05 and not boils:
+            out.append(Phrase("{name} is charged at {T}, above MTT {MTT}: it would boil as it is charged. Its "
+                              "material's data have no boiling, so the balance counts it as a hot liquid and its "
+                              "flash is not modelled: check its temperature.",
+                              {"name": line.name, "T": Measure(line.initial_T, "temperature", 1),
+                               "MTT": Measure(MTT, "temperature", 1)}, model.initial.temperature_address))
+    return out
 
 
 def _alarms(T_process: float, MTSR: float, MTT: float | None, T_D24: float | None, where: str) -> list[Phrase]:

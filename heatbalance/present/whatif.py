@@ -16,8 +16,8 @@ from ..units import from_si
 from .csv_cells import CSV_FLOAT, csv_table
 from .text import NOT_APPLICABLE, display_unit, error_text, no_negative_zero, phrase_text, shown_unit
 
-__all__ = ["output_label", "output_unit", "shared_warnings", "sweep_table", "sweep_csv_bytes", "case_csv_bytes",
-           "sweep_figure", "case_table", "case_table_text", "refusal_rows"]
+__all__ = ["output_label", "output_unit", "shared_warnings", "own_warnings", "sweep_table", "sweep_csv_bytes",
+           "case_csv_bytes", "sweep_figure", "case_table", "case_table_text", "refusal_rows"]
 
 _OUTPUT_WORDS = {"answer": "answer", "answer.phase_fraction": "phase fraction of the answer", "residual": "residual"}
 
@@ -76,6 +76,16 @@ def shared_warnings(frame: pd.DataFrame, system: str = "SI") -> list[str]:
     return [t for t in texts if all(t in {phrase_text(p, system) for p in phrases} for phrases in solved[1:])]
 
 
+def own_warnings(frame: pd.DataFrame, system: str = "SI") -> list[list[str]]:
+    """Each point's warnings beyond those every solved point has (a charge counted as vapour at one point, data
+    extrapolated at the end of the range): what makes a point unlike the others; [] at a refused point."""
+    if WARNINGS not in frame:
+        return [[] for _ in range(len(frame))]
+    shared = set(shared_warnings(frame, system))
+    return [[] if reason is not None else [t for t in (phrase_text(p, system) for p in phrases) if t not in shared]
+            for phrases, reason in zip(frame[WARNINGS], frame[REASON])]
+
+
 def sweep_table(frame: pd.DataFrame, system: str = "SI", leave_out: tuple | list = ()) -> pd.DataFrame:
     """A sweep's frame for people: axes as given, outputs in the view's units, each refusal in words;
     ``leave_out``: warnings said once elsewhere (see :func:`shared_warnings`), not repeated on every row."""
@@ -120,6 +130,10 @@ def refusal_rows(frame: pd.DataFrame, system: str = "SI") -> list[str]:
     return rows
 
 
+WARNED_NAME = "a warning of its own (see the table)"
+WARNED_MARKER = {"symbol": "circle-open", "size": 14, "line": {"width": 2}, "color": "#c0392b"}
+
+
 def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = None) -> go.Figure:
     """One input: a line per output against it (refused points are gaps). Two inputs: a heat map of one output."""
     kinds = frame.attrs["kinds"]
@@ -139,6 +153,12 @@ def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = N
         if refused.any():
             figure.add_trace(go.Scatter(x=table.loc[refused, x_title], y=[None] * int(refused.sum()), mode="markers",
                                         name="refused (see the list)", showlegend=True))
+        shown, _ = _output_header(output, kinds[output], system, frame)
+        warned = pd.Series([bool(w) for w in own_warnings(frame, system)], index=frame.index)
+        if warned.any():  # a point unlike the others: ringed, its warning in the table
+            figure.add_trace(go.Scatter(x=table.loc[warned, x_title], y=table.loc[warned, shown], mode="markers",
+                                        marker=WARNED_MARKER, name=WARNED_NAME,
+                                        hovertemplate="a warning of its own: see the table<extra></extra>"))
         figure.update_layout(xaxis_title=x_title, yaxis_title=_output_header(output, kinds[output], system, frame)[0])
     else:
         (x_col, x_unit), (y_col, y_unit) = axes
@@ -150,9 +170,15 @@ def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = N
                                       colorbar={"title": {"text": header}},
                                       hovertemplate=(f"{grid.columns.name}: %{{x:.4g}}<br>{grid.index.name}: "
                                                      f"%{{y:.4g}}<br>{header}: %{{z:.4g}}<extra></extra>")))
+        warned = pd.Series([bool(w) for w in own_warnings(frame, system)], index=frame.index)
+        if warned.any():
+            figure.add_trace(go.Scatter(x=table.loc[warned, grid.columns.name], y=table.loc[warned, grid.index.name],
+                                        mode="markers", marker=WARNED_MARKER, name=WARNED_NAME, showlegend=True,
+                                        hovertemplate="a warning of its own: see the table<extra></extra>"))
         figure.update_layout(xaxis_title=grid.columns.name, yaxis_title=grid.index.name)
-    figure.update_layout(title={"text": "What if: " + output_label(output, frame), "x": 0.0}, height=420,
-                         margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
+    drawn = list(kinds) if len(axes) == 1 else [output]  # one input: every output in the chart's unit is a line
+    figure.update_layout(title={"text": "What if: " + ", ".join(output_label(n, frame) for n in drawn), "x": 0.0},
+                         height=420, margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
     _plotly_safe(figure, [address_label(a) for a in frame.attrs["units"]]
                  + [output_label(n, frame) for n in frame.attrs["kinds"]])
     return figure
