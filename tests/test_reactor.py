@@ -681,3 +681,16 @@ def test_a_cp_only_charge_above_mtt_is_said_to_boil_as_charged():
     (warning,) = [w for w in result.warnings if "above MTT" in w.text]
     assert "charged at 140.0 °C, above MTT 87.6 °C: it would boil as it is charged" in warning.text
     assert warning.address == "vessels[R-5].charges[Methanol].initial.temperature"
+
+
+def test_the_process_temperature_typed_on_the_panel_moves_mtsr():
+    """A shift engineer's finding: the double-count warning asked for a process temperature the page had no field
+    for. Typed on the panel, MTSR follows it: 50.0 °C + 100 % × 11.1 K = 61.1 °C (ΔT_ad of the sample, see
+    test_the_reactor_sample_gets_a_screening; hand calculation)."""
+    from streamlit.testing.v1 import AppTest
+
+    at = AppTest.from_function(_panel_page, default_timeout=60).run()
+    at.number_input(key="screening_0_process_temperature").set_value(50.0).run()
+    assert not at.exception
+    table = next(m.value for m in at.markdown if m.value.startswith("| T_process"))
+    assert "| 50.0 °C | **61.1 °C** (100% accumulated) |" in table

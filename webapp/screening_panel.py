@@ -58,13 +58,14 @@ def _typed(value: float | None, system: str, kept: Quantity | None) -> Quantity 
 
 
 def what_if_worksheet(worksheet: Worksheet, vessel: str, accumulation: float, T_D24: Quantity | None,
-                      MTT: Quantity | None) -> Worksheet:
+                      MTT: Quantity | None, process_temperature: Quantity | None = None) -> Worksheet:
     """A copy of the worksheet with the vessel's screening inputs replaced (the rest kept)."""
     copy = worksheet.model_copy(deep=True)
     for v in copy.vessels:
         if v.name == vessel:
             old = v.screening or ScreeningInputs()
-            v.screening = old.model_copy(update={"accumulation": accumulation, "T_D24": T_D24, "MTT": MTT})
+            v.screening = old.model_copy(update={"accumulation": accumulation, "T_D24": T_D24, "MTT": MTT,
+                                                 "process_temperature": process_temperature})
     return Worksheet.model_validate(copy.model_dump())
 
 
@@ -80,7 +81,12 @@ def _defaults(worksheet: Worksheet, screening: Screening, system: str) -> dict[s
     td24 = None
     if inputs.T_D24 is not None:
         td24 = _shown(to_si(inputs.T_D24.value, inputs.T_D24.unit, "temperature"), system)
-    return {"accumulation": round(inputs.accumulation * 100, 3), "T_D24": td24, "MTT": mtt}
+    process = None
+    if inputs.process_temperature is not None:
+        process = _shown(to_si(inputs.process_temperature.value, inputs.process_temperature.unit, "temperature"),
+                         system)
+    return {"accumulation": round(inputs.accumulation * 100, 3), "T_D24": td24, "MTT": mtt,
+            "process_temperature": process}
 
 
 def _fill_widgets(worksheet: Worksheet, result: Result, system: str) -> None:
@@ -104,7 +110,8 @@ def panel(set_worksheet):
 
 
 def _chosen(index: int) -> dict[str, object]:
-    return {field: st.session_state.get(widget_key(index, field)) for field in ("accumulation", "T_D24", "MTT")}
+    return {field: st.session_state.get(widget_key(index, field))
+            for field in ("accumulation", "T_D24", "MTT", "process_temperature")}
 
 
 def _checked_accumulation(vessel: str, percent: float | None) -> float:
@@ -125,7 +132,8 @@ def _with_inputs(worksheet: Worksheet, index: int, vessel: str, system: str) -> 
     if round(kept.accumulation * 100, 3) == chosen["accumulation"]:
         accumulation = kept.accumulation
     return what_if_worksheet(worksheet, vessel, accumulation, _typed(chosen["T_D24"], system, kept.T_D24),
-                             _typed(chosen["MTT"], system, kept.MTT))
+                             _typed(chosen["MTT"], system, kept.MTT),
+                             _typed(chosen["process_temperature"], system, kept.process_temperature))
 
 
 def _commit(index: int, vessel: str, worksheet: Worksheet, system: str, set_worksheet) -> None:
@@ -179,7 +187,12 @@ def _vessel_panel(index: int, worksheet: Worksheet, screening: Screening, system
         {"on_change": _commit, "args": (index, screening.vessel, worksheet, system, set_worksheet)}
     with st.container(key=f"screening_vessel_{index}", border=True):
         st.subheader(f"Vessel {plain(screening.vessel)}")
-        c1, c2, c3 = st.columns(3)
+        c0, c1, c2, c3 = st.columns(4)
+        c0.number_input(f"T_process [{unit}]", value=None, step=5.0, key=widget_key(index, "process_temperature"),
+                        **(commit or {}), placeholder="the batch's end temperature",
+                        help="The batch's temperature when cooling fails: the temperature the cooling holds while "
+                             "the reaction runs. Empty: the batch's end temperature from the balance (with all the "
+                             "reaction heat already in it, MTSR then counts that heat twice: on the safe side).")
         c1.number_input("Accumulation at cooling failure [%]", step=5.0,  # 0-100 checked by _checked_accumulation
                         key=widget_key(index, "accumulation"), **(commit or {}),
                         help="Share of the reaction heat (and heat of mixing) not yet released when cooling "

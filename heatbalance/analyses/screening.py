@@ -308,7 +308,7 @@ def _solved_process_temperature(vessel: str, T: float) -> Phrase:
     return Phrase("Vessel {vessel}: the screening's process temperature is the final temperature the balance solved "
                   "for with no cooling ({T}), which already holds the heat released in the balance; MTSR adds ΔT_ad "
                   "on top, so that heat counts twice (on the safe side, but not a temperature the batch can "
-                  "reach). Enter the temperature the cooling holds as the process temperature.",
+                  "reach). Enter the temperature the cooling holds as the process temperature (T_process).",
                   {"vessel": vessel, "T": Measure(T, "temperature", 1)},
                   address=item("vessels", vessel, "screening", "process_temperature"))
 
