@@ -202,7 +202,7 @@ def _inputs(ws: Worksheet, styles) -> list:
     rows = [["input", "as typed", "tolerance", "address"]]
     defaults = 0
     for entry in addresses.inputs(ws):
-        value = "? (the unknown)" if entry.is_unknown else _typed(entry.value)
+        value = "? (the unknown)" if entry.is_unknown else _typed(entry.value, entry.kinds)
         if not entry.is_unknown and _is_default(ws, entry.address, entry.value):
             value, defaults = value + DEFAULT_MARK, defaults + 1
         tolerance = tolerances.get(entry.address)
@@ -265,10 +265,13 @@ class _Tol:
     tolerance: object
 
 
-def _typed(value) -> str:
+def _typed(value, kinds: tuple = ()) -> str:
+    """A value as typed; a fraction also as a percentage, as the page's fields show some of them (0.5 (50 %))."""
     if isinstance(value, Quantity):
         return f"{value.value:g} {display_unit(value.unit)}"
-    return f"{value:g}" if value is not None else ""
+    if value is None:
+        return ""
+    return f"{value:g} ({value * 100:.4g} %)" if kinds == (addresses.FRACTION,) else f"{value:g}"
 
 
 def _conventions(result: Result, styles, system: str = "SI") -> list:
