@@ -72,7 +72,7 @@ def test_the_reactor_sheet_carries_the_caution_once_and_the_screening():
 
 def test_a_fraction_input_is_printed_with_its_percentage():
     """A shift engineer's finding: the panel shows the accumulation in %, the sheet printed '0.5'."""
-    ws = A.with_value(sample(REACTOR), "vessels[R-2].screening.accumulation", 0.5)
+    ws = A.with_value(sample(REACTOR), "vessels[R-7].screening.accumulation", 0.5)
     text = text_of(sheet_pdf_bytes(ws, solve_and_analyse(ws), "SI"))
     assert "0.5 (50 %)" in text
 
