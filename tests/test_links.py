@@ -10,6 +10,7 @@ from pathlib import Path
 
 import pytest
 
+from heatbalance.analyses import solve_and_analyse
 from heatbalance.balance import solve
 from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
@@ -18,8 +19,9 @@ from heatbalance.present.exports import results_csv_bytes, results_filename, wor
 from heatbalance.links import (ID_LENGTH, MAX_SHEET_PARAM_CHARS, SHEET_PREFIX, LinkError, canonical_json, check_id,
                                decode_sheet, encode_sheet, parse_link, revision_id, revision_link, sheet_link)
 from heatbalance.present.tables import contribution_rows
+from heatbalance.reactor import CAUTION
 from heatbalance.results import SIGN_CONVENTION
-from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
+from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet, parse_worksheet
 
 SAMPLES = sorted(Path(__file__).parent.parent.joinpath("sample_data").glob("*.json"))
 IDS = [p.stem for p in SAMPLES]
@@ -203,3 +205,17 @@ def test_download_file_names_come_from_the_title():
     assert worksheet_filename(ws) == "glycol_loop_heater_4_barg_steam.json"
     assert results_filename(ws) == "glycol_loop_heater_4_barg_steam_results.csv"
     assert worksheet_filename(Worksheet(title="***")) == "worksheet.json"
+
+
+def test_the_results_csv_carries_the_screening_the_uncertainty_and_the_caution_once():
+    """A shift engineer's finding: a colleague given only the CSV saw no screening, no ± and no caution."""
+    ws = _sample(Path("sample_data/glycol_hydration_screening.json"))
+    text = results_csv_bytes(solve_and_analyse(ws)).decode("utf-8-sig")
+    comments = [line for line in text.splitlines() if line.startswith("#")]
+    assert any(line.startswith("# screening: MTSR (30% accumulation)") for line in comments)
+    assert sum(CAUTION in line for line in comments) == 1
+    doc = json.loads(open("sample_data/steam_heater_glycol.json", "rb").read())
+    doc["tolerances"] = [{"address": "streams[Glycol].flow", "percent": 1.5}]
+    text = results_csv_bytes(solve_and_analyse(parse_worksheet(doc))).decode("utf-8-sig")
+    assert any(line.startswith("# uncertainty: ") and " ± " in line for line in text.splitlines())
+    assert CAUTION not in text  # nothing here bears on safety

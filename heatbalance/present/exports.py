@@ -4,11 +4,14 @@ from __future__ import annotations
 import csv
 import io
 
+from ..reactor import CAUTION
 from ..results import Result
 from ..worksheet import Worksheet, dump_worksheet
 from .csv_cells import CSV_FLOAT, comment_line, csv_cell
+from .screening import bears_on_safety, screening_report
 from .tables import contribution_rows
 from .text import answer_text, format_heat, phrase_text
+from .uncertainty import output_uncertainty_lines, uncertainty_text
 
 __all__ = ["worksheet_json_bytes", "results_csv_bytes", "worksheet_filename", "results_filename"]
 
@@ -29,6 +32,7 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
     header = [result.title, f"answer: {result.answer.label} = {answer_text(result.answer, system)}",
               f"closure residual: {format_heat(result.residual, result.basis, system)}",
               f"sign convention: {result.sign_convention}"]
+    header += _how_sure_and_how_safe(result, system)
     header += [f"warning: {phrase_text(w, system)}" for w in result.warnings]
     header += [f"assumption: {phrase_text(a, system)}" for a in result.assumptions]  # the gauge reference among them
     out.write("\n".join(comment_line(line) for line in header) + "\n")
@@ -39,6 +43,21 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
         writer.writerow({k: ("" if v is None else CSV_FLOAT % v if isinstance(v, float) else csv_cell(v))
                          for k, v in row.items()})
     return out.getvalue().encode("utf-8-sig")
+
+
+def _how_sure_and_how_safe(result: Result, system: str) -> list[str]:
+    """The answer's uncertainty, each vessel's screening and the one caution: a colleague given only the CSV
+    sees them too."""
+    lines = []
+    if getattr(result, "uncertainty", None) is not None:
+        lines.append(f"uncertainty: {uncertainty_text(result.uncertainty, system, result.answer)}")
+    lines += [f"uncertainty: {text}" for text in output_uncertainty_lines(result, system) if text]
+    lines += [f"screening: {line.strip()}" for line in screening_report(getattr(result, "screening", []), system,
+                                                                          caution=False)
+              if line.strip() and not line.startswith("-")]
+    if bears_on_safety(result):
+        lines.append(f"caution: {CAUTION}")
+    return lines
 
 
 def slug(title: str) -> str:
