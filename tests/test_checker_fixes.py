@@ -138,13 +138,14 @@ def test_a_default_is_printed_as_a_default_and_a_typed_value_as_typed():
     assert ws.vessels[0].screening.accumulation == 1.0  # not in the file: the model's default
     text = section(folded(sheet_pdf_bytes(ws, solve_and_analyse(ws), "SI")), "Inputs (as typed)", "line material")
     address = "vessels[R-2].screening.accumulation"
-    assert f"{A.label(address)} 1 (default) {address}" in text  # the checker's report (defect 4): a default says so
+    # the checker's report (defect 4): a default says so; a fraction is printed with its percentage
+    assert f"{A.label(address)} 1 (100 %) (default) {address}" in text
     assert "screening T D24 60 °C vessels[R-2].screening.T_D24" in text  # typed: no mark
     assert "(default): the value the program uses when the field is left empty" in text  # explained under it
     typed = reactor_with_t_d24(accumulation=0.4)
     text = section(folded(sheet_pdf_bytes(typed, solve_and_analyse(typed), "SI")), "Inputs (as typed)",
                    "line material")
-    assert f"{A.label(address)} 0.4 {address}" in text  # a typed value is printed as typed, unmarked
+    assert f"{A.label(address)} 0.4 (40 %) {address}" in text  # a typed value is printed as typed, unmarked
 
 
 def test_a_sheet_with_no_default_has_no_default_note():
