@@ -326,13 +326,19 @@ def inputs(ws: Worksheet) -> list[Input]:
 
 
 # --------------------------------------------------------------------------- writing
+def check_fraction(value: float, address: str) -> None:
+    """Refuse a fraction (a phase fraction, a mass fraction, an accumulation) outside 0 to 1, at its address: the
+    same words whether it is set by address or at a sweep's point."""
+    if not 0.0 <= value <= 1.0:
+        raise AddressError(f"{value:g} is not between 0 and 1", address)
+
+
 def _as_value(value, kinds: tuple[str, ...], address: str):
     """A typed value for a field: a Quantity (from a Quantity, ``"12 t/h"`` or ``(12, "t/h")``) or a fraction."""
     if kinds == (FRACTION,):
         if isinstance(value, Quantity) or isinstance(value, str) or not isinstance(value, (int, float)):
             raise AddressError(f"{value!r}: this field takes a plain number between 0 and 1", address)
-        if not 0.0 <= float(value) <= 1.0:
-            raise AddressError(f"{value:g} is not between 0 and 1", address)
+        check_fraction(float(value), address)
         return float(value)
     if isinstance(value, tuple) and len(value) == 2:
         value = {"value": value[0], "unit": value[1]}

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import pandas as pd
 
-from ..address import FRACTION, get, item, kinds_of, parse, unknown_address, with_value
+from ..address import FRACTION, check_fraction, get, item, kinds_of, parse, unknown_address, with_value
 from ..balance import SweepMemo
 from ..errors import AddressError, HeatBalanceError, InputError
 from ..humid_air import HumidAir
@@ -252,8 +252,7 @@ class _FastSetter:
 
     def _fraction(self, specs, field: str):
         def apply(value: float) -> None:
-            if not 0.0 <= value <= 1.0:
-                raise InputError(f"a phase fraction lies between 0 and 1, not {value:g}", self.axis.address)
+            check_fraction(value, self.axis.address)
             for spec in specs:
                 spec.fraction = value if field == "vapour_fraction" else 1.0 - value
         return apply
@@ -266,8 +265,7 @@ class _FastSetter:
 
         def apply(value: float) -> None:
             if field == "accumulation":
-                if not 0.0 <= value <= 1.0:
-                    raise InputError(f"the accumulation is a fraction from 0 to 1, not {value:g}", self.axis.address)
+                check_fraction(value, self.axis.address)
                 inputs.accumulation = value
             else:
                 setattr(inputs, targets[field], typed_si(value, self.axis.unit, "temperature", self.axis.address))
