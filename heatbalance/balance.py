@@ -15,9 +15,9 @@ analyses run on that result, and :mod:`heatbalance.present` writes it in a unit 
 from __future__ import annotations
 
 import math
-from functools import cache
 from contextvars import ContextVar
 from dataclasses import dataclass
+from functools import cache
 
 from .address import item
 from .errors import HeatBalanceError, InputError, NoSolutionError
