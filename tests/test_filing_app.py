@@ -362,3 +362,24 @@ def test_user_text_in_sources_and_sign_offs_is_plain_text(db):
     notice = [s.value for s in at.success if "Signed revision" in s.value]
     assert notice and "<i>" not in notice[0] and "](http" not in notice[0]
     assert list(table_with(at, "signed (UTC)")["name"]) == ["<i>Eve</i> [x](http://e.invalid)"]  # a text-only table
+
+
+def test_the_screenings_mtsr_shows_its_uncertainty_under_the_answer():
+    """A shift engineer's finding: the sheet gave MTSR ± U, the page only the answer's. Now both, in the same words
+    as the sheet (present.uncertainty.output_uncertainty_lines)."""
+    import json
+
+    from heatbalance.analyses import solve_and_analyse
+    from heatbalance.present.uncertainty import output_uncertainty_lines
+    from heatbalance.worksheet import parse_worksheet
+
+    doc = json.load(open("sample_data/batch_reactor_exotherm.json", encoding="utf-8"))
+    doc["tolerances"] = [{"address": "reactions[Main reaction].enthalpy", "percent": 5}]
+    ws = parse_worksheet(doc)
+    at = page(ws)
+    no_exception(at)
+    expected = output_uncertainty_lines(solve_and_analyse(ws), "SI")
+    assert expected and expected[0].startswith("R-2: MTSR = ") and " ± " in expected[0]
+    captions = [unescaped(c.value) for c in at.caption]
+    assert expected[0] in captions
+

@@ -9,7 +9,7 @@ import streamlit as st
 from heatbalance import address
 from heatbalance.errors import HeatBalanceError
 from heatbalance.present.text import answer_text, average_power_text, error_text, phrase_text
-from heatbalance.present.uncertainty import plateau_fraction_text, uncertainty_text
+from heatbalance.present.uncertainty import output_uncertainty_lines, uncertainty_text
 from heatbalance.reactor import CAUTION
 from heatbalance.results import Result
 from heatbalance.worksheet import Worksheet
@@ -99,9 +99,8 @@ def _render_answer_value(result: Result, system: str) -> None:
             st.markdown(f"**{plain(uncertainty_text(result.uncertainty, system, answer))}**",
                         help="From the inputs' tolerances (GUM, inputs uncorrelated); the contributors are "
                              "listed under \"How sure is the answer\".")
-            plateau = plateau_fraction_text(result)
-            if plateau is not None:
-                st.caption(plain(plateau))
+            for line in output_uncertainty_lines(result, system):  # the plateau's fraction, each screening's MTSR
+                st.caption(plain(line))
 
 
 def _on_undo() -> None:
