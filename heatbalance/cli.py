@@ -9,7 +9,7 @@ import re
 import stat
 import sys
 
-from .errors import HeatBalanceError
+from .errors import HeatBalanceError, InputError
 
 # The command line imports, per command, only what that command needs (start-up time; see DEVELOPERS.md).
 MAX_DOCUMENT_BYTES = 1_000_000  # = worksheet.MAX_DOCUMENT_BYTES (checked by a test), without importing the model
@@ -116,6 +116,15 @@ def _opened(link: str):
 
 
 def _open(args) -> int:
+    if args.stored:
+        from .links import parse_link
+
+        kind, value = parse_link(args.id)
+        if kind != "ws":
+            raise InputError("--stored prints a saved revision: give its id or its ?ws= link", "id")
+        with _open_store() as store:
+            print(store.stored_text(value))
+        return 0
     worksheet = _opened(args.id)
     if args.solve:
         _print_result(solve_and_analyse(worksheet), args)
@@ -298,6 +307,8 @@ def _parser() -> argparse.ArgumentParser:
     show = commands.add_parser("open", help="print a saved worksheet's JSON, or solve it" + store_help)
     show.add_argument("id", help="a revision id, or a share link with ?ws= or ?sheet=")
     show.add_argument("--solve", action="store_true", help="solve it and print the result")
+    show.add_argument("--stored", action="store_true", help="print the revision's JSON exactly as saved, without "
+                                                              "reading it (a revision this version cannot read)")
     show.add_argument("--json", action="store_true", help="with --solve: print the full result as JSON")
     _units_option(show)
     show.set_defaults(handler=_open)

@@ -391,6 +391,21 @@ class WorksheetStore:
 
     def open(self, rev_id: str) -> Revision:
         """The revision with this id, its content checked against the id; :class:`RevisionNotFoundError` if none."""
+        row = self._checked_row(rev_id)
+        info = _info(row)
+        try:
+            worksheet = load_worksheet(row.content)
+        except HeatBalanceError as exc:
+            raise StoreError(f"saved worksheet {row.id} cannot be read ({exc}); its stored text is kept as saved: "
+                             f"'python -m heatbalance open {row.id} --stored' prints it", "ws") from None
+        return Revision(**vars(info), worksheet=worksheet)
+
+    def stored_text(self, rev_id: str) -> str:
+        """The revision's JSON exactly as saved, its content checked against the id, not read as a worksheet: the
+        way back to a revision this version refuses to read (a rule tightened since it was saved)."""
+        return self._checked_row(rev_id).content
+
+    def _checked_row(self, rev_id: str):
         rev_id = check_id(rev_id)
         try:
             with self._engine.connect() as conn:
@@ -404,12 +419,7 @@ class WorksheetStore:
                 or not row.content_sha256.startswith(rev_id):
             raise StoreError(f"saved worksheet {rev_id} has been altered in the database (its content no longer "
                              "matches its id); it is not opened", "ws")
-        info = _info(row)
-        try:
-            worksheet = load_worksheet(row.content)
-        except HeatBalanceError as exc:
-            raise StoreError(f"saved worksheet {rev_id} cannot be read ({exc})", "ws") from None
-        return Revision(**vars(info), worksheet=worksheet)
+        return row
 
     def info(self, rev_id: str) -> RevisionInfo | None:
         """The record of one revision without its worksheet, or None when it is not stored."""

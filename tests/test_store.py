@@ -575,3 +575,28 @@ def test_a_store_from_before_sign_offs_gains_their_table_and_keeps_its_revisions
         s.sign(saved.id, "prepared", "A. Engineer")
         s.sign(saved.id, "checked", "B. Checker")
         assert len(s.signoffs(saved.id)) == 2
+
+
+def test_a_revision_this_version_refuses_to_read_is_kept_and_printed_as_stored(cli_store, monkeypatch, capsys):
+    """A rule tightened after a save (names with control characters are now refused) must not lose the revision:
+    opening it says why and how to get it, and 'open --stored' prints its JSON exactly as saved."""
+    import json
+
+    import heatbalance.worksheet as model
+
+    doc = json.loads(SAMPLES[0].read_bytes())
+    doc["title"] = "Heater\trev 2"  # a tab: accepted when it was saved
+    monkeypatch.setattr(model, "_check_plain_text", lambda text, multiline: None)
+    with WorksheetStore(f"sqlite:///{cli_store}") as store:
+        rev = store.save(model.parse_worksheet(doc))
+    monkeypatch.undo()
+    monkeypatch.delenv(ENV_DATABASE_URL, raising=False)
+    monkeypatch.setenv(ENV_DB, str(cli_store))
+    with WorksheetStore(f"sqlite:///{cli_store}") as store:
+        with pytest.raises(StoreError, match=rf"saved worksheet {rev.id} cannot be read .* 'python -m heatbalance "
+                                             rf"open {rev.id} --stored' prints it"):
+            store.open(rev.id)
+        stored = store.stored_text(rev.id)
+    assert json.loads(stored)["title"] == "Heater\trev 2"
+    assert main(["open", rev.id, "--stored"]) == 0
+    assert capsys.readouterr().out.strip() == stored
