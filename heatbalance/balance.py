@@ -462,7 +462,13 @@ def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, fl
     ends = dict((left, right))
 
     def on_segment(T: float) -> float:
-        return ends[T] if T in ends else residual(T)
+        if T in ends:
+            return ends[T]
+        value = residual(T)
+        if value != value:  # NaN: Brent's compiled core would go on with it
+            raise NoSolutionError(Phrase("the property data give no number at {T}: no answer can be found there",
+                                         {"T": Measure(T, "temperature", 2)}))
+        return value
 
     return _brent()(on_segment, left[0], right[0])
 
@@ -471,13 +477,20 @@ def _root_in_segment(residual, left: tuple[float, float], right: tuple[float, fl
 def _brent():
     """Brent's method of scipy as ``brent(f, a, b)``, to 1e-7 K: its compiled core where this scipy has it, else the
     public ``brentq`` (the same iterations; it also checks each value for NaN, at about 1 µs a call, and a solve makes
-    5 to 10 calls. No NaN passes here either: the result is refused unless its balance closes)."""
+    5 to 10 calls. No NaN passes here either: the result is refused unless its balance closes). Either refuses a
+    search that does not converge."""
     from scipy.optimize import brentq  # imported at the first temperature solve (costs a part of a second)
 
     core = _compiled_brent_core()
-    if core is not None:
-        return lambda f, a, b: core(f, a, b, 1e-7, 1e-12, 100, (), False, False)
-    return lambda f, a, b: brentq(f, a, b, xtol=1e-7, rtol=1e-12, maxiter=100)
+    if core is None:
+        return lambda f, a, b: brentq(f, a, b, xtol=1e-7, rtol=1e-12, maxiter=100)
+
+    def brent(f, a: float, b: float) -> float:
+        root, _, _, flag = core(f, a, b, 1e-7, 1e-12, 100, (), True, False)
+        if flag != 0:  # not converged (scipy's own brentq raises here): no answer from it
+            raise NoSolutionError("the temperature search did not converge in 100 steps; report this worksheet")
+        return root
+    return brent
 
 
 def _compiled_brent_core():
@@ -486,7 +499,8 @@ def _compiled_brent_core():
     try:
         from scipy.optimize._zeros import _brentq as core
 
-        return core if core(lambda x: x - 0.25, 0.0, 1.0, 1e-12, 1e-12, 100, (), False, False) == 0.25 else None
+        return core if core(lambda x: x - 0.25, 0.0, 1.0, 1e-12, 1e-12, 100, (), True, False)[::3] == (0.25, 0) \
+            else None
     except (ImportError, TypeError, ValueError):
         return None
 

@@ -37,19 +37,21 @@ class _Model(BaseModel):
     @field_validator("*", mode="after")
     @classmethod
     def _plain_text(cls, value, info):
-        if isinstance(value, str):
-            _check_plain_text(value, multiline=info.field_name == "notes")
+        for text in (value if isinstance(value, (list, tuple)) else [value]):  # a list of names too
+            if isinstance(text, str):
+                _check_plain_text(text, multiline=info.field_name == "notes")
         return value
 
 
 # text a reader could be misled by: control characters (a line break forges a line of a report, ESC drives a
 # terminal, NUL cannot be stored in PostgreSQL) and the bidirectional overrides that show text reversed
 _BIDI_CONTROLS = frozenset("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069")
+_LINE_SEPARATORS = frozenset("\u2028\u2029")  # a line break to str.splitlines and to editors
 _NOTE_BREAKS = frozenset("\n\r\t")
 
 
 def _misleading(char: str) -> bool:
-    return unicodedata.category(char) == "Cc" or char in _BIDI_CONTROLS
+    return unicodedata.category(char) == "Cc" or char in _BIDI_CONTROLS or char in _LINE_SEPARATORS
 
 
 def _visible(text: str) -> str:
@@ -71,8 +73,8 @@ def _check_plain_text(text: str, multiline: bool) -> None:
     """
     for char in text:
         if _misleading(char) and not (multiline and char in _NOTE_BREAKS):
-            kind = "a line break" if char in "\n\r" else "a direction override" if char in _BIDI_CONTROLS else \
-                "a control character"
+            kind = "a line break" if char in "\n\r" or char in _LINE_SEPARATORS else \
+                "a direction override" if char in _BIDI_CONTROLS else "a control character"
             rule = "notes are plain text: line breaks and tabs only" if multiline else \
                 "names, titles and units are plain text on one line"
             raise ValueError(f"holds a control character (U+{ord(char):04X}, {kind}); {rule}")

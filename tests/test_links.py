@@ -14,7 +14,7 @@ from heatbalance.analyses import solve_and_analyse
 from heatbalance.balance import solve
 from heatbalance.present.text import answer_text
 from heatbalance.errors import WorksheetFormatError
-from heatbalance.present.csv_cells import csv_cell
+from heatbalance.present.csv_cells import comment_line, csv_cell
 from heatbalance.present.exports import results_csv_bytes, results_filename, worksheet_filename, worksheet_json_bytes
 from heatbalance.links import (ID_LENGTH, MAX_SHEET_PARAM_CHARS, SHEET_PREFIX, LinkError, canonical_json, check_id,
                                decode_sheet, encode_sheet, parse_link, revision_id, revision_link, sheet_link)
@@ -184,9 +184,10 @@ def test_the_csv_download_holds_every_contribution_and_the_sign_convention(path,
     assert data.startswith(b"\xef\xbb\xbf")  # a byte-order mark: spreadsheets then read UTF-8 (°C, −)
     text = data.decode("utf-8-sig")
     comments = [line for line in text.splitlines() if line.startswith("#")]
-    assert comments[0] == f"# {ws.title}"
-    assert f"# answer: {result.answer.label} = {answer_text(result.answer, system)}" in comments
-    assert f"# sign convention: {SIGN_CONVENTION}" in comments
+    assert comments[0] == comment_line(ws.title)  # a comma is written as a look-alike (one cell a line)
+    assert comment_line(f"answer: {result.answer.label} = {answer_text(result.answer, system)}") in comments
+    assert comment_line(f"sign convention: {SIGN_CONVENTION}") in comments
+    assert all(len(row) == 1 for row in csv.reader(io.StringIO("\n".join(comments))))
     table = list(csv.DictReader(io.StringIO("\n".join(l for l in text.splitlines() if not l.startswith("#")))))
     expected = contribution_rows(result, system)
     assert len(table) == len(expected) == len(result.lines) + len(result.terms)
@@ -213,7 +214,7 @@ def test_the_results_csv_carries_the_screening_the_uncertainty_and_the_caution_o
     text = results_csv_bytes(solve_and_analyse(ws)).decode("utf-8-sig")
     comments = [line for line in text.splitlines() if line.startswith("#")]
     assert any(line.startswith("# screening: MTSR (30% accumulation)") for line in comments)
-    assert sum(CAUTION in line for line in comments) == 1
+    assert sum(comment_line(f"caution: {CAUTION}") == line for line in comments) == 1
     doc = json.loads(open("sample_data/steam_heater_glycol.json", "rb").read())
     doc["tolerances"] = [{"address": "streams[Glycol].flow", "percent": 1.5}]
     text = results_csv_bytes(solve_and_analyse(parse_worksheet(doc))).decode("utf-8-sig")

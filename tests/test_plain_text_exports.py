@@ -68,10 +68,16 @@ def test_results_csv_cells_never_start_a_spreadsheet_formula():
 
 def test_a_csv_comment_line_never_breaks():
     """A '#' header line of the results CSV stays one line, whatever line break its text holds (a spreadsheet and
-    pandas split lines on CR as well as LF)."""
+    pandas split lines on CR as well as LF), and one cell (a review's finding: a comma split it)."""
     from heatbalance.present.csv_cells import comment_line
+    from heatbalance.present.exports import results_csv_bytes
 
     assert comment_line("Heater\r=1+1\nmore") == "# Heater =1+1 more"
+    # a title with a comma: one cell, so no '=...' cell after it; a number's thousands stay in one cell too
+    doc = _glycol(title='Heater,=HYPERLINK("http://example.invalid/x","open")')
+    text = results_csv_bytes(solve(parse_worksheet(doc))).decode("utf-8-sig")
+    header = [line for line in text.splitlines() if line.startswith("#")]
+    assert all(len(row) == 1 for row in csv.reader(io.StringIO("\n".join(header))))
 
 
 def test_sweep_csv_cells_never_start_a_spreadsheet_formula():
@@ -121,6 +127,20 @@ def test_a_name_or_title_with_a_control_character_is_refused_at_its_field(field,
     assert refused.value.where == where
     assert "holds a control character (U+" in refused.value.message
     assert not any(ord(c) < 32 or c == "\u202e" for c in refused.value.message)  # the refusal itself is safe to print
+
+
+def test_names_in_a_list_and_line_separators_are_refused_too():
+    """A review's finding: an exchanger's list of hot lines was not checked, and U+2028 (a line break to editors
+    and str.splitlines) passed in a title."""
+    from heatbalance.errors import WorksheetFormatError
+
+    doc = json.loads((ROOT / "sample_data" / "glycol_cooler_rated.json").read_text(encoding="utf-8"))
+    doc["exchangers"][0]["hot"] = ["Glycol\x1b[31m"]
+    with pytest.raises(WorksheetFormatError, match=r"holds a control character \(U\+001B"):
+        parse_worksheet(doc)
+    with pytest.raises(WorksheetFormatError, match=r"U\+2028, a line break") as refused:
+        parse_worksheet(_glycol(title="Heater\u2028ANSWER"))
+    assert refused.value.where == "title"
 
 
 def test_notes_keep_their_line_breaks_and_tabs():

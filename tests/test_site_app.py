@@ -78,3 +78,15 @@ def test_a_site_beyond_any_float_is_refused():
     with pytest.raises(HeatBalanceError, match="beyond any number a worksheet can hold") as refused:
         site_from_text("1e400 m")
     assert refused.value.where == "atmosphere"
+
+
+def test_save_waits_while_the_site_box_holds_a_refused_value(db):
+    """A review's finding: with '2 barg' refused in the site box, Save stored the sheet with the previous site."""
+    at = page(boiling_water())
+    at.text_input(key=WIDGET).set_value("2 barg").run()
+    at.button(key="share_save").click().run()
+    assert not at.exception
+    assert "Not saved: a value on the page is refused (site atmosphere: not used)" in shown(at, at.error)
+    at.text_input(key=WIDGET).set_value("1500 m").run()
+    at.button(key="share_save").click().run()
+    assert "Not saved" not in shown(at, at.error)

@@ -154,6 +154,14 @@ def test_brents_method_core_equals_scipys_public_brentq(monkeypatch):
     assert balance._brent()(f, 273.16, 400.0) == expected
     monkeypatch.setattr(balance, "_compiled_brent_core", lambda: None)  # a scipy without it
     assert balance._brent.__wrapped__()(f, 273.16, 400.0) == expected
+    from heatbalance.errors import NoSolutionError
+
+    monkeypatch.setattr(balance, "_compiled_brent_core", lambda: lambda *args: (0.5005, 4, 2, -2))  # not converged
+    with pytest.raises(NoSolutionError, match="did not converge"):
+        balance._brent.__wrapped__()(f, 273.16, 400.0)
+    monkeypatch.undo()
+    with pytest.raises(NoSolutionError, match="the property data give no number at"):  # a NaN: never a root
+        balance._root_in_segment(lambda T: math.nan, (273.16, -1.0), (400.0, 1.0))
 
 
 def test_refused_points_carry_their_address_and_the_sweep_goes_on():
@@ -373,3 +381,12 @@ def test_a_point_with_a_warning_of_its_own_is_ringed_in_the_chart_and_listed():
     assert any("vapour as charged" in t for t in own[2])
     ringed = next(t for t in sweep_figure(frame).data if t.name == WARNED_NAME)
     assert list(ringed.x) == [100]
+
+
+def test_a_warning_whose_numbers_change_along_the_sweep_rings_no_point():
+    """A review's finding: the steam's 'changes phase ... 2,133.0 kJ/kg' differs in its number at each pressure, but
+    it is the same warning at every point (same words, same address): no point is unlike the others."""
+    from heatbalance.present.whatif import own_warnings
+
+    frame = sweep(sample(GLYCOL), [Axis("streams[Steam].pressure", (2, 3, 4, 5), "barg")])
+    assert own_warnings(frame) == [[], [], [], []]

@@ -22,7 +22,7 @@ from .state import KEY, PageState
 
 __all__ = ["UNIT_SYSTEMS", "UNIT_SYSTEM_KEY", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system",
            "plain", "guarded", "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample",
-           "keep_loaded_libraries_out_of_gc", "count_refusal"]
+           "keep_loaded_libraries_out_of_gc", "count_refusal", "REFUSED", "refused_on_page"]
 
 UNIT_SYSTEMS = {"SI (°C, kg, kW)": "SI", "US customary (°F, lb, Btu)": "US"}
 SAMPLES_DIR = Path(__file__).resolve().parent.parent / "sample_data"
@@ -43,6 +43,19 @@ def page_state() -> PageState:
 
 
 UNIT_SYSTEM_KEY = "unit_system"  # the sidebar's "Show results in" (its label -> UNIT_SYSTEMS)
+# a panel keeps the refusal of a value typed into it (not written into the worksheet) under a session key that ends
+# so (site_atmosphere_refused, screening_0_refused, exchanger_edit_refused)
+REFUSED = "_refused"
+
+
+def refused_on_page() -> str:
+    """What the page shows typed but the worksheet does not hold, in words ('' when nothing): a bad cell, a bad
+    batch duration, a panel's refused value; Save stores the worksheet, so it waits until these are corrected."""
+    found = [page_state().unread()]
+    found += [f"{key.removesuffix(REFUSED).replace('_', ' ')}: not used" for key, value in st.session_state.items()
+              if isinstance(key, str) and key.endswith(REFUSED) and value]
+    found = [text for text in found if text]
+    return found[0] + (f" (and {len(found) - 1} more)" if len(found) > 1 else "") if found else ""
 
 
 def display_system() -> str:

@@ -32,7 +32,7 @@ from heatbalance.links import (decode_sheet, named_unit_set, parse_link, revisio
 from heatbalance.results import Result
 from heatbalance.worksheet import MAX_DOCUMENT_BYTES, Worksheet, load_worksheet
 
-from .common import UNIT_SYSTEM_KEY, UNIT_SYSTEMS, display_system, page_state, plain
+from .common import UNIT_SYSTEM_KEY, UNIT_SYSTEMS, display_system, page_state, plain, refused_on_page
 
 if TYPE_CHECKING:  # SQLAlchemy loads at the store's first use, after the answer is on screen
     from heatbalance.store import RevisionInfo, WorksheetStore
@@ -319,7 +319,7 @@ def saver() -> str | None:
 def _on_save(worksheet: Worksheet) -> None:
     state = st.session_state
     state[PROBLEM] = state[NOTICE] = ""
-    unread = page_state().unread()
+    unread = refused_on_page()
     if unread:  # what would be saved is the last worksheet that read, not what the page shows
         state[PROBLEM] = f"Not saved: a value on the page is refused ({unread}). Correct it, then save."
         return

@@ -227,7 +227,7 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
     else:
         MTT, MTT_source = _mtt(inputs.MTT, charges, notes)
     if MTT is not None:
-        result.warnings.extend(_charged_above_mtt(charges, MTT, where))
+        result.warnings.extend(_charged_above_mtt(charges, MTT, entered=inputs.MTT is not None))
     T_D24 = inputs.T_D24
     caveats = []
     if MTT is not None and T_D24 is not None:
@@ -378,18 +378,21 @@ def _mixture_mtt(vessel: str, inputs, charges: list, notes: list[Phrase], warnin
     return bubble.T, source, bubble
 
 
-def _charged_above_mtt(charges: list, MTT: float, where: str) -> list[Phrase]:
-    """A charge whose material has no boiling in its data (cp only, a table) charged above MTT: as charged it would
-    boil, which the balance counts as a hot liquid (a material with a boiling point says 'vapour as charged')."""
+def _charged_above_mtt(charges: list, MTT: float, entered: bool) -> list[Phrase]:
+    """A charge whose material has no boiling in its data (cp only, a table) charged above MTT: above the computed
+    boiling point it would boil as charged, above an entered limit it is past that limit; the balance counts it as
+    a hot liquid either way (a material with a boiling point says 'vapour as charged')."""
     out = []
+    meaning = "the limit entered for the vessel" if entered else "it would boil as it is charged"
     for model, line in charges:
         boils = any(t.kind == "boiling" for t in model.material.transitions(line.initial_P))
         if line.initial_T > MTT + 0.05 and not boils:
-            out.append(Phrase("{name} is charged at {T}, above MTT {MTT}: it would boil as it is charged. Its "
-                              "material's data have no boiling, so the balance counts it as a hot liquid and its "
-                              "flash is not modelled: check its temperature.",
+            out.append(Phrase("{name} is charged at {T}, above MTT {MTT}: {meaning}. Its material's data have no "
+                              "boiling, so the balance counts it as a hot liquid and any flash is not modelled: check "
+                              "its temperature.",
                               {"name": line.name, "T": Measure(line.initial_T, "temperature", 1),
-                               "MTT": Measure(MTT, "temperature", 1)}, model.initial.temperature_address))
+                               "MTT": Measure(MTT, "temperature", 1), "meaning": meaning},
+                              model.initial.temperature_address))
     return out
 
 

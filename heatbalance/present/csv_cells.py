@@ -3,7 +3,8 @@
 A spreadsheet reads a cell that starts with ``=``, ``+``, ``-`` or ``@`` (or a tab or a carriage return) as a
 formula: a stream named ``=HYPERLINK(...)`` would be a live link there, or a command ("CSV injection", OWASP, from
 memory). Such a text cell is written with a leading apostrophe, which spreadsheets take as "this is text" and do
-not show; a number (``-12.5``) is written as it is. A ``#`` comment line never holds a line break.
+not show; a number (``-12.5``) is written as it is. A ``#`` comment line is one line and one cell: no line break,
+and its commas written as a look-alike that separates nothing.
 """
 from __future__ import annotations
 
@@ -42,9 +43,18 @@ def csv_table(table: pd.DataFrame) -> pd.DataFrame:
     return safe
 
 
+# a comma in a '#' line would split it into cells (a title's '=...' after it a formula, '386,400 kJ' in two): it is
+# written as the low single quotation mark, which looks like a comma and separates nothing
+_COMMA_IN_A_COMMENT = "\u201a"
+
+
 def comment_line(text: str) -> str:
-    """``# text`` on one line: a line break of any kind (LF, CR) becomes a space."""
-    return "# " + " ".join(text.splitlines())
+    """``# text`` as one line and one cell: a line break of any kind becomes a space, a comma a look-alike.
+
+    >>> comment_line("Heater,=1+1\\rnext") == "# Heater\u201a=1+1 next"
+    True
+    """
+    return "# " + " ".join(text.splitlines()).replace(",", _COMMA_IN_A_COMMENT)
 
 
 def _is_number(text: str) -> bool:

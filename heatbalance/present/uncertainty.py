@@ -53,14 +53,16 @@ def value_and_uncertainty(value: float, expanded: float) -> tuple[str, str]:
 
     >>> value_and_uncertainty(130.96, 1.463), value_and_uncertainty(28_310.0, 2_370.0)
     (('131.0', '1.5'), ('28,300', '2,400'))
-    >>> value_and_uncertainty(54.978, 0.813)
-    ('54.98', '0.81')
+    >>> value_and_uncertainty(54.978, 0.813), value_and_uncertainty(131.04, 9.96), value_and_uncertainty(-0.04, 1.5)
+    (('54.98', '0.81'), ('131', '10'), ('0.0', '1.5'))
     """
     if not expanded > 0 or not math.isfinite(expanded):
         return _number(value), _number(expanded)
     place = math.floor(math.log10(expanded)) - 1  # the power of ten of U's second significant figure
+    if round(expanded, -place) >= 10.0 ** (place + 2):  # 9.96 rounds to 10.0: two figures are "10"
+        place += 1
     decimals = max(0, -place)
-    return f"{round(value, -place):,.{decimals}f}", f"{round(expanded, -place):,.{decimals}f}"
+    return f"{round(value, -place) + 0.0:,.{decimals}f}", f"{round(expanded, -place):,.{decimals}f}"
 
 
 def tolerance_text(c) -> str:

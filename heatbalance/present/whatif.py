@@ -77,12 +77,16 @@ def shared_warnings(frame: pd.DataFrame, system: str = "SI") -> list[str]:
 
 
 def own_warnings(frame: pd.DataFrame, system: str = "SI") -> list[list[str]]:
-    """Each point's warnings beyond those every solved point has (a charge counted as vapour at one point, data
-    extrapolated at the end of the range): what makes a point unlike the others; [] at a refused point."""
+    """Each point's warnings of a kind (the same words at the same address, whatever their numbers) that not every
+    solved point has: what makes a point unlike the others (a charge counted as vapour there, data extrapolated at
+    the end of the range); [] at a refused point. The steam's latent heat changing with its pressure is no such
+    warning."""
     if WARNINGS not in frame:
         return [[] for _ in range(len(frame))]
-    shared = set(shared_warnings(frame, system))
-    return [[] if reason is not None else [t for t in (phrase_text(p, system) for p in phrases) if t not in shared]
+    solved = [phrases for phrases, reason in zip(frame[WARNINGS], frame[REASON]) if reason is None]
+    common = set.intersection(*({(p.template, p.address) for p in phrases} for phrases in solved)) if solved else set()
+    return [[] if reason is not None else
+            [phrase_text(p, system) for p in phrases if (p.template, p.address) not in common]
             for phrases, reason in zip(frame[WARNINGS], frame[REASON])]
 
 
