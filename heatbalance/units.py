@@ -186,6 +186,40 @@ def _pressure_spelling(unit: str) -> str:
     return ""
 
 
+# a prefix on an hour, a minute, a day or a tonne is a typing slip in a plant, never meant: 't/hh' reads as tonnes per
+# hecto-hour (100 h), 'dt' as a decitonne; a carat ('ct') is no plant mass; a megabar, no plant pressure
+_NO_PREFIX = frozenset({"hour", "minute", "day", "week", "month", "year", "metric_ton"})
+_ALLOWED_PREFIXES = {"bar": {"milli", "kilo"}}
+_TEMPERATURE_BASES = frozenset({"kelvin", "degree_Celsius", "degree_Fahrenheit", "degree_Rankine"})  # a process temperature
+# in mK is a slip; a small temperature difference (a tolerance) in mK is not
+_NOT_PLANT_UNITS = frozenset({"carat"})
+
+
+@lru_cache(maxsize=512)
+def _slip(unit: str, kind: str = "") -> str:
+    """Why ``unit`` is most likely a typing slip ('' when it is not): a unit pint reads, but through a prefix no plant
+    puts there (hecto-hour, decitonne, megabar, millikelvin) or a unit no plant uses (carat).
+
+    >>> _slip("t/hh")[:40], _slip("t/h"), _slip("mbar"), _slip("kWh"), _slip("mK", "temperature_difference")
+    ("'hh' reads as hectohour (100 × its hour)", '', '', '', '')
+    """
+    try:
+        names = list(_unit(_normalise(unit))._units)
+    except Exception:  # noqa: BLE001 - not a unit at all: refused elsewhere, with its own words
+        return ""
+    for name in names:
+        for prefix, base, _ in registry().parse_unit_name(name):
+            allowed = set() if kind == "temperature" and base in _TEMPERATURE_BASES else _ALLOWED_PREFIXES.get(base)
+            if base in _NOT_PLANT_UNITS:
+                return f"'{name}' is no unit a plant weighs in (a slip for t?)"
+            if prefix and (base in _NO_PREFIX or (allowed is not None and prefix not in allowed)):
+                typed = next((t for t in re.findall(r"[A-Za-z_µ]+", unit) if _unit(t) == _unit(name)), name)
+                factor = registry().Quantity(1, f"{prefix}{base}").to(base).magnitude
+                return f"'{typed}' reads as {name} ({factor:g} × its {base.replace('_', ' ')}): a prefix no plant " \
+                       f"puts there, most likely a typing slip"
+    return ""
+
+
 def _ambiguity(unit: str, kind: str) -> str:
     """Why ``unit`` cannot be read for ``kind`` without a guess ('' when it can).
 
@@ -211,6 +245,9 @@ def check_unit(unit: str, kind: str, where: str = "") -> None:
 
 
 def _check_by_pint(unit: str, kind: str, where: str = "") -> None:
+    slip = _slip(unit, kind)  # (here, not with the ambiguities: only a unit met for the first time loads pint)
+    if slip:
+        raise UnitError(unit, "clear", where, detail=slip)
     parsed, _ = _parse(unit, kind, where)
     if parsed.dimensionality != _unit(KINDS[kind][0]).dimensionality:
         detail = f"it measures {_describe(parsed)}"
@@ -248,6 +285,9 @@ def kind_of(unit: str, candidates: tuple[str, ...], where: str = "") -> str:
             check_unit(unit, kind, where)  # the refusal, with the choices
         if _measures(unit, kind):
             return kind
+    slip = _slip(unit, candidates[0])
+    if slip:
+        raise UnitError(unit, "clear", where, detail=slip)
     expected = " or ".join(KINDS[k][1] for k in candidates)
     raise UnitError(unit, expected, where)
 

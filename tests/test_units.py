@@ -178,3 +178,30 @@ def test_a_pressure_unit_written_apart_is_refused_with_its_spelling(unit, words)
 
 def test_kgf_per_cm2_alone_is_read_as_absolute():
     assert to_si(1, "kgf/cm2", "pressure") == pytest.approx(98066.5, rel=1e-12)  # 1 kgf/cm² (exact, by definition)
+
+
+@pytest.mark.parametrize("unit, kind, words", [
+    ("t/hh", "mass_flow", "'hh' reads as hectohour (100 × its hour)"),  # 12 t/hh had given a 100× smaller flow
+    ("kg/hh", "mass_flow", "hectohour"),
+    ("dt/h", "mass_flow", "decimetric_ton"),
+    ("ct/h", "mass_flow", "'carat' is no unit a plant weighs in"),
+    ("t/yh", "mass_flow", "yoctohour"),
+    ("Mbar", "pressure", "megabar"),
+    ("mK", "temperature", "millikelvin"),
+])
+def test_a_unit_read_through_a_prefix_no_plant_uses_is_refused_as_a_slip(unit, kind, words):
+    """A plant engineer's finding: '12 t/hh' was read as 12 t per hecto-hour and the steam flow came out 100× too
+    small, with no warning (hand: 12 t/100 h = 120 kg/h)."""
+    with pytest.raises(UnitError) as refused:
+        to_si(12, unit, kind, "streams[Glycol].flow")
+    assert words in refused.value.message
+    assert refused.value.where == "streams[Glycol].flow"
+
+
+def test_the_units_plants_use_are_read():
+    # exact conversions (definitions): 1 mbar = 100 Pa, 1 kWh = 3.6 MJ, 1 klb = 453.59237 kg, 50 mK = 0.05 K
+    assert to_si(3, "mbar", "pressure") == pytest.approx(300.0, rel=1e-12)
+    assert to_si(5, "kWh", "energy") == pytest.approx(18e6, rel=1e-12)
+    assert to_si(3600, "klb/h", "mass_flow") == pytest.approx(453.59237, rel=1e-12)
+    assert to_si(50, "mK", "temperature_difference") == pytest.approx(0.05, rel=1e-12)
+    assert to_si(2, "ms", "duration") == pytest.approx(0.002, rel=1e-12)
