@@ -251,6 +251,9 @@ def test_pure_parts_read_and_refuse_like_the_page():
     with pytest.raises(InputError) as caught:
         parse_tolerance(by[FLOW], "150 %", "rectangular", "")
     assert caught.value.where == FLOW
+    with pytest.raises(InputError) as caught:  # a tab pasted into the source: said to be the source's, in our words
+        parse_tolerance(by[FLOW], "1.5 %", "rectangular", "meter\tFT-101")
+    assert caught.value.message.startswith("tolerance source: holds a control character (U+0009")
     changed, added = with_suggested(ws)
     assert added == len(changed.tolerances) - len(ws.tolerances) > 0
 

@@ -319,3 +319,15 @@ def test_a_new_unit_converts_the_range_the_panel_filled_and_keeps_one_the_user_t
     at.text_input(key="whatif_unit_0").input("°C").run()
     assert (at.number_input(key="whatif_from_0").value, at.number_input(key="whatif_to_0").value) == (100.0, 160.0)
     no_exception(at)
+
+
+def test_a_case_name_with_a_tab_is_refused_at_its_case_not_a_traceback():
+    """A plant engineer's finding: 'Sommer<TAB>32 °C' pasted from a spreadsheet into the case name showed pydantic's
+    traceback. Now refused at the case's address, the sheet unchanged."""
+    ws = sample(GLYCOL)
+    at = page(ws)
+    at.text_input(key="whatif_case_name").input("Sommer\t32 °C")
+    at.button(key="whatif_case_add").click().run()
+    no_exception(at)
+    assert held(at).cases == []
+    assert any("holds a control character (U+0009" in unescaped(e.value) for e in at.error)

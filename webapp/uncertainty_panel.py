@@ -115,8 +115,9 @@ def parse_tolerance(i: address.Input, text: str, distribution: str, source: str)
         raise InputError(f"the distribution is one of {', '.join(DISTRIBUTIONS)}, not {distribution!r}", where)
     try:
         return Tolerance(address=where, distribution=distribution, source=(source or "").strip(), **form)
-    except ValidationError as exc:
-        raise InputError("; ".join(e["msg"] for e in exc.errors()), where) from None
+    except ValidationError as exc:  # the field in words, the model's words without pydantic's prefix
+        raise InputError("; ".join(f"tolerance {'.'.join(str(p) for p in e['loc'])}: "
+                                   f"{e['msg'].removeprefix('Value error, ')}" for e in exc.errors()), where) from None
 
 
 def checked_tolerance(worksheet: Worksheet, tolerance: Tolerance) -> None:

@@ -524,7 +524,8 @@ def _new_name(worksheet: Worksheet, keep: int | None = None) -> str | None:
 def _add_case(set_worksheet) -> None:
     worksheet = page_state().worksheet
     name = _new_name(worksheet)
-    if name is not None and _write(set_worksheet, worksheet, [*worksheet.cases, Case(name=name)]):
+    # not validated here: _write reads the whole worksheet and refuses a bad name at its case's address
+    if name is not None and _write(set_worksheet, worksheet, [*worksheet.cases, Case.model_construct(name=name)]):
         st.session_state[key("case")] = len(worksheet.cases)
 
 
