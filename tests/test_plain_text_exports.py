@@ -214,3 +214,24 @@ def test_the_remove_tolerance_tooltip_shows_the_name_as_text():
     assert helps, "the tolerance's remove button is drawn"
     for text in helps:
         assert "![i](" not in text and "**bold**" not in text and ":red[" not in text, text
+
+
+def test_a_name_with_a_hash_reads_back_from_every_csv():
+    """A plant engineer's finding: 'Glykol #2' cut its row (results CSV) or shifted every column (sweep CSV) for a
+    reader that skips the '#' lines (pandas read_csv(comment='#')). Text cells are quoted now."""
+    import pandas as pd
+
+    from heatbalance.analyses.sweep import Axis, sweep
+    from heatbalance.present.exports import results_csv_bytes
+    from heatbalance.present.whatif import sweep_csv_bytes
+
+    doc = _glycol()
+    doc["streams"][0]["name"] = "Glykol #2"
+    ws = parse_worksheet(doc)
+    table = pd.read_csv(io.BytesIO(results_csv_bytes(solve(ws))), comment="#", encoding="utf-8-sig")
+    row = table[table["item"] == "Glykol #2"].iloc[0]
+    # the engine's own line heat (consistency), to the ten figures written
+    assert row["heat into process [kW]"] == pytest.approx(-solve(ws).lines[0].total / 1e3, rel=1e-9)
+    frame = sweep(ws, [Axis("streams[Glykol #2].flow", (6.0, 12.0), "t/h")])
+    read = pd.read_csv(io.BytesIO(sweep_csv_bytes(frame)), comment="#", encoding="utf-8-sig")
+    assert list(read.columns)[:2] == ["Glykol #2 flow [t/h]", "Steam flow [kg/h]"] and len(read) == 2

@@ -3,22 +3,35 @@
 A spreadsheet reads a cell that starts with ``=``, ``+``, ``-`` or ``@`` (or a tab or a carriage return) as a
 formula: a stream named ``=HYPERLINK(...)`` would be a live link there, or a command ("CSV injection", OWASP, from
 memory). Such a text cell is written with a leading apostrophe, which spreadsheets take as "this is text" and do
-not show; a number (``-12.5``) is written as it is. A ``#`` comment line is one line and one cell: no line break,
-and its commas written as a look-alike that separates nothing.
+not show; a number (``-12.5``) is written as it is. Text cells are quoted, so a ``#`` in a name does not start a
+comment for a reader that skips the ``#`` lines. A ``#`` comment line is one line and one cell: no line break, and
+its commas written as a look-alike that separates nothing.
 """
 from __future__ import annotations
 
+import csv
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
     import pandas as pd
 
-__all__ = ["CSV_FLOAT", "csv_cell", "csv_table", "comment_line"]
+__all__ = ["CSV_FLOAT", "CSV_QUOTING", "CsvNumber", "csv_cell", "csv_table", "comment_line"]
 
 # ten significant figures (1e-10 relative, far below any property data's accuracy), not a computation's 16-digit
 # float tail (71.95312500000001)
 CSV_FLOAT = "%.10g"
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+# every text cell is quoted: a '#' in a name ('Pumpe #2') would start a comment for a reader that skips the '#' lines
+CSV_QUOTING = csv.QUOTE_NONNUMERIC
+
+
+class CsvNumber(float):
+    """A number as a CSV cell writes it: ten significant figures, unquoted."""
+
+    def __repr__(self) -> str:
+        return CSV_FLOAT % self
+
+    __str__ = __repr__
 
 
 def csv_cell(value):

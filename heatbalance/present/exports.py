@@ -7,7 +7,7 @@ import io
 from ..reactor import CAUTION
 from ..results import Result
 from ..worksheet import Worksheet, dump_worksheet
-from .csv_cells import CSV_FLOAT, comment_line, csv_cell
+from .csv_cells import CSV_QUOTING, CsvNumber, comment_line, csv_cell
 from .screening import bears_on_safety, screening_report
 from .tables import contribution_rows
 from .text import answer_text, format_heat, phrase_text
@@ -37,10 +37,10 @@ def results_csv_bytes(result: Result, system: str = "SI") -> bytes:
     header += [f"assumption: {phrase_text(a, system)}" for a in result.assumptions]  # the gauge reference among them
     out.write("\n".join(comment_line(line) for line in header) + "\n")
     columns = list(rows[0]) if rows else ["item"]
-    writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")
+    writer = csv.DictWriter(out, fieldnames=columns, lineterminator="\n", quoting=CSV_QUOTING)
     writer.writeheader()
     for row in rows:
-        writer.writerow({k: ("" if v is None else CSV_FLOAT % v if isinstance(v, float) else csv_cell(v))
+        writer.writerow({k: ("" if v is None else CsvNumber(v) if isinstance(v, float) else csv_cell(v))
                          for k, v in row.items()})
     return out.getvalue().encode("utf-8-sig")
 

@@ -13,7 +13,7 @@ from ..address import label as address_label
 from ..analyses.cases import difference_column
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
 from ..units import from_si
-from .csv_cells import CSV_FLOAT, csv_table
+from .csv_cells import CSV_FLOAT, CSV_QUOTING, csv_table
 from .text import NOT_APPLICABLE, display_unit, error_text, no_negative_zero, phrase_text, shown_unit
 
 __all__ = ["output_label", "output_unit", "shared_warnings", "own_warnings", "sweep_table", "sweep_csv_bytes",
@@ -120,7 +120,7 @@ def case_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
 
 def _csv_bytes(table: pd.DataFrame, index: bool) -> bytes:
     buffer = io.StringIO()
-    csv_table(table).to_csv(buffer, index=index, lineterminator="\n", float_format=CSV_FLOAT)
+    csv_table(table).to_csv(buffer, index=index, lineterminator="\n", float_format=CSV_FLOAT, quoting=CSV_QUOTING)
     return buffer.getvalue().encode("utf-8-sig")
 
 
