@@ -105,8 +105,8 @@ BOUNDS: dict[str, float] = {
     "volume_flow": 1e7,  # m³/s
 }
 
-_GAUGE = {"barg": "bar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}
-_ABSOLUTE_ALIASES = {"bara": "bar", "psia": "psi", "kPaa": "kPa", "MPaa": "MPa"}
+_GAUGE = {"barg": "bar", "mbarg": "mbar", "psig": "psi", "kPag": "kPa", "MPag": "MPa"}
+_ABSOLUTE_ALIASES = {"bara": "bar", "mbara": "mbar", "psia": "psi", "kPaa": "kPa", "MPaa": "MPa"}
 _CASE_SLIPS = {name.lower(): name for name in (*_GAUGE, *_ABSOLUTE_ALIASES)}  # PSIG -> psig, BARG -> barg
 _TEMPERATURE_ALIASES = {"C": "degC", "°C": "degC", "degC": "degC", "F": "degF", "°F": "degF",
                         "degF": "degF", "K": "K", "R": "degR", "°R": "degR", "degR": "degR"}
@@ -160,8 +160,10 @@ _TON_FOR = {"power": "'ton' for a duty is a ton of refrigeration: write TR (12,0
             "energy": "'ton' is a mass or a cooling rate (TR), not an energy: give it in kJ, kWh or Btu"}
 _AMBIGUOUS_PSI = "'psi' does not say gauge or absolute: write psig (above the atmosphere) or psia (absolute)"
 # a gauge or absolute pressure unit written apart ('bar g', 'psi(a)', 'kPa_gauge'): pint reads 'psi g' as psi × gram
-_PRESSURE_APART = re.compile(r"^(bar|psi|kPa|MPa)(?:\s+|_|\s*\()(g|gauge|a|abs|absolute)\)?$", re.IGNORECASE)
-_PRESSURE_BASES = {"bar": "bar", "psi": "psi", "kpa": "kPa", "mpa": "MPa"}
+# ('barü': Überdruck, gauge, as German plants write it)
+_PRESSURE_APART = re.compile(r"^(bar|mbar|psi|kPa|MPa)"
+                             r"(?:(?:\s+|_|\s*\()(g|gauge|ü|ue|a|abs|absolute)\)?|(ü|ue))$", re.IGNORECASE)
+_PRESSURE_BASES = {"bar": "bar", "mbar": "mbar", "psi": "psi", "kpa": "kPa", "mpa": "MPa"}
 # kg/cm² as plants write it: 'kg/cm2' (a mass per area to pint), or with a gauge or absolute mark
 _KG_PER_CM2 = re.compile(r"^kg(f?)\s*/\s*cm(?:2|\*\*2|\^2|²)\s*(?:[_(]\s*|\s+)?(g|a|gauge|abs)?\)?$", re.IGNORECASE)
 
@@ -174,9 +176,9 @@ def _pressure_spelling(unit: str) -> str:
     """
     text = unit.strip()
     apart = _PRESSURE_APART.match(text)
-    if apart:
+    if apart and text not in _GAUGE and text not in _ABSOLUTE_ALIASES:  # 'barg' and 'bara' are written right
         base = _PRESSURE_BASES[apart.group(1).lower()]
-        gauge = apart.group(2).lower().startswith("g")
+        gauge = (apart.group(2) or apart.group(3)).lower() in ("g", "gauge", "ü", "ue")  # Überdruck: gauge
         return (f"'{text}' is a gauge pressure: write {base}g, in one word (above the atmosphere)" if gauge else
                 f"'{text}' is an absolute pressure: write {base}a, in one word")
     kg = _KG_PER_CM2.match(text)
@@ -190,8 +192,8 @@ def _pressure_spelling(unit: str) -> str:
 # hecto-hour (100 h), 'dt' as a decitonne; a carat ('ct') is no plant mass; a megabar, no plant pressure
 _NO_PREFIX = frozenset({"hour", "minute", "day", "week", "month", "year", "metric_ton"})
 _ALLOWED_PREFIXES = {"bar": {"milli", "kilo"}}
-_TEMPERATURE_BASES = frozenset({"kelvin", "degree_Celsius", "degree_Fahrenheit", "degree_Rankine"})  # a process temperature
-# in mK is a slip; a small temperature difference (a tolerance) in mK is not
+# a process temperature in mK is a slip; a small temperature difference (a tolerance) in mK is not
+_TEMPERATURE_BASES = frozenset({"kelvin", "degree_Celsius", "degree_Fahrenheit", "degree_Rankine"})
 _NOT_PLANT_UNITS = frozenset({"carat"})
 
 

@@ -205,3 +205,12 @@ def test_the_units_plants_use_are_read():
     assert to_si(3600, "klb/h", "mass_flow") == pytest.approx(453.59237, rel=1e-12)
     assert to_si(50, "mK", "temperature_difference") == pytest.approx(0.05, rel=1e-12)
     assert to_si(2, "ms", "duration") == pytest.approx(0.002, rel=1e-12)
+
+
+def test_millibar_gauge_and_absolute_are_read_and_a_german_gauge_mark_is_spelled():
+    # hand: 4 mbarg = 101,325 + 400 Pa at the standard atmosphere; 4 mbara = 400 Pa
+    assert to_si(4, "mbarg", "pressure") == pytest.approx(101_725.0, rel=1e-12)
+    assert to_si(4, "mbara", "pressure") == pytest.approx(400.0, rel=1e-12)
+    for unit in ("barü", "bar(ü)", "bar ü"):  # Überdruck: gauge
+        with pytest.raises(UnitError, match="is a gauge pressure: write barg"):
+            to_si(4, unit, "pressure", "vessels[R].pressure")
