@@ -86,7 +86,7 @@ def test_save_waits_while_the_site_box_holds_a_refused_value(db):
     at.text_input(key=WIDGET).set_value("2 barg").run()
     at.button(key="share_save").click().run()
     assert not at.exception
-    assert "Not saved: a value on the page is refused (site atmosphere: not used)" in shown(at, at.error)
+    assert "Not saved: a value on the page is refused (atmosphere.barometric_pressure: " in shown(at, at.error)
     at.text_input(key=WIDGET).set_value("1500 m").run()
     at.button(key="share_save").click().run()
     assert "Not saved" not in shown(at, at.error)

@@ -48,11 +48,18 @@ UNIT_SYSTEM_KEY = "unit_system"  # the sidebar's "Show results in" (its label ->
 REFUSED = "_refused"
 
 
+def _refusal_words(kept) -> str:
+    """A panel's kept refusal in words: its address and message (a panel keeps the error, or its words)."""
+    if isinstance(kept, HeatBalanceError):
+        return f"{kept.where}: {kept.message}" if kept.where else kept.message
+    return str(kept)
+
+
 def refused_on_page() -> str:
     """What the page shows typed but the worksheet does not hold, in words ('' when nothing): a bad cell, a bad
     batch duration, a panel's refused value; Save stores the worksheet, so it waits until these are corrected."""
     found = [page_state().unread()]
-    found += [f"{key.removesuffix(REFUSED).replace('_', ' ')}: not used" for key, value in st.session_state.items()
+    found += [_refusal_words(value) for key, value in st.session_state.items()
               if isinstance(key, str) and key.endswith(REFUSED) and value]
     found = [text for text in found if text]
     return found[0] + (f" (and {len(found) - 1} more)" if len(found) > 1 else "") if found else ""
