@@ -180,8 +180,9 @@ def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = N
                                         mode="markers", marker=WARNED_MARKER, name=WARNED_NAME, showlegend=True,
                                         hovertemplate="a warning of its own: see the table<extra></extra>"))
         figure.update_layout(xaxis_title=grid.columns.name, yaxis_title=grid.index.name)
-    drawn = list(kinds) if len(axes) == 1 else [output]  # one input: every output in the chart's unit is a line
-    figure.update_layout(title={"text": "What if: " + ", ".join(output_label(n, frame) for n in drawn), "x": 0.0},
+    others = len(kinds) - 1 if len(axes) == 1 else 0  # one input: every output in the chart's unit is a line
+    more = f" and {others} more (see the legend)" if others else ""
+    figure.update_layout(title={"text": "What if: " + output_label(output, frame) + more, "x": 0.0},
                          height=420, margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
     _plotly_safe(figure, [address_label(a) for a in frame.attrs["units"]]
                  + [output_label(n, frame) for n in frame.attrs["kinds"]])
