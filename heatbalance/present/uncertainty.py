@@ -129,5 +129,6 @@ def plateau_fraction_text(result) -> str | None:
     if u is None:
         return None
     upper = "vapour" if result.answer.plateau == "boiling" else "liquid (melted)"
-    return (f"{result.answer.label}: {upper} fraction = {u.value:.1%} ± {abs(u.expanded):.1%} (k = {u.coverage:g}, "
+    value, expanded = value_and_uncertainty(100 * u.value, 100 * abs(u.expanded))
+    return (f"{result.answer.label}: {upper} fraction = {value}% ± {expanded}% (k = {u.coverage:g}, "
             "about 95 %; on the phase change the temperature is fixed)")
