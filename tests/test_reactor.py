@@ -694,3 +694,20 @@ def test_the_process_temperature_typed_on_the_panel_moves_mtsr():
     assert not at.exception
     table = next(m.value for m in at.markdown if m.value.startswith("| T_process"))
     assert "| 50.0 °C | **61.1 °C** (100% accumulated) |" in table
+
+
+def test_a_process_temperature_above_the_batchs_boiling_point_is_said_to_take_the_vapours_cp():
+    """A plant engineer's finding: T_process 150 °C at 0 barg took water's cp as steam's (about 2 instead of 4.2
+    kJ/(kg·K), IAPWS-IF97), so ΔT_ad was about doubled, and the cp note did not say why."""
+    import json
+
+    from heatbalance.analyses import solve_and_analyse
+    from heatbalance.worksheet import load_worksheet
+
+    doc = json.load(open("sample_data/batch_reactor_exotherm.json", encoding="utf-8"))
+    doc["vessels"][0].setdefault("screening", {})["process_temperature"] = {"value": 150, "unit": "degC"}
+    result = solve_and_analyse(load_worksheet(json.dumps(doc)))
+    (warning,) = [w for w in result.warnings if w.text.startswith("ΔT_ad takes")]
+    assert "R-2 / Batch at the process temperature 150.0 °C, above its boiling point 100.0 °C" in warning.text
+    assert warning.address == "vessels[R-2].screening.process_temperature"
+    assert result.screening[0].cp < 2.5e3  # the vapour's, as the warning says (the liquid batch: 4.05 kJ/(kg·K))

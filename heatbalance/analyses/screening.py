@@ -207,6 +207,7 @@ def _screen_vessel(vessel: str, releases: list, problem: Problem, result: Result
     if mass <= 0:
         raise InputError("the vessel holds no mass: the screening needs the charges' masses", where)
     capacity = sum(line.amount_si * cp_at(model.material, T_process, line.final_P, where) for model, line in charges)
+    result.warnings.extend(_boiled_at_process_temperature(charges, T_process, where))
     cp = (capacity + _mixed_solution_capacity(releases, T_process, notes)) / mass
     notes.append(Phrase("cp of the reaction mass at the process temperature, mass-weighted from the property data: "
                         "{cp}; ΔT_ad assumes it constant over the rise.", {"cp": Measure(cp, "specific_heat")}))
@@ -376,6 +377,23 @@ def _mixture_mtt(vessel: str, inputs, charges: list, notes: list[Phrase], warnin
              "T_major": Measure(bubble.T_major, "temperature", 1), "others": others,
              "share": f"{bubble.volatile_share:.0%}", "T": Measure(bubble.T, "temperature", 1)}))
     return bubble.T, source, bubble
+
+
+def _boiled_at_process_temperature(charges: list, T_process: float, where: str) -> list[Phrase]:
+    """A charge that is liquid at the end of the balance but above its boiling point at the process temperature: its
+    cp there is its vapour's (about half of the liquid's for water), so ΔT_ad and MTSR are off: said."""
+    out = []
+    for model, line in charges:
+        boiling = next((t for t in model.material.transitions(line.final_P) if t.kind == "boiling"), None)
+        if boiling is not None and T_process > boiling.T + 1e-6 and "liquid" in line.final_phase:
+            out.append(Phrase("ΔT_ad takes {name} at the process temperature {T}, above its boiling point {T_b} at "
+                              "{P}: its cp there is the vapour's, not the liquid's of the balance, so ΔT_ad and MTSR "
+                              "are not those of the liquid batch. Enter a process temperature below the boiling "
+                              "point.", {"name": line.name, "T": Measure(T_process, "temperature", 1),
+                                         "T_b": Measure(boiling.T, "temperature", 1),
+                                         "P": Measure(line.final_P, "pressure")},
+                              f"{where}.process_temperature"))
+    return out
 
 
 def _charged_above_mtt(charges: list, MTT: float, entered: bool) -> list[Phrase]:
