@@ -166,14 +166,19 @@ def parse_vary(text: str):
     return Axis(match.group("address").strip(), values, unit)
 
 
-def _print_frame(table, args, csv_bytes) -> None:
+def _print_frame(table, args, csv_bytes, caution: str | None = None) -> None:
+    """A what-if table as CSV, JSON (with a top-level ``caution`` when it bears on safety) or text (the caution
+    under it, once)."""
     if args.csv:
         sys.stdout.write(csv_bytes.decode("utf-8-sig"))
     elif args.json:
-        print(table.to_json(orient="split", force_ascii=False, indent=2))
+        data = json.loads(table.to_json(orient="split", force_ascii=False))
+        print(json.dumps({**data, "caution": caution} if caution else data, ensure_ascii=False, indent=2))
     else:
         with pd_options():
             print(table.to_string())
+        if caution:
+            print(f"\n{caution}")
 
 
 def pd_options():
@@ -190,10 +195,10 @@ def _number(value: float) -> str:
 
 def _sweep(args) -> int:
     from .analyses.sweep import sweep
-    from .present.whatif import refusal_rows, sweep_csv_bytes, sweep_table
+    from .present.whatif import caution_of, refusal_rows, sweep_csv_bytes, sweep_table
 
     frame = sweep(_worksheet_of(args.worksheet), [parse_vary(v) for v in args.vary], args.output or None)
-    _print_frame(sweep_table(frame, args.units), args, sweep_csv_bytes(frame, args.units))
+    _print_frame(sweep_table(frame, args.units), args, sweep_csv_bytes(frame, args.units), caution_of(frame))
     if not (args.json or args.csv):
         for row in refusal_rows(frame, args.units):
             print(f"refused: {row}")
@@ -202,12 +207,12 @@ def _sweep(args) -> int:
 
 def _cases(args) -> int:
     from .analyses.cases import AS_TYPED, run_cases
-    from .present.whatif import case_csv_bytes, case_table, case_table_text
+    from .present.whatif import case_csv_bytes, case_table, case_table_text, caution_of
 
     frame = run_cases(_worksheet_of(args.worksheet), args.base or AS_TYPED, args.output or None)
     table = case_table(frame, args.units)
     shown = table if args.json or args.csv else case_table_text(frame, args.units)  # people: one format a row
-    _print_frame(shown, args, case_csv_bytes(frame, args.units))
+    _print_frame(shown, args, case_csv_bytes(frame, args.units), caution_of(frame))
     machine = args.json or args.csv  # its table stays pure data: a refused case's reason goes to standard error
     for name, exc in frame.attrs["refusals"].items():
         where = f"{exc.where}: " if exc.where else ""

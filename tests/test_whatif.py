@@ -390,3 +390,25 @@ def test_a_warning_whose_numbers_change_along_the_sweep_rings_no_point():
 
     frame = sweep(sample(GLYCOL), [Axis("streams[Steam].pressure", (2, 3, 4, 5), "barg")])
     assert own_warnings(frame) == [[], [], [], []]
+
+
+def test_a_sweep_or_case_table_that_bears_on_safety_carries_the_caution_once(capsys):
+    """A plant engineer's finding: MTSR and MTT columns went out in the sweep's CSV, table and JSON without the
+    caution; a sweep of the answer alone on a heater needs none."""
+    import pandas as pd
+
+    from heatbalance.present.whatif import case_csv_bytes
+    from heatbalance.reactor import CAUTION
+
+    axis = Axis("vessels[R-7].screening.accumulation", (0.1, 0.5, 1.0), "")
+    text = sweep_csv_bytes(sweep(sample(REACTOR), [axis])).decode("utf-8-sig")
+    assert text.splitlines()[0].startswith("# caution: A screening estimate") and text.count("# caution") == 1
+    assert len(pd.read_csv(io.StringIO(text), comment="#")) == 3
+    assert "caution" not in sweep_csv_bytes(sweep(sample(GLYCOL), [Axis("streams[Glycol].flow", (6, 12),
+                                                                               "t/h")])).decode("utf-8-sig")
+    assert case_csv_bytes(run_cases(sample(REACTOR))).decode("utf-8-sig").count("# caution") == 1
+    args = ["sweep", REACTOR, "--vary", "vessels[R-7].screening.accumulation=0.1,1"]
+    assert main(args) == 0
+    assert capsys.readouterr().out.count(CAUTION) == 1
+    assert main([*args, "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["caution"] == CAUTION

@@ -12,12 +12,13 @@ import plotly.graph_objects as go
 from ..address import label as address_label
 from ..analyses.cases import difference_column
 from ..analyses.sweep import REASON, REFUSED_AT, WARNINGS
+from ..reactor import CAUTION
 from ..units import from_si
-from .csv_cells import CSV_FLOAT, CSV_QUOTING, csv_table
+from .csv_cells import CSV_FLOAT, CSV_QUOTING, comment_line, csv_table
 from .text import NOT_APPLICABLE, display_unit, error_text, no_negative_zero, phrase_text, shown_unit
 
 __all__ = ["output_label", "output_unit", "shared_warnings", "own_warnings", "sweep_table", "sweep_csv_bytes",
-           "case_csv_bytes", "sweep_figure", "case_table", "case_table_text", "refusal_rows"]
+           "case_csv_bytes", "caution_of", "sweep_figure", "case_table", "case_table_text", "refusal_rows"]
 
 _OUTPUT_WORDS = {"answer": "answer", "answer.phase_fraction": "phase fraction of the answer", "residual": "residual"}
 
@@ -108,18 +109,27 @@ def sweep_table(frame: pd.DataFrame, system: str = "SI", leave_out: tuple | list
     return pd.DataFrame(out)
 
 
+def caution_of(frame: pd.DataFrame) -> str | None:
+    """The one safety caution when a sweep's or a case table's outputs bear on safety (a screening's MTSR, MTT,
+    ΔT_ad or class), else None."""
+    return CAUTION if any(name.startswith("screening[") for name in frame.attrs.get("kinds", {})) else None
+
+
 def sweep_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
-    """The sweep table as CSV (UTF-8 with a byte-order mark, for spreadsheets); refused points have empty outputs."""
-    return _csv_bytes(sweep_table(frame, system), index=False)
+    """The sweep table as CSV (UTF-8 with a byte-order mark, for spreadsheets); refused points have empty outputs;
+    the caution in a first '#' line when the outputs bear on safety (read it with ``comment='#'``)."""
+    return _csv_bytes(sweep_table(frame, system), index=False, caution=caution_of(frame))
 
 
 def case_csv_bytes(frame: pd.DataFrame, system: str = "SI") -> bytes:
     """The case table as CSV: a row per output, a column per case and the difference (as :func:`case_table`)."""
-    return _csv_bytes(case_table(frame, system), index=True)
+    return _csv_bytes(case_table(frame, system), index=True, caution=caution_of(frame))
 
 
-def _csv_bytes(table: pd.DataFrame, index: bool) -> bytes:
+def _csv_bytes(table: pd.DataFrame, index: bool, caution: str | None = None) -> bytes:
     buffer = io.StringIO()
+    if caution:
+        buffer.write(comment_line(f"caution: {caution}") + "\n")
     csv_table(table).to_csv(buffer, index=index, lineterminator="\n", float_format=CSV_FLOAT, quoting=CSV_QUOTING)
     return buffer.getvalue().encode("utf-8-sig")
 
