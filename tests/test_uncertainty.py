@@ -227,3 +227,13 @@ def test_no_thermometer_tolerance_is_suggested_for_a_temperature_no_thermometer_
         assert not any(a.endswith(("min_temperature", "max_temperature", "initial_freezing_point", "T_D24",
                                    "target_temperature")) for a in suggested), suggested
         assert any(a.endswith("initial.temperature") or a.endswith("inlet.temperature") for a in suggested)
+
+
+def test_a_pressure_tolerance_and_its_u_are_written_as_differences():
+    """A plant engineer's finding: '± 0.015 bar(a)' beside 'u(input) 0.00866 barg': a difference of pressures is
+    neither absolute nor gauge (rectangular: u = a/√3, 0.015/√3 = 0.00866, hand calculation)."""
+    doc = json.loads(open("sample_data/steam_heater_glycol.json", "rb").read())
+    doc["tolerances"] = [{"address": "streams[Steam].pressure", "plus_minus": "0.015 bar"}]
+    result = solve_and_analyse(parse_worksheet(doc))
+    row = next(r for r in contribution_rows(result.uncertainty) if r["address"] == "streams[Steam].pressure")
+    assert row["tolerance"] == "± 0.015 bar (rectangular)" and row["u(input)"] == "0.00866 bar"

@@ -32,7 +32,15 @@ def _difference(x: float, unit: str, kind: str) -> float:
     return from_si(x, unit, kind) - from_si(0.0, unit, kind) if unit else x
 
 
-_DIFFERENCE_SHOWN = {"degC": "K", "°C": "K", "C": "K", "degF": "°F", "°F": "°F", "F": "°F"}
+# a difference (a tolerance, a standard uncertainty) is neither gauge nor absolute, and a temperature's is in K or °F
+_DIFFERENCE_SHOWN = {"degC": "K", "°C": "K", "C": "K", "degF": "°F", "°F": "°F", "F": "°F",
+                     "barg": "bar", "bara": "bar", "bar": "bar", "mbarg": "mbar", "mbara": "mbar", "mbar": "mbar",
+                     "psig": "psi", "psia": "psi", "kPag": "kPa", "kPaa": "kPa", "MPag": "MPa", "MPaa": "MPa"}
+
+
+def _difference_unit(unit: str) -> str:
+    """The unit a difference in ``unit`` is written in: '0.015 bar', not 'bar(a)' nor 'barg'; K for °C."""
+    return _DIFFERENCE_SHOWN.get(unit.strip(), display_unit(unit))
 
 
 def _number(x: float) -> str:
@@ -69,7 +77,7 @@ def tolerance_text(c) -> str:
     """``± 0.5 K (rectangular)``, ``± 1.5 % (rectangular)``."""
     t = c.tolerance
     size = f"{t.percent:g} %" if t.percent is not None else \
-        (f"{t.plus_minus.value:g} {display_unit(t.plus_minus.unit)}" if hasattr(t.plus_minus, "unit")
+        (f"{t.plus_minus.value:g} {_difference_unit(t.plus_minus.unit)}" if hasattr(t.plus_minus, "unit")
          else f"{t.plus_minus:g}")
     return f"± {size} ({t.distribution})"
 
@@ -84,7 +92,7 @@ def contribution_rows(u: Uncertainty, system: str = "SI", answer: Answer | None 
             "input": label(c.address), "address": c.address,
             "value": f"{c.value:g} {display_unit(c.unit)}".rstrip(),
             "tolerance": tolerance_text(c), "source": c.tolerance.source,
-            "u(input)": f"{c.standard:.3g} {_DIFFERENCE_SHOWN.get(c.unit, display_unit(c.unit))}".rstrip(),
+            "u(input)": f"{c.standard:.3g} {_difference_unit(c.unit)}".rstrip(),
             f"contribution [{shown}]": _difference(c.contribution, unit, u.kind),
             "share": f"{c.share:.1%}",
             "note": "one-sided (a side cannot be solved)" if c.refused is not None else
