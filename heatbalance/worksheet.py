@@ -9,7 +9,6 @@ from __future__ import annotations
 import json
 import math
 import re
-import unicodedata
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
@@ -24,6 +23,7 @@ __all__ = [
     "Jacket", "ChargeChemical", "ScreeningInputs",
     "Reaction", "Mixing", "CommonTemperature", "PhaseSpec", "UserMaterial", "FreezingMaterial", "EnthalpyPoint", "Basis", "Unknown", "Override", "Case", "Tolerance", "SheetTags", "SiteAtmosphere", "Exchanger", "Utility", "ARRANGEMENTS", "UTILITY_KINDS", "Worksheet",
     "load_worksheet", "parse_worksheet", "dump_worksheet", "MAX_DOCUMENT_BYTES", "MAX_NESTING_DEPTH", "item_address",
+    "plain_text_refusal",
 ]
 
 SCHEMA_VERSION = CURRENT_VERSION  # one number, kept in migrations.py beside the migrations that reach it
@@ -34,24 +34,13 @@ MAX_NESTING_DEPTH = 20  # objects/lists nested deeper are refused (a real worksh
 class _Model(BaseModel):
     model_config = ConfigDict(extra="forbid", validate_assignment=True, allow_inf_nan=False)
 
-    @field_validator("*", mode="after")
-    @classmethod
-    def _plain_text(cls, value, info):
-        for text in (value if isinstance(value, (list, tuple)) else [value]):  # a list of names too
-            if isinstance(text, str):
-                _check_plain_text(text, multiline=info.field_name == "notes")
-        return value
-
 
 # text a reader could be misled by: control characters (a line break forges a line of a report, ESC drives a
-# terminal, NUL cannot be stored in PostgreSQL) and the bidirectional overrides that show text reversed
-_BIDI_CONTROLS = frozenset("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069")
-_LINE_SEPARATORS = frozenset("\u2028\u2029")  # a line break to str.splitlines and to editors
-_NOTE_BREAKS = frozenset("\n\r\t")
-
-
-def _misleading(char: str) -> bool:
-    return unicodedata.category(char) == "Cc" or char in _BIDI_CONTROLS or char in _LINE_SEPARATORS
+# terminal, NUL cannot be stored in PostgreSQL), the line separators editors break lines at, and the bidirectional
+# overrides that show text reversed; a note may hold line breaks and tabs
+_BIDI_CONTROLS = "\u202a-\u202e\u2066-\u2069"
+_MISLEADING = re.compile(f"[\x00-\x1f\x7f-\x9f\u2028\u2029{_BIDI_CONTROLS}]")
+_MISLEADING_IN_NOTES = re.compile(f"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u2028\u2029{_BIDI_CONTROLS}]")
 
 
 def _visible(text: str) -> str:
@@ -60,24 +49,44 @@ def _visible(text: str) -> str:
     >>> _visible("Glycol\\x1b[31m")
     'Glycol<U+001B>[31m'
     """
-    return "".join(f"<U+{ord(c):04X}>" if _misleading(c) else c for c in text)
+    return _MISLEADING.sub(lambda m: f"<U+{ord(m.group(0)):04X}>", text)
 
 
-def _check_plain_text(text: str, multiline: bool) -> None:
-    """Refuse a control character in a name, title or unit (a note may hold line breaks and tabs).
+def plain_text_refusal(text: str, notes: bool = False) -> str:
+    """Why ``text`` is refused as a name, title or unit (or, ``notes``, as a note), or '' when it is plain text.
 
-    >>> _check_plain_text("Steam, 4 barg", False); _check_plain_text("line 1\\nline 2", True)
-    >>> _check_plain_text("Heater\\nANSWER", False)
-    Traceback (most recent call last):
-    ValueError: holds a control character (U+000A, a line break); names, titles and units are plain text on one line
+    >>> plain_text_refusal("Steam, 4 barg"), plain_text_refusal("line 1\\nline 2", notes=True)
+    ('', '')
+    >>> plain_text_refusal("Heater\\nANSWER")
+    'holds a control character (U+000A, a line break); names, titles and units are plain text on one line'
     """
-    for char in text:
-        if _misleading(char) and not (multiline and char in _NOTE_BREAKS):
-            kind = "a line break" if char in "\n\r" or char in _LINE_SEPARATORS else \
-                "a direction override" if char in _BIDI_CONTROLS else "a control character"
-            rule = "notes are plain text: line breaks and tabs only" if multiline else \
-                "names, titles and units are plain text on one line"
-            raise ValueError(f"holds a control character (U+{ord(char):04X}, {kind}); {rule}")
+    found = (_MISLEADING_IN_NOTES if notes else _MISLEADING).search(text)
+    if found is None:
+        return ""
+    char = found.group(0)
+    kind = "a line break" if char in "\n\r\u2028\u2029" else \
+        "a control character" if ord(char) < 0xa0 else "a direction override"
+    rule = "notes are plain text: line breaks and tabs only" if notes else \
+        "names, titles and units are plain text on one line"
+    return f"holds a control character (U+{ord(char):04X}, {kind}); {rule}"
+
+
+def _check_texts(data: dict) -> None:
+    """Refuse, at its field, the first text of a document that is not plain text (one walk, a compiled pattern per
+    text: about as fast as reading the document)."""
+    pending: list[tuple[object, tuple]] = [(data, ())]
+    while pending:
+        node, path = pending.pop()
+        children = node.items() if isinstance(node, dict) else enumerate(node)
+        for key, value in children:
+            if isinstance(value, str):
+                why = plain_text_refusal(value, notes=key == "notes")
+                if why:
+                    address, complete = _address_of(data, path + (key,))
+                    place = ".".join(str(p) for p in path + (key,))
+                    raise WorksheetFormatError(why if complete else f"{place}: {why}", address)
+            elif isinstance(value, (dict, list)):
+                pending.append((value, path + (key,)))
 
 
 QUANTITY_TEXT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -766,6 +775,7 @@ def parse_worksheet(data: dict, source: str = "file") -> Worksheet:
         if exc.where:
             raise
         raise WorksheetFormatError(exc.phrase, source) from None
+    _check_texts(data)
     try:
         return Worksheet.model_validate(data)
     except ValidationError as exc:

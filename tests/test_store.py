@@ -586,7 +586,7 @@ def test_a_revision_this_version_refuses_to_read_is_kept_and_printed_as_stored(c
 
     doc = json.loads(SAMPLES[0].read_bytes())
     doc["title"] = "Heater\trev 2"  # a tab: accepted when it was saved
-    monkeypatch.setattr(model, "_check_plain_text", lambda text, multiline: None)
+    monkeypatch.setattr(model, "_check_texts", lambda data: None)
     with WorksheetStore(f"sqlite:///{cli_store}") as store:
         rev = store.save(model.parse_worksheet(doc))
     monkeypatch.undo()

@@ -34,7 +34,7 @@ from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.present.text import display_unit, error_text, phrase_text
 from heatbalance.present.uncertainty import contribution_rows, monte_carlo_text, uncertainty_text
 from heatbalance.results import Result
-from heatbalance.worksheet import Quantity, Tolerance, Worksheet, parse_worksheet
+from heatbalance.worksheet import Quantity, Tolerance, Worksheet, parse_worksheet, plain_text_refusal
 
 from .common import count_refusal, page_state, plain
 from .grids import parse_quantity
@@ -113,6 +113,9 @@ def parse_tolerance(i: address.Input, text: str, distribution: str, source: str)
         raise InputError(f"a tolerance is a ± half-width and cannot be negative ({shown})", where)
     if distribution not in DISTRIBUTIONS:
         raise InputError(f"the distribution is one of {', '.join(DISTRIBUTIONS)}, not {distribution!r}", where)
+    why = plain_text_refusal(source or "")
+    if why:
+        raise InputError(f"tolerance source: {why}", where)
     try:
         return Tolerance(address=where, distribution=distribution, source=(source or "").strip(), **form)
     except ValidationError as exc:  # the field in words, the model's words without pydantic's prefix
