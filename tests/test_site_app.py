@@ -90,3 +90,16 @@ def test_save_waits_while_the_site_box_holds_a_refused_value(db):
     at.text_input(key=WIDGET).set_value("1500 m").run()
     at.button(key="share_save").click().run()
     assert "Not saved" not in shown(at, at.error)
+
+
+def test_saves_refusal_counts_every_refused_value_once(db):
+    """Two bad cells and a refused site: the first named, 'and 2 more' once (the count had been said twice)."""
+    from page_helpers import edit
+
+    at = page(boiling_water())
+    at = edit(at, "streams", {"edited_rows": {0: {"flow": "abc", "inlet": "xyz"}}})
+    at.text_input(key=WIDGET).set_value("2 barg").run()
+    at.button(key="share_save").click().run()
+    assert not at.exception
+    message = next(e for e in shown(at, at.error).splitlines() if e.startswith("Not saved"))
+    assert message.count("(and ") == 1 and "(and 2 more)" in message

@@ -18,7 +18,7 @@ import streamlit as st
 from heatbalance.errors import HeatBalanceError, InputError
 from heatbalance.worksheet import Worksheet, load_worksheet
 
-from .state import KEY, PageState
+from .state import KEY, PageState, first_and_more
 
 __all__ = ["UNIT_SYSTEMS", "UNIT_SYSTEM_KEY", "SAMPLES_DIR", "DEFAULT_SAMPLE", "page_state", "display_system",
            "plain", "guarded", "fragment_panel", "built", "BUILT_KEPT", "sample_files", "load_sample",
@@ -58,11 +58,9 @@ def _refusal_words(kept) -> str:
 def refused_on_page() -> str:
     """What the page shows typed but the worksheet does not hold, in words ('' when nothing): a bad cell, a bad
     batch duration, a panel's refused value; Save stores the worksheet, so it waits until these are corrected."""
-    found = [page_state().unread()]
-    found += [_refusal_words(value) for key, value in st.session_state.items()
-              if isinstance(key, str) and key.endswith(REFUSED) and value]
-    found = [text for text in found if text]
-    return found[0] + (f" (and {len(found) - 1} more)" if len(found) > 1 else "") if found else ""
+    return first_and_more(page_state().unread_items() + [_refusal_words(value)
+                                                         for key, value in st.session_state.items()
+                                                         if isinstance(key, str) and key.endswith(REFUSED) and value])
 
 
 def display_system() -> str:

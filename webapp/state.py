@@ -52,6 +52,17 @@ def _copy_rows(rows: dict[str, list[dict]]) -> dict[str, list[dict]]:
     return {t: [dict(r) for r in table] for t, table in rows.items()}
 
 
+def first_and_more(texts: list[str]) -> str:
+    """The first of ``texts`` and how many more: ``"a (and 2 more)"``; '' for none.
+
+    >>> first_and_more(["a", "b", "c"]), first_and_more([])
+    ('a (and 2 more)', '')
+    """
+    if not texts:
+        return ""
+    return texts[0] + (f" (and {len(texts) - 1} more)" if len(texts) > 1 else "")
+
+
 @dataclass
 class PageState:
     """What the page is editing; see the module docstring."""
@@ -257,14 +268,14 @@ class PageState:
             self.solved = (self.worksheet, self.result)
         return self.result, self.error
 
+    def unread_items(self) -> list[str]:
+        """What the page shows typed but the worksheet does not hold (a bad cell, a bad batch duration), in words."""
+        return [p.text for p in self.problems] + ([f"Batch duration: {self.basis_problem}"] if self.basis_problem
+                                                  else [])
+
     def unread(self) -> str:
-        """What the page shows typed but the worksheet does not hold (a bad cell, a bad batch duration), in words;
-        '' when the worksheet is what the page shows."""
-        found = [p.text for p in self.problems] + ([f"Batch duration: {self.basis_problem}"]
-                                                   if self.basis_problem else [])
-        if not found:
-            return ""
-        return found[0] + (f" (and {len(found) - 1} more)" if len(found) > 1 else "")
+        """:meth:`unread_items` in one line ('' when the worksheet is what the page shows)."""
+        return first_and_more(self.unread_items())
 
     def _solve(self) -> tuple[Result | None, HeatBalanceError | None]:
         ws = self.worksheet
