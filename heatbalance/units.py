@@ -21,7 +21,8 @@ from .unit_cache import kept
 
 __all__ = [
     "registry", "ATMOSPHERE", "KINDS", "BOUNDS", "to_si", "from_si", "kind_of", "check_unit",
-    "basis_kinds", "heat_kind", "is_gauge", "absolute_unit", "standard_atmosphere_pressure", "STANDARD_ATMOSPHERE_ALTITUDES",
+    "basis_kinds", "heat_kind", "is_gauge", "absolute_unit", "pressure_difference_unit", "standard_atmosphere_pressure",
+    "STANDARD_ATMOSPHERE_ALTITUDES",
 ]
 
 @lru_cache(maxsize=1)
@@ -161,9 +162,9 @@ _TON_FOR = {"power": "'ton' for a duty is a ton of refrigeration: write TR (12,0
 _AMBIGUOUS_PSI = "'psi' does not say gauge or absolute: write psig (above the atmosphere) or psia (absolute)"
 # a gauge or absolute pressure unit written apart ('bar g', 'psi(a)', 'kPa_gauge'): pint reads 'psi g' as psi × gram
 # ('barü': Überdruck, gauge, as German plants write it)
-_PRESSURE_APART = re.compile(r"^(bar|mbar|psi|kPa|MPa)"
+_PRESSURE_BASES = {base.lower(): base for base in _GAUGE.values()}  # bar, mbar, psi, kPa, MPa (case-blind match)
+_PRESSURE_APART = re.compile(rf"^({'|'.join(_PRESSURE_BASES.values())})"
                              r"(?:(?:\s+|_|\s*\()(g|gauge|ü|ue|a|abs|absolute)\)?|(ü|ue))$", re.IGNORECASE)
-_PRESSURE_BASES = {"bar": "bar", "mbar": "mbar", "psi": "psi", "kpa": "kPa", "mpa": "MPa"}
 # kg/cm² as plants write it: 'kg/cm2' (a mass per area to pint), or with a gauge or absolute mark
 _KG_PER_CM2 = re.compile(r"^kg(f?)\s*/\s*cm(?:2|\*\*2|\^2|²)\s*(?:[_(]\s*|\s+)?(g|a|gauge|abs)?\)?$", re.IGNORECASE)
 
@@ -215,11 +216,19 @@ def _slip(unit: str, kind: str = "") -> str:
             if base in _NOT_PLANT_UNITS:
                 return f"'{name}' is no unit a plant weighs in (a slip for t?)"
             if prefix and (base in _NO_PREFIX or (allowed is not None and prefix not in allowed)):
-                typed = next((t for t in re.findall(r"[A-Za-z_µ]+", unit) if _unit(t) == _unit(name)), name)
+                typed = next((t for t in re.findall(r"[A-Za-z_µ]+", unit) if _reads_as(t, name)), name)
                 factor = registry().Quantity(1, f"{prefix}{base}").to(base).magnitude
                 return f"'{typed}' reads as {name} ({factor:g} × its {base.replace('_', ' ')}): a prefix no plant " \
                        f"puts there, most likely a typing slip"
     return ""
+
+
+def _reads_as(token: str, name: str) -> bool:
+    """Whether the typed ``token`` is pint's unit ``name`` (a token pint cannot read is not)."""
+    try:
+        return _unit(token) == _unit(name)
+    except Exception:  # noqa: BLE001 - pint's parser raises many types
+        return False
 
 
 def _ambiguity(unit: str, kind: str) -> str:
@@ -397,6 +406,17 @@ def from_si(value: float, unit: str, kind: str, gauge_reference: float = ATMOSPH
     if gauge_reference != ATMOSPHERE and kind == "pressure" and is_gauge(unit):
         offset += gauge_reference - ATMOSPHERE
     return (value - offset) / scale
+
+
+def pressure_difference_unit(unit: str) -> str | None:
+    """The unit a difference of pressures typed in ``unit`` is written in: neither gauge nor absolute (``barg``,
+    ``bara`` -> ``bar``; ``psig``, ``psia`` -> ``psi``); None for a unit that is no pressure unit of the gauge table.
+
+    >>> pressure_difference_unit("barg"), pressure_difference_unit("psia"), pressure_difference_unit("kPa")
+    ('bar', 'psi', 'kPa')
+    """
+    text = unit.strip()
+    return _GAUGE.get(text) or _ABSOLUTE_ALIASES.get(text) or (text if text in _GAUGE.values() else None)
 
 
 def absolute_unit(gauge: str) -> str:

@@ -6,7 +6,7 @@ from typing import TYPE_CHECKING
 
 from ..address import label
 from ..results import Answer
-from ..units import from_si
+from ..units import from_si, pressure_difference_unit
 from .text import UNIT_SETS, answer_unit, display_unit
 
 if TYPE_CHECKING:  # the analysis (numpy, uncertainties) is loaded only when a sheet has tolerances
@@ -32,15 +32,14 @@ def _difference(x: float, unit: str, kind: str) -> float:
     return from_si(x, unit, kind) - from_si(0.0, unit, kind) if unit else x
 
 
-# a difference (a tolerance, a standard uncertainty) is neither gauge nor absolute, and a temperature's is in K or °F
-_DIFFERENCE_SHOWN = {"degC": "K", "°C": "K", "C": "K", "degF": "°F", "°F": "°F", "F": "°F",
-                     "barg": "bar", "bara": "bar", "bar": "bar", "mbarg": "mbar", "mbara": "mbar", "mbar": "mbar",
-                     "psig": "psi", "psia": "psi", "kPag": "kPa", "kPaa": "kPa", "MPag": "MPa", "MPaa": "MPa"}
+# a difference (a tolerance, a standard uncertainty) of temperatures is in K or °F; of pressures neither gauge nor
+# absolute (units.pressure_difference_unit)
+_DIFFERENCE_SHOWN = {"degC": "K", "°C": "K", "C": "K", "degF": "°F", "°F": "°F", "F": "°F"}
 
 
 def _difference_unit(unit: str) -> str:
     """The unit a difference in ``unit`` is written in: '0.015 bar', not 'bar(a)' nor 'barg'; K for °C."""
-    return _DIFFERENCE_SHOWN.get(unit.strip(), display_unit(unit))
+    return _DIFFERENCE_SHOWN.get(unit.strip()) or pressure_difference_unit(unit) or display_unit(unit)
 
 
 def _number(x: float) -> str:
