@@ -149,11 +149,13 @@ WARNED_MARKER = {"symbol": "circle-open", "size": 14, "line": {"width": 2}, "col
 
 
 def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = None) -> go.Figure:
-    """One input: a line per output against it (refused points are gaps). Two inputs: a heat map of one output."""
+    """One input: a line per output against it (refused points are gaps). Two inputs: a heat map of one output.
+    Either way a point with a warning of its own (:func:`own_warnings`) is ringed."""
     kinds = frame.attrs["kinds"]
     output = output or next(iter(kinds))
     axes = list(frame.attrs["units"].items())
     table = sweep_table(frame, system)
+    shown, _ = _output_header(output, kinds[output], system, frame)
     if len(axes) == 1:
         (column, unit), = axes
         x_title = _header(address_label(column), unit)
@@ -167,33 +169,27 @@ def sweep_figure(frame: pd.DataFrame, system: str = "SI", output: str | None = N
         if refused.any():
             figure.add_trace(go.Scatter(x=table.loc[refused, x_title], y=[None] * int(refused.sum()), mode="markers",
                                         name="refused (see the list)", showlegend=True))
-        shown, _ = _output_header(output, kinds[output], system, frame)
-        warned = pd.Series([bool(w) for w in own_warnings(frame, system)], index=frame.index)
-        if warned.any():  # a point unlike the others: ringed, its warning in the table
-            figure.add_trace(go.Scatter(x=table.loc[warned, x_title], y=table.loc[warned, shown], mode="markers",
-                                        marker=WARNED_MARKER, name=WARNED_NAME,
-                                        hovertemplate="a warning of its own: see the table<extra></extra>"))
-        figure.update_layout(xaxis_title=x_title, yaxis_title=_output_header(output, kinds[output], system, frame)[0])
+        x_ring, y_ring = x_title, shown
     else:
         (x_col, x_unit), (y_col, y_unit) = axes
-        header, _ = _output_header(output, kinds[output], system, frame)
         grid = table.pivot_table(index=_header(address_label(y_col), y_unit),
-                                 columns=_header(address_label(x_col), x_unit), values=header, dropna=False,
+                                 columns=_header(address_label(x_col), x_unit), values=shown, dropna=False,
                                  aggfunc="first")
         figure = go.Figure(go.Heatmap(x=list(grid.columns), y=list(grid.index), z=grid.values,
-                                      colorbar={"title": {"text": header}},
+                                      colorbar={"title": {"text": shown}},
                                       hovertemplate=(f"{grid.columns.name}: %{{x:.4g}}<br>{grid.index.name}: "
-                                                     f"%{{y:.4g}}<br>{header}: %{{z:.4g}}<extra></extra>")))
-        warned = pd.Series([bool(w) for w in own_warnings(frame, system)], index=frame.index)
-        if warned.any():
-            figure.add_trace(go.Scatter(x=table.loc[warned, grid.columns.name], y=table.loc[warned, grid.index.name],
-                                        mode="markers", marker=WARNED_MARKER, name=WARNED_NAME, showlegend=True,
-                                        hovertemplate="a warning of its own: see the table<extra></extra>"))
-        figure.update_layout(xaxis_title=grid.columns.name, yaxis_title=grid.index.name)
+                                                     f"%{{y:.4g}}<br>{shown}: %{{z:.4g}}<extra></extra>")))
+        x_ring, y_ring = grid.columns.name, grid.index.name
+    warned = pd.Series([bool(w) for w in own_warnings(frame, system)], index=frame.index)
+    if warned.any():  # a point unlike the others: ringed, its warning in the table
+        figure.add_trace(go.Scatter(x=table.loc[warned, x_ring], y=table.loc[warned, y_ring], mode="markers",
+                                    marker=WARNED_MARKER, name=WARNED_NAME, showlegend=True,
+                                    hovertemplate="a warning of its own: see the table<extra></extra>"))
     others = len(kinds) - 1 if len(axes) == 1 else 0  # one input: every output in the chart's unit is a line
     more = f" and {others} more (see the legend)" if others else ""
     figure.update_layout(title={"text": "What if: " + output_label(output, frame) + more, "x": 0.0},
-                         height=420, margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
+                         xaxis_title=x_ring, yaxis_title=y_ring, height=420,
+                         margin={"l": 70, "r": 20, "t": 60, "b": 50}, plot_bgcolor="#ffffff")
     _plotly_safe(figure, [address_label(a) for a in frame.attrs["units"]]
                  + [output_label(n, frame) for n in frame.attrs["kinds"]])
     return figure
