@@ -600,3 +600,12 @@ def test_a_revision_this_version_refuses_to_read_is_kept_and_printed_as_stored(c
     assert json.loads(stored)["title"] == "Heater\trev 2"
     assert main(["open", rev.id, "--stored"]) == 0
     assert capsys.readouterr().out.strip() == stored
+
+
+def test_open_stored_takes_a_saved_revision_only(cli_store, capsys):
+    """'open --stored' prints what a store holds: a ?sheet= link holds no stored text, and is refused at 'id'."""
+    from heatbalance.links import sheet_link
+
+    link = sheet_link(_sample(SAMPLES[0]), "https://sheets.example.invalid/")
+    assert main(["open", link, "--stored"]) == 1
+    assert "id: --stored prints a saved revision: give its id or its ?ws= link" in capsys.readouterr().err

@@ -214,3 +214,10 @@ def test_millibar_gauge_and_absolute_are_read_and_a_german_gauge_mark_is_spelled
     for unit in ("barü", "bar(ü)", "bar ü"):  # Überdruck: gauge
         with pytest.raises(UnitError, match="is a gauge pressure: write barg"):
             to_si(4, unit, "pressure", "vessels[R].pressure")
+
+
+def test_a_slip_is_refused_with_its_words_where_several_kinds_are_taken():
+    # an amount field takes a mass or a mass flow: the slip is named, not only "not a mass or a mass flow"
+    with pytest.raises(UnitError) as refused:
+        kind_of("t/hh", ("mass", "mass_flow"), "streams[Glycol].flow")
+    assert "'hh' reads as hectohour" in refused.value.message and refused.value.where == "streams[Glycol].flow"
